@@ -1,0 +1,38 @@
+import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useRouteError } from 'react-router';
+import type { Route } from './+types/root';
+import { ErrorPage } from './components/error-page';
+import './app.css';
+
+export const links: Route.LinksFunction = () => [{ rel: 'icon', href: '/favicon.svg', type: 'image/svg+xml' }];
+
+export function Layout({ children }: { children: React.ReactNode }) {
+  return (
+    <html lang="en">
+      <head>
+        <meta charSet="utf-8" />
+        <meta name="viewport" content="width=device-width, initial-scale=1" />
+        <meta name="theme-color" content="#0e5357" />
+        <Meta />
+        <Links />
+      </head>
+      <body className="min-h-dvh font-sans">
+        {children}
+        <ScrollRestoration />
+        <Scripts />
+      </body>
+    </html>
+  );
+}
+
+export default function App() {
+  return <Outlet />;
+}
+
+export function ErrorBoundary() {
+  const error = useRouteError();
+  if (isRouteErrorResponse(error)) {
+    return <ErrorPage status={error.status} message={typeof error.data === 'string' ? error.data : undefined} />;
+  }
+  const detail = import.meta.env.DEV && error instanceof Error ? error.stack : undefined;
+  return <ErrorPage status={500} detail={detail} />;
+}

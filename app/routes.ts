@@ -1,0 +1,24 @@
+import { type RouteConfig, index, layout, route } from '@react-router/dev/routes';
+
+export default [
+  index('routes/home.tsx'),
+  route('healthz', 'routes/healthz.ts'),
+
+  // Sign-in by e-mailed one-time code (phone first).
+  route('sign-in', 'routes/auth/sign-in.tsx'),
+  route('sign-in/code', 'routes/auth/sign-in-code.tsx'),
+  route('sign-in/link', 'routes/auth/sign-in-link.ts'),
+  route('sign-out', 'routes/auth/sign-out.ts'),
+  route('invitations/:token', 'routes/invitation.tsx'),
+
+  // Staff pages (desktop first): instructors, assistants, researchers, site admins.
+  layout('routes/staff/layout.tsx', [
+    route('courses', 'routes/staff/courses.tsx'),
+    route('courses/new', 'routes/staff/course-new.tsx'),
+    route('courses/:courseId', 'routes/staff/course.tsx'),
+    route('courses/:courseId/members', 'routes/staff/members.tsx'),
+    route('admin', 'routes/staff/admin.tsx'),
+  ]),
+
+  route('*', 'routes/not-found.tsx'),
+] satisfies RouteConfig;

@@ -1,0 +1,127 @@
+import { data, Form, Link, redirect, useNavigation } from 'react-router';
+import { z } from 'zod';
+import type { Route } from './+types/sign-in-code';
+import { ParticipantShell } from '#app/components/shells';
+import { Button, Notice, TextField } from '#app/components/ui';
+import {
+  authenticator,
+  checkSignInLimits,
+  clientIp,
+  CODE_MINUTES,
+  getUser,
+  pendingSignInEmail,
+  pendingSignInError,
+  recordAuthEvent,
+} from '#app/utils/auth.server';
+import { formatWait } from '#app/utils/format';
+import { strategyRequest } from '#app/utils/http.server';
+
+const CodeForm = z.object({
+  code: z
+    .string()
+    .transform((s) => s.replace(/\s+/g, ''))
+    .pipe(z.string().regex(/^\d{6}$/, 'The code has six digits.')),
+});
+
+export async function loader({ request }: Route.LoaderArgs) {
+  if (await getUser(request)) throw redirect('/');
+  const email = pendingSignInEmail(request);
+  const error = pendingSignInError(request);
+  if (!email && !error) throw redirect('/sign-in');
+  return { email, error, minutes: CODE_MINUTES };
+}
+
+export async function action({ request }: Route.ActionArgs) {
+  const form = await request.clone().formData();
+  const email = pendingSignInEmail(request);
+  if (!email) throw redirect('/sign-in');
+  const ip = clientIp(request);
+
+  if (form.get('intent') === 'resend') {
+    const limited = await checkSignInLimits('code-request', email, ip);
+    if (limited) return data({ errors: {}, limited }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
+    await recordAuthEvent('code-request', email, ip);
+    // No e-mail and no code in the form: the strategy sends a new code to the pending address.
+    await authenticator().authenticate('TOTP', strategyRequest(request, {}));
+    throw new Error('the sign-in strategy returned without a redirect');
+  }
+
+  const parsed = CodeForm.safeParse({ code: String(form.get('code') ?? '') });
+  if (!parsed.success) return data({ errors: { code: parsed.error.issues[0]?.message }, limited: null }, { status: 400 });
+  const limited = await checkSignInLimits('code-failure', email, ip);
+  if (limited) return data({ errors: {}, limited }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
+  try {
+    await authenticator().authenticate('TOTP', strategyRequest(request, { code: parsed.data.code }));
+  } catch (thrown) {
+    // The strategy answers a wrong or expired code with a redirect back to this page.
+    if (thrown instanceof Response && new URL(thrown.headers.get('Location') ?? '/', 'http://x').pathname === '/sign-in/code') {
+      await recordAuthEvent('code-failure', email, ip);
+    }
+    throw thrown;
+  }
+  throw new Error('the sign-in strategy returned without a redirect');
+}
+
+export default function SignInCode({ loaderData, actionData }: Route.ComponentProps) {
+  const nav = useNavigation();
+  const busy = nav.state === 'submitting';
+  return (
+    <ParticipantShell>
+      <div className="flex flex-col gap-2">
+        <h1 className="text-3xl font-semibold">Check your e-mail</h1>
+        {loaderData.email ? (
+          <p className="text-lg text-slate-700">
+            We sent a six-digit code to <strong className="break-all">{loaderData.email}</strong>. It works for {loaderData.minutes}{' '}
+            minutes. You can also open the link in the e-mail on this device.
+          </p>
+        ) : null}
+      </div>
+      {loaderData.error ? <Notice tone="error">{loaderData.error}</Notice> : null}
+      {actionData?.limited ? (
+        <Notice tone="error" title="Too many attempts">
+          {actionData.limited.reason} Try again in {formatWait(actionData.limited.retryAfterSeconds)}.
+        </Notice>
+      ) : null}
+      {loaderData.email ? (
+        <>
+          <Form method="post" className="flex flex-col gap-4" noValidate>
+            <TextField
+              label="Sign-in code"
+              name="code"
+              inputMode="numeric"
+              autoComplete="one-time-code"
+              pattern="[0-9 ]*"
+              maxLength={8}
+              required
+              autoFocus
+              className="[&_input]:text-center [&_input]:text-3xl [&_input]:tracking-[0.3em]"
+              error={actionData?.errors && 'code' in actionData.errors ? actionData.errors.code : undefined}
+            />
+            <Button type="submit" name="intent" value="verify" disabled={busy} className="min-h-14 text-lg">
+              {busy && nav.formData?.get('intent') === 'verify' ? 'Checking…' : 'Sign in'}
+            </Button>
+          </Form>
+          <Form method="post" className="flex flex-wrap items-center gap-x-4 gap-y-2">
+            <Button type="submit" name="intent" value="resend" variant="quiet" disabled={busy}>
+              Send a new code
+            </Button>
+            <Link to="/sign-in" className="min-h-11 content-center font-semibold text-accent-700 underline-offset-4 hover:underline">
+              Use another e-mail address
+            </Link>
+          </Form>
+        </>
+      ) : (
+        <Link to="/sign-in" className="font-semibold text-accent-700 underline underline-offset-4">
+          Start again
+        </Link>
+      )}
+    </ParticipantShell>
+  );
+}
+
+export const headers: Route.HeadersFunction = ({ actionHeaders, loaderHeaders }) => {
+  const retry = actionHeaders.get('Retry-After');
+  return retry ? { 'Retry-After': retry } : loaderHeaders;
+};
+
+export const meta: Route.MetaFunction = () => [{ title: 'Enter your code · Parley' }];

@@ -1,0 +1,216 @@
+import { data, Form, Link, useNavigation } from 'react-router';
+import { z } from 'zod';
+import type { Route } from './+types/members';
+import { DataTable, staffColumnHelper } from '#app/components/data-table';
+import { PageHeader } from '#app/components/shells';
+import { Button, DemoBadge, Notice, SelectField, TextField } from '#app/components/ui';
+import {
+  changeMemberRole,
+  createInvitation,
+  listMembers,
+  listPendingInvitations,
+  revokeInvitation,
+} from '#app/models/course.server';
+import { env } from '#app/utils/env.server';
+import { fieldErrors } from '#app/utils/forms';
+import { formatDate, ROLE_WORDS } from '#app/utils/format';
+import { invitationMail, sendMail } from '#app/utils/mail.server';
+import { requireCourseRole } from '#app/utils/permissions.server';
+import { COURSE_ROLES, INVITATION_DAYS } from '#app/utils/roles';
+
+const Role = z.enum(COURSE_ROLES, 'Choose a role.');
+const Id = z.coerce.number().int().positive();
+const MemberAction = z.discriminatedUnion('intent', [
+  z.object({ intent: z.literal('invite'), email: z.email('Enter an e-mail address such as name@university.edu.').max(254), role: Role }),
+  z.object({ intent: z.literal('change-role'), memberId: Id, role: Role }),
+  z.object({ intent: z.literal('remove'), memberId: Id }),
+  z.object({ intent: z.literal('revoke'), invitationId: Id }),
+]);
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  // Researchers work with de-identified data only, so the roster of names is not theirs to see.
+  const { course, role, user } = await requireCourseRole(request, params.courseId, ['instructor', 'assistant']);
+  const [members, invitations] = await Promise.all([listMembers(course.id), listPendingInvitations(course.id)]);
+  return { course, canManage: role === 'instructor', me: user.id, members, invitations };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { course, user } = await requireCourseRole(request, params.courseId, ['instructor']);
+  const form = Object.fromEntries(await request.formData());
+  const parsed = MemberAction.safeParse(form);
+  if (!parsed.success) {
+    return data({ ok: false as const, intent: String(form.intent ?? ''), errors: fieldErrors(parsed.error), values: form, message: null }, { status: 400 });
+  }
+  const a = parsed.data;
+  const fail = (message: string, status: number) =>
+    data({ ok: false as const, intent: a.intent, errors: {} as Record<string, string>, values: form, message }, { status });
+  switch (a.intent) {
+    case 'invite': {
+      const res = await createInvitation(course.id, a.email, a.role, user.id);
+      if (!res.ok) return data({ ok: false as const, intent: a.intent, errors: { [res.field]: res.message }, values: form, message: null }, { status: 400 });
+      await sendMail(
+        invitationMail({
+          to: a.email.toLowerCase(),
+          courseTitle: course.title,
+          role: a.role,
+          inviter: user.name ?? user.email,
+          link: new URL(`/invitations/${res.token}`, env().APP_URL).toString(),
+          days: INVITATION_DAYS,
+        }),
+      );
+      return { ok: true as const, intent: a.intent, message: `Invitation sent to ${a.email.toLowerCase()}.` };
+    }
+    case 'change-role':
+    case 'remove': {
+      const res = await changeMemberRole(course.id, a.memberId, a.intent === 'remove' ? null : a.role);
+      if (!res.ok) return fail(res.message, res.status);
+      return { ok: true as const, intent: a.intent, message: a.intent === 'remove' ? 'Member removed.' : 'Role changed.' };
+    }
+    case 'revoke': {
+      if (!(await revokeInvitation(course.id, a.invitationId))) return fail('That invitation is not pending in this course.', 404);
+      return { ok: true as const, intent: a.intent, message: 'Invitation withdrawn.' };
+    }
+  }
+}
+
+const roleOptions = COURSE_ROLES.map((r) => ({ value: r, label: ROLE_WORDS[r] }));
+
+type MemberRow = Route.ComponentProps['loaderData']['members'][number];
+
+function columnsFor(canManage: boolean, me: number) {
+  const col = staffColumnHelper<MemberRow>();
+  return col.columns([
+    col.accessor('email', { header: 'E-mail', cell: (i) => <span className="break-all">{i.getValue()}</span> }),
+    col.accessor('name', { header: 'Name', cell: (i) => i.getValue() ?? '—' }),
+    col.accessor('studentId', { header: 'Student id', cell: (i) => i.getValue() ?? '—' }),
+    col.accessor('role', {
+      header: 'Role',
+      cell: (i) =>
+        canManage ? (
+          <Form method="post" className="flex items-center gap-2">
+            <input type="hidden" name="intent" value="change-role" />
+            <input type="hidden" name="memberId" value={i.row.original.memberId} />
+            <label className="sr-only" htmlFor={`role-${i.row.original.memberId}`}>
+              Role of {i.row.original.email}
+            </label>
+            <select
+              id={`role-${i.row.original.memberId}`}
+              name="role"
+              defaultValue={i.getValue()}
+              className="min-h-9 rounded border border-slate-300 bg-white px-2"
+            >
+              {roleOptions.map((o) => (
+                <option key={o.value} value={o.value}>
+                  {o.label}
+                </option>
+              ))}
+            </select>
+            <button type="submit" className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50">
+              Save<span className="sr-only"> role of {i.row.original.email}</span>
+            </button>
+          </Form>
+        ) : (
+          ROLE_WORDS[i.getValue()]
+        ),
+    }),
+    col.accessor('joinedAt', { header: 'Joined', cell: (i) => formatDate(i.getValue()), sortFn: 'datetime' }),
+    ...(canManage
+      ? [
+          col.display({
+            id: 'actions',
+            header: () => <span className="sr-only">Actions</span>,
+            cell: (i) => (
+              <Form
+                method="post"
+                onSubmit={(e) => {
+                  const who = i.row.original.userId === me ? 'yourself' : i.row.original.email;
+                  if (!confirm(`Remove ${who} from this course?`)) e.preventDefault();
+                }}
+              >
+                <input type="hidden" name="intent" value="remove" />
+                <input type="hidden" name="memberId" value={i.row.original.memberId} />
+                <button type="submit" className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
+                  Remove<span className="sr-only"> {i.row.original.email}</span>
+                </button>
+              </Form>
+            ),
+          }),
+        ]
+      : []),
+  ]);
+}
+
+export default function Members({ loaderData, actionData }: Route.ComponentProps) {
+  const { course, canManage, members, invitations, me } = loaderData;
+  const nav = useNavigation();
+  const inviteErrors: Record<string, string | undefined> = actionData && !actionData.ok && actionData.intent === 'invite' ? actionData.errors : {};
+  const values: Record<string, string | undefined> = actionData && !actionData.ok ? (actionData.values as Record<string, string>) : {};
+  return (
+    <>
+      <PageHeader
+        title="Members"
+        eyebrow={
+          <span className="flex flex-wrap items-center gap-2">
+            <Link to={`/courses/${course.id}`} className="text-accent-700 underline-offset-4 hover:underline">
+              {course.title}
+            </Link>
+            {course.isDemo ? <DemoBadge /> : null}
+          </span>
+        }
+      />
+      <div className="mb-4 flex flex-col gap-3" aria-live="polite">
+        {actionData?.ok ? <Notice tone="ok">{actionData.message}</Notice> : null}
+        {actionData && !actionData.ok && actionData.message ? <Notice tone="error">{actionData.message}</Notice> : null}
+      </div>
+      {canManage ? (
+        <section aria-labelledby="invite" className="mb-8 max-w-3xl rounded-lg border border-slate-200 bg-white p-4">
+          <h2 id="invite" className="mb-3 text-lg font-semibold">
+            Invite by e-mail
+          </h2>
+          <Form method="post" className="flex flex-wrap items-start gap-3" noValidate key={actionData?.ok && actionData.intent === 'invite' ? actionData.message : 'invite'}>
+            <input type="hidden" name="intent" value="invite" />
+            <TextField label="E-mail address" name="email" type="email" autoComplete="off" className="min-w-72 flex-1" defaultValue={values.email} error={inviteErrors.email} />
+            <SelectField label="Role" name="role" options={roleOptions} defaultValue={values.role ?? 'assistant'} error={inviteErrors.role} />
+            <Button type="submit" className="mt-7" disabled={nav.state === 'submitting'}>
+              Send invitation
+            </Button>
+          </Form>
+          <p className="mt-2 text-sm text-slate-600">The invitation is valid for {INVITATION_DAYS} days. The person signs in with a code sent to that address.</p>
+        </section>
+      ) : null}
+      <section aria-labelledby="member-list" className="mb-8">
+        <h2 id="member-list" className="mb-3 text-lg font-semibold">
+          {members.length} members
+        </h2>
+        <DataTable columns={columnsFor(canManage, me)} data={members} caption="Course members" filterLabel="Filter members" initialSorting={[{ id: 'email', desc: false }]} />
+      </section>
+      {invitations.length > 0 ? (
+        <section aria-labelledby="pending">
+          <h2 id="pending" className="mb-3 text-lg font-semibold">
+            Pending invitations
+          </h2>
+          <ul className="flex max-w-3xl flex-col divide-y divide-slate-100 rounded-lg border border-slate-200 bg-white">
+            {invitations.map((inv) => (
+              <li key={inv.id} className="flex flex-wrap items-center justify-between gap-2 px-4 py-2">
+                <span>
+                  <span className="break-all">{inv.email}</span> · {ROLE_WORDS[inv.role]} · until {formatDate(inv.expiresAt)}
+                </span>
+                {canManage ? (
+                  <Form method="post">
+                    <input type="hidden" name="intent" value="revoke" />
+                    <input type="hidden" name="invitationId" value={inv.id} />
+                    <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
+                      Withdraw<span className="sr-only"> invitation to {inv.email}</span>
+                    </button>
+                  </Form>
+                ) : null}
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+    </>
+  );
+}
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Members · ${data?.course.title ?? 'Course'} · Parley` }];

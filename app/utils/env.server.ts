@@ -1,0 +1,53 @@
+import { z } from 'zod';
+
+const csv = z
+  .string()
+  .default('')
+  .transform((s) =>
+    s
+      .split(',')
+      .map((e) => e.trim().toLowerCase())
+      .filter(Boolean),
+  );
+
+const schema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  PORT: z.coerce.number().int().min(1).max(65535).default(3000),
+  HOST: z.string().default('127.0.0.1'),
+  /** where links in e-mails point: the address participants' phones reach */
+  APP_URL: z.url(),
+  DATABASE_URL: z.string().startsWith('mysql://', 'DATABASE_URL must be a mysql:// URL'),
+  SESSION_SECRET: z.string().min(32, 'SESSION_SECRET needs at least 32 characters'),
+  TOTP_SECRET: z.string().regex(/^[0-9a-fA-F]{64}$/, 'TOTP_SECRET must be exactly 64 hexadecimal characters'),
+  SMTP_URL: z.string().startsWith('smtp', 'SMTP_URL must be an smtp:// or smtps:// URL'),
+  MAIL_FROM: z.string().min(3).default('Parley <no-reply@parley.test>'),
+  ADMIN_EMAILS: csv,
+  /** sign-in codes a single e-mail address may request per 15 minutes */
+  CODE_REQUESTS_PER_EMAIL: z.coerce.number().int().min(1).default(5),
+  /** sign-in codes a single network address may request per 15 minutes (a lecture hall shares few) */
+  CODE_REQUESTS_PER_IP: z.coerce.number().int().min(1).default(200),
+  /** wrong codes an e-mail address may enter per 15 minutes before it must wait (counted on the
+   * server: the strategy's own attempt counter lives in a cookie the client holds) */
+  CODE_FAILURES_PER_EMAIL: z.coerce.number().int().min(1).default(5),
+  /** behind a reverse proxy, read the client address from X-Forwarded-For */
+  TRUST_PROXY: z
+    .enum(['0', '1', 'true', 'false'])
+    .default('0')
+    .transform((v) => v === '1' || v === 'true'),
+});
+
+export type Env = z.infer<typeof schema>;
+
+let cached: Env | undefined;
+
+/** The validated environment; fails loudly at start-up with every problem listed. */
+export function env(): Env {
+  if (cached) return cached;
+  const parsed = schema.safeParse(process.env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`).join('\n');
+    throw new Error(`Parley's environment is incomplete (see .env.example):\n${lines}`);
+  }
+  cached = parsed.data;
+  return cached;
+}

@@ -1,0 +1,85 @@
+import nodemailer, { type Transporter } from 'nodemailer';
+import { env } from './env.server';
+
+export interface Mail {
+  to: string;
+  subject: string;
+  text: string;
+  html: string;
+}
+
+const g = globalThis as unknown as { __parleyMailer?: Transporter };
+
+function transport() {
+  g.__parleyMailer ??= nodemailer.createTransport(env().SMTP_URL);
+  return g.__parleyMailer;
+}
+
+export async function sendMail(mail: Mail) {
+  await transport().sendMail({ from: env().MAIL_FROM, ...mail });
+}
+
+export function escapeHtml(s: string) {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+/** A plain, readable HTML frame: Parley's mails are short and must read well on a phone. */
+export function htmlFrame(title: string, bodyHtml: string) {
+  return `<!doctype html><html><body style="margin:0;background:#f8fafc;font-family:'Source Sans 3',Helvetica,Arial,sans-serif;color:#0f172a">
+<div style="max-width:520px;margin:0 auto;padding:24px">
+<p style="margin:0 0 16px;font-weight:700;color:#0e5357;letter-spacing:.04em">PARLEY</p>
+<h1 style="font-size:22px;margin:0 0 16px">${escapeHtml(title)}</h1>
+${bodyHtml}
+</div></body></html>`;
+}
+
+export function signInCodeMail(email: string, code: string, magicLink: string, minutes: number): Mail {
+  return {
+    to: email,
+    subject: `Your Parley sign-in code: ${code}`,
+    text: [
+      `Your sign-in code for Parley is ${code}`,
+      '',
+      `Type it on the sign-in page, or open this link on the same device:`,
+      magicLink,
+      '',
+      `The code works for ${minutes} minutes. If you did not ask for it, ignore this e-mail: nobody can sign in without it.`,
+    ].join('\n'),
+    html: htmlFrame(
+      'Your sign-in code',
+      `<p style="font-size:16px">Type this code on the sign-in page:</p>
+<p style="font-size:36px;font-weight:700;letter-spacing:.2em;margin:8px 0 24px" aria-label="Sign-in code">${escapeHtml(code)}</p>
+<p><a href="${escapeHtml(magicLink)}" style="display:inline-block;background:#0e5357;color:#fff;padding:12px 20px;border-radius:8px;text-decoration:none;font-weight:600">Sign in on this device</a></p>
+<p style="color:#475569;font-size:14px">The code works for ${minutes} minutes. If you did not ask for it, ignore this e-mail: nobody can sign in without it.</p>`,
+    ),
+  };
+}
+
+export function invitationMail(opts: {
+  to: string;
+  courseTitle: string;
+  role: string;
+  inviter: string;
+  link: string;
+  days: number;
+}): Mail {
+  const article = /^[aeiou]/.test(opts.role) ? 'an' : 'a';
+  return {
+    to: opts.to,
+    subject: `Invitation to ${opts.courseTitle} on Parley`,
+    text: [
+      `${opts.inviter} invites you to join “${opts.courseTitle}” on Parley as ${article} ${opts.role}.`,
+      '',
+      `Accept the invitation here (you will sign in with a code sent to this address):`,
+      opts.link,
+      '',
+      `The invitation is valid for ${opts.days} days.`,
+    ].join('\n'),
+    html: htmlFrame(
+      `Join ${opts.courseTitle}`,
+      `<p style="font-size:16px">${escapeHtml(opts.inviter)} invites you to join <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley as ${article} <strong>${escapeHtml(opts.role)}</strong>.</p>
+<p><a href="${escapeHtml(opts.link)}" style="display:inline-block;background:#0e5357;color:#fff;padding:12px 20px;border-radius:8px;text-decoration:none;font-weight:600">See the invitation</a></p>
+<p style="color:#475569;font-size:14px">You will sign in with a code sent to this address. The invitation is valid for ${opts.days} days.</p>`,
+    ),
+  };
+}

@@ -1,0 +1,271 @@
+// Local services for `npm start` and `npm test`: npm packages, Debian packages, a private MariaDB,
+// maildev. Plain Node (no TypeScript, no dependencies) because it runs before `npm ci` has.
+import { spawn, spawnSync } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import net from 'node:net';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+
+const started = [];
+
+export function say(line) {
+  process.stdout.write(`[parley] ${line}\n`);
+}
+
+export function fail(message, hint) {
+  process.stderr.write(`\n[parley] ✗ ${message}\n${hint ? `[parley]   ${hint.split('\n').join('\n[parley]   ')}\n` : ''}`);
+  stopAll().finally(() => process.exit(1));
+}
+
+function run(cmd, args, opts = {}) {
+  const r = spawnSync(cmd, args, { stdio: 'inherit', cwd: root, ...opts });
+  return r.status === 0;
+}
+
+function which(bin) {
+  for (const dir of [...(process.env.PATH ?? '').split(':'), '/usr/sbin', '/usr/bin', '/sbin']) {
+    const p = path.join(dir, bin);
+    if (dir && fs.existsSync(p)) return p;
+  }
+  return null;
+}
+
+/** npm packages: `npm ci` when node_modules is missing or older than the lock file. */
+export function ensureNodeModules() {
+  const marker = path.join(root, 'node_modules', '.package-lock.json');
+  const lock = path.join(root, 'package-lock.json');
+  if (fs.existsSync(marker) && fs.statSync(marker).mtimeMs >= fs.statSync(lock).mtimeMs) return;
+  say('installing npm packages (npm ci)…');
+  if (!run('npm', ['ci', '--no-audit', '--no-fund'])) fail('npm ci failed', 'See the npm output above.');
+}
+
+/** Debian packages, installed when a binary is missing and we are root; else the exact command. */
+export function ensureDebian(needs) {
+  const missing = needs.filter((n) => !which(n.bin));
+  if (missing.length === 0) return;
+  const pkgs = [...new Set(missing.flatMap((n) => n.packages))];
+  const cmd = `apt-get update && DEBIAN_FRONTEND=noninteractive apt-get install -y --no-install-recommends ${pkgs.join(' ')}`;
+  if (process.getuid?.() !== 0) {
+    fail(`missing ${missing.map((n) => n.bin).join(', ')}`, `Install Debian's packages as root, then run this again:\n  sudo sh -c '${cmd}'`);
+  }
+  say(`installing Debian packages: ${pkgs.join(' ')}…`);
+  if (!run('sh', ['-c', cmd], { env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } })) {
+    fail('apt-get could not install the packages', `Run by hand and read its error:\n  ${cmd}`);
+  }
+}
+
+export const MARIADB_PACKAGES = { bin: 'mariadbd', packages: ['mariadb-server-core', 'mariadb-client'] };
+export const CHROMIUM_PACKAGES = { bin: 'chromium', packages: ['chromium', 'fonts-dejavu-core'] };
+
+export function portIsFree(port, host = '127.0.0.1') {
+  return new Promise((resolve) => {
+    const srv = net.createServer();
+    srv.once('error', () => resolve(false));
+    srv.listen(port, host, () => srv.close(() => resolve(true)));
+  });
+}
+
+const sleep = (ms) => new Promise((r) => setTimeout(r, ms));
+
+function alive(pid) {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** Secrets for a local instance, made once and kept in its data folder. */
+export function localSecrets(dir) {
+  const file = path.join(dir, 'secrets.json');
+  if (fs.existsSync(file)) return JSON.parse(fs.readFileSync(file, 'utf8'));
+  const secrets = { SESSION_SECRET: randomBytes(32).toString('hex'), TOTP_SECRET: randomBytes(32).toString('hex') };
+  fs.mkdirSync(dir, { recursive: true });
+  fs.writeFileSync(file, JSON.stringify(secrets, null, 2), { mode: 0o600 });
+  return secrets;
+}
+
+/**
+ * A private MariaDB on 127.0.0.1 with its data under `dir` — never the system service.
+ * Reuses an instance this project left running in the same folder.
+ */
+export async function startMariadb({ dir, port, databases, user, password, fresh = [] }) {
+  const datadir = path.join(dir, 'mariadb');
+  const sock = path.join(datadir, 'mariadb.sock');
+  const pidFile = path.join(datadir, 'mariadb.pid');
+  const client = (sql) =>
+    spawnSync(which('mariadb') ?? 'mariadb', ['--no-defaults', `--socket=${sock}`, '-uroot', '-e', sql], { encoding: 'utf8' });
+  const ping = () =>
+    spawnSync(which('mariadb-admin') ?? 'mariadb-admin', ['--no-defaults', `--socket=${sock}`, '-uroot', 'ping'], { encoding: 'utf8' })
+      .status === 0;
+
+  let reused = false;
+  const oldPid = fs.existsSync(pidFile) ? Number(fs.readFileSync(pidFile, 'utf8').trim()) : 0;
+  if (oldPid && alive(oldPid) && ping()) {
+    reused = true;
+    say(`MariaDB already running from ${path.relative(root, datadir)} (pid ${oldPid}); reusing it`);
+  } else {
+    if (!fs.existsSync(path.join(datadir, 'mysql'))) {
+      fs.mkdirSync(datadir, { recursive: true });
+      const init = spawnSync(
+        which('mariadb-install-db') ?? 'mariadb-install-db',
+        ['--no-defaults', `--datadir=${datadir}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'],
+        { encoding: 'utf8' },
+      );
+      if (init.status !== 0) fail('mariadb-install-db could not create the data folder', init.stderr || init.stdout);
+    }
+    if (!(await portIsFree(port))) {
+      fail(
+        `port ${port} on 127.0.0.1 is taken, so Parley's MariaDB cannot start`,
+        `Stop whatever listens there (ss -ltnp 'sport = :${port}'), or pick another port:\n  PARLEY_DB_PORT=3407 npm start`,
+      );
+    }
+    const errLog = path.join(datadir, 'error.log');
+    const child = spawn(
+      which('mariadbd') ?? 'mariadbd',
+      [
+        '--no-defaults',
+        `--datadir=${datadir}`,
+        `--socket=${sock}`,
+        `--port=${port}`,
+        '--bind-address=127.0.0.1',
+        `--pid-file=${pidFile}`,
+        `--log-error=${errLog}`,
+        '--user=root',
+        '--skip-name-resolve',
+        '--character-set-server=utf8mb4',
+        '--collation-server=utf8mb4_unicode_ci',
+        '--max-connections=500',
+        '--innodb-flush-log-at-trx-commit=1',
+      ],
+      { detached: true, stdio: 'ignore' },
+    );
+    started.push({ name: 'MariaDB', child, stop: () => spawnSync('mariadb-admin', ['--no-defaults', `--socket=${sock}`, '-uroot', 'shutdown']) });
+    let ready = false;
+    for (let i = 0; i < 300 && !ready; i++) {
+      await sleep(100);
+      if (child.exitCode !== null) break;
+      ready = ping();
+    }
+    if (!ready) {
+      const tail = fs.existsSync(errLog) ? fs.readFileSync(errLog, 'utf8').split('\n').slice(-8).join('\n') : '';
+      fail('MariaDB did not start', `Its log (${path.relative(root, errLog)}) ends with:\n${tail}`);
+    }
+  }
+  const sql = [
+    ...fresh.map((db) => `DROP DATABASE IF EXISTS \`${db}\`;`),
+    ...databases.map((db) => `CREATE DATABASE IF NOT EXISTS \`${db}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;`),
+    `CREATE USER IF NOT EXISTS '${user}'@'127.0.0.1' IDENTIFIED BY '${password}';`,
+    `CREATE USER IF NOT EXISTS '${user}'@'localhost' IDENTIFIED BY '${password}';`,
+    ...databases.flatMap((db) => [
+      `GRANT ALL PRIVILEGES ON \`${db}\`.* TO '${user}'@'127.0.0.1';`,
+      `GRANT ALL PRIVILEGES ON \`${db}\`.* TO '${user}'@'localhost';`,
+    ]),
+  ].join(' ');
+  const r = client(sql);
+  if (r.status !== 0) fail('could not create the database and its user', r.stderr);
+  return { sock, reused };
+}
+
+/** maildev on loopback: catches every e-mail; web page and REST API on `web`. */
+export async function startMaildev({ smtp, web }) {
+  const health = `http://127.0.0.1:${web}/api/healthz`;
+  if (await httpOk(health)) {
+    say(`maildev already answers on ${web}; reusing it`);
+    return;
+  }
+  for (const p of [smtp, web]) {
+    if (!(await portIsFree(p))) fail(`port ${p} is taken, so maildev cannot start`, 'Set PARLEY_SMTP_PORT / PARLEY_MAIL_WEB_PORT to free ports.');
+  }
+  const child = spawn(
+    process.execPath,
+    [path.join(root, 'node_modules/maildev/dist/bin/maildev.js'), '--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '--smtp', String(smtp), '--web', String(web), '--silent'],
+    { detached: true, stdio: 'ignore' },
+  );
+  started.push({ name: 'maildev', child });
+  if (!(await waitForHttp(health, 20_000))) fail('maildev did not start', `Try by hand: node node_modules/maildev/dist/bin/maildev.js --smtp ${smtp} --web ${web}`);
+}
+
+export async function httpOk(url) {
+  try {
+    const res = await fetch(url, { signal: AbortSignal.timeout(2000) });
+    return res.ok;
+  } catch {
+    return false;
+  }
+}
+
+export async function waitForHttp(url, ms, child) {
+  const until = Date.now() + ms;
+  while (Date.now() < until) {
+    if (await httpOk(url)) return true;
+    if (child && child.exitCode !== null) return false;
+    await sleep(150);
+  }
+  return false;
+}
+
+/** Run a TypeScript file of ours with tsx, synchronously, with the given environment. */
+export function runTs(file, args, env) {
+  return run(process.execPath, ['--import', 'tsx', file, ...args], { env: { ...process.env, ...env } });
+}
+
+export function runBin(bin, args, env) {
+  return run(path.join(root, 'node_modules/.bin', bin), args, { env: { ...process.env, ...env } });
+}
+
+/** A long-running child that stops with us. */
+export function keep(name, child, stop) {
+  started.push({ name, child, stop });
+  return child;
+}
+
+function newestMtime(p) {
+  if (!fs.existsSync(p)) return 0;
+  const st = fs.statSync(p);
+  if (!st.isDirectory()) return st.mtimeMs;
+  let max = st.mtimeMs;
+  for (const e of fs.readdirSync(p)) max = Math.max(max, newestMtime(path.join(p, e)));
+  return max;
+}
+
+/** Production build, skipped when nothing it is made from changed since the last one. */
+export function ensureBuild(env) {
+  const out = path.join(root, 'build/server/index.js');
+  const inputs = ['app', 'realtime', 'drizzle', 'public', 'vite.config.ts', 'react-router.config.ts', 'package-lock.json'];
+  const newest = Math.max(...inputs.map((p) => newestMtime(path.join(root, p))));
+  if (fs.existsSync(out) && fs.statSync(out).mtimeMs > newest) {
+    say('build is up to date');
+    return;
+  }
+  say('building the app (react-router build)…');
+  if (!runBin('react-router', ['build'], env)) fail('the build failed', 'See the output above.');
+}
+
+export async function stopAll() {
+  while (started.length) {
+    const s = started.pop();
+    if (s.child.exitCode !== null || s.child.signalCode !== null) continue;
+    if (s.stop) s.stop();
+    else s.child.kill('SIGTERM');
+    const until = Date.now() + 8000;
+    while (s.child.exitCode === null && s.child.signalCode === null && Date.now() < until) await sleep(50);
+    if (s.child.exitCode === null && s.child.signalCode === null) s.child.kill('SIGKILL');
+  }
+}
+
+export function stopOnSignals() {
+  let stopping = false;
+  for (const sig of ['SIGINT', 'SIGTERM', 'SIGHUP']) {
+    process.on(sig, () => {
+      if (stopping) return;
+      stopping = true;
+      say('stopping…');
+      stopAll().finally(() => process.exit(sig === 'SIGINT' ? 0 : 1));
+    });
+  }
+}

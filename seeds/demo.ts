@@ -1,0 +1,66 @@
+// The demo scenario (product.md): an invented course at an invented college with invented people.
+// Nothing here describes a real person or institution.
+import { and, eq } from 'drizzle-orm';
+import type { MySql2Database } from 'drizzle-orm/mysql2';
+import * as schema from '#drizzle/schema';
+
+const { users, courses, courseMembers } = schema;
+
+export const DEMO_COURSE = {
+  title: 'ECON 214 Strategy and Markets',
+  institution: 'Halvorsen College (fictional)',
+  term: 'Spring 2027',
+};
+
+export const DEMO_STAFF = [
+  { email: 'r.okafor@halvorsen.example', name: 'Rosa Okafor (demo instructor)', role: 'instructor' },
+  { email: 'j.lindqvist@halvorsen.example', name: 'Jonas Lindqvist (demo assistant)', role: 'assistant' },
+  { email: 'm.achterberg@halvorsen.example', name: 'Mira Achterberg (demo researcher)', role: 'researcher' },
+] as const;
+
+export const DEMO_ADMIN = { email: 'admin@halvorsen.example', name: 'Site admin (demo)' };
+
+const FIRST = ['Ada', 'Bram', 'Cleo', 'Dario', 'Elif', 'Farid', 'Greta', 'Hugo', 'Ines', 'Jalen', 'Kaia', 'Luca', 'Maren', 'Nika', 'Otto', 'Priya', 'Quinn', 'Rafa', 'Sina', 'Tomas'];
+const LAST = ['Arden', 'Brisk', 'Calloway', 'Dunmore', 'Eskel', 'Fairholm', 'Grove', 'Hollis', 'Ivers', 'Jessup'];
+
+/** 40 invented participants: student01@… to student40@…, names drawn from invented lists. */
+export function demoParticipants() {
+  return Array.from({ length: 40 }, (_, i) => {
+    const n = i + 1;
+    return {
+      email: `student${String(n).padStart(2, '0')}@halvorsen.example`,
+      name: `${FIRST[i % FIRST.length]} ${LAST[(i * 7) % LAST.length]}`,
+      studentId: `HC27-${String(1000 + n)}`,
+    };
+  });
+}
+
+type Db = MySql2Database<typeof schema>;
+
+async function upsertUser(db: Db, email: string, name: string) {
+  await db.insert(users).values({ email, name }).onDuplicateKeyUpdate({ set: { name } });
+  const [u] = await db.select({ id: users.id }).from(users).where(eq(users.email, email));
+  return u.id;
+}
+
+/** Idempotent: running it twice leaves the same rows. */
+export async function seedDemo(db: Db) {
+  await upsertUser(db, DEMO_ADMIN.email, DEMO_ADMIN.name);
+  const staffIds = new Map<string, number>();
+  for (const s of DEMO_STAFF) staffIds.set(s.email, await upsertUser(db, s.email, s.name));
+  const instructorId = staffIds.get(DEMO_STAFF[0].email)!;
+
+  let [course] = await db
+    .select({ id: courses.id })
+    .from(courses)
+    .where(and(eq(courses.title, DEMO_COURSE.title), eq(courses.isDemo, 1)));
+  if (!course) {
+    const [res] = await db.insert(courses).values({ ...DEMO_COURSE, isDemo: 1, createdBy: instructorId });
+    course = { id: res.insertId };
+  }
+  const member = async (userId: number, role: schema.CourseRole, studentId: string | null = null) =>
+    db.insert(courseMembers).values({ courseId: course.id, userId, role, studentId }).onDuplicateKeyUpdate({ set: { role, studentId } });
+  for (const s of DEMO_STAFF) await member(staffIds.get(s.email)!, s.role);
+  for (const p of demoParticipants()) await member(await upsertUser(db, p.email, p.name), 'participant', p.studentId);
+  return { courseId: course.id };
+}

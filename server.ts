@@ -1,0 +1,71 @@
+// One process: HTTP server, React Router handler (Vite middleware in development, the build in
+// production) and the socket.io hub on the same port. Stops cleanly on SIGINT/SIGTERM.
+import { createServer } from 'node:http';
+import path from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { createRequestHandler } from '@react-router/express';
+import compression from 'compression';
+import express from 'express';
+import type { ServerBuild } from 'react-router';
+import { closeDb } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
+import { attachHub } from '#realtime/hub';
+
+const config = env();
+const production = config.NODE_ENV === 'production';
+
+const app = express();
+app.disable('x-powered-by');
+app.set('trust proxy', config.TRUST_PROXY);
+const httpServer = createServer(app);
+
+// The client's address for rate limits, set here so no client can forge it.
+app.use((req, _res, next) => {
+  req.headers['x-parley-client-ip'] = (config.TRUST_PROXY ? req.ip : req.socket.remoteAddress) ?? 'unknown';
+  next();
+});
+app.use(compression());
+
+if (production) {
+  const buildDir = path.resolve('build');
+  app.use('/assets', express.static(path.join(buildDir, 'client/assets'), { immutable: true, maxAge: '1y' }));
+  app.use(express.static(path.join(buildDir, 'client'), { maxAge: '1h' }));
+  const build = (await import(pathToFileURL(path.join(buildDir, 'server/index.js')).href)) as ServerBuild;
+  app.use(createRequestHandler({ build, mode: 'production' }));
+} else {
+  const vite = await import('vite').then((v) =>
+    v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }),
+  );
+  app.use(vite.middlewares);
+  app.use(async (req, res, next) => {
+    try {
+      const build = (await vite.ssrLoadModule('virtual:react-router/server-build')) as ServerBuild;
+      await createRequestHandler({ build, mode: 'development' })(req, res, next);
+    } catch (error) {
+      if (error instanceof Error) vite.ssrFixStacktrace(error);
+      next(error);
+    }
+  });
+}
+
+const io = attachHub(httpServer);
+
+httpServer.listen(config.PORT, config.HOST, () => {
+  console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);
+});
+
+let closing = false;
+async function shutdown(signal: string) {
+  if (closing) return;
+  closing = true;
+  console.log(`[parley] ${signal}: closing`);
+  const force = setTimeout(() => process.exit(1), 8000);
+  force.unref();
+  await new Promise<void>((resolve) => io.close(() => resolve()));
+  httpServer.closeAllConnections();
+  await new Promise<void>((resolve) => httpServer.close(() => resolve()));
+  await closeDb();
+  process.exit(0);
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));

@@ -1,0 +1,50 @@
+// Debian's chromium driven by playwright-core (never a downloaded browser).
+import { type Browser, type BrowserContext, chromium, type Page } from 'playwright-core';
+import { expect } from 'vitest';
+import { latestSignInCode, mailTo } from './mail';
+
+export const CHROMIUM_ARGS = [
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
+
+export function launch(): Promise<Browser> {
+  return chromium.launch({ executablePath: process.env.PARLEY_CHROMIUM ?? '/usr/bin/chromium', headless: true, args: CHROMIUM_ARGS });
+}
+
+export const PHONE = { viewport: { width: 390, height: 844 }, deviceScaleFactor: 2, isMobile: true, hasTouch: true };
+export const DESKTOP = { viewport: { width: 1440, height: 900 } };
+
+/** A context that fails the test on any page error or console error. */
+export async function newContext(browser: Browser, opts: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<BrowserContext> {
+  const ctx = await browser.newContext({ ...opts, baseURL: process.env.PARLEY_TEST_URL });
+  ctx.on('page', watch);
+  return ctx;
+}
+
+export const pageErrors: string[] = [];
+function watch(page: Page) {
+  page.on('pageerror', (e) => pageErrors.push(`${page.url()}: ${e.message}`));
+  page.on('console', (m) => {
+    // A 400/403/404 answer logs a resource error by design; everything else is a defect.
+    if (m.type() === 'error' && !/status of 4(00|03|04)/.test(m.text())) pageErrors.push(`${page.url()}: ${m.text()}`);
+  });
+}
+
+/** The whole sign-in as a person does it: type the e-mail, read the code in the mail, type it. */
+export async function signInInBrowser(page: Page, email: string) {
+  const before = (await mailTo(email)).filter((m) => /sign-in code/.test(m.subject)).length;
+  await expect.poll(() => page.url()).toContain('/sign-in');
+  await page.getByLabel('E-mail address').fill(email);
+  await page.getByRole('button', { name: 'E-mail me a code' }).click();
+  await expect.poll(() => page.url()).toContain('/sign-in/code');
+  const { code } = await latestSignInCode(email, before + 1);
+  await page.getByLabel('Sign-in code').fill(code);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect.poll(() => page.url()).not.toContain('/sign-in');
+}

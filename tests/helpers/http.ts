@@ -1,0 +1,66 @@
+// A small cookie-keeping HTTP client for tests that use the app as a browser without JS would.
+import { latestSignInCode, mailTo } from './mail';
+
+export const baseUrl = () => process.env.PARLEY_TEST_URL!;
+
+export class Client {
+  cookies = new Map<string, string>();
+
+  cookieHeader() {
+    return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
+  }
+
+  private keep(res: Response) {
+    for (const line of res.headers.getSetCookie()) {
+      const [pair, ...attrs] = line.split(';');
+      const eq = pair.indexOf('=');
+      const name = pair.slice(0, eq).trim();
+      const value = pair.slice(eq + 1).trim();
+      const expired = attrs.some((a) => /max-age=0\b/i.test(a) || /expires=Thu, 01 Jan 1970/i.test(a));
+      if (expired || value === '') this.cookies.delete(name);
+      else this.cookies.set(name, value);
+    }
+  }
+
+  async get(path: string) {
+    const res = await fetch(new URL(path, baseUrl()), { headers: { cookie: this.cookieHeader() }, redirect: 'manual' });
+    this.keep(res);
+    return res;
+  }
+
+  async post(path: string, fields: Record<string, string | number>) {
+    const body = new URLSearchParams(Object.entries(fields).map(([k, v]) => [k, String(v)]));
+    const res = await fetch(new URL(path, baseUrl()), {
+      method: 'POST',
+      headers: { cookie: this.cookieHeader(), 'content-type': 'application/x-www-form-urlencoded', origin: baseUrl() },
+      body,
+      redirect: 'manual',
+    });
+    this.keep(res);
+    return res;
+  }
+}
+
+/** Signs in through the real flow: e-mail form → code read from maildev → code form. */
+export async function signIn(email: string): Promise<Client> {
+  const c = new Client();
+  const before = (await mailTo(email)).filter((m) => /sign-in code/.test(m.subject)).length;
+  const r1 = await c.post('/sign-in', { email });
+  if (r1.status !== 302 || r1.headers.get('location') !== '/sign-in/code') throw new Error(`sign-in answered ${r1.status}`);
+  const { code } = await latestSignInCode(email, before + 1);
+  const r2 = await c.post('/sign-in/code', { intent: 'verify', code });
+  if (r2.status !== 302 || !(await isSignedIn(c))) throw new Error(`code check answered ${r2.status} ${r2.headers.get('location')}`);
+  return c;
+}
+
+/** Signed in when a page for signed-in users answers instead of redirecting to sign-in. */
+export async function isSignedIn(c: Client) {
+  return (await c.get('/courses')).status === 200;
+}
+
+let counter = 0;
+/** A fresh address nobody else in this run uses. */
+export function uniqueEmail(prefix = 'user') {
+  counter += 1;
+  return `${prefix}-${process.pid}-${Date.now().toString(36)}-${counter}@tests.parley.test`;
+}

@@ -1,0 +1,15 @@
+import { reactRouter } from '@react-router/dev/vite';
+import tailwindcss from '@tailwindcss/vite';
+import { defineConfig } from 'vite';
+
+export default defineConfig({
+  plugins: [tailwindcss(), reactRouter()],
+  resolve: { tsconfigPaths: true },
+  server: {
+    watch: { ignored: ['**/.data/**', '**/build/**', '**/test-results/**'] },
+  },
+  optimizeDeps: {
+    include: ['react', 'react-dom', 'react-router', '@tanstack/react-table', 'socket.io-client', 'zod'],
+    exclude: ['mysql2', 'drizzle-orm', 'nodemailer', 'remix-auth', 'remix-auth-totp'],
+  },
+});
