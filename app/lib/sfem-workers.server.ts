@@ -1,0 +1,119 @@
+/**
+ * The SFEM bootstrap spread over worker threads (Node only). Replicates are handed out in chunks
+ * so progress can be reported; replicate r always uses substream r of the seed (sfem.ts), so the
+ * result does not depend on the number of workers or the chunk size.
+ * This same file is the workers' entry point (see the bottom).
+ */
+import { createRequire } from 'node:module';
+import { pathToFileURL } from 'node:url';
+import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
+import { estimateReplicates, summariseReplicates } from './sfem';
+import type { BootstrapSummary, CountsTable, Replicate, ReplicateOptions } from './sfem';
+
+interface Job {
+  from: number;
+  to: number;
+}
+interface Init {
+  role: 'sfem-bootstrap';
+  table: CountsTable;
+  point: { shares: number[]; beta: number };
+  seed: number;
+  options: ReplicateOptions;
+}
+
+export interface WorkerBootstrapOptions {
+  B: number;
+  seed: number;
+  workers?: number;
+  /** replicates per message (default 10) */
+  chunk?: number;
+  onProgress?: (done: number, total: number) => void;
+  replicate?: ReplicateOptions;
+  /**
+   * The worker entry (default: this file). A bundled server passes the URL of its built copy;
+   * when the entry is TypeScript the workers load it through tsx.
+   */
+  workerUrl?: URL;
+}
+
+export async function bootstrapOnWorkers(
+  table: CountsTable,
+  point: { shares: ArrayLike<number>; beta: number },
+  options: WorkerBootstrapOptions,
+): Promise<BootstrapSummary & { replicates: Replicate[] }> {
+  const { B, seed } = options;
+  const chunk = Math.max(1, options.chunk ?? 10);
+  const nWorkers = Math.max(1, Math.min(options.workers ?? 2, Math.ceil(B / chunk)));
+  const init: Init = {
+    role: 'sfem-bootstrap',
+    table,
+    point: { shares: Array.from(point.shares), beta: point.beta },
+    seed,
+    options: options.replicate ?? {},
+  };
+  const url = options.workerUrl ?? new URL(import.meta.url);
+  // Node 20 does not pass loader hooks (nor `--import` in execArgv) on to workers, so a TypeScript
+  // entry is started by a small script that registers tsx inside the worker first.
+  const tsEntry = url.pathname.endsWith('.ts');
+  const tsxApi = tsEntry ? tsxEsmApiUrl() : '';
+  const spawn = () =>
+    tsEntry
+      ? new Worker(
+          `import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(url.href)}); });`,
+          { eval: true, workerData: init },
+        )
+      : new Worker(url, { workerData: init });
+
+  const replicates: Replicate[] = new Array(B);
+  let next = 0;
+  let done = 0;
+  const workers: Worker[] = [];
+  try {
+    await new Promise<void>((resolve, reject) => {
+      if (B === 0) return resolve();
+      const give = (w: Worker) => {
+        if (next >= B) return;
+        const job: Job = { from: next, to: Math.min(B, next + chunk) };
+        next = job.to;
+        w.postMessage(job);
+      };
+      for (let i = 0; i < nWorkers; i++) {
+        const w = spawn();
+        workers.push(w);
+        w.on('message', (msg: { from: number; replicates: Replicate[] }) => {
+          msg.replicates.forEach((r, j) => (replicates[msg.from + j] = r));
+          done += msg.replicates.length;
+          options.onProgress?.(done, B);
+          if (done === B) resolve();
+          else give(w);
+        });
+        w.on('error', reject);
+        w.on('exit', (code) => {
+          if (code !== 0 && done < B) reject(new Error(`bootstrap worker stopped with exit code ${code}`));
+        });
+        give(w);
+      }
+    });
+  } finally {
+    await Promise.all(workers.map((w) => w.terminate()));
+  }
+  return { ...summariseReplicates(replicates, seed), replicates };
+}
+
+/** tsx's ESM register API (its `--import` entry registers in the main thread only). */
+function tsxEsmApiUrl(): string {
+  const require = createRequire(import.meta.url);
+  const pkgPath = require.resolve('tsx/package.json');
+  const pkg = require(pkgPath) as { exports: Record<string, { import: { default: string } }> };
+  return new URL(pkg.exports['./esm/api'].import.default, pathToFileURL(pkgPath)).href;
+}
+
+// Worker side: answer each chunk with its replicates.
+if (!isMainThread && parentPort && (workerData as Init | undefined)?.role === 'sfem-bootstrap') {
+  const { table, point, seed, options } = workerData as Init;
+  const port = parentPort;
+  port.on('message', (job: Job) => {
+    port.postMessage({ from: job.from, replicates: estimateReplicates(table, point, seed, job.from, job.to, options) });
+  });
+}
