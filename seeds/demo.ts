@@ -29,7 +29,8 @@ export function demoParticipants() {
     const n = i + 1;
     return {
       email: `student${String(n).padStart(2, '0')}@halvorsen.example`,
-      name: `${FIRST[i % FIRST.length]} ${LAST[(i * 7) % LAST.length]}`,
+      // i and i + 20 share a first name, so shift the surname for the second twenty: 40 distinct names.
+      name: `${FIRST[i % FIRST.length]} ${LAST[(i * 7 + Math.floor(i / FIRST.length)) % LAST.length]}`,
       studentId: `HC27-${String(1000 + n)}`,
     };
   });

@@ -88,7 +88,7 @@ export function DataTable<Row extends RowData>({
           {rows.length} of {data.length} shown
         </p>
       </div>
-      <div className="overflow-x-auto rounded-lg border border-slate-200 bg-white">
+      <div className="relative overflow-x-auto rounded-lg border border-slate-200 bg-white">
         <table className="w-full text-left text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="border-b border-slate-200 bg-slate-50 text-slate-700">

@@ -80,7 +80,7 @@ type MemberRow = Route.ComponentProps['loaderData']['members'][number];
 function columnsFor(canManage: boolean, me: number) {
   const col = staffColumnHelper<MemberRow>();
   return col.columns([
-    col.accessor('email', { header: 'E-mail', cell: (i) => <span className="break-all">{i.getValue()}</span> }),
+    col.accessor('email', { header: 'E-mail', cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span> }),
     col.accessor('name', { header: 'Name', cell: (i) => i.getValue() ?? '—' }),
     col.accessor('studentId', { header: 'Student id', cell: (i) => i.getValue() ?? '—' }),
     col.accessor('role', {
