@@ -1,0 +1,244 @@
+/**
+ * What each screen sees (product.md, "Play", "Floor and Conductor", "Big screen").
+ * Participants never see their partner's pseudonym; the big screen shows aggregates only.
+ */
+import type { Action } from '../../app/lib/automata';
+import { describeBlock, describeDraw, formatHundredDelta } from '../../app/lib/draws';
+import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
+
+const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);
+
+function payoffTable(s: EngineState): ParticipantView['payoffTable'] {
+  // methods.md §0: u(C,C)=R, u(C,D)=S, u(D,C)=T, u(D,D)=P
+  const { R, S, T, P } = s.design.payoffs;
+  const rows: [Action, Action, number, number][] = [
+    ['C', 'C', R, R],
+    ['C', 'D', S, T],
+    ['D', 'C', T, S],
+    ['D', 'D', P, P],
+  ];
+  return rows.map(([own, partner, ownPoints, partnerPoints]) => ({ own, partner, ownPoints, partnerPoints }));
+}
+
+/** The latest end-of-block announcement of a pair's supergame (block termination only). */
+function blockNotice(s: EngineState, pair: PairState): string | null {
+  const t = s.design.termination;
+  if (t.kind !== 'block' || !s.supergame) return null;
+  const revealed = pair.rounds.filter((r) => r.revealed);
+  if (revealed.length === 0) return null;
+  const lastRound = revealed[revealed.length - 1].round;
+  const first = lastRound - ((lastRound - 1) % t.k);
+  const draws = pair.rounds.filter((r) => r.round >= first && r.round <= lastRound).map((r) => r.draw);
+  return describeBlock(draws, first, s.supergame.draws.length, s.design.delta);
+}
+
+export function participantView(s: EngineState, participantId: string): ParticipantView {
+  const p = s.participants[participantId];
+  if (!p) throw new Error(`"${participantId}" is not a participant of this session`);
+  const sgNumber = s.supergame?.number ?? 0;
+  const pair = p.pairId ? s.pairs[p.pairId] : null;
+  const seat = p.seat;
+  const finished = s.status === 'complete' || s.status === 'archived' || p.status === 'removed';
+  const standard = s.design.termination.kind === 'standard';
+
+  let status: ParticipantView['status'];
+  let notice: ParticipantView['notice'] = null;
+  if (s.status === 'draft' || s.status === 'open') status = 'lobby';
+  else if (finished) {
+    status = 'finished';
+    if (p.status === 'removed') notice = 'removed';
+    else if (s.summaries[s.summaries.length - 1]?.truncated) notice = 'ended-early';
+  } else if (!pair || seat === null) {
+    if (p.entersAt > sgNumber && p.status === 'active') {
+      status = 'lobby';
+      notice = 'waiting-to-enter';
+    } else {
+      status = 'between-supergames';
+      notice = p.sittingOut ? 'sitting-out' : p.status === 'handed' ? 'handed-to-computer' : null;
+    }
+  } else if (pair.done) status = 'between-supergames';
+  else if (pair.seats[seat].computer) {
+    status = 'between-supergames';
+    notice = 'handed-to-computer';
+  } else status = pair.pending[seat] ? 'waiting-partner' : 'choosing';
+
+  let partner: ParticipantView['partner'] = null;
+  if (pair && seat !== null) {
+    const o = pair.seats[other(seat)];
+    partner = o.computer
+      ? { kind: 'computer', strategy: o.computer.strategy, reason: o.computer.reason, fromRound: o.computer.fromRound }
+      : { kind: 'human' };
+  }
+
+  const history: ParticipantView['history'] =
+    pair && seat !== null
+      ? pair.rounds.map((r) => ({
+          round: r.round,
+          own: r.actions[seat],
+          partner: r.actions[other(seat)],
+          ownPayoff: r.payoffs[seat],
+          partnerPayoff: r.payoffs[other(seat)],
+          ownSource: r.sources[seat],
+          draw: r.revealed ? r.draw : null,
+          paid: r.revealed ? r.paid : null,
+          sentence: r.revealed && standard ? describeDraw(r.draw, s.design.delta) : null,
+        }))
+      : [];
+
+  const open = pair && !pair.done && !finished;
+  return {
+    sessionId: s.sessionId,
+    participantId,
+    pseudonym: p.pseudonym,
+    status,
+    sessionStatus: s.status,
+    paused: s.status === 'paused',
+    labels: { C: s.design.labels.C, D: s.design.labels.D },
+    payoffTable: payoffTable(s),
+    delta: s.design.delta,
+    cutoff: formatHundredDelta(s.design.delta),
+    termination: s.design.termination,
+    supergame: sgNumber,
+    supergames: s.design.supergames,
+    round: pair ? pair.round : null,
+    pairId: pair ? pair.id : null,
+    partner,
+    history,
+    ownChoice: open && seat !== null ? (pair.pending[seat]?.action ?? null) : null,
+    partnerHasChosen: open && seat !== null ? pair.pending[other(seat)] !== null : false,
+    deadline: open ? pair.deadline : null,
+    remainingMs: open ? pair.remainingMs : null,
+    lastResult: p.last,
+    blockNotice: pair ? blockNotice(s, pair) : null,
+    totalPoints: p.points,
+    notice,
+  };
+}
+
+export function floorView(s: EngineState, now: number): FloorView {
+  const roundMs = s.design.roundSeconds * 1000;
+  const connected = (id: string): boolean | null => s.connections[id]?.connected ?? null;
+  const alerts: FloorView['alerts'] = [];
+  const pairs: FloorView['pairs'] = (s.supergame?.pairIds ?? []).map((id) => {
+    const pair = s.pairs[id];
+    const seatView = (i: 0 | 1): FloorSeatView => {
+      const seat = pair.seats[i];
+      const pid = seat.participantId;
+      const row = pair.done ? null : pair.pending[i];
+      const waited = now - pair.openedAt - pair.pausedMs;
+      if (pid && !pair.done && !row && !seat.computer && s.status === 'running' && waited > roundMs / 2) {
+        alerts.push({ participantId: pid, pseudonym: s.participants[pid].pseudonym, kind: 'slow' });
+      }
+      return {
+        participantId: pid,
+        pseudonym: pid ? s.participants[pid].pseudonym : null,
+        computer: seat.computer,
+        hasChosen: row !== null,
+        source: row ? row.source : null,
+        connected: pid ? connected(pid) : null,
+        timeouts: pid ? s.participants[pid].timeouts : 0,
+      };
+    };
+    return {
+      pairId: id,
+      round: pair.round,
+      done: pair.done,
+      seats: [seatView(0), seatView(1)],
+      waitingSince: pair.done ? null : pair.openedAt,
+      deadline: pair.done ? null : pair.deadline,
+      remainingMs: pair.done ? null : pair.remainingMs,
+    };
+  });
+  const sgNumber = s.supergame?.number ?? 0;
+  const others: FloorView['others'] = [];
+  for (const id of s.joinOrder) {
+    const p = s.participants[id];
+    if (p.status === 'active' && connected(id) === false) {
+      alerts.push({ participantId: id, pseudonym: p.pseudonym, kind: 'disconnected' });
+    }
+    if (p.pairId) continue;
+    const why: FloorView['others'][number]['why'] =
+      p.status === 'removed'
+        ? 'removed'
+        : p.status === 'handed'
+          ? 'handed'
+          : p.sittingOut
+            ? 'sitting-out'
+            : s.status === 'open' || s.status === 'draft'
+              ? 'lobby'
+              : p.entersAt > sgNumber
+                ? 'waiting-to-enter'
+                : 'lobby';
+    others.push({ participantId: id, pseudonym: p.pseudonym, why, connected: connected(id) === true });
+  }
+  let choices = 0;
+  let cooperate = 0;
+  for (const id of s.supergame?.pairIds ?? []) {
+    const last = s.pairs[id].rounds[s.pairs[id].rounds.length - 1];
+    if (!last) continue;
+    last.sources.forEach((src, i) => {
+      if (src !== 'player') return;
+      choices++;
+      if (last.actions[i] === 'C') cooperate++;
+    });
+  }
+  const present = s.joinOrder.filter((id) => s.participants[id].status === 'active').length;
+  return {
+    sessionId: s.sessionId,
+    status: s.status,
+    supergame: sgNumber,
+    supergames: s.design.supergames,
+    endAfterSupergame: s.endAfterSupergame,
+    counts: {
+      joined: s.joinOrder.length,
+      present,
+      connected: s.joinOrder.filter((id) => connected(id) === true).length,
+      pairs: pairs.length,
+      pairsDone: pairs.filter((x) => x.done).length,
+    },
+    pairs,
+    others,
+    alerts,
+    currentCooperation: { choices, cooperate, rate: choices > 0 ? cooperate / choices : null },
+  };
+}
+
+export function bigScreenView(s: EngineState): BigScreenView {
+  const ids = s.supergame?.pairIds ?? [];
+  const byRound = new Map<number, { choices: number; cooperate: number }>();
+  let shown = Number.POSITIVE_INFINITY;
+  for (const id of ids) {
+    const pair = s.pairs[id];
+    shown = Math.min(shown, pair.rounds.filter((r) => r.revealed).length);
+    for (const r of pair.rounds) {
+      const cell = byRound.get(r.round) ?? { choices: 0, cooperate: 0 };
+      r.sources.forEach((src, i) => {
+        if (src !== 'player') return;
+        cell.choices++;
+        if (r.actions[i] === 'C') cell.cooperate++;
+      });
+      byRound.set(r.round, cell);
+    }
+  }
+  const draws = s.supergame?.draws.draws ?? [];
+  const rate = (c: number, n: number): number | null => (n > 0 ? c / n : null);
+  return {
+    sessionId: s.sessionId,
+    status: s.status,
+    joined: s.joinOrder.length,
+    supergame: s.supergame?.number ?? 0,
+    supergames: s.design.supergames,
+    pairs: ids.length,
+    pairsDone: ids.filter((id) => s.pairs[id].done).length,
+    drawsShown: Number.isFinite(shown) ? draws.slice(0, shown) : [],
+    cooperationByRound: [...byRound.entries()]
+      .sort((a, b) => a[0] - b[0])
+      .map(([round, c]) => ({ round, ...c, rate: rate(c.cooperate, c.choices) })),
+    bySupergame: s.summaries.map((x) => ({
+      supergame: x.supergame,
+      length: x.length,
+      cooperation: rate(x.cooperate, x.playerChoices),
+      round1Cooperation: rate(x.round1Cooperate, x.round1Choices),
+    })),
+  };
+}
