@@ -17,8 +17,13 @@ export default [
     route('courses/new', 'routes/staff/course-new.tsx'),
     route('courses/:courseId', 'routes/staff/course.tsx'),
     route('courses/:courseId/members', 'routes/staff/members.tsx'),
+    route('courses/:courseId/designs', 'routes/staff/designs.tsx'),
+    route('courses/:courseId/designs/new', 'routes/staff/design-edit.tsx', { id: 'design-new' }),
+    route('courses/:courseId/designs/:designId', 'routes/staff/design-edit.tsx', { id: 'design-edit' }),
     route('admin', 'routes/staff/admin.tsx'),
   ]),
+
+  route('courses/:courseId/strategies', 'routes/staff/strategies.ts'),
 
   route('*', 'routes/not-found.tsx'),
 ] satisfies RouteConfig;

@@ -1,6 +1,7 @@
 import { relations, sql } from 'drizzle-orm';
 import {
   bigint,
+  customType,
   datetime,
   index,
   int,
@@ -91,6 +92,59 @@ export const authEvents = mysqlTable(
     createdAt: createdAt(),
   },
   (t) => [index('auth_events_email').on(t.kind, t.email, t.createdAt), index('auth_events_ip').on(t.kind, t.ip, t.createdAt)],
+);
+
+/** JSON kept as text: MariaDB's JSON is LONGTEXT, and we parse and validate it ourselves. */
+const jsonText = <T>(name: string) =>
+  customType<{ data: T; driverData: string }>({
+    dataType: () => 'longtext',
+    toDriver: (value) => JSON.stringify(value),
+    fromDriver: (value) => JSON.parse(value) as T,
+  })(name);
+
+/**
+ * A design: a saved parameter set of a course (product.md "Design"); exports call it treatment.
+ * `params` holds the validated design (app/lib/design.ts); sessions copy it when they open.
+ */
+export const designs = mysqlTable(
+  'designs',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    name: varchar('name', { length: 120 }).notNull(),
+    params: jsonText<unknown>('params').notNull(),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
+      .notNull()
+      .default(sql`CURRENT_TIMESTAMP(3)`),
+    archivedAt: datetime('archived_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [index('designs_course').on(t.courseId)],
+);
+
+/** Strategies a course built in the strategy checker (automata, app/lib/automata.ts). */
+export const courseStrategies = mysqlTable(
+  'course_strategies',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    /** short name, unique in the course and distinct from the library's */
+    code: varchar('code', { length: 24 }).notNull(),
+    name: varchar('name', { length: 120 }).notNull(),
+    states: jsonText<unknown>('states').notNull(),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('course_strategies_code').on(t.courseId, t.code)],
 );
 
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));

@@ -2,9 +2,11 @@
 // Nothing here describes a real person or institution.
 import { and, eq } from 'drizzle-orm';
 import type { MySql2Database } from 'drizzle-orm/mysql2';
+import { type DesignInput, designSchema } from '#app/lib/design';
+import { generateInstructions } from '#app/lib/instructions';
 import * as schema from '#drizzle/schema';
 
-const { users, courses, courseMembers } = schema;
+const { users, courses, courseMembers, designs } = schema;
 
 export const DEMO_COURSE = {
   title: 'ECON 214 Strategy and Markets',
@@ -63,5 +65,33 @@ export async function seedDemo(db: Db) {
     db.insert(courseMembers).values({ courseId: course.id, userId, role, studentId }).onDuplicateKeyUpdate({ set: { role, studentId } });
   for (const s of DEMO_STAFF) await member(staffIds.get(s.email)!, s.role);
   for (const p of demoParticipants()) await member(await upsertUser(db, p.email, p.name), 'participant', p.studentId);
+  for (const d of DEMO_DESIGNS) {
+    const [exists] = await db
+      .select({ id: designs.id })
+      .from(designs)
+      .where(and(eq(designs.courseId, course.id), eq(designs.name, d.name)));
+    if (exists) continue;
+    const params = designSchema.parse(d.params);
+    await db.insert(designs).values({ courseId: course.id, name: d.name, params: { ...params, instructions: generateInstructions(params) }, createdBy: instructorId });
+  }
   return { courseId: course.id };
 }
+
+/** Payoffs shared by the demo designs (invented; the shape of Dal Bó & Fréchette's with R = 40). */
+const DEMO_PAYOFFS = { R: 40, S: 12, T: 50, P: 25 };
+
+/** Three invented designs: the two of the completed demo sessions and one ready to open. */
+export const DEMO_DESIGNS: { name: string; params: DesignInput }[] = [
+  {
+    name: 'Short horizon (δ = 1/2) — demo',
+    params: { payoffs: DEMO_PAYOFFS, delta: 0.5, supergames: 20, roundSeconds: 15, oddCount: { kind: 'computer', strategy: 'TFT' }, consent: true },
+  },
+  {
+    name: 'Long horizon (δ = 7/8) — demo',
+    params: { payoffs: DEMO_PAYOFFS, delta: 0.875, supergames: 8, roundSeconds: 15, oddCount: { kind: 'computer', strategy: 'TFT' }, consent: true },
+  },
+  {
+    name: 'Week 9 class run (δ = 3/4) — demo',
+    params: { payoffs: DEMO_PAYOFFS, delta: 0.75, supergames: 12, roundSeconds: 20, oddCount: { kind: 'sit-out' }, credit: { kind: 'participation', credit: 2, pointsScaleMax: 2000 } },
+  },
+];

@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import { Form, Link, NavLink } from 'react-router';
-import { cx } from './ui';
+import { cx, DemoBadge } from './ui';
 
 export function Wordmark({ className }: { className?: string }) {
   return (
@@ -88,5 +88,26 @@ export function PageHeader({ title, children, eyebrow }: { title: string; childr
       </div>
       {children ? <div className="flex flex-wrap gap-2">{children}</div> : null}
     </div>
+  );
+}
+
+/** The breadcrumb above a course page's title: the course, further steps, the demo badge. */
+export function CourseCrumbs({ course, trail = [] }: { course: { id: number; title: string; isDemo: boolean }; trail?: { to: string; label: string }[] }) {
+  const link = 'text-accent-700 underline-offset-4 hover:underline';
+  return (
+    <span className="flex flex-wrap items-center gap-2">
+      <Link to={`/courses/${course.id}`} className={link}>
+        {course.title}
+      </Link>
+      {trail.map((t) => (
+        <span key={t.to} className="contents">
+          <span aria-hidden="true">/</span>
+          <Link to={t.to} className={link}>
+            {t.label}
+          </Link>
+        </span>
+      ))}
+      {course.isDemo ? <DemoBadge /> : null}
+    </span>
   );
 }

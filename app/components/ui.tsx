@@ -1,4 +1,5 @@
 import { type ComponentProps, type ReactNode, useId } from 'react';
+import { Link } from 'react-router';
 
 export function cx(...parts: (string | false | null | undefined)[]) {
   return parts.filter(Boolean).join(' ');
@@ -10,6 +11,11 @@ const buttonStyles = {
   danger: 'bg-white text-danger-600 ring-1 ring-danger-600/40 hover:bg-danger-50',
   quiet: 'text-accent-700 hover:bg-accent-50',
 };
+
+/** A link that looks like a button (for navigation; actions use Button in a form). */
+export function ButtonLink({ variant = 'primary', className, ...props }: ComponentProps<typeof Link> & { variant?: keyof typeof buttonStyles }) {
+  return <Link {...props} className={cx('inline-flex min-h-11 items-center justify-center gap-2 rounded-lg px-4 py-2 font-semibold', buttonStyles[variant], className)} />;
+}
 
 export function Button({ variant = 'primary', className, ...props }: ComponentProps<'button'> & { variant?: keyof typeof buttonStyles }) {
   return (

@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { LIBRARY } from './automata';
-import { cutoffOf, formatHundredDelta, realisedDelta } from './draws';
+import { isImplementable } from './draws';
 
 /**
  * Neutral default labels. "A"/"B" read as grades in a classroom (A is the good one), and
@@ -88,7 +88,10 @@ export const designSchema = z
     delta: z
       .number({ error: 'δ must be a number' })
       .gt(0, 'δ must be greater than 0')
-      .lt(1, 'δ must be less than 1'),
+      .lt(1, 'δ must be less than 1')
+      // methods.md §8: the announced δ must be the true continuation probability; the draw (1–100,
+      // 1–1000 or 1–10000) implements δ exactly only up to four decimals.
+      .refine(isImplementable, 'Use at most four decimals for δ (e.g. 0.875), so the draw implements it exactly'),
     supergames: z
       .number()
       .int('The number of supergames is a whole number')
@@ -140,13 +143,6 @@ export function designWarnings(d: Design): DesignWarning[] {
     out.push({
       path: ['payoffs', 'R'],
       message: `2R (${2 * R}) is not above T + S (${T + S}): taking turns at ${d.labels.C}/${d.labels.D} pays at least as much as both choosing ${d.labels.C}`,
-    });
-  }
-  if (realisedDelta(d.delta) !== Math.round(d.delta * 1e6) / 1e6) {
-    // methods.md §2 and §8: with draws 1–100 the real continuation probability is ⌊100·δ⌋/100
-    out.push({
-      path: ['delta'],
-      message: `100·δ = ${formatHundredDelta(d.delta)} is not a whole number: with draws from 1 to 100 a supergame continues with probability ${cutoffOf(d.delta)}/100 = ${realisedDelta(d.delta)}, not ${d.delta}`,
     });
   }
   return out;

@@ -2,7 +2,8 @@
  * The random-termination draws of a session (methods.md §2).
  *
  * After each round an integer 1–100 is drawn; the supergame continues while draw ≤ 100·δ, so its
- * length L (the index of the first draw above 100·δ) is geometric. One sequence per session, common
+ * length L (the index of the first draw above 100·δ) is geometric. (When 100·δ is not whole the
+ * range widens to 1–1000 or 1–10000 so that the continuation probability is exactly δ.) One sequence per session, common
  * to all pairs, generated from the session seed: a typed seed reproduces another session's draws.
  * Each supergame has its own random stream, so the numbers of supergame s do not depend on δ, on
  * the termination scheme or on the other supergames (same seed, different δ ⇒ coupled lengths).
@@ -25,40 +26,63 @@ export interface DrawSequence {
   seed: number;
   delta: number;
   cutoff: number;
+  /** draws run from 1 to max */
+  max: number;
   termination: Termination;
   supergames: SupergameDraws[];
 }
 
 /**
- * δ in millionths, as an integer. 100·δ is compared with integer draws, so the comparison must not
- * suffer from binary fractions (100 × 0.29 = 28.999…96 in floating point, yet draw 29 continues).
- * Capped below 1 so that a draw of 100 always ends a supergame.
+ * δ in millionths, as an integer, so that comparisons do not suffer from binary fractions
+ * (100 × 0.29 = 28.999…96 in floating point, yet draw 29 continues).
  */
 function deltaMillionths(delta: number): number {
   if (!(delta > 0 && delta < 1)) throw new RangeError(`δ must lie in (0, 1), got ${delta}`);
-  return Math.min(Math.max(Math.round(delta * 1e6), 0), 999_999);
+  return Math.min(Math.max(Math.round(delta * 1e6), 1), 999_999);
 }
 
-/** The largest draw that continues the supergame: ⌊100·δ⌋ (draws are integers). */
-export function cutoffOf(delta: number): number {
-  return Math.floor(deltaMillionths(delta) / 10_000);
+export interface DrawRule {
+  /** draws are whole numbers from 1 to `max` */
+  max: 100 | 1000 | 10000;
+  /** the largest draw that continues the supergame */
+  cutoff: number;
 }
 
 /**
- * The continuation probability the 1–100 draw really implements: ⌊100·δ⌋/100. Equal to δ only when
- * 100·δ is a whole number (δ = 0.875 gives 0.87).
+ * The draw that implements δ *exactly*: numbers 1–100 when 100·δ is whole (the usual case),
+ * else 1–1000 or 1–10000. δ = 0.875 with draws 1–100 would continue with probability 0.87, not the
+ * announced 0.875 — a small deception (methods.md §8), so it draws 1–1000 and continues while the
+ * draw is ≤ 875. A δ with more than four decimals cannot be implemented exactly (designs refuse
+ * it); it gets ⌊10000·δ⌋ out of 10000.
  */
-export function realisedDelta(delta: number): number {
-  return cutoffOf(delta) / 100;
+export function drawRule(delta: number): DrawRule {
+  const m = deltaMillionths(delta);
+  if (m % 10_000 === 0) return { max: 100, cutoff: m / 10_000 };
+  if (m % 1_000 === 0) return { max: 1000, cutoff: m / 1_000 };
+  return { max: 10000, cutoff: Math.floor(m / 100) };
 }
 
-/** 100·δ as the phone shows it: "75", "87.5" (never "87.50000001"). */
-export function formatHundredDelta(delta: number): string {
-  const m = deltaMillionths(delta);
-  const whole = Math.floor(m / 10_000);
-  const frac = m % 10_000;
-  if (frac === 0) return String(whole);
-  return `${whole}.${String(frac).padStart(4, '0').replace(/0+$/, '')}`;
+/** Whether the draw can implement δ exactly (at most four decimals). */
+export function isImplementable(delta: number): boolean {
+  if (!(delta > 0 && delta < 1)) return true; // out of range is the range check's message, not this one
+  return deltaMillionths(delta) % 100 === 0 && Math.abs(delta * 1e6 - Math.round(delta * 1e6)) < 1e-6;
+}
+
+/** The largest draw that continues the supergame. */
+export function cutoffOf(delta: number): number {
+  return drawRule(delta).cutoff;
+}
+
+/** The continuation probability the draw really implements: cutoff / max (= δ for ≤ 4 decimals). */
+export function realisedDelta(delta: number): number {
+  const r = drawRule(delta);
+  return r.cutoff / r.max;
+}
+
+/** The cut-off as the phone shows it, with the range when it is not 1–100: "75", "875 (of 1–1000)". */
+export function formatCutoff(delta: number): string {
+  const r = drawRule(delta);
+  return r.max === 100 ? String(r.cutoff) : `${r.cutoff} (draws run from 1 to ${r.max})`;
 }
 
 function validateTermination(t: Termination): void {
@@ -76,13 +100,13 @@ export function supergameDraws(
 ): SupergameDraws {
   if (!Number.isInteger(supergame) || supergame < 1) throw new RangeError(`Bad supergame ${supergame}`);
   validateTermination(termination);
-  const cutoff = cutoffOf(delta);
+  const { cutoff, max } = drawRule(delta);
   const rng = rngFor(seed, 'draws', supergame);
   const draws: number[] = [];
-  // Continue while draw ≤ 100·δ; the draw after the last round is the one above it. Ends with
-  // probability one: cutoff ≤ 99, so each draw ends the supergame with probability ≥ 1/100.
+  // Continue while draw ≤ cutoff; the draw after the last round is the one above it. Ends with
+  // probability one: cutoff < max, so each draw ends the supergame with probability ≥ 1/max.
   for (;;) {
-    const d = randomInt(rng, 1, 100);
+    const d = randomInt(rng, 1, max);
     draws.push(d);
     if (d > cutoff) break;
   }
@@ -92,7 +116,7 @@ export function supergameDraws(
     // Fréchette & Yuksel (2017): play on to the end of the block in which the supergame ended;
     // a draw is still made in each of those rounds (methods.md §2).
     roundsPlayed = Math.ceil(length / termination.k) * termination.k;
-    while (draws.length < roundsPlayed) draws.push(randomInt(rng, 1, 100));
+    while (draws.length < roundsPlayed) draws.push(randomInt(rng, 1, max));
   }
   return { supergame, draws, length, roundsPlayed };
 }
@@ -106,7 +130,7 @@ export function drawSequence(
 ): DrawSequence {
   const out: SupergameDraws[] = [];
   for (let s = 1; s <= supergames; s++) out.push(supergameDraws(seed, delta, s, termination));
-  return { seed: normaliseSeed(seed), delta, cutoff: cutoffOf(delta), termination, supergames: out };
+  return { seed: normaliseSeed(seed), delta, ...drawRule(delta), termination, supergames: out };
 }
 
 /** Whether the draw continues the supergame. */
@@ -116,7 +140,7 @@ export function continues(draw: number, delta: number): boolean {
 
 /** The draw in plain words for the phone (product.md, "Play"). */
 export function describeDraw(draw: number, delta: number): string {
-  const c = formatHundredDelta(delta);
+  const c = formatCutoff(delta);
   return continues(draw, delta)
     ? `Draw ${draw} — another round, because it is ≤ ${c}`
     : `Draw ${draw} — this supergame ends, because it is above ${c}`;
@@ -127,7 +151,7 @@ export function describeDraw(draw: number, delta: number): string {
  * which round) the supergame ended. `firstRound` is the block's first round; `length` is L.
  */
 export function describeBlock(draws: readonly number[], firstRound: number, length: number, delta: number): string {
-  const c = formatHundredDelta(delta);
+  const c = formatCutoff(delta);
   const lastRound = firstRound + draws.length - 1;
   const span = draws.length === 1 ? `round ${firstRound}` : `rounds ${firstRound}–${lastRound}`;
   const list = draws.join(', ');

@@ -3,7 +3,7 @@
  * Participants never see their partner's pseudonym; the big screen shows aggregates only.
  */
 import type { Action } from '../../app/lib/automata';
-import { describeBlock, describeDraw, formatHundredDelta } from '../../app/lib/draws';
+import { describeBlock, describeDraw, formatCutoff } from '../../app/lib/draws';
 import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
 
 const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);
@@ -96,7 +96,7 @@ export function participantView(s: EngineState, participantId: string): Particip
     labels: { C: s.design.labels.C, D: s.design.labels.D },
     payoffTable: payoffTable(s),
     delta: s.design.delta,
-    cutoff: formatHundredDelta(s.design.delta),
+    cutoff: formatCutoff(s.design.delta),
     termination: s.design.termination,
     supergame: sgNumber,
     supergames: s.design.supergames,

@@ -82,11 +82,9 @@ describe('design warnings', () => {
     expect(designWarnings(designSchema.parse(base))).toEqual([]);
   });
 
-  it('warns when 100·δ is not whole: draws 1–100 then implement ⌊100·δ⌋/100', () => {
-    const d = designSchema.parse({ ...base, delta: 0.875 });
-    const w = designWarnings(d);
-    expect(w).toHaveLength(1);
-    expect(w[0].path).toEqual(['delta']);
-    expect(w[0].message).toContain('87/100 = 0.87');
+  it('accepts δ = 0.875 (drawn 1–1000, exact) and refuses δ the draw cannot implement exactly', () => {
+    // methods.md §8: the announced δ must be the true continuation probability.
+    expect(designWarnings(designSchema.parse({ ...base, delta: 0.875 }))).toEqual([]);
+    expect(fieldErrors({ ...base, delta: 0.87501 })).toEqual({ delta: ['Use at most four decimals for δ (e.g. 0.875), so the draw implements it exactly'] });
   });
 });

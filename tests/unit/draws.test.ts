@@ -7,7 +7,9 @@ import {
   describeBlock,
   describeDraw,
   drawSequence,
-  formatHundredDelta,
+  drawRule,
+  formatCutoff,
+  isImplementable,
   geometricLengthFit,
   realisedDelta,
   supergameDraws,
@@ -75,12 +77,9 @@ describe('the continuation rule (methods.md §2: continue while draw ≤ 100·δ
     expect(cutoffOf(0.29)).toBe(29);
     expect(cutoffOf(0.57)).toBe(57);
     expect(cutoffOf(0.75)).toBe(75);
-    // δ = 0.875: continue when draw ≤ 87.5, i.e. up to 87
-    expect(cutoffOf(0.875)).toBe(87);
-    expect(formatHundredDelta(0.875)).toBe('87.5');
-    expect(formatHundredDelta(0.29)).toBe('29');
-    expect(formatHundredDelta(0.12345)).toBe('12.345');
-    expect(cutoffOf(0.9999999)).toBe(99); // a draw of 100 always ends
+    expect(drawRule(0.29)).toEqual({ max: 100, cutoff: 29 });
+    expect(formatCutoff(0.29)).toBe('29');
+    expect(cutoffOf(0.9999999)).toBe(9999); // beyond four decimals: ⌊10000·δ⌋ of 10000, the last draw always ends
     expect(() => cutoffOf(1)).toThrow(RangeError);
     expect(() => cutoffOf(0)).toThrow(RangeError);
   });
@@ -89,14 +88,23 @@ describe('the continuation rule (methods.md §2: continue while draw ≤ 100·δ
     expect(describeDraw(42, 0.75)).toBe('Draw 42 — another round, because it is ≤ 75');
     expect(describeDraw(75, 0.75)).toBe('Draw 75 — another round, because it is ≤ 75');
     expect(describeDraw(91, 0.75)).toBe('Draw 91 — this supergame ends, because it is above 75');
-    expect(describeDraw(87, 0.875)).toBe('Draw 87 — another round, because it is ≤ 87.5');
-    expect(describeDraw(88, 0.875)).toBe('Draw 88 — this supergame ends, because it is above 87.5');
+    expect(describeDraw(875, 0.875)).toBe('Draw 875 — another round, because it is ≤ 875 (draws run from 1 to 1000)');
+    expect(describeDraw(876, 0.875)).toBe('Draw 876 — this supergame ends, because it is above 875 (draws run from 1 to 1000)');
   });
 
-  it('implements ⌊100·δ⌋/100 as the continuation probability (δ = 0.875 → 0.87)', () => {
-    // [calc] from the rule: P(draw ≤ 87.5) over integers 1–100 = 87/100
-    expect(realisedDelta(0.875)).toBe(0.87);
+  it('implements δ exactly: 1–100 when 100·δ is whole, else 1–1000 or 1–10000', () => {
+    // methods.md §8 (no deception): δ = 0.875 with draws 1–100 would continue with 87/100 = 0.87
+    // [calc]; drawing 1–1000 and continuing while ≤ 875 gives exactly 0.875.
+    expect(drawRule(0.875)).toEqual({ max: 1000, cutoff: 875 });
+    expect(drawRule(0.1234)).toEqual({ max: 10000, cutoff: 1234 });
+    expect(realisedDelta(0.875)).toBe(0.875);
     expect(realisedDelta(0.75)).toBe(0.75);
+    expect(isImplementable(0.875)).toBe(true);
+    expect(isImplementable(0.1234)).toBe(true);
+    expect(isImplementable(0.12345)).toBe(false);
+    const sg = supergameDraws(7, 0.875, 1);
+    sg.draws.forEach((d) => expect(d).toBeLessThanOrEqual(1000));
+    expect(sg.draws.at(-1)!).toBeGreaterThan(875);
   });
 
   it('uses one stream per supergame: the numbers do not depend on δ or on other supergames', () => {

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import type { Route } from './+types/course';
 import { Cautions } from '#app/components/cautions';
 import { PageHeader } from '#app/components/shells';
-import { DemoBadge } from '#app/components/ui';
+import { ButtonLink, DemoBadge } from '#app/components/ui';
 import { countByRole } from '#app/models/course.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { ROLE_WORDS } from '#app/utils/format';
@@ -30,10 +30,13 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
           </span>
         }
       >
+        <ButtonLink to={`/courses/${course.id}/designs`} variant="secondary">
+          Designs
+        </ButtonLink>
         {canSeeMembers ? (
-          <Link to={`/courses/${course.id}/members`} className="inline-flex min-h-11 items-center rounded-lg bg-white px-4 font-semibold text-slate-800 ring-1 ring-slate-300 hover:bg-slate-100">
+          <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">
             Members
-          </Link>
+          </ButtonLink>
         ) : null}
       </PageHeader>
       <p className="mb-6 text-slate-700">

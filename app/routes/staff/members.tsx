@@ -1,9 +1,9 @@
-import { data, Form, Link, useNavigation } from 'react-router';
+import { data, Form, useNavigation } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/members';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
-import { PageHeader } from '#app/components/shells';
-import { Button, DemoBadge, Notice, SelectField, TextField } from '#app/components/ui';
+import { CourseCrumbs, PageHeader } from '#app/components/shells';
+import { Button, Notice, SelectField, TextField } from '#app/components/ui';
 import {
   changeMemberRole,
   createInvitation,
@@ -149,14 +149,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
     <>
       <PageHeader
         title="Members"
-        eyebrow={
-          <span className="flex flex-wrap items-center gap-2">
-            <Link to={`/courses/${course.id}`} className="text-accent-700 underline-offset-4 hover:underline">
-              {course.title}
-            </Link>
-            {course.isDemo ? <DemoBadge /> : null}
-          </span>
-        }
+        eyebrow={<CourseCrumbs course={course} />}
       />
       <div className="mb-4 flex flex-col gap-3" aria-live="polite">
         {actionData?.ok ? <Notice tone="ok">{actionData.message}</Notice> : null}

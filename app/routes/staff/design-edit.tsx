@@ -1,0 +1,382 @@
+import { useMemo, useRef, useState } from 'react';
+import { data, Form, Link, redirect, useNavigation } from 'react-router';
+import { z } from 'zod';
+import type { Route } from './+types/design-edit';
+import { CourseCrumbs, PageHeader } from '#app/components/shells';
+import { StrategyChecker } from '#app/components/strategy-checker';
+import { TheoryPanel, type TheoryDraft } from '#app/components/theory-panel';
+import { Button, FieldError, Notice, SelectField, TextField } from '#app/components/ui';
+import { LIBRARY } from '#app/lib/automata';
+import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
+import { generateInstructions } from '#app/lib/instructions';
+import { createDesign, getDesign, listCourseStrategies, updateDesign } from '#app/models/design.server';
+import { designInputFromForm } from '#app/utils/design-form';
+import { fieldErrors } from '#app/utils/forms';
+import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+
+const Name = z.string().trim().min(2, 'Name the design (at least 2 characters).').max(120, 'At most 120 characters.');
+
+/** What a new design starts from: Dal Bó & Fréchette's (2011) payoffs with R = 40, δ = 3/4. */
+const NEW_DESIGN: Design = designSchema.parse({
+  payoffs: { R: 40, S: 12, T: 50, P: 25 },
+  labels: DEFAULT_LABELS,
+  delta: 0.75,
+  supergames: 20,
+  roundSeconds: 20,
+});
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { course, role } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
+  const courseStrategies = await listCourseStrategies(course.id);
+  const saved = new URL(request.url).searchParams.get('saved') === '1';
+  if (!params.designId) {
+    if (role !== 'instructor') throw new Response('Only instructors create designs.', { status: 403 });
+    return { course, design: null, name: '', params: NEW_DESIGN, canEdit: true, courseStrategies, saved };
+  }
+  const design = await getDesign(course.id, parseId(params.designId));
+  if (!design) throw new Response('No such design in this course.', { status: 404 });
+  return {
+    course,
+    design: { id: design.id, archived: design.archivedAt !== null },
+    name: design.name,
+    params: design.params,
+    canEdit: role === 'instructor' && design.archivedAt === null,
+    courseStrategies,
+    saved,
+  };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { course, user } = await requireCourseRole(request, params.courseId, ['instructor']);
+  const form = await request.formData();
+  const values = Object.fromEntries([...form].map(([k, v]) => [k, String(v)]));
+  const name = Name.safeParse(form.get('name'));
+  const input = designInputFromForm(form);
+  const parsed = designSchema.safeParse(input);
+  if (!name.success || !parsed.success) {
+    const errors = { ...(parsed.success ? {} : fieldErrors(parsed.error)), ...(name.success ? {} : { name: name.error.issues[0].message }) };
+    return data({ ok: false as const, errors, values, message: 'Some fields need attention; nothing was saved.' }, { status: 400 });
+  }
+  const params_ = parsed.data.instructions.trim() ? parsed.data : { ...parsed.data, instructions: generateInstructions(parsed.data) };
+  if (!params.designId) {
+    const id = await createDesign(course.id, user.id, name.data, params_);
+    throw redirect(`/courses/${course.id}/designs/${id}?saved=1`);
+  }
+  const designId = parseId(params.designId);
+  const existing = await getDesign(course.id, designId);
+  if (!existing) throw new Response('No such design in this course.', { status: 404 });
+  if (existing.archivedAt) return data({ ok: false as const, errors: {}, values, message: 'This design is archived; restore it before editing.' }, { status: 409 });
+  await updateDesign(course.id, designId, name.data, params_);
+  return { ok: true as const, errors: {}, values: null, message: 'Design saved.' };
+}
+
+function draftFrom(input: DesignInput): TheoryDraft {
+  return {
+    game: input.payoffs,
+    delta: input.delta,
+    supergames: input.supergames,
+    roundSeconds: input.roundSeconds,
+    termination: input.termination ?? { kind: 'standard' },
+  };
+}
+
+/** Stored design → the flat field values of the form. */
+function formValues(name: string, d: Design): Record<string, string> {
+  const v: Record<string, string> = {
+    name,
+    'payoffs.R': String(d.payoffs.R),
+    'payoffs.S': String(d.payoffs.S),
+    'payoffs.T': String(d.payoffs.T),
+    'payoffs.P': String(d.payoffs.P),
+    'labels.C': d.labels.C,
+    'labels.D': d.labels.D,
+    delta: String(d.delta),
+    supergames: String(d.supergames),
+    roundSeconds: String(d.roundSeconds),
+    'termination.kind': d.termination.kind,
+    'termination.k': d.termination.kind === 'block' ? String(d.termination.k) : '5',
+    'oddCount.kind': d.oddCount.kind,
+    'oddCount.strategy': d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT',
+    timeout: d.timeout,
+    'credit.kind': d.credit.kind,
+    consent: d.consent ? 'on' : '',
+    instructions: d.instructions,
+  };
+  if (d.credit.kind === 'participation') {
+    v['credit.credit'] = String(d.credit.credit);
+    v['credit.pointsScaleMax'] = d.credit.pointsScaleMax ? String(d.credit.pointsScaleMax) : '';
+  } else {
+    Object.assign(v, {
+      'credit.showUpFee': String(d.credit.showUpFee),
+      'credit.ratePerPoint': String(d.credit.ratePerPoint),
+      'credit.currency': d.credit.currency,
+      'credit.rounding': String(d.credit.rounding),
+    });
+  }
+  return v;
+}
+
+export default function DesignEditor({ loaderData, actionData }: Route.ComponentProps) {
+  const { course, design, canEdit, courseStrategies } = loaderData;
+  const initial = useMemo(() => formValues(loaderData.name, loaderData.params), [loaderData.name, loaderData.params]);
+  const values: Record<string, string> = actionData && !actionData.ok && actionData.values ? actionData.values : initial;
+  const errors: Record<string, string> = actionData?.errors ?? {};
+  const formRef = useRef<HTMLFormElement>(null);
+  const [input, setInput] = useState<DesignInput>(() => designInputFromForm(new Map(Object.entries(values))));
+  // Stored instructions that equal what the parameters generate keep following the parameters.
+  const [instructionsEdited, setInstructionsEdited] = useState(
+    () => values.instructions.trim() !== '' && values.instructions.trim() !== generateInstructions(loaderData.params).trim(),
+  );
+  const [instructions, setInstructions] = useState(values.instructions);
+  const [creditKind, setCreditKind] = useState(values['credit.kind'] ?? 'participation');
+  const [oddKind, setOddKind] = useState(values['oddCount.kind'] ?? 'computer');
+  const [termKind, setTermKind] = useState(values['termination.kind'] ?? 'standard');
+  const busy = useNavigation().state === 'submitting';
+
+  const parsed = designSchema.safeParse(input);
+  const generated = parsed.success ? generateInstructions(parsed.data) : '';
+  const shownInstructions = instructionsEdited ? instructions : generated;
+  const draft = draftFrom(input);
+  const game = parsed.success ? parsed.data.payoffs : null;
+  const saved = loaderData.saved && !actionData;
+
+  const onChange = () => {
+    if (formRef.current) setInput(designInputFromForm(new FormData(formRef.current)));
+  };
+  const labelC = input.labels?.C || 'X';
+  const labelD = input.labels?.D || 'Y';
+  const payoffCell = (field: 'R' | 'S' | 'T' | 'P', words: string, partnerGets: string) => (
+    <div className="flex min-w-0 flex-col gap-1">
+      <label htmlFor={`payoffs-${field}`} className="text-sm font-semibold">
+        {field} <span className="font-normal text-slate-600">— {words}</span>
+      </label>
+      <input
+        id={`payoffs-${field}`}
+        name={`payoffs.${field}`}
+        inputMode="decimal"
+        defaultValue={values[`payoffs.${field}`]}
+        readOnly={!canEdit}
+        aria-invalid={errors[`payoffs.${field}`] ? true : undefined}
+        aria-describedby={errors[`payoffs.${field}`] ? `payoffs-${field}-error` : undefined}
+        className="num min-h-11 w-full rounded-lg border border-slate-300 bg-white px-3 text-right text-lg"
+      />
+      <span className="text-xs text-slate-600">partner gets {partnerGets}</span>
+      {errors[`payoffs.${field}`] ? <FieldError id={`payoffs-${field}-error`}>{errors[`payoffs.${field}`]}</FieldError> : null}
+    </div>
+  );
+  const num = (k: keyof NonNullable<DesignInput['payoffs']>) => {
+    const v = input.payoffs?.[k];
+    return typeof v === 'number' && Number.isFinite(v) ? String(v) : '…';
+  };
+
+  return (
+    <>
+      <PageHeader
+        title={design ? loaderData.name : 'New design'}
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/designs`, label: 'Designs' }]} />}
+      />
+      <div className="mb-4 flex flex-col gap-2" aria-live="polite">
+        {actionData ? <Notice tone={actionData.ok ? 'ok' : 'error'}>{actionData.message}</Notice> : null}
+        {saved ? <Notice tone="ok">Design saved.</Notice> : null}
+        {design?.archived ? <Notice tone="info">This design is archived and read-only. Restore it from the list to edit it.</Notice> : null}
+        {!canEdit && !design?.archived ? <Notice tone="info">You can look at this design; only the course’s instructors change it.</Notice> : null}
+      </div>
+      <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,30rem)]">
+        <Form method="post" ref={formRef} onChange={onChange} className="flex min-w-0 flex-col gap-6" noValidate>
+          <fieldset disabled={!canEdit} className="contents">
+            <TextField label="Name" name="name" defaultValue={values.name} error={errors.name} hint="Exports call a design a treatment; the name is the treatment’s name." />
+
+            <section aria-labelledby="payoffs-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
+              <h2 id="payoffs-title" className="text-lg font-semibold">
+                Payoffs and labels
+              </h2>
+              <p className="text-sm text-slate-600">Points per round, as participants will see them. A prisoner’s dilemma needs T &gt; R &gt; P &gt; S.</p>
+              <div className="grid grid-cols-[auto_minmax(0,1fr)_minmax(0,1fr)] items-start gap-x-3 gap-y-3">
+                <span />
+                <span className="text-center text-sm font-semibold text-slate-700">Partner chooses {labelC}</span>
+                <span className="text-center text-sm font-semibold text-slate-700">Partner chooses {labelD}</span>
+                <span className="pt-8 text-sm font-semibold text-slate-700">You choose {labelC}</span>
+                {payoffCell('R', `both choose ${labelC}`, num('R'))}
+                {payoffCell('S', `only you choose ${labelC}`, num('T'))}
+                <span className="pt-8 text-sm font-semibold text-slate-700">You choose {labelD}</span>
+                {payoffCell('T', `only you choose ${labelD}`, num('S'))}
+                {payoffCell('P', `both choose ${labelD}`, num('P'))}
+              </div>
+              <div className="grid gap-3 sm:grid-cols-2">
+                <TextField label="Label of the first action (C)" name="labels.C" defaultValue={values['labels.C']} error={errors['labels.C'] ?? errors.labels} hint="Neutral words; the default X and Y carry no meaning." />
+                <TextField label="Label of the second action (D)" name="labels.D" defaultValue={values['labels.D']} error={errors['labels.D']} />
+              </div>
+            </section>
+
+            <section aria-labelledby="time-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
+              <h2 id="time-title" className="text-lg font-semibold">
+                Continuation and time
+              </h2>
+              <div className="grid gap-3 sm:grid-cols-3">
+                <TextField label="δ (chance of another round)" name="delta" inputMode="decimal" defaultValue={values.delta} error={errors.delta} hint="Between 0 and 1, e.g. 0.75." />
+                <TextField label="Supergames" name="supergames" inputMode="numeric" defaultValue={values.supergames} error={errors.supergames} />
+                <TextField label="Round timer (seconds)" name="roundSeconds" inputMode="numeric" defaultValue={values.roundSeconds} error={errors.roundSeconds} />
+              </div>
+              <input
+                type="range"
+                min={0.01}
+                max={0.99}
+                step={0.01}
+                aria-label="δ slider"
+                value={typeof input.delta === 'number' && input.delta > 0 && input.delta < 1 ? input.delta : 0.5}
+                onChange={(e) => {
+                  const el = formRef.current?.elements.namedItem('delta');
+                  if (el instanceof HTMLInputElement) el.value = e.target.value;
+                  onChange();
+                }}
+                className="w-full accent-accent-700"
+              />
+              <fieldset className="flex flex-col gap-2">
+                <legend className="font-semibold">Termination</legend>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="termination.kind" value="standard" checked={termKind === 'standard'} onChange={() => setTermKind('standard')} /> Standard: a draw after every
+                  round, shown at once
+                </label>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="termination.kind" value="block" checked={termKind === 'block'} onChange={() => setTermKind('block')} /> Blocks of rounds, the end revealed after
+                  each block (Fréchette &amp; Yuksel 2017)
+                </label>
+                {termKind === 'block' ? (
+                  <TextField label="Rounds per block" name="termination.k" inputMode="numeric" defaultValue={values['termination.k']} error={errors['termination.k']} className="max-w-48" />
+                ) : null}
+              </fieldset>
+              <p className="text-sm text-slate-700">Matching: random re-matching between supergames, avoiding earlier partners while possible.</p>
+            </section>
+
+            <section aria-labelledby="rules-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
+              <h2 id="rules-title" className="text-lg font-semibold">
+                Rules
+              </h2>
+              <fieldset className="flex flex-col gap-2">
+                <legend className="font-semibold">Odd head-count</legend>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="oddCount.kind" value="computer" checked={oddKind === 'computer'} onChange={() => setOddKind('computer')} /> A disclosed computer partner, in turn
+                </label>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="oddCount.kind" value="sit-out" checked={oddKind === 'sit-out'} onChange={() => setOddKind('sit-out')} /> One participant sits out, in turn
+                </label>
+                {oddKind === 'computer' ? (
+                  <SelectField
+                    label="The computer partner plays"
+                    name="oddCount.strategy"
+                    defaultValue={values['oddCount.strategy']}
+                    error={errors['oddCount.strategy']}
+                    options={LIBRARY.map((a) => ({ value: a.id, label: `${a.id} — ${a.name}` }))}
+                    className="max-w-md"
+                  />
+                ) : null}
+              </fieldset>
+              <SelectField
+                label="When a participant does not choose in time"
+                name="timeout"
+                defaultValue={values.timeout}
+                error={errors.timeout}
+                className="max-w-md"
+                options={[
+                  { value: 'repeat-last', label: `Repeat their last choice (${labelC} in round 1)` },
+                  { value: 'defect', label: `Choose ${labelD}` },
+                  { value: 'cooperate', label: `Choose ${labelC}` },
+                  { value: 'computer-strategy', label: 'Play the computer partner’s strategy' },
+                ]}
+              />
+              <fieldset className="flex flex-col gap-2">
+                <legend className="font-semibold">Credit</legend>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="credit.kind" value="participation" checked={creditKind === 'participation'} onChange={() => setCreditKind('participation')} /> Course credit
+                </label>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="radio" name="credit.kind" value="paid" checked={creditKind === 'paid'} onChange={() => setCreditKind('paid')} /> Paid session
+                </label>
+                {creditKind === 'participation' ? (
+                  <div className="grid gap-3 sm:grid-cols-2">
+                    <TextField label="Credit for taking part" name="credit.credit" inputMode="decimal" defaultValue={values['credit.credit'] ?? '1'} error={errors['credit.credit']} />
+                    <TextField
+                      label="Points for full credit (optional)"
+                      name="credit.pointsScaleMax"
+                      inputMode="decimal"
+                      defaultValue={values['credit.pointsScaleMax']}
+                      error={errors['credit.pointsScaleMax']}
+                      hint="Empty: taking part earns the full credit."
+                    />
+                  </div>
+                ) : (
+                  <>
+                    <div className="grid gap-3 sm:grid-cols-4">
+                      <TextField label="Show-up fee" name="credit.showUpFee" inputMode="decimal" defaultValue={values['credit.showUpFee'] ?? '5'} error={errors['credit.showUpFee']} />
+                      <TextField label="Per point" name="credit.ratePerPoint" inputMode="decimal" defaultValue={values['credit.ratePerPoint'] ?? '0.01'} error={errors['credit.ratePerPoint']} />
+                      <TextField label="Currency" name="credit.currency" defaultValue={values['credit.currency'] ?? 'EUR'} error={errors['credit.currency']} maxLength={3} />
+                      <TextField label="Round up to" name="credit.rounding" inputMode="decimal" defaultValue={values['credit.rounding'] ?? '0.01'} error={errors['credit.rounding']} />
+                    </div>
+                    <p className="text-sm text-slate-600">Paid sessions follow your institution’s payment rules; nobody can lose money.</p>
+                  </>
+                )}
+              </fieldset>
+              <label className="flex min-h-11 items-center gap-2">
+                <input type="checkbox" name="consent" defaultChecked={values.consent === 'on'} /> Ask participants for consent to research use before they play
+              </label>
+              <p className="text-sm text-slate-600">
+                Research use of classroom data needs your institution’s ethics-board approval and the participants’ informed consent; grades must not depend on it.
+              </p>
+            </section>
+
+            <section aria-labelledby="instructions-title" className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4">
+              <div className="flex flex-wrap items-center justify-between gap-2">
+                <h2 id="instructions-title" className="text-lg font-semibold">
+                  Instructions
+                </h2>
+                {instructionsEdited && canEdit ? (
+                  <Button type="button" variant="quiet" onClick={() => setInstructionsEdited(false)}>
+                    Write them again from the parameters
+                  </Button>
+                ) : null}
+              </div>
+              <p className="text-sm text-slate-600">
+                {instructionsEdited ? 'Edited by hand: they no longer follow the parameters.' : 'Written from the parameters above; edit to change them.'}
+              </p>
+              <label htmlFor="instructions" className="sr-only">
+                Instructions participants read
+              </label>
+              <textarea
+                id="instructions"
+                name="instructions"
+                rows={14}
+                value={shownInstructions}
+                onChange={(e) => {
+                  setInstructions(e.target.value);
+                  setInstructionsEdited(true);
+                }}
+                className="rounded-lg border border-slate-300 bg-white p-3 text-sm leading-relaxed"
+              />
+              {errors.instructions ? <FieldError>{errors.instructions}</FieldError> : null}
+            </section>
+
+            {canEdit ? (
+              <div className="flex gap-3">
+                <Button type="submit" disabled={busy}>
+                  {busy ? 'Saving…' : design ? 'Save design' : 'Create design'}
+                </Button>
+              </div>
+            ) : null}
+          </fieldset>
+        </Form>
+        <div className="flex min-w-0 flex-col gap-6 lg:sticky lg:top-4 lg:self-start">
+          <TheoryPanel draft={draft} />
+          <StrategyChecker
+            game={game}
+            delta={parsed.success ? parsed.data.delta : null}
+            courseStrategies={courseStrategies}
+            saveAction={`/courses/${course.id}/strategies`}
+            canSave={canEdit}
+          />
+        </div>
+      </div>
+    </>
+  );
+}
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.name || 'New design'} · Designs · Parley` }];

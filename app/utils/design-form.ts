@@ -1,0 +1,46 @@
+// Form fields of the design editor ↔ the design schema (app/lib/design.ts). Shared by the
+// action (server) and the live theory panel (browser). Field names are the schema's paths, so
+// zod's issue paths land beside the right inputs.
+import type { DesignInput } from '#app/lib/design';
+
+type Source = FormData | Map<string, string>;
+
+const get = (f: Source, k: string): string | undefined => {
+  const v = f.get(k);
+  return typeof v === 'string' ? v.trim() : undefined;
+};
+/** '' → undefined (zod then says "must be a number"); anything else through Number (NaN fails). */
+const num = (f: Source, k: string): number | undefined => {
+  const v = get(f, k);
+  if (v === undefined || v === '') return undefined;
+  return Number(v.replace(',', '.'));
+};
+
+export function designInputFromForm(f: Source): DesignInput {
+  const termination = get(f, 'termination.kind') === 'block' ? { kind: 'block' as const, k: num(f, 'termination.k') as number } : { kind: 'standard' as const };
+  const oddCount = get(f, 'oddCount.kind') === 'sit-out' ? { kind: 'sit-out' as const } : { kind: 'computer' as const, strategy: get(f, 'oddCount.strategy') ?? 'TFT' };
+  const credit =
+    get(f, 'credit.kind') === 'paid'
+      ? {
+          kind: 'paid' as const,
+          showUpFee: num(f, 'credit.showUpFee') as number,
+          ratePerPoint: num(f, 'credit.ratePerPoint') as number,
+          currency: (get(f, 'credit.currency') ?? '').toUpperCase(),
+          rounding: num(f, 'credit.rounding'),
+        }
+      : { kind: 'participation' as const, credit: num(f, 'credit.credit') as number, pointsScaleMax: num(f, 'credit.pointsScaleMax') };
+  return {
+    payoffs: { R: num(f, 'payoffs.R') as number, S: num(f, 'payoffs.S') as number, T: num(f, 'payoffs.T') as number, P: num(f, 'payoffs.P') as number },
+    labels: { C: get(f, 'labels.C') ?? '', D: get(f, 'labels.D') ?? '' },
+    delta: num(f, 'delta') as number,
+    supergames: num(f, 'supergames') as number,
+    roundSeconds: num(f, 'roundSeconds') as number,
+    termination,
+    matching: 'random-rematch',
+    oddCount,
+    timeout: (get(f, 'timeout') ?? 'repeat-last') as DesignInput['timeout'],
+    credit,
+    consent: f.get('consent') === 'on',
+    instructions: get(f, 'instructions') ?? '',
+  };
+}
