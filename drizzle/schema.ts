@@ -7,6 +7,7 @@ import {
   int,
   mysqlEnum,
   mysqlTable,
+  primaryKey,
   uniqueIndex,
   varchar,
 } from 'drizzle-orm/mysql-core';
@@ -145,6 +146,150 @@ export const courseStrategies = mysqlTable(
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex('course_strategies_code').on(t.courseId, t.code)],
+);
+
+export const SESSION_STATUSES = ['draft', 'open', 'running', 'paused', 'complete', 'archived'] as const;
+export const CHOICE_SOURCES = ['player', 'timeout', 'computer'] as const;
+
+/**
+ * A session: one live run of a design (product.md). The design is frozen into `params` when the
+ * session is made; `seed` drives its draws and matching. The engine (realtime/engine) is the
+ * authority on its state; these tables hold what rebuilds it.
+ */
+export const sessions = mysqlTable(
+  'sessions',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    designId: int('design_id').references(() => designs.id, { onDelete: 'set null' }),
+    /** the design's name when the session was made: the treatment in exports */
+    treatment: varchar('treatment', { length: 120 }).notNull(),
+    params: jsonText<unknown>('params').notNull(),
+    seed: bigint('seed', { mode: 'number', unsigned: true }).notNull(),
+    /** short and unambiguous (no 0/O, 1/I); null once archived */
+    joinCode: varchar('join_code', { length: 8 }).unique(),
+    status: mysqlEnum('status', SESSION_STATUSES).notNull().default('draft'),
+    currentSupergame: int('current_supergame').notNull().default(0),
+    /** admit only course members (roster) or anyone signed in, optionally by e-mail domain */
+    admission: mysqlEnum('admission', ['roster', 'open']).notNull().default('roster'),
+    emailDomain: varchar('email_domain', { length: 120 }),
+    /** demo sessions whose choices were simulated, labelled as such everywhere */
+    simulated: int('simulated').notNull().default(0),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    startedAt: datetime('started_at', { mode: 'date', fsp: 3 }),
+    completedAt: datetime('completed_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [index('sessions_course').on(t.courseId)],
+);
+
+/** Participants of a session in join order; `participantKey` is the engine's id (the user id). */
+export const sessionParticipants = mysqlTable(
+  'session_participants',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    userId: int('user_id')
+      .notNull()
+      .references(() => users.id),
+    participantKey: varchar('participant_key', { length: 32 }).notNull(),
+    pseudonym: varchar('pseudonym', { length: 16 }).notNull(),
+    seq: int('seq').notNull(),
+    joinedAtMs: bigint('joined_at_ms', { mode: 'number' }).notNull(),
+    /** research consent: null = not asked (the design did not ask), 1 yes, 0 no */
+    consent: int('consent'),
+    consentAt: datetime('consent_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [
+    uniqueIndex('session_participants_user').on(t.sessionId, t.userId),
+    uniqueIndex('session_participants_seq').on(t.sessionId, t.seq),
+    uniqueIndex('session_participants_pseudonym').on(t.sessionId, t.pseudonym),
+  ],
+);
+
+/**
+ * One row per seat × round: the engine's ChoiceRow. The unique key on (session, supergame, round,
+ * pair, seat) is what makes a repeated submission write nothing more, whichever process races.
+ */
+export const choices = mysqlTable(
+  'choices',
+  {
+    id: bigint('id', { mode: 'number' }).autoincrement().primaryKey(),
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    seq: int('seq').notNull(),
+    supergame: int('supergame').notNull(),
+    round: int('round').notNull(),
+    pairId: varchar('pair_id', { length: 32 }).notNull(),
+    seat: int('seat').notNull(),
+    participantKey: varchar('participant_key', { length: 32 }),
+    action: mysqlEnum('action', ['C', 'D']).notNull(),
+    source: mysqlEnum('source', CHOICE_SOURCES).notNull(),
+    strategy: varchar('strategy', { length: 24 }),
+    clientChoiceId: varchar('client_choice_id', { length: 64 }),
+    atMs: bigint('at_ms', { mode: 'number' }).notNull(),
+    decisionMs: int('decision_ms').notNull(),
+  },
+  (t) => [
+    uniqueIndex('choices_seq').on(t.sessionId, t.seq),
+    uniqueIndex('choices_seat_round').on(t.sessionId, t.supergame, t.round, t.pairId, t.seat),
+    index('choices_participant').on(t.sessionId, t.participantKey),
+  ],
+);
+
+/** Staff actions and re-joins of a session, as the engine logs them. */
+export const sessionLog = mysqlTable(
+  'session_log',
+  {
+    id: bigint('id', { mode: 'number' }).autoincrement().primaryKey(),
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    seq: int('seq').notNull(),
+    atMs: bigint('at_ms', { mode: 'number' }).notNull(),
+    event: jsonText<unknown>('event').notNull(),
+    /** who did it (staff user), when known */
+    userId: int('user_id'),
+  },
+  (t) => [uniqueIndex('session_log_seq').on(t.sessionId, t.seq)],
+);
+
+/** The draws of a session's supergames, stored when it opens (derivable from the seed). */
+export const supergameDraws = mysqlTable(
+  'supergame_draws',
+  {
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    supergame: int('supergame').notNull(),
+    draws: jsonText<number[]>('draws').notNull(),
+    length: int('length').notNull(),
+    roundsPlayed: int('rounds_played').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.sessionId, t.supergame] })],
+);
+
+/** Pairs of each supergame, for the choice panel's partner column. */
+export const sessionPairs = mysqlTable(
+  'session_pairs',
+  {
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    supergame: int('supergame').notNull(),
+    pairId: varchar('pair_id', { length: 32 }).notNull(),
+    seat0: varchar('seat0', { length: 32 }),
+    seat1: varchar('seat1', { length: 32 }),
+    computerStrategy: varchar('computer_strategy', { length: 24 }),
+  },
+  (t) => [primaryKey({ columns: [t.sessionId, t.supergame, t.pairId] })],
 );
 
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));

@@ -4,9 +4,11 @@ import { and, eq } from 'drizzle-orm';
 import type { MySql2Database } from 'drizzle-orm/mysql2';
 import { type DesignInput, designSchema } from '#app/lib/design';
 import { generateInstructions } from '#app/lib/instructions';
+import { participantKeyOf, writeEffects } from '#app/models/live.server';
 import * as schema from '#drizzle/schema';
+import { DEMO_MIXTURES, simulateSession } from './simulate';
 
-const { users, courses, courseMembers, designs } = schema;
+const { users, courses, courseMembers, designs, sessions } = schema;
 
 export const DEMO_COURSE = {
   title: 'ECON 214 Strategy and Markets',
@@ -74,7 +76,60 @@ export async function seedDemo(db: Db) {
     const params = designSchema.parse(d.params);
     await db.insert(designs).values({ courseId: course.id, name: d.name, params: { ...params, instructions: generateInstructions(params) }, createdBy: instructorId });
   }
+  await seedDemoSessions(db, course.id, instructorId);
   return { courseId: course.id };
+}
+
+/**
+ * The two completed demo sessions (same payoffs, δ = 1/2 and δ = 7/8), simulated through the
+ * session engine from the stated mixtures in seeds/simulate.ts, all 40 participants in each.
+ */
+async function seedDemoSessions(db: Db, courseId: number, instructorId: number) {
+  const runs = [
+    { design: DEMO_DESIGNS[0], mixture: DEMO_MIXTURES.short, seed: 2027_0303, rngSeed: 11, start: Date.UTC(2027, 2, 3, 10, 15) },
+    { design: DEMO_DESIGNS[1], mixture: DEMO_MIXTURES.long, seed: 2027_0310, rngSeed: 12, start: Date.UTC(2027, 2, 10, 10, 15) },
+  ];
+  const people = demoParticipants();
+  const userIds: string[] = [];
+  for (const p of people) {
+    const [u] = await db.select({ id: users.id }).from(users).where(eq(users.email, p.email));
+    userIds.push(participantKeyOf(u.id));
+  }
+  for (const run of runs) {
+    const [exists] = await db
+      .select({ id: sessions.id })
+      .from(sessions)
+      .where(and(eq(sessions.courseId, courseId), eq(sessions.treatment, run.design.name), eq(sessions.simulated, 1)));
+    if (exists) continue;
+    const [design] = await db
+      .select({ id: designs.id, params: designs.params })
+      .from(designs)
+      .where(and(eq(designs.courseId, courseId), eq(designs.name, run.design.name)));
+    const params = designSchema.parse(design.params);
+    await db.transaction(async (tx) => {
+      const [res] = await tx.insert(sessions).values({
+        courseId,
+        designId: design.id,
+        treatment: run.design.name,
+        params,
+        seed: run.seed,
+        status: 'draft',
+        simulated: 1,
+        createdBy: instructorId,
+        createdAt: new Date(run.start - 3600_000),
+      });
+      const sim = simulateSession({
+        sessionId: String(res.insertId),
+        design: params,
+        seed: run.seed,
+        participantIds: userIds,
+        mixture: run.mixture,
+        rngSeed: run.rngSeed,
+        startMs: run.start,
+      });
+      await writeEffects(tx, res.insertId, sim.effects, instructorId);
+    });
+  }
 }
 
 /** Payoffs shared by the demo designs (invented; the shape of Dal Bó & Fréchette's with R = 40). */

@@ -1,0 +1,170 @@
+// Persistence of live sessions: the engine's effects in, the rows that rebuild it out.
+import { randomInt } from 'node:crypto';
+import { asc, eq, sql } from 'drizzle-orm';
+import { type Design, designSchema } from '#app/lib/design';
+import { db } from '#app/utils/db.server';
+import { choices, sessionLog, sessionPairs, sessionParticipants, sessions, supergameDraws } from '#drizzle/schema';
+import { rebuild } from '#realtime/engine/rebuild';
+import type { ChoiceRow, Effect, EngineState, LogRow, ParticipantRow } from '#realtime/engine/types';
+
+/** No 0/O and no 1/I: codes are read off a projector and typed on phones. */
+export const JOIN_ALPHABET = 'ABCDEFGHJKLMNPQRSTUVWXYZ23456789';
+export const JOIN_CODE_LENGTH = 6;
+
+export function newJoinCode() {
+  let code = '';
+  for (let i = 0; i < JOIN_CODE_LENGTH; i++) code += JOIN_ALPHABET[randomInt(JOIN_ALPHABET.length)];
+  return code;
+}
+
+export function newSeed() {
+  return randomInt(0, 2 ** 32 - 1);
+}
+
+type Tx = Parameters<Parameters<ReturnType<typeof db>['transaction']>[0]>[0];
+type Writer = ReturnType<typeof db> | Tx;
+
+/** The engine's participant id for a user. */
+export const participantKeyOf = (userId: number) => String(userId);
+const userIdOf = (key: string) => Number(key);
+
+/**
+ * Writes a step's persist-* effects, in the caller's transaction. A duplicate (session, seq) or
+ * seat-round key throws: the caller rolls back and rebuilds (another process got there first).
+ */
+export async function writeEffects(w: Writer, sessionId: number, effects: readonly Effect[], userId: number | null = null) {
+  const choiceRows: (typeof choices.$inferInsert)[] = [];
+  for (const e of effects) {
+    switch (e.type) {
+      case 'persist-choice':
+        choiceRows.push(choiceInsert(sessionId, e.row));
+        break;
+      case 'persist-participant':
+        await w.insert(sessionParticipants).values({
+          sessionId,
+          userId: userIdOf(e.row.id),
+          participantKey: e.row.id,
+          pseudonym: e.row.pseudonym,
+          seq: e.row.seq,
+          joinedAtMs: e.row.joinedAt,
+        });
+        break;
+      case 'persist-log':
+        await w.insert(sessionLog).values({ sessionId, seq: e.row.seq, atMs: e.row.at, event: e.row.event, userId });
+        break;
+      case 'persist-session': {
+        const at = new Date(e.at);
+        await w
+          .update(sessions)
+          .set({
+            status: e.status,
+            currentSupergame: e.supergame,
+            ...(e.status === 'complete' ? { completedAt: at } : {}),
+          })
+          .where(eq(sessions.id, sessionId));
+        if (e.status === 'running') {
+          // the first start only; resume also reports 'running'
+          await w.update(sessions).set({ startedAt: sql`COALESCE(${sessions.startedAt}, ${at})` }).where(eq(sessions.id, sessionId));
+        }
+        break;
+      }
+      case 'persist-draws':
+        if (e.supergames.length) {
+          await w
+            .insert(supergameDraws)
+            .values(e.supergames.map((s) => ({ sessionId, supergame: s.supergame, draws: s.draws, length: s.length, roundsPlayed: s.roundsPlayed })))
+            .onDuplicateKeyUpdate({ set: { length: sql`length` } });
+        }
+        break;
+      case 'persist-matching':
+        if (e.pairs.length) {
+          const supergame = e.matching.supergame;
+          await w
+            .insert(sessionPairs)
+            .values(e.pairs.map((p) => ({ sessionId, supergame, pairId: p.pairId, seat0: p.participants[0], seat1: p.participants[1], computerStrategy: p.computerStrategy })))
+            .onDuplicateKeyUpdate({ set: { pairId: sql`pair_id` } });
+        }
+        break;
+      default:
+        break;
+    }
+  }
+  if (choiceRows.length) await w.insert(choices).values(choiceRows);
+}
+
+function choiceInsert(sessionId: number, r: ChoiceRow): typeof choices.$inferInsert {
+  return {
+    sessionId,
+    seq: r.seq,
+    supergame: r.supergame,
+    round: r.round,
+    pairId: r.pairId,
+    seat: r.seat,
+    participantKey: r.participantId,
+    action: r.action,
+    source: r.source,
+    strategy: r.strategy,
+    clientChoiceId: r.clientChoiceId,
+    atMs: r.at,
+    decisionMs: r.decisionMs,
+  };
+}
+
+export interface StoredSession {
+  id: number;
+  courseId: number;
+  treatment: string;
+  design: Design;
+  seed: number;
+  status: (typeof sessions.$inferSelect)['status'];
+  joinCode: string | null;
+  simulated: boolean;
+}
+
+export async function getSession(sessionId: number): Promise<StoredSession | null> {
+  const [s] = await db().select().from(sessions).where(eq(sessions.id, sessionId));
+  if (!s) return null;
+  return {
+    id: s.id,
+    courseId: s.courseId,
+    treatment: s.treatment,
+    design: designSchema.parse(s.params),
+    seed: s.seed,
+    status: s.status,
+    joinCode: s.joinCode,
+    simulated: s.simulated === 1,
+  };
+}
+
+/** Every stored row of a session, in the engine's shapes. */
+export async function loadRows(sessionId: number) {
+  const [p, c, l] = await Promise.all([
+    db().select().from(sessionParticipants).where(eq(sessionParticipants.sessionId, sessionId)).orderBy(asc(sessionParticipants.seq)),
+    db().select().from(choices).where(eq(choices.sessionId, sessionId)).orderBy(asc(choices.seq)),
+    db().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId)).orderBy(asc(sessionLog.seq)),
+  ]);
+  const participants: ParticipantRow[] = p.map((r) => ({ id: r.participantKey, pseudonym: r.pseudonym, joinedAt: r.joinedAtMs, seq: r.seq }));
+  const choiceRows: ChoiceRow[] = c.map((r) => ({
+    sessionId: String(sessionId),
+    seq: r.seq,
+    supergame: r.supergame,
+    round: r.round,
+    pairId: r.pairId,
+    seat: r.seat as 0 | 1,
+    participantId: r.participantKey,
+    action: r.action,
+    source: r.source,
+    strategy: r.strategy,
+    clientChoiceId: r.clientChoiceId,
+    at: r.atMs,
+    decisionMs: r.decisionMs,
+  }));
+  const logs: LogRow[] = l.map((r) => ({ seq: r.seq, at: r.atMs, event: r.event as LogRow['event'] }));
+  return { participants, choices: choiceRows, logs };
+}
+
+/** The engine state of a session, rebuilt from its stored rows. */
+export async function rebuildSession(session: StoredSession): Promise<EngineState> {
+  const rows = await loadRows(session.id);
+  return rebuild(session.design, session.seed, rows.participants, rows.choices, rows.logs, { sessionId: String(session.id) });
+}
