@@ -292,6 +292,110 @@ export const sessionPairs = mysqlTable(
   (t) => [primaryKey({ columns: [t.sessionId, t.supergame, t.pairId] })],
 );
 
+/**
+ * Strategy-frequency estimations, stored so a Debrief reloads instantly. `request` names the data
+ * (sessions or an uploaded dataset), window, strategy set, bootstrap size and seed; `result` is
+ * filled when done; `progress` counts bootstrap replicates done.
+ */
+export const estimates = mysqlTable(
+  'estimates',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    request: jsonText<unknown>('request').notNull(),
+    /** a stable key of the request, so the same estimation is not run twice */
+    requestKey: varchar('request_key', { length: 64 }).notNull(),
+    status: mysqlEnum('status', ['queued', 'running', 'done', 'failed']).notNull().default('queued'),
+    progress: int('progress').notNull().default(0),
+    total: int('total').notNull().default(0),
+    result: jsonText<unknown>('result'),
+    error: varchar('error', { length: 500 }),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    finishedAt: datetime('finished_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [index('estimates_course').on(t.courseId, t.requestKey)],
+);
+
+/** A choice panel uploaded from elsewhere (another lab, a published data set), for estimation. */
+export const datasets = mysqlTable(
+  'datasets',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    name: varchar('name', { length: 160 }).notNull(),
+    /** the validated panel rows (app/lib/panel.ts shape) */
+    rows: jsonText<unknown>('rows').notNull(),
+    rowCount: int('row_count').notNull(),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index('datasets_course').on(t.courseId)],
+);
+
+/** Bearer tokens for /api/v1: shown once, stored hashed, scoped to courses, revocable. */
+export const apiTokens = mysqlTable(
+  'api_tokens',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    userId: int('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    name: varchar('name', { length: 120 }).notNull(),
+    /** SHA-256 hex of the token */
+    tokenHash: varchar('token_hash', { length: 64 }).notNull().unique(),
+    /** the first characters, to tell tokens apart in the list */
+    prefix: varchar('prefix', { length: 12 }).notNull(),
+    courseIds: jsonText<number[]>('course_ids').notNull(),
+    createdAt: createdAt(),
+    lastUsedAt: datetime('last_used_at', { mode: 'date', fsp: 3 }),
+    revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [index('api_tokens_user').on(t.userId)],
+);
+
+/** Who downloaded personal data, and when (identified exports, credit sheets). */
+export const exportLog = mysqlTable('export_log', {
+  id: int('id').autoincrement().primaryKey(),
+  courseId: int('course_id')
+    .notNull()
+    .references(() => courses.id, { onDelete: 'cascade' }),
+  sessionId: int('session_id'),
+  userId: int('user_id')
+    .notNull()
+    .references(() => users.id),
+  kind: varchar('kind', { length: 40 }).notNull(),
+  createdAt: createdAt(),
+});
+
+/** The after-session summary e-mail to each participant: one row per recipient. */
+export const resultMails = mysqlTable(
+  'result_mails',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    userId: int('user_id')
+      .notNull()
+      .references(() => users.id),
+    status: mysqlEnum('status', ['queued', 'sending', 'sent', 'failed']).notNull().default('queued'),
+    attempts: int('attempts').notNull().default(0),
+    error: varchar('error', { length: 500 }),
+    createdAt: createdAt(),
+    sentAt: datetime('sent_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [uniqueIndex('result_mails_recipient').on(t.sessionId, t.userId)],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));
 export const coursesRelations = relations(courses, ({ many }) => ({ members: many(courseMembers) }));
 export const courseMembersRelations = relations(courseMembers, ({ one }) => ({
