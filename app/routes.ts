@@ -20,10 +20,20 @@ export default [
     route('courses/:courseId/designs', 'routes/staff/designs.tsx'),
     route('courses/:courseId/designs/new', 'routes/staff/design-edit.tsx', { id: 'design-new' }),
     route('courses/:courseId/designs/:designId', 'routes/staff/design-edit.tsx', { id: 'design-edit' }),
+    route('courses/:courseId/sessions', 'routes/staff/sessions.tsx'),
+    route('courses/:courseId/sessions/:sessionId', 'routes/staff/conductor.tsx'),
+    route('courses/:courseId/sessions/:sessionId/floor', 'routes/staff/floor.tsx'),
     route('admin', 'routes/staff/admin.tsx'),
   ]),
 
   route('courses/:courseId/strategies', 'routes/staff/strategies.ts'),
+  route('courses/:courseId/sessions/:sessionId/names', 'routes/staff/session-names.ts'),
+
+  // The projector page (dark, large type) and the participants' phone pages.
+  route('screen/:sessionId', 'routes/big-screen.tsx'),
+  route('join', 'routes/play/join.tsx'),
+  route('join/:code', 'routes/play/join-code.tsx'),
+  route('play/:sessionId', 'routes/play/play.tsx'),
 
   route('*', 'routes/not-found.tsx'),
 ] satisfies RouteConfig;

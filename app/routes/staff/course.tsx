@@ -30,6 +30,9 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
           </span>
         }
       >
+        <ButtonLink to={`/courses/${course.id}/sessions`} variant="secondary">
+          Sessions
+        </ButtonLink>
         <ButtonLink to={`/courses/${course.id}/designs`} variant="secondary">
           Designs
         </ButtonLink>
