@@ -150,4 +150,22 @@ describe('a live session over real sockets', () => {
       expect(view.ownChoice).toBe('D');
     }
   });
+
+  it('fills a missing choice by the design’s timeout rule when the server’s round timer runs out', async () => {
+    const { sessionId, staff } = await openAndJoin({ supergames: 1, roundSeconds: 5, timeout: 'defect' });
+    const first = nextView(seats[0].socket!, (v) => v.status === 'choosing');
+    await staff.emitWithAck('session:control', { sessionId, command: 'start' });
+    const v = await first;
+    // seat 0 chooses; everyone else lets the 5-second timer run out
+    await seats[0].socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: v.round!, action: 'C', clientChoiceId: 'in-time-00001' });
+    const resolved = await nextView(seats[0].socket!, (x) => x.history.length >= 1, 12_000);
+    expect(resolved.history[0].own).toBe('C');
+    const rows = await testDb()
+      .select()
+      .from(choices)
+      .where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+    const timeouts = rows.filter((r) => r.source === 'timeout');
+    expect(timeouts.length).toBe(3);
+    expect(timeouts.every((r) => r.action === 'D')).toBe(true);
+  });
 });
