@@ -158,7 +158,11 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           <h1 className="text-2xl font-semibold">{view.notice === 'sitting-out' ? 'You sit out this supergame' : `Supergame ${view.supergame} is over`}</h1>
           {view.lastResult ? <ResultLine r={view.lastResult} labels={labels} /> : null}
           {view.notice === 'handed-to-computer' ? <Notice>A computer partner took your seat for the rest of this supergame. You are back from the next one.</Notice> : null}
-          <p className="text-lg text-slate-700">Waiting for the other pairs to finish. You will get a new partner.</p>
+          <p className="text-lg text-slate-700">
+            {view.notice === 'sitting-out'
+              ? 'The head-count is odd, so one participant sits out each supergame, in turn. You play again in the next one.'
+              : 'Waiting for the other pairs to finish. You will get a new partner.'}
+          </p>
           <p className="num text-xl">
             Your points so far: <strong>{view.totalPoints}</strong>
           </p>
