@@ -30,6 +30,8 @@ describe('a room of 60 phones', () => {
     for (const s of sockets) expect((await s.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);
 
     const acked = new Set<string>();
+    // The final view can arrive before the last acknowledgement: wait for every ack too.
+    const acks: Promise<unknown>[] = [];
     const finished = sockets.map(
       (s, i) =>
         new Promise<ParticipantView>((resolve) => {
@@ -41,14 +43,16 @@ describe('a room of 60 phones', () => {
             if (seen.has(key)) return;
             seen.add(key);
             const id = `crowd-${i}-${key}`;
-            const ack = await s.emitWithAck('choice:submit', { sessionId, supergame: v.supergame, round: v.round, action: Math.random() < 0.6 ? 'C' : 'D', clientChoiceId: id });
-            if (ack.ok) acked.add(id);
+            const pending = s.emitWithAck('choice:submit', { sessionId, supergame: v.supergame, round: v.round, action: Math.random() < 0.6 ? 'C' : 'D', clientChoiceId: id });
+            acks.push(pending);
+            if ((await pending).ok) acked.add(id);
           });
         }),
     );
     const staff = await connect(instructor.cookieHeader());
     expect(await staff.emitWithAck('session:control', { sessionId, command: 'start' })).toEqual({ ok: true, data: { status: 'running' } });
     await Promise.all(finished);
+    await Promise.all(acks);
 
     const rows = await testDb().select().from(choices).where(eq(choices.sessionId, sessionId));
     expect(rows.length).toBe(acked.size);

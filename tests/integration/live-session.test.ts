@@ -58,6 +58,8 @@ describe('a live session over real sockets', () => {
   it('plays two supergames to the end; every acknowledged choice is stored exactly once', async () => {
     const { sessionId, staff } = await openAndJoin({ supergames: 2, delta: 0.5 });
     const acked: { seq: number; clientChoiceId: string | null }[] = [];
+    // The final view can arrive before the last acknowledgement: wait for every ack too.
+    const acks: Promise<unknown>[] = [];
     const finished = seats.map(
       (s, i) =>
         new Promise<ParticipantView>((resolve) => {
@@ -68,13 +70,15 @@ describe('a live session over real sockets', () => {
             const key = `${v.supergame}-${v.round}`;
             if (done.has(key)) return;
             done.add(key);
-            const ack = await s.socket!.emitWithAck('choice:submit', {
+            const pending = s.socket!.emitWithAck('choice:submit', {
               sessionId,
               supergame: v.supergame,
               round: v.round,
               action: (i + v.round) % 3 === 0 ? 'D' : 'C',
               clientChoiceId: `t-${i}-${key}-abcdef`,
             });
+            acks.push(pending);
+            const ack = await pending;
             expect(ack.ok).toBe(true);
             if (ack.ok) acked.push({ seq: ack.data.seq, clientChoiceId: ack.data.clientChoiceId });
           });
@@ -83,6 +87,7 @@ describe('a live session over real sockets', () => {
     const started = await staff.emitWithAck('session:control', { sessionId, command: 'start' });
     expect(started).toEqual({ ok: true, data: { status: 'running' } });
     const ends = await Promise.all(finished);
+    await Promise.all(acks);
     const rows = await storedFor(sessionId);
     expect(rows.length).toBe(acked.length);
     expect(new Set(rows.map((r) => r.clientChoiceId))).toEqual(new Set(acked.map((a) => a.clientChoiceId)));
@@ -167,5 +172,46 @@ describe('a live session over real sockets', () => {
     const timeouts = rows.filter((r) => r.source === 'timeout');
     expect(timeouts.length).toBe(3);
     expect(timeouts.every((r) => r.action === 'D')).toBe(true);
+  });
+
+  it('staff hand a participant to a disclosed computer partner; the partner is told and rows say computer', async () => {
+    const { sessionId, staff } = await openAndJoin({ supergames: 1, delta: 0.5 });
+    const first = nextView(seats[0].socket!, (v) => v.status === 'choosing');
+    await staff.emitWithAck('session:control', { sessionId, command: 'start' });
+    const v = await first;
+    const state = await staff.emitWithAck('session:watch', { sessionId, as: 'floor' });
+    expect(state.ok).toBe(true);
+    const floor = state.ok ? (state.data as import('#realtime/engine/types').FloorView) : null;
+    const pair = floor!.pairs.find((p) => p.pairId === v.pairId)!;
+    const me = seats[0];
+    const [partnerSeat] = pair.seats.filter((s) => s.participantId && s.pseudonym !== v.pseudonym);
+    const told = nextView(me.socket!, (x) => x.partner?.kind === 'computer');
+    const handed = await staff.emitWithAck('participant:act', { sessionId, participantId: partnerSeat.participantId!, action: 'hand-to-computer', strategy: 'TFT' });
+    expect(handed).toEqual({ ok: true, data: { done: true } });
+    const view = await told;
+    expect(view.partner).toMatchObject({ kind: 'computer', strategy: 'TFT', reason: 'hand-over' });
+    // (views are broadcast before the acknowledgement returns: listen first)
+    const resolved = nextView(me.socket!, (x) => x.history.length >= 1);
+    await me.socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: view.round!, action: 'C', clientChoiceId: 'vs-computer-001' });
+    await resolved;
+    const rows = await testDb()
+      .select()
+      .from(choices)
+      .where(and(eq(choices.sessionId, sessionId), eq(choices.pairId, v.pairId!)));
+    expect(rows.some((r) => r.source === 'computer' && r.strategy === 'TFT')).toBe(true);
+  });
+
+  it('a late joiner enters at the next supergame', async () => {
+    const designId = await createDesign(courseId, instructorId, { supergames: 3, delta: 0.5 });
+    const { sessionId, code } = await openSession(instructor, courseId, designId);
+    for (const s of seats.slice(0, 2)) await join(s.client, code);
+    const staff = await connect(instructor.cookieHeader());
+    await staff.emitWithAck('session:control', { sessionId, command: 'start' });
+    const page = await (await seats[3].client.get(`/join/${code}`)).text();
+    expect(page).toContain('you will be paired from the next supergame on');
+    await join(seats[3].client, code);
+    const late = await connect(seats[3].client.cookieHeader());
+    const ack = await late.emitWithAck('session:watch', { sessionId, as: 'participant' });
+    expect(ack.ok && (ack.data as ParticipantView).notice).toBe('waiting-to-enter');
   });
 });
