@@ -33,6 +33,9 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
         <ButtonLink to={`/courses/${course.id}/designs`} variant="secondary">
           Designs
         </ButtonLink>
+        <ButtonLink to={`/courses/${course.id}/debrief`} variant="secondary">
+          Debrief
+        </ButtonLink>
         {canSeeMembers ? (
           <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">
             Members
