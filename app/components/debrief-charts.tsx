@@ -34,7 +34,8 @@ const SHAPES = ['circle', 'square', 'triangle', 'diamond'] as const;
 const SHAPE_WORDS = { circle: '●', square: '■', triangle: '▲', diamond: '◆' } as const;
 const DASHES = ['', '8 4', '3 3', '12 4 3 4'];
 
-export const pct = (x: number | null | undefined, d = 0) => (x === null || x === undefined ? '–' : `${(x * 100).toFixed(d)} %`);
+export const pct = (x: number | null | undefined, d = 0) => (x === null || x === undefined ? '–' : `${(x * 100).toFixed(d).replace(/^-(0(\.0+)?)$/, '$1')} %`);
+const PCT_TICKS = [0, 0.25, 0.5, 0.75, 1];
 const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
 
 /** The marker of series i, drawn by recharts at each point. */
@@ -111,7 +112,7 @@ export function CoopBySupergameChart({ sessions, theme = 'light', big = false }:
       <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
         <XAxis dataKey="x" type="number" domain={['dataMin', 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-        <YAxis domain={[0, 1]} tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...legendProps(theme, big)} />
         {sessions.flatMap((s, i) => [
@@ -131,7 +132,7 @@ export function CoopByRoundChart({ sessions, theme = 'light', big = false }: Cha
       <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
         <XAxis dataKey="x" type="number" domain={[1, 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-        <YAxis domain={[0, 1]} tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))} labelFormatter={(l) => `round ${l}`} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...legendProps(theme, big)} />
         {sessions.map((s, i) => (
@@ -159,7 +160,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
           <Patterns theme={theme} count={3} />
           <CartesianGrid stroke={p.grid} vertical={false} />
           <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-          <YAxis domain={[0, 1]} tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+          <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
           <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
           <Legend verticalAlign="top" {...legendProps(theme, big)} />
           {OUTCOMES.map((o, i) => (
@@ -183,7 +184,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
         <Patterns theme={theme} count={sessions.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis domain={[0, 1]} tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...legendProps(theme, big)} />
         {sessions.map((s, i) => (
@@ -267,7 +268,7 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
         <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} {...axisProps(theme, big)} label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis domain={[0, 1]} ticks={[0, 0.25, 0.5, 0.75, 1]} tickFormatter={(v) => fmt(v, 2)} width={big ? 64 : 44} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => fmt(Number(v))} labelFormatter={(l) => `δ = ${fmt(Number(l), 3)}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend verticalAlign="bottom" {...legendProps(theme, big)} wrapperStyle={{ ...legendProps(theme, big).wrapperStyle, paddingTop: big ? 40 : 24 }} />
         <ReferenceLine y={0.5} stroke={p.grid} strokeDasharray="3 3" />
         {lines.map((l, i) => (
           <ReferenceLine key={l.label} x={l.x} stroke={p.ref} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }} />
@@ -317,7 +318,7 @@ export function StrategiesChart({ groups, theme = 'light', big = false }: { grou
         <Patterns theme={theme} count={groups.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis domain={[0, 1]} tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...legendProps(theme, big)} />
         {groups.map((g, i) => (

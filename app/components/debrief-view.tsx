@@ -67,7 +67,7 @@ export function DebriefView({
         {estimate ? (
           <div className="flex flex-col gap-4 border-t border-slate-200 pt-4">
             <h3 className="font-semibold">
-              Estimation #{estimate.id}: {estimate.request.strategies.join(', ')}; B = {estimate.request.bootstrap}, seed {estimate.request.seed}
+              {`Estimation #${estimate.id}: ${estimate.request.strategies.join(', ')}; B = ${estimate.request.bootstrap}, seed ${estimate.request.seed}`}
             </h3>
             <EstimateProgress estimate={estimate} />
             {estimate.status === 'done' ? <EstimateResults estimate={estimate} csvHref={csvHref(courseId, 'strategies', ids, estimate.id)} /> : null}
