@@ -323,7 +323,7 @@ export function StrategiesChart({ groups, theme = 'light', big = false }: { grou
         <Legend verticalAlign="top" {...legendProps(theme, big)} />
         {groups.map((g, i) => (
           <Bar key={g.group} dataKey={`g${i}`} name={`${SHAPE_WORDS[SHAPES[i % 4]]} ${g.group}`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false}>
-            {g.se ? <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} /> : null}
+            {g.se ? <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} isAnimationActive={false} /> : null}
           </Bar>
         ))}
       </BarChart>

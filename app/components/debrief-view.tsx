@@ -129,7 +129,7 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
     col.accessor('choices', { header: 'Choices', meta: { align: 'right' } }),
     col.accessor('cooperation', { header: 'Cooperation', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
     col.accessor('round1', { header: 'Round 1', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
-    ...strategies.map((id) => col.accessor((r) => r.shares[id], { id: `share-${id}`, header: id, meta: { align: 'right' } })),
+    ...strategies.map((id) => col.accessor((r) => r.shares[id], { id: `share-${id}`, header: id, cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span>, meta: { align: 'right' } })),
   ]);
   return (
     <section aria-labelledby="treatments" className="flex flex-col gap-2">

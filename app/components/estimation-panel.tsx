@@ -54,7 +54,16 @@ export function EstimateProgress({ estimate }: { estimate: EstimateStatus }) {
       </p>
       {total > 0 ? (
         <>
-          <progress className="h-4 w-full max-w-xl accent-accent-700" max={total} value={done} aria-label="Bootstrap replicates done" />
+          <div
+            role="progressbar"
+            aria-label="Bootstrap replicates done"
+            aria-valuemin={0}
+            aria-valuemax={total}
+            aria-valuenow={done}
+            className="h-4 w-full max-w-xl overflow-hidden rounded-full border border-slate-300 bg-slate-100"
+          >
+            <div className="h-full bg-accent-700 transition-[width] duration-300" style={{ width: `${(100 * done) / total}%` }} />
+          </div>
           <p className="num text-sm text-slate-700">
             {done} of {total} bootstrap replicates ({pct(total ? done / total : 0)})
           </p>

@@ -1,3 +1,4 @@
+import { useMemo } from 'react';
 import { Form, Link } from 'react-router';
 import type { Route } from './+types/debrief';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
@@ -61,6 +62,9 @@ function columnsFor(courseId: number) {
 
 export default function DebriefIndex({ loaderData }: Route.ComponentProps) {
   const { course, sessions } = loaderData;
+  // Stable columns: TanStack renders each cell function as a component, so new functions on a
+  // re-render would remount the cells and drop the ticks already made.
+  const columns = useMemo(() => columnsFor(course.id), [course.id]);
   return (
     <>
       <PageHeader title="Debrief" eyebrow={<CourseCrumbs course={course} />} />
@@ -72,7 +76,7 @@ export default function DebriefIndex({ loaderData }: Route.ComponentProps) {
         <p className="text-lg text-slate-700">No session has started yet. A session’s Debrief appears here once it runs.</p>
       ) : (
         <>
-          <DataTable columns={columnsFor(course.id)} data={sessions} caption="Sessions of this course" filterLabel="Filter sessions" initialSorting={[{ id: 'id', desc: false }]} />
+          <DataTable columns={columns} data={sessions} caption="Sessions of this course" filterLabel="Filter sessions" initialSorting={[{ id: 'id', desc: false }]} />
           <Form id="compare" method="get" action={`/courses/${course.id}/debrief/compare`} className="mt-4">
             <Button type="submit">Compare the ticked sessions</Button>
           </Form>
