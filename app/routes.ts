@@ -24,7 +24,19 @@ export default [
     route('courses/:courseId/sessions/:sessionId', 'routes/staff/conductor.tsx'),
     route('courses/:courseId/sessions/:sessionId/floor', 'routes/staff/floor.tsx'),
     route('admin', 'routes/staff/admin.tsx'),
+    // Debrief (staff): choose sessions, one session, several side by side.
+    route('courses/:courseId/debrief', 'routes/staff/debrief.tsx'),
+    route('courses/:courseId/debrief/compare', 'routes/staff/debrief-compare.tsx'),
+    route('courses/:courseId/debrief/:sessionId', 'routes/staff/debrief-session.tsx'),
   ]),
+
+  // Debrief outside the staff shell: the projector (full screen), a participant's own summary,
+  // and resource routes (chart data as CSV, estimations started and polled as JSON).
+  route('courses/:courseId/debrief/projector', 'routes/debrief/projector.tsx'),
+  route('courses/:courseId/debrief/:sessionId/mine', 'routes/debrief/mine.tsx'),
+  route('courses/:courseId/debrief/csv/:chart', 'routes/debrief/csv.ts'),
+  route('courses/:courseId/estimates', 'routes/debrief/estimates.ts'),
+  route('courses/:courseId/estimates/:estimateId', 'routes/debrief/estimate-status.ts'),
 
   route('courses/:courseId/strategies', 'routes/staff/strategies.ts'),
   route('courses/:courseId/sessions/:sessionId/names', 'routes/staff/session-names.ts'),

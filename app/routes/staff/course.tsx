@@ -36,6 +36,9 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
         <ButtonLink to={`/courses/${course.id}/designs`} variant="secondary">
           Designs
         </ButtonLink>
+        <ButtonLink to={`/courses/${course.id}/debrief`} variant="secondary">
+          Debrief
+        </ButtonLink>
         {canSeeMembers ? (
           <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">
             Members
