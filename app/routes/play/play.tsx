@@ -1,5 +1,5 @@
 import { useEffect, useRef, useState } from 'react';
-import { redirect } from 'react-router';
+import { Link, redirect } from 'react-router';
 import type { Route } from './+types/play';
 import { PayoffTable } from '#app/components/live/payoff-table';
 import { useCountdown, useSessionView } from '#app/components/live/use-session';
@@ -23,7 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     if (session.joinCode) throw redirect(`/join/${session.joinCode}`);
     throw new Response('You did not take part in this session.', { status: 403 });
   }
-  return { email: user.email, sessionId: session.id, view: participantView(state, me), serverNow: Date.now() };
+  return { email: user.email, sessionId: session.id, courseId: session.courseId, view: participantView(state, me), serverNow: Date.now() };
 }
 
 /** The two actions: label plus a distinct shape, equal neutral colours (never colour alone). */
@@ -179,6 +179,9 @@ export default function Play({ loaderData }: Route.ComponentProps) {
             Your points: <strong>{view.totalPoints}</strong>
           </p>
           <p className="text-slate-700">Thank you for taking part.</p>
+          <Link to={`/courses/${loaderData.courseId}/debrief/${loaderData.sessionId}/mine`} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white">
+            See your summary
+          </Link>
         </section>
       ) : null}
     </ParticipantShell>
