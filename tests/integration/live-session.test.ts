@@ -1,6 +1,6 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { choices } from '#drizzle/schema';
+import { choices, courseMembers } from '#drizzle/schema';
 import type { ParticipantView } from '#realtime/engine/types';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -213,5 +213,19 @@ describe('a live session over real sockets', () => {
     const late = await connect(seats[3].client.cookieHeader());
     const ack = await late.emitWithAck('session:watch', { sessionId, as: 'participant' });
     expect(ack.ok && (ack.data as ParticipantView).notice).toBe('waiting-to-enter');
+  });
+
+  it('assistants may pause and resume, but not start or end a session', async () => {
+    const taEmail = uniqueEmail('live-ta');
+    const taId = await createUser(taEmail);
+    await testDb().insert(courseMembers).values({ courseId, userId: taId, role: 'assistant' });
+    const ta = await connect((await signIn(taEmail)).cookieHeader());
+    const { sessionId, staff } = await openAndJoin({ supergames: 1 });
+    expect(await ta.emitWithAck('session:control', { sessionId, command: 'start' })).toMatchObject({ ok: false, code: 'forbidden' });
+    await staff.emitWithAck('session:control', { sessionId, command: 'start' });
+    expect(await ta.emitWithAck('session:control', { sessionId, command: 'pause' })).toEqual({ ok: true, data: { status: 'paused' } });
+    expect(await ta.emitWithAck('session:control', { sessionId, command: 'end-now' })).toMatchObject({ ok: false, code: 'forbidden' });
+    expect(await ta.emitWithAck('session:control', { sessionId, command: 'resume' })).toEqual({ ok: true, data: { status: 'running' } });
+    expect((await ta.emitWithAck('session:watch', { sessionId, as: 'floor' })).ok).toBe(true);
   });
 });
