@@ -101,3 +101,14 @@ export async function namesOf(sessionId: number) {
     .innerJoin(users, eq(users.id, sessionParticipants.userId))
     .where(eq(sessionParticipants.sessionId, sessionId));
 }
+
+/** Sessions a user took part in, newest first (the participant's home page). */
+export async function sessionsOfParticipant(userId: number) {
+  return db()
+    .select({ id: sessions.id, courseId: sessions.courseId, treatment: sessions.treatment, status: sessions.status, pseudonym: sessionParticipants.pseudonym })
+    .from(sessionParticipants)
+    .innerJoin(sessions, eq(sessions.id, sessionParticipants.sessionId))
+    .where(eq(sessionParticipants.userId, userId))
+    .orderBy(desc(sessions.createdAt))
+    .limit(20);
+}

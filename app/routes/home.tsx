@@ -3,16 +3,18 @@ import type { Route } from './+types/home';
 import { ParticipantShell, Wordmark } from '#app/components/shells';
 import { DemoBadge } from '#app/components/ui';
 import { listCoursesForUser } from '#app/models/course.server';
+import { sessionsOfParticipant } from '#app/models/session.server';
 import { getUser } from '#app/utils/auth.server';
 import { ROLE_WORDS } from '#app/utils/format';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await getUser(request);
-  if (!user) return { user: null, courses: [] };
+  if (!user) return { user: null, courses: [], played: [] };
   const courses = await listCoursesForUser(user.id, false);
   // Staff land on their courses; participants stay on this phone-first page.
   if (user.isAdmin || courses.some((c) => c.role !== 'participant')) throw redirect('/courses');
-  return { user: { email: user.email }, courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })) };
+  const played = await sessionsOfParticipant(user.id);
+  return { user: { email: user.email }, courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })), played };
 }
 
 export default function Home({ loaderData }: Route.ComponentProps) {
@@ -48,6 +50,31 @@ export default function Home({ loaderData }: Route.ComponentProps) {
           </ul>
         )}
       </section>
+      {loaderData.played.length ? (
+        <section aria-labelledby="my-sessions" className="flex flex-col gap-3">
+          <h2 id="my-sessions" className="text-xl font-semibold">
+            Your sessions
+          </h2>
+          <ul className="flex flex-col gap-2">
+            {loaderData.played.map((s) => (
+              <li key={s.id} className="flex flex-wrap items-center justify-between gap-2 rounded-lg border border-slate-200 bg-white p-4">
+                <span>
+                  Session #{s.id} · you were {s.pseudonym}
+                </span>
+                {s.status === 'complete' || s.status === 'archived' ? (
+                  <Link to={`/courses/${s.courseId}/debrief/${s.id}/mine`} className="min-h-11 content-center font-semibold text-accent-700 underline">
+                    Your summary
+                  </Link>
+                ) : (
+                  <Link to={`/play/${s.id}`} className="min-h-11 content-center font-semibold text-accent-700 underline">
+                    Back to the session
+                  </Link>
+                )}
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
       <p className="text-sm text-slate-600">
         Teaching a class?{' '}
         <Link to="/courses/new" className="font-semibold text-accent-700 underline underline-offset-4">
