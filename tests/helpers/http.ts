@@ -39,6 +39,18 @@ export class Client {
     this.keep(res);
     return res;
   }
+
+  /** A multipart POST (file uploads), as a browser without JS sends it. */
+  async postForm(path: string, form: FormData) {
+    const res = await fetch(new URL(path, baseUrl()), {
+      method: 'POST',
+      headers: { cookie: this.cookieHeader(), origin: baseUrl() },
+      body: form,
+      redirect: 'manual',
+    });
+    this.keep(res);
+    return res;
+  }
 }
 
 /** Signs in through the real flow: e-mail form → code read from maildev → code form. */
