@@ -27,7 +27,7 @@ export async function listExportLog(courseId: number, limit = 20) {
 /** The course's sessions with something to export, and how much. */
 export async function listExportableSessions(courseId: number) {
   const rows = db()
-    .select({ sessionId: choices.sessionId, n: count().as('n') })
+    .select({ sessionId: choices.sessionId, n: count().as('row_n') })
     .from(choices)
     .where(isNotNull(choices.participantKey))
     .groupBy(choices.sessionId)
@@ -35,7 +35,7 @@ export async function listExportableSessions(courseId: number) {
   const people = db()
     .select({
       sessionId: sessionParticipants.sessionId,
-      n: count().as('n'),
+      n: count().as('people_n'),
       declined: sql<number>`SUM(CASE WHEN ${sessionParticipants.consent} = 0 THEN 1 ELSE 0 END)`.as('declined'),
     })
     .from(sessionParticipants)

@@ -189,6 +189,15 @@ describe('choice panel downloads', () => {
     expect((await assistant.get(`/courses/${courseId}/data/panel?session=${synthetic.sessionId}`)).status).toBe(403);
     expect((await researcher.get(`/courses/${courseId}/data/codebook.csv`)).status).toBe(200);
   });
+
+  it('the Data page lists the completed sessions; researchers see no identified export, assistants no page', async () => {
+    const forResearcher = (await (await researcher.get(`/courses/${courseId}/data`)).text()).replace(/<!-- -->/g, '');
+    expect(forResearcher).toContain(`Choose session ${synthetic.sessionId}`);
+    expect(forResearcher).not.toContain('Identified export');
+    const forInstructor = (await (await instructor.get(`/courses/${courseId}/data`)).text()).replace(/<!-- -->/g, '');
+    expect(forInstructor).toContain('Identified export (instructors only)');
+    expect((await assistant.get(`/courses/${courseId}/data`)).status).toBe(403);
+  });
 });
 
 describe('identified export and credit sheet (instructors only, logged)', () => {

@@ -164,12 +164,16 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
             {counts['student-id-changes'] === 1 ? '' : 's'}, {counts.unchanged} already on the roster.
           </p>
           <DataTable columns={columns} data={outcome.rows} caption="Roster preview" filterLabel="Filter the preview" initialSorting={[{ id: 'line', desc: false }]} />
-          {canImport ? (
+          {canImport && counts.new + counts['student-id-changes'] === 0 ? (
+            <div className="mt-4">
+              <Notice tone="info">Everyone in this file is already on the roster with the same student id: there is nothing to import.</Notice>
+            </div>
+          ) : canImport ? (
             <Form method="post" className="mt-4 flex flex-wrap items-center gap-3">
               <input type="hidden" name="intent" value="import" />
               <input type="hidden" name="fileName" value={outcome.fileName} />
               <input type="hidden" name="csv" value={outcome.csv} />
-              <Button type="submit" disabled={busy || (counts.new === 0 && counts['student-id-changes'] === 0)}>
+              <Button type="submit" disabled={busy}>
                 Import {outcome.rows.length} {outcome.rows.length === 1 ? 'person' : 'people'}
               </Button>
               <p className="text-sm text-slate-600">New participants get an e-mail saying they are on the roster. All lines are written, or none.</p>

@@ -112,28 +112,7 @@ export default function SessionResults({ loaderData }: Route.ComponentProps) {
         {session.simulated ? ' · simulated demo session: the choices are invented' : ''}
       </p>
 
-      <section aria-labelledby="credit" className="mb-10">
-        <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
-          <h2 id="credit" className="text-lg font-semibold">
-            Credit sheet
-          </h2>
-          <a
-            href={`/courses/${course.id}/sessions/${session.id}/credit.csv`}
-            download
-            className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 py-2 font-semibold text-white hover:bg-accent-800"
-          >
-            Download credit sheet (CSV)
-          </a>
-        </div>
-        <p className="mb-3 max-w-3xl text-slate-700">
-          Rule of this session’s design: {rule}. Points count the rounds of each supergame up to its length. Research consent plays no part in credit.
-          The download carries names, e-mail addresses and student ids (personal data) and is logged.
-          {session.paid ? ' Paid sessions follow your institution’s payment rules.' : ''}
-        </p>
-        <DataTable columns={creditColumns(session.paid)} data={credit} caption="Credit sheet" filterLabel="Filter participants" initialSorting={[{ id: 'pseudonym', desc: false }]} />
-      </section>
-
-      <section aria-labelledby="mails">
+      <section aria-labelledby="mails" className="mb-10">
         <h2 id="mails" className="mb-3 text-lg font-semibold">
           Results e-mails
         </h2>
@@ -172,6 +151,27 @@ export default function SessionResults({ loaderData }: Route.ComponentProps) {
           </div>
         )}
       </section>
+      <section aria-labelledby="credit" >
+        <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
+          <h2 id="credit" className="text-lg font-semibold">
+            Credit sheet
+          </h2>
+          <a
+            href={`/courses/${course.id}/sessions/${session.id}/credit.csv`}
+            download
+            className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 py-2 font-semibold text-white hover:bg-accent-800"
+          >
+            Download credit sheet (CSV)
+          </a>
+        </div>
+        <p className="mb-3 max-w-3xl text-slate-700">
+          Rule of this session’s design: {rule}. Points count the rounds of each supergame up to its length. Research consent plays no part in credit.
+          The download carries names, e-mail addresses and student ids (personal data) and is logged.
+          {session.paid ? ' Paid sessions follow your institution’s payment rules.' : ''}
+        </p>
+        <DataTable columns={creditColumns(session.paid)} data={credit} caption="Credit sheet" filterLabel="Filter participants" initialSorting={[{ id: 'pseudonym', desc: false }]} />
+      </section>
+
     </>
   );
 }
