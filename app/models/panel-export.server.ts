@@ -177,7 +177,9 @@ async function choicePage(sessionId: number, key: string, after: { supergame: nu
       partnerSource: partnerRow.source,
       partnerStrategy: partnerRow.strategy,
     })
-    .from(choices)
+    // One participant's rows through (session, participant); left alone, MariaDB may walk the whole
+    // session along (session, supergame, round, …) to skip the sort, once per participant.
+    .from(choices, { forceIndex: 'choices_participant' })
     // A round enters the panel once both seats have chosen (a round cut by "end now" does not).
     .innerJoin(
       partnerRow,
