@@ -1,5 +1,5 @@
 // Exports that carry personal data (the identified panel, the credit sheet) and their log.
-import { and, count, desc, eq, isNotNull, sql } from 'drizzle-orm';
+import { and, count, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { type Credit, creditFor } from '#app/lib/credit';
 import { type CreditRule, designSchema } from '#app/lib/design';
@@ -24,40 +24,34 @@ export async function listExportLog(courseId: number, limit = 20) {
     .limit(limit);
 }
 
-/** The course's sessions with something to export, and how much. */
+/** The course's completed sessions, and how much each holds. */
 export async function listExportableSessions(courseId: number) {
-  const rows = db()
-    .select({ sessionId: choices.sessionId, n: count().as('row_n') })
-    .from(choices)
-    .where(isNotNull(choices.participantKey))
-    .groupBy(choices.sessionId)
-    .as('row_count');
-  const people = db()
-    .select({
-      sessionId: sessionParticipants.sessionId,
-      n: count().as('people_n'),
-      declined: sql<number>`SUM(CASE WHEN ${sessionParticipants.consent} = 0 THEN 1 ELSE 0 END)`.as('declined'),
-    })
-    .from(sessionParticipants)
-    .groupBy(sessionParticipants.sessionId)
-    .as('people');
   const list = await db()
-    .select({
-      id: sessions.id,
-      treatment: sessions.treatment,
-      status: sessions.status,
-      simulated: sessions.simulated,
-      params: sessions.params,
-      completedAt: sessions.completedAt,
-      rows: rows.n,
-      participants: people.n,
-      declined: people.declined,
-    })
+    .select({ id: sessions.id, treatment: sessions.treatment, status: sessions.status, simulated: sessions.simulated, params: sessions.params, completedAt: sessions.completedAt })
     .from(sessions)
-    .leftJoin(rows, eq(rows.sessionId, sessions.id))
-    .leftJoin(people, eq(people.sessionId, sessions.id))
-    .where(and(eq(sessions.courseId, courseId), sql`${sessions.status} IN ('complete', 'archived')`))
+    .where(and(eq(sessions.courseId, courseId), inArray(sessions.status, ['complete', 'archived'])))
     .orderBy(desc(sessions.id));
+  if (list.length === 0) return [];
+  const ids = list.map((s) => s.id);
+  // counted for these sessions only (the choices table holds every course's)
+  const [rows, people] = await Promise.all([
+    db()
+      .select({ sessionId: choices.sessionId, n: count() })
+      .from(choices)
+      .where(and(inArray(choices.sessionId, ids), isNotNull(choices.participantKey)))
+      .groupBy(choices.sessionId),
+    db()
+      .select({
+        sessionId: sessionParticipants.sessionId,
+        n: count(),
+        declined: sql<number>`SUM(CASE WHEN ${sessionParticipants.consent} = 0 THEN 1 ELSE 0 END)`,
+      })
+      .from(sessionParticipants)
+      .where(inArray(sessionParticipants.sessionId, ids))
+      .groupBy(sessionParticipants.sessionId),
+  ]);
+  const rowsOf = new Map(rows.map((r) => [r.sessionId, r.n]));
+  const peopleOf = new Map(people.map((p) => [p.sessionId, p]));
   return list.map((s) => ({
     id: s.id,
     treatment: s.treatment,
@@ -65,9 +59,9 @@ export async function listExportableSessions(courseId: number) {
     simulated: s.simulated === 1,
     delta: designSchema.parse(s.params).delta,
     completedAt: s.completedAt,
-    rows: Number(s.rows ?? 0),
-    participants: Number(s.participants ?? 0),
-    declined: Number(s.declined ?? 0),
+    rows: Number(rowsOf.get(s.id) ?? 0),
+    participants: Number(peopleOf.get(s.id)?.n ?? 0),
+    declined: Number(peopleOf.get(s.id)?.declined ?? 0),
   }));
 }
 
