@@ -78,9 +78,9 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 const STATUS = {
-  new: ['＋', 'New participant'],
-  unchanged: ['＝', 'Already on the roster'],
-  'student-id-changes': ['✎', 'Student id changes'],
+  new: ['+', 'New participant'],
+  unchanged: ['✓', 'Already on the roster'],
+  'student-id-changes': ['±', 'Student id changes'],
 } as const;
 
 const col = staffColumnHelper<PlannedRow>();

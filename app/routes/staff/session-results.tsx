@@ -70,10 +70,19 @@ function MailProgress({ status }: { status: MailStatus }) {
   const done = status.counts.sent + status.counts.failed;
   return (
     <div className="flex flex-col gap-2">
-      <label htmlFor={id} className="font-semibold text-slate-800">
+      <p id={id} className="font-semibold text-slate-800">
         {status.counts.sent} of {total} sent · {status.counts.failed} failed · {status.counts.queued + status.counts.sending} waiting
-      </label>
-      <progress id={id} max={total} value={done} className="h-3 w-full max-w-xl accent-accent-700" />
+      </p>
+      <div
+        role="progressbar"
+        aria-labelledby={id}
+        aria-valuemin={0}
+        aria-valuemax={total}
+        aria-valuenow={done}
+        className="h-3 w-full max-w-xl overflow-hidden rounded-full bg-slate-200"
+      >
+        <div className="h-full bg-accent-700 transition-[width]" style={{ width: `${total ? (100 * done) / total : 0}%` }} />
+      </div>
     </div>
   );
 }
