@@ -76,3 +76,16 @@ export function uniqueEmail(prefix = 'user') {
   counter += 1;
   return `${prefix}-${process.pid}-${Date.now().toString(36)}-${counter}@tests.parley.test`;
 }
+
+/** A server-rendered page's text as a person reads it: tags and React's markers out, entities decoded. */
+export function pageText(html: string) {
+  return html
+    .replace(/<!-- -->/g, '')
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/&quot;/g, '"')
+    .replace(/&#x27;/g, "'")
+    .replace(/&lt;/g, '<')
+    .replace(/&gt;/g, '>')
+    .replace(/&amp;/g, '&')
+    .replace(/\s+/g, ' ');
+}

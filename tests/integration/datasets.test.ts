@@ -3,16 +3,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATASET_LIMITS } from '#app/models/datasets.server';
 import { datasets } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { type Client, pageText as text, signIn, uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
-
-const text = (html: string) =>
-  html
-    .replace(/<!-- -->/g, '')
-    .replace(/<[^>]+>/g, ' ')
-    .replace(/&quot;/g, '"')
-    .replace(/&amp;/g, '&')
-    .replace(/\s+/g, ' ');
 
 function upload(client: Client, courseId: number, name: string, csv: string, fields: Record<string, string> = {}) {
   const form = new FormData();

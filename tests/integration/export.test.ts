@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { IDENTIFIED_COLUMNS, PANEL_CODEBOOK, PANEL_COLUMNS } from '#app/lib/panel-codebook';
 import { choices, courses, exportLog, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
 /**
@@ -191,10 +191,10 @@ describe('choice panel downloads', () => {
   });
 
   it('the Data page lists the completed sessions; researchers see no identified export, assistants no page', async () => {
-    const forResearcher = (await (await researcher.get(`/courses/${courseId}/data`)).text()).replace(/<!-- -->/g, '');
-    expect(forResearcher).toContain(`Choose session ${synthetic.sessionId}`);
+    const forResearcher = pageText(await (await researcher.get(`/courses/${courseId}/data`)).text());
+    expect(forResearcher).toContain(`CSV panel of session ${synthetic.sessionId}`);
     expect(forResearcher).not.toContain('Identified export');
-    const forInstructor = (await (await instructor.get(`/courses/${courseId}/data`)).text()).replace(/<!-- -->/g, '');
+    const forInstructor = pageText(await (await instructor.get(`/courses/${courseId}/data`)).text());
     expect(forInstructor).toContain('Identified export (instructors only)');
     expect((await assistant.get(`/courses/${courseId}/data`)).status).toBe(403);
   });

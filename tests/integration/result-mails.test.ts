@@ -6,7 +6,7 @@ import { closeDb } from '#app/utils/db.server';
 import { sendMail } from '#app/utils/mail.server';
 import { resultMails } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { mailTo, waitForMail } from '#tests/helpers/mail';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
@@ -112,7 +112,7 @@ describe('results e-mails', () => {
     const failed = await statusOf(b.sessionId);
     expect(failed.counts).toEqual({ queued: 0, sending: 0, sent: 2, failed: 1 });
     expect(failed.rows.find((r) => r.email === b.emails[1])).toMatchObject({ status: 'failed', attempts: 1, error: '550 mailbox unavailable' });
-    const page = (await (await instructor.get(`/courses/${courseId}/sessions/${b.sessionId}/results`)).text()).replace(/<!-- -->/g, '');
+    const page = pageText(await (await instructor.get(`/courses/${courseId}/sessions/${b.sessionId}/results`)).text());
     expect(page).toContain('Retry 1 failed');
     expect(page).toContain('550 mailbox unavailable');
 

@@ -5,23 +5,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROSTER_LIMITS } from '#app/lib/roster-csv';
 import { courseMembers, users } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { mailTo, waitForMail } from '#tests/helpers/mail';
 
 const fixture = (name: string) => fs.readFileSync(path.join('tests/fixtures/roster', name));
-
-/** The page's text as a person reads it: tags and React's comment markers out, entities decoded. */
-function pageText(html: string) {
-  return html
-    .replace(/<!-- -->/g, '')
-    .replace(/<[^>]+>/g, ' ')
-    .replace(/&quot;/g, '"')
-    .replace(/&#x27;/g, "'")
-    .replace(/&lt;/g, '<')
-    .replace(/&gt;/g, '>')
-    .replace(/&amp;/g, '&')
-    .replace(/\s+/g, ' ');
-}
 
 function upload(client: Client, courseId: number, name: string, bytes: Buffer | string) {
   const form = new FormData();
