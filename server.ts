@@ -48,7 +48,12 @@ if (production) {
   });
 }
 
-const io = attachHub(httpServer);
+const { io, runner } = attachHub(httpServer);
+// A restarted server carries on every open, running and paused session from the database.
+runner
+  .recoverAll()
+  .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
+  .catch((error) => console.error('[parley] could not resume live sessions', error));
 
 httpServer.listen(config.PORT, config.HOST, () => {
   console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);
@@ -61,6 +66,7 @@ async function shutdown(signal: string) {
   console.log(`[parley] ${signal}: closing`);
   const force = setTimeout(() => process.exit(1), 8000);
   force.unref();
+  runner.close();
   await new Promise<void>((resolve) => io.close(() => resolve()));
   httpServer.closeAllConnections();
   await new Promise<void>((resolve) => httpServer.close(() => resolve()));

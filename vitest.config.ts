@@ -9,6 +9,8 @@ export default defineConfig({
         extends: true,
         test: {
           name: 'unit',
+          // A test that asserts nothing is a defect.
+          expect: { requireAssertions: true },
           include: ['app/**/*.test.{ts,tsx}', 'realtime/**/*.test.ts', 'tests/unit/**/*.test.{ts,tsx}'],
           environment: 'node',
           setupFiles: ['tests/setup/fail-on-console-error.ts'],
@@ -18,6 +20,7 @@ export default defineConfig({
         extends: true,
         test: {
           name: 'integration',
+          expect: { requireAssertions: true },
           include: ['tests/integration/**/*.test.ts'],
           testTimeout: 30_000,
           hookTimeout: 30_000,
@@ -29,6 +32,8 @@ export default defineConfig({
         test: {
           name: 'e2e',
           include: ['tests/e2e/**/*.test.ts'],
+          // A busy 2-core CI machine renders slower than a laptop: give pages time to change.
+          expect: { requireAssertions: true, poll: { timeout: 15_000, interval: 100 } },
           testTimeout: 90_000,
           hookTimeout: 60_000,
           // Chromium is heavy on 2 cores: one browser file at a time.

@@ -20,6 +20,9 @@ export default [
     route('courses/:courseId/designs', 'routes/staff/designs.tsx'),
     route('courses/:courseId/designs/new', 'routes/staff/design-edit.tsx', { id: 'design-new' }),
     route('courses/:courseId/designs/:designId', 'routes/staff/design-edit.tsx', { id: 'design-edit' }),
+    route('courses/:courseId/sessions', 'routes/staff/sessions.tsx'),
+    route('courses/:courseId/sessions/:sessionId', 'routes/staff/conductor.tsx'),
+    route('courses/:courseId/sessions/:sessionId/floor', 'routes/staff/floor.tsx'),
     route('admin', 'routes/staff/admin.tsx'),
     // Data in and out (docs/decisions/020-*.md).
     route('courses/:courseId/data', 'routes/staff/data.tsx'),
@@ -27,13 +30,17 @@ export default [
     route('courses/:courseId/datasets', 'routes/staff/datasets.tsx'),
     route('courses/:courseId/sessions/:sessionId/results', 'routes/staff/session-results.tsx'),
     route('settings/tokens', 'routes/staff/tokens.tsx'),
+    // Debrief (staff): choose sessions, one session, several side by side.
+    route('courses/:courseId/debrief', 'routes/staff/debrief.tsx'),
+    route('courses/:courseId/debrief/compare', 'routes/staff/debrief-compare.tsx'),
+    route('courses/:courseId/debrief/:sessionId', 'routes/staff/debrief-session.tsx'),
   ]),
   route('courses/:courseId/data/panel', 'routes/data/panel.ts'),
   route('courses/:courseId/data/codebook.csv', 'routes/data/codebook.ts'),
   route('courses/:courseId/sessions/:sessionId/credit.csv', 'routes/data/credit.ts'),
   route('courses/:courseId/sessions/:sessionId/result-mails', 'routes/data/result-mails.ts'),
 
-  // The research API (bearer tokens; JSON errors). Documented in README.md and /api-docs.
+  // The research API (bearer tokens; JSON errors). Documented in README.md.
   ...prefix('api/v1', [
     route('courses', 'routes/api/courses.ts'),
     route('courses/:courseId', 'routes/api/course.ts'),
@@ -44,7 +51,22 @@ export default [
     route('*', 'routes/api/not-found.ts'),
   ]),
 
+  // Debrief outside the staff shell: the projector (full screen), a participant's own summary,
+  // and resource routes (chart data as CSV, estimations started and polled as JSON).
+  route('courses/:courseId/debrief/projector', 'routes/debrief/projector.tsx'),
+  route('courses/:courseId/debrief/:sessionId/mine', 'routes/debrief/mine.tsx'),
+  route('courses/:courseId/debrief/csv/:chart', 'routes/debrief/csv.ts'),
+  route('courses/:courseId/estimates', 'routes/debrief/estimates.ts'),
+  route('courses/:courseId/estimates/:estimateId', 'routes/debrief/estimate-status.ts'),
+
   route('courses/:courseId/strategies', 'routes/staff/strategies.ts'),
+  route('courses/:courseId/sessions/:sessionId/names', 'routes/staff/session-names.ts'),
+
+  // The projector page (dark, large type) and the participants' phone pages.
+  route('screen/:sessionId', 'routes/big-screen.tsx'),
+  route('join', 'routes/play/join.tsx'),
+  route('join/:code', 'routes/play/join-code.tsx'),
+  route('play/:sessionId', 'routes/play/play.tsx'),
 
   route('*', 'routes/not-found.tsx'),
 ] satisfies RouteConfig;

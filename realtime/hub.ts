@@ -1,24 +1,52 @@
 // The socket.io hub: authenticates every socket with the sign-in cookie the pages use, validates
-// every payload, answers with an acknowledgement. Created once, in server.ts.
+// every payload with zod, checks the caller's role, hands events to the session runner, and
+// acknowledges. Created once, in server.ts.
 import type { Server as HttpServer } from 'node:http';
+import { eq } from 'drizzle-orm';
 import { Server, type Socket } from 'socket.io';
 import type { z } from 'zod';
-import { userIdFromCookie } from '#app/utils/auth.server';
+import { LIBRARY } from '#app/lib/automata';
+import { isAdminEmail, userIdFromCookie } from '#app/utils/auth.server';
+import { db } from '#app/utils/db.server';
+import { roleIn } from '#app/utils/permissions.server';
+import type { CourseRole } from '#app/utils/roles';
+import { setRunner } from '#app/utils/runner.server';
+import { users } from '#drizzle/schema';
+import { roomOf } from './engine/engine';
+import type { EngineEvent } from './engine/types';
+import { bigScreenView, floorView, participantView } from './engine/views';
 import {
   type Ack,
+  type AckErrorCode,
+  ChoiceSubmit,
   type ClientToServerEvents,
   MeGet,
+  ParticipantAction,
+  SessionControl,
   type ServerToClientEvents,
+  SessionWatch,
   type SocketData,
   UNAUTHORIZED,
 } from './protocol';
+import { SessionRunner } from './runner';
 
 export type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
+
+class Refusal extends Error {
+  constructor(
+    readonly code: AckErrorCode,
+    message: string,
+  ) {
+    super(message);
+  }
+}
 
 export function attachHub(httpServer: HttpServer) {
   const io = new Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>(httpServer, {
     serveClient: false,
   });
+  const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
+  setRunner(runner);
 
   io.use(async (socket, next) => {
     try {
@@ -31,13 +59,118 @@ export function attachHub(httpServer: HttpServer) {
     }
   });
 
+  /** The caller's role in the course of a session (site admins act as instructors). */
+  async function roleFor(userId: number, courseId: number): Promise<CourseRole | null> {
+    const [u] = await db().select({ email: users.email }).from(users).where(eq(users.id, userId));
+    if (u && isAdminEmail(u.email)) return 'instructor';
+    return roleIn(courseId, userId);
+  }
+
+  async function sessionFor(sessionId: number) {
+    const session = await runner.sessionOf(sessionId);
+    if (!session) throw new Refusal('not-found', 'There is no such session.');
+    return session;
+  }
+
+  async function requireStaff(userId: number, sessionId: number, roles: readonly CourseRole[]) {
+    const session = await sessionFor(sessionId);
+    const role = await roleFor(userId, session.courseId);
+    if (!role || !roles.includes(role)) throw new Refusal('forbidden', 'Your role in this course does not allow this.');
+    return { session, role };
+  }
+
   io.on('connection', (socket) => {
-    socket.on('me:get', (payload, ack) => {
-      handle(MeGet, payload, ack, async () => ({ userId: socket.data.userId }));
+    const userId = socket.data.userId;
+    const me = String(userId);
+    /** sessions this socket plays in, to report its connection state */
+    const playing = new Set<number>();
+
+    socket.on('me:get', (payload, ack) => handle(MeGet, payload, ack, async () => ({ userId })));
+
+    socket.on('session:watch', (payload, ack) =>
+      handle(SessionWatch, payload, ack, async ({ sessionId, as }) => {
+        if (as === 'participant') {
+          await sessionFor(sessionId);
+          const state = await runner.state(sessionId);
+          if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
+          await socket.join(roomOf('participant', String(sessionId), me));
+          playing.add(sessionId);
+          const res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
+          return participantView(res.state, me);
+        }
+        const { role } = await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);
+        const state = (await runner.state(sessionId))!;
+        if (as === 'floor') {
+          await socket.join(roomOf('staff', String(sessionId)));
+          return floorView(state, Date.now());
+        }
+        void role;
+        await socket.join(roomOf('session', String(sessionId)));
+        return bigScreenView(state);
+      }),
+    );
+
+    socket.on('choice:submit', (payload, ack) =>
+      handle(ChoiceSubmit, payload, ack, async (c) => {
+        await sessionFor(c.sessionId);
+        const res = await runner.dispatch(c.sessionId, {
+          type: 'choose',
+          participantId: me,
+          supergame: c.supergame,
+          round: c.round,
+          action: c.action,
+          clientChoiceId: c.clientChoiceId,
+        });
+        if (res.error) {
+          // A retry of a stored choice (double tap, resend after reconnect): the same answer again.
+          if (res.error.code === 'already-chosen' && res.row?.clientChoiceId === c.clientChoiceId) return res.row;
+          throw new Refusal(res.error.code, res.error.message);
+        }
+        return res.row!;
+      }),
+    );
+
+    socket.on('session:control', (payload, ack) =>
+      handle(SessionControl, payload, ack, async ({ sessionId, command }) => {
+        // product.md "Roles": assistants may pause and resume only.
+        const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
+        await requireStaff(userId, sessionId, roles);
+        const event: EngineEvent =
+          command === 'end-after-supergame' ? { type: 'endAfterSupergame' } : command === 'end-now' ? { type: 'endNow' } : { type: command };
+        const res = await runner.dispatch(sessionId, event, { userId });
+        if (res.error) throw new Refusal(res.error.code, res.error.message);
+        return { status: res.state.status };
+      }),
+    );
+
+    socket.on('participant:act', (payload, ack) =>
+      handle(ParticipantAction, payload, ack, async ({ sessionId, participantId, action, strategy }) => {
+        const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
+        const state = (await runner.state(sessionId))!;
+        if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
+        if (action === 'nudge') {
+          io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', { message: 'Your partner is waiting: please choose.' });
+          return { done: true as const };
+        }
+        const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
+        const chosen = strategy ?? fallback;
+        if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
+        const res = await runner.dispatch(
+          sessionId,
+          action === 'remove' ? { type: 'remove', participantId } : { type: 'handToComputer', participantId, strategy: chosen },
+          { userId },
+        );
+        if (res.error) throw new Refusal(res.error.code, res.error.message);
+        return { done: true as const };
+      }),
+    );
+
+    socket.on('disconnect', () => {
+      for (const sessionId of playing) void runner.dispatch(sessionId, { type: 'disconnect', participantId: me }).catch(() => undefined);
     });
   });
 
-  return io;
+  return { io, runner };
 }
 
 /** Validate, run, acknowledge: every event goes through here so no payload skips zod. */
@@ -52,6 +185,10 @@ async function handle<S extends z.ZodType, T>(schema: S, payload: unknown, ack: 
   try {
     reply({ ok: true, data: await run(parsed.data) });
   } catch (error) {
+    if (error instanceof Refusal) {
+      reply({ ok: false, code: error.code, message: error.message });
+      return;
+    }
     console.error('[parley] socket handler failed', error);
     reply({ ok: false, code: 'server-error', message: 'Something went wrong on the server.' });
   }

@@ -24,6 +24,9 @@ export default function Home({ loaderData }: Route.ComponentProps) {
         You are signed in as <strong className="break-all">{loaderData.user.email}</strong>. When your instructor opens a
         session, follow the join code or QR code on the big screen.
       </p>
+      <Link to="/join" className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800">
+        Join a session with a code
+      </Link>
       <section aria-labelledby="my-courses" className="flex flex-col gap-3">
         <h2 id="my-courses" className="text-xl font-semibold">
           Your courses
@@ -68,9 +71,14 @@ function Landing() {
     <div className="min-h-dvh bg-white">
       <header className="mx-auto flex max-w-5xl items-center justify-between px-6 py-4">
         <Wordmark />
-        <Link to="/sign-in" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
-          Sign in
-        </Link>
+        <span className="flex gap-2">
+          <Link to="/join" className="inline-flex min-h-11 items-center rounded-lg px-4 font-semibold text-accent-700 ring-1 ring-accent-300 hover:bg-accent-50">
+            Join with a code
+          </Link>
+          <Link to="/sign-in" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
+            Sign in
+          </Link>
+        </span>
       </header>
       <main className="mx-auto flex max-w-5xl flex-col gap-10 px-6 pt-8 pb-16">
         <section className="flex max-w-3xl flex-col gap-4">

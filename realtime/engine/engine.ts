@@ -551,6 +551,9 @@ function handOver(d: Draft, participantId: string, strategy: string): void {
     fromRound: pair.round,
     reason: 'hand-over',
   };
+  // Both phones change: the partner is told about the computer (no deception), the seat's owner
+  // that a computer took over.
+  for (const st of pair.seats) if (st.participantId) d.touched.add(st.participantId);
   advancePair(d, pair.id, d.now);
 }
 

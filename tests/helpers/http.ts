@@ -6,6 +6,15 @@ export const baseUrl = () => process.env.PARLEY_TEST_URL!;
 export class Client {
   cookies = new Map<string, string>();
 
+  constructor(readonly base: string = baseUrl()) {}
+
+  /** The same signed-in browser talking to another server (same secrets, same database). */
+  at(base: string) {
+    const c = new Client(base);
+    c.cookies = new Map(this.cookies);
+    return c;
+  }
+
   cookieHeader() {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
   }
@@ -23,16 +32,16 @@ export class Client {
   }
 
   async get(path: string) {
-    const res = await fetch(new URL(path, baseUrl()), { headers: { cookie: this.cookieHeader() }, redirect: 'manual' });
+    const res = await fetch(new URL(path, this.base), { headers: { cookie: this.cookieHeader() }, redirect: 'manual' });
     this.keep(res);
     return res;
   }
 
   async post(path: string, fields: Record<string, string | number>) {
     const body = new URLSearchParams(Object.entries(fields).map(([k, v]) => [k, String(v)]));
-    const res = await fetch(new URL(path, baseUrl()), {
+    const res = await fetch(new URL(path, this.base), {
       method: 'POST',
-      headers: { cookie: this.cookieHeader(), 'content-type': 'application/x-www-form-urlencoded', origin: baseUrl() },
+      headers: { cookie: this.cookieHeader(), 'content-type': 'application/x-www-form-urlencoded', origin: this.base },
       body,
       redirect: 'manual',
     });

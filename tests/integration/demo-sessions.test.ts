@@ -2,7 +2,7 @@ import { and, eq } from 'drizzle-orm';
 import { afterAll, describe, expect, it } from 'vitest';
 import { getSession, rebuildSession } from '#app/models/live.server';
 import { closeDb } from '#app/utils/db.server';
-import { choices, sessions, supergameDraws } from '#drizzle/schema';
+import { choices, courses, sessions, supergameDraws } from '#drizzle/schema';
 import { closeTestDb, testDb } from '#tests/helpers/db';
 
 afterAll(async () => {
@@ -12,7 +12,9 @@ afterAll(async () => {
 
 describe('the demo’s two completed sessions (simulated, invented)', () => {
   it('are stored as the engine would store a live session, and rebuild from their rows', async () => {
-    const rows = await testDb().select().from(sessions).where(eq(sessions.simulated, 1));
+    // other tests add simulated sessions to their own courses: look at the demo course only
+    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+    const rows = await testDb().select().from(sessions).where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
     expect(rows.map((r) => [r.status, (r.params as { delta: number }).delta])).toEqual([
       ['complete', 0.5],
       ['complete', 0.875],

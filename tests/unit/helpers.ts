@@ -6,9 +6,7 @@ import type { StageGame } from '../../app/lib/stage-game';
 /** |actual − expected| ≤ rel·max(1, |expected|) */
 export function expectClose(actual: number, expected: number, rel = 1e-12): void {
   const tol = rel * Math.max(1, Math.abs(expected));
-  if (!(Math.abs(actual - expected) <= tol)) {
-    expect.fail(`expected ${actual} to be within ${tol} of ${expected}`);
-  }
+  expect(Math.abs(actual - expected), `expected ${actual} to be within ${tol} of ${expected}`).toBeLessThanOrEqual(tol);
 }
 
 /**

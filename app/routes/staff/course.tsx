@@ -31,8 +31,14 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
           </span>
         }
       >
+        <ButtonLink to={`/courses/${course.id}/sessions`} variant="secondary">
+          Sessions
+        </ButtonLink>
         <ButtonLink to={`/courses/${course.id}/designs`} variant="secondary">
           Designs
+        </ButtonLink>
+        <ButtonLink to={`/courses/${course.id}/debrief`} variant="secondary">
+          Debrief
         </ButtonLink>
         {canSeeMembers ? (
           <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">

@@ -1,0 +1,371 @@
+// The Debrief's charts (recharts), each in a frame with its title, a short text summary for screen
+// readers and a "download data (CSV)" link beside it. One session or several overlaid: series are
+// told apart by marker shape, dash pattern and legend label, never by colour alone. `theme="dark"`
+// is the projector's high-contrast look.
+import type { ReactNode } from 'react';
+import {
+  Bar,
+  BarChart,
+  CartesianGrid,
+  ComposedChart,
+  ErrorBar,
+  Legend,
+  Line,
+  LineChart,
+  ReferenceLine,
+  ResponsiveContainer,
+  Scatter,
+  Tooltip,
+  XAxis,
+  YAxis,
+} from 'recharts';
+import type { ChartId, TableSession } from '#app/lib/debrief-tables';
+import { pointsBins, sizeBadCurve } from '#app/lib/debrief-tables';
+import { grimSPE, riskDominance } from '#app/lib/thresholds';
+import { cx } from './ui';
+
+export type Theme = 'light' | 'dark';
+
+const PALETTE = {
+  light: { series: ['#0e5357', '#475569', '#0a3639', '#94a3b8'], grid: '#e2e8f0', text: '#334155', ref: '#475569', tooltipBg: '#fff' },
+  dark: { series: ['#6fbcbe', '#f1f5f9', '#a8d8d9', '#cbd5e1'], grid: '#334155', text: '#e2e8f0', ref: '#cbd5e1', tooltipBg: '#0f172a' },
+} as const;
+const SHAPES = ['circle', 'square', 'triangle', 'diamond'] as const;
+const SHAPE_WORDS = { circle: '●', square: '■', triangle: '▲', diamond: '◆' } as const;
+const DASHES = ['', '8 4', '3 3', '12 4 3 4'];
+
+export const pct = (x: number | null | undefined, d = 0) => (x === null || x === undefined ? '–' : `${(x * 100).toFixed(d).replace(/^-(0(\.0+)?)$/, '$1')} %`);
+const PCT_TICKS = [0, 0.25, 0.5, 0.75, 1];
+const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
+
+/** The marker of series i, drawn by recharts at each point. */
+function marker(i: number, color: string, size: number) {
+  const shape = SHAPES[i % SHAPES.length];
+  return function Marker(props: { cx?: number; cy?: number; index?: number }) {
+    const { cx: x, cy: y, index } = props;
+    if (x === undefined || y === undefined || Number.isNaN(x) || Number.isNaN(y)) return <g key={`m${i}-${index}`} />;
+    const s = size;
+    const d =
+      shape === 'circle'
+        ? `M ${x - s} ${y} a ${s} ${s} 0 1 0 ${2 * s} 0 a ${s} ${s} 0 1 0 ${-2 * s} 0`
+        : shape === 'square'
+          ? `M ${x - s} ${y - s} h ${2 * s} v ${2 * s} h ${-2 * s} z`
+          : shape === 'triangle'
+            ? `M ${x} ${y - s * 1.2} L ${x + s * 1.1} ${y + s} L ${x - s * 1.1} ${y + s} z`
+            : `M ${x} ${y - s * 1.3} L ${x + s * 1.3} ${y} L ${x} ${y + s * 1.3} L ${x - s * 1.3} ${y} z`;
+    return <path key={`m${i}-${index}`} d={d} fill={color} stroke={color} />;
+  };
+}
+
+/** Hatch patterns so that bars of different sessions differ in texture as well as shade. */
+function Patterns({ theme, count }: { theme: Theme; count: number }) {
+  const p = PALETTE[theme];
+  return (
+    <defs>
+      {Array.from({ length: count }, (_, i) => (
+        <pattern key={i} id={`fill-${theme}-${i}`} patternUnits="userSpaceOnUse" width="8" height="8" patternTransform={`rotate(${i === 1 ? 45 : i === 2 ? -45 : 0})`}>
+          <rect width="8" height="8" fill={p.series[i % p.series.length]} opacity={i === 0 ? 1 : 0.35} />
+          {i > 0 ? <line x1="0" y1="0" x2="0" y2="8" stroke={p.series[i % p.series.length]} strokeWidth="4" /> : null}
+        </pattern>
+      ))}
+    </defs>
+  );
+}
+const fillOf = (theme: Theme, i: number) => `url(#fill-${theme}-${i})`;
+
+function axisProps(theme: Theme, big: boolean) {
+  return { tick: { fontSize: big ? 20 : 12, fill: PALETTE[theme].text }, stroke: PALETTE[theme].grid };
+}
+function tooltipProps(theme: Theme) {
+  const p = PALETTE[theme];
+  return { contentStyle: { background: p.tooltipBg, color: p.text, borderColor: p.grid }, labelStyle: { color: p.text } };
+}
+const legendProps = (theme: Theme, big: boolean) => ({ wrapperStyle: { fontSize: big ? 20 : 13, color: PALETTE[theme].text } });
+
+export interface ChartProps {
+  sessions: TableSession[];
+  theme?: Theme;
+  /** projector: large type */
+  big?: boolean;
+}
+
+const key = (s: { id: number }, what: string) => `s${s.id}_${what}`;
+const seriesName = (s: TableSession, i: number, what?: string) => `${SHAPE_WORDS[SHAPES[i % SHAPES.length]]} #${s.id} ${s.treatment}${what ? ` — ${what}` : ''}`;
+
+/** Rows keyed by x, one column per session and measure, for overlaid lines. */
+function mergeBy<T>(sessions: TableSession[], rowsOf: (s: TableSession) => T[], x: (r: T) => number, cols: (r: T) => Record<string, number | null>) {
+  const byX = new Map<number, Record<string, number | null>>();
+  for (const s of sessions)
+    for (const r of rowsOf(s)) {
+      const row = byX.get(x(r)) ?? { x: x(r) };
+      for (const [k, v] of Object.entries(cols(r))) row[key(s, k)] = v;
+      byX.set(x(r), row);
+    }
+  return [...byX.values()].sort((a, b) => (a.x as number) - (b.x as number));
+}
+
+export function CoopBySupergameChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  const data = mergeBy(sessions, (s) => s.debrief.bySupergame, (g) => g.supergame, (g) => ({ all: g.all.rate, r1: g.round1.rate }));
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
+        <CartesianGrid stroke={p.grid} />
+        <XAxis dataKey="x" type="number" domain={['dataMin', 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {sessions.flatMap((s, i) => [
+          <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i, 'all rounds')} stroke={p.series[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />,
+          <Line key={key(s, 'r1')} dataKey={key(s, 'r1')} name={seriesName(s, i, 'round 1')} stroke={p.series[i % 4]} strokeDasharray="6 4" strokeWidth={big ? 3 : 1.5} dot={false} isAnimationActive={false} connectNulls />,
+        ])}
+      </LineChart>
+    </ResponsiveContainer>
+  );
+}
+
+export function CoopByRoundChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  const data = mergeBy(sessions, (s) => s.debrief.byRound, (r) => r.round, (r) => ({ all: r.all.rate, n: r.supergames }));
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
+        <CartesianGrid stroke={p.grid} />
+        <XAxis dataKey="x" type="number" domain={[1, 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))} labelFormatter={(l) => `round ${l}`} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {sessions.map((s, i) => (
+          <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i)} stroke={p.series[i % 4]} strokeDasharray={DASHES[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />
+        ))}
+      </LineChart>
+    </ResponsiveContainer>
+  );
+}
+
+const OUTCOMES = [
+  { key: 'both', label: 'both cooperate' },
+  { key: 'one', label: 'one cooperates' },
+  { key: 'none', label: 'neither cooperates' },
+] as const;
+
+/** One session: stacked shares by supergame. Several: each session's overall shares side by side. */
+export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  if (sessions.length === 1) {
+    const data = sessions[0].debrief.bySupergame.map((g) => ({ x: g.supergame, ...g.outcomes }));
+    return (
+      <ResponsiveContainer width="100%" height="100%">
+        <BarChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
+          <Patterns theme={theme} count={3} />
+          <CartesianGrid stroke={p.grid} vertical={false} />
+          <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+          <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+          <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
+          <Legend verticalAlign="top" {...legendProps(theme, big)} />
+          {OUTCOMES.map((o, i) => (
+            <Bar key={o.key} dataKey={o.key} name={o.label} stackId="o" fill={fillOf(theme, i)} stroke={p.series[i]} isAnimationActive={false} />
+          ))}
+        </BarChart>
+      </ResponsiveContainer>
+    );
+  }
+  const data = OUTCOMES.map((o) => {
+    const row: Record<string, string | number> = { x: o.label };
+    for (const s of sessions) {
+      const n = s.debrief.bySupergame.reduce((t, g) => t + g.outcomes.n, 0);
+      row[key(s, 'share')] = n ? s.debrief.bySupergame.reduce((t, g) => t + g.outcomes[o.key] * g.outcomes.n, 0) / n : 0;
+    }
+    return row;
+  });
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <BarChart data={data} margin={{ top: 16, right: 24, bottom: 8, left: 8 }}>
+        <Patterns theme={theme} count={sessions.length} />
+        <CartesianGrid stroke={p.grid} vertical={false} />
+        <XAxis dataKey="x" {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {sessions.map((s, i) => (
+          <Bar key={s.id} dataKey={key(s, 'share')} name={seriesName(s, i)} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+        ))}
+      </BarChart>
+    </ResponsiveContainer>
+  );
+}
+
+/** Share of supergames lasting k rounds (bars) against P(L = k) at each session's δ (lines). */
+export function LengthsChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  const data = mergeBy(
+    sessions,
+    (s) => s.debrief.lengths.histogram.map((h) => ({ ...h, n: s.debrief.lengths.lengths.length })),
+    (h) => h.k,
+    (h) => ({ observed: h.observed / h.n, expected: h.expected / h.n }),
+  );
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <ComposedChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
+        <Patterns theme={theme} count={sessions.length} />
+        <CartesianGrid stroke={p.grid} vertical={false} />
+        <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'rounds in the supergame (L)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <YAxis tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `L = ${l}`} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {sessions.map((s, i) => (
+          <Bar key={key(s, 'o')} dataKey={key(s, 'observed')} name={seriesName(s, i, 'observed')} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+        ))}
+        {sessions.map((s, i) => (
+          <Line key={key(s, 'e')} dataKey={key(s, 'expected')} name={`${seriesName(s, i)} — geometric law at δ = ${fmt(s.delta)}`} stroke={p.series[i % 4]} strokeDasharray={DASHES[(i + 1) % 4]} strokeWidth={big ? 3 : 2} dot={marker(i, p.series[i % 4], big ? 5 : 3)} isAnimationActive={false} connectNulls />
+        ))}
+      </ComposedChart>
+    </ResponsiveContainer>
+  );
+}
+
+export function PointsChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  const data = pointsBins(sessions);
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <BarChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
+        <Patterns theme={theme} count={sessions.length} />
+        <CartesianGrid stroke={p.grid} vertical={false} />
+        <XAxis dataKey="bin" {...axisProps(theme, big)} label={{ value: 'points in the session', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <YAxis allowDecimals={false} width={big ? 64 : 40} {...axisProps(theme, big)} />
+        <Tooltip labelFormatter={(l) => `${l} points`} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {sessions.map((s, i) => (
+          <Bar key={s.id} dataKey={`s${s.id}`} name={`${seriesName(s, i)} — participants`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+        ))}
+      </BarChart>
+    </ResponsiveContainer>
+  );
+}
+
+/**
+ * Cooperation (all rounds and round 1) of each session at its δ, over the size of the basin of
+ * attraction of always-defect against grim, with δ_SPE and δ_RD (methods.md §1; Dal Bó &
+ * Fréchette 2011, 2018; Blonski, Ockenfels & Spagnolo 2011). Thresholds of each distinct payoff
+ * set are drawn once.
+ */
+export function TheoryChart({ sessions, theme = 'light', big = false }: ChartProps) {
+  const p = PALETTE[theme];
+  const games = [...new Map(sessions.map((s) => [JSON.stringify(s.payoffs), s])).values()];
+  const curve = sizeBadCurve(games[0].payoffs);
+  const lines = games.flatMap((s, gi) => {
+    const tag = games.length > 1 ? ` (${s.treatment})` : '';
+    return [
+      { x: grimSPE(s.payoffs), label: `δ_SPE ${fmt(grimSPE(s.payoffs), 2)}${tag}`, dash: '6 3', gi },
+      { x: riskDominance(s.payoffs), label: `δ_RD ${fmt(riskDominance(s.payoffs), 2)}${tag}`, dash: '2 3', gi },
+    ];
+  });
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <ComposedChart data={curve} margin={{ top: 32, right: 24, bottom: 24, left: 8 }}>
+        <CartesianGrid stroke={p.grid} />
+        <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} {...axisProps(theme, big)} label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <YAxis domain={[0, 1]} ticks={[0, 0.25, 0.5, 0.75, 1]} tickFormatter={(v) => fmt(v, 2)} width={big ? 64 : 44} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v) => fmt(Number(v))} labelFormatter={(l) => `δ = ${fmt(Number(l), 3)}`} {...tooltipProps(theme)} />
+        <Legend verticalAlign="bottom" {...legendProps(theme, big)} wrapperStyle={{ ...legendProps(theme, big).wrapperStyle, paddingTop: big ? 40 : 24 }} />
+        <ReferenceLine y={0.5} stroke={p.grid} strokeDasharray="3 3" />
+        {lines.map((l, i) => (
+          <ReferenceLine key={l.label} x={l.x} stroke={p.ref} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }} />
+        ))}
+        <Line dataKey="sizeBAD" name="sizeBAD (basin of always-defect vs grim)" stroke={p.ref} strokeWidth={big ? 3 : 1.5} dot={false} isAnimationActive={false} />
+        {sessions.map((s, i) => (
+          <Scatter
+            key={key(s, 'c')}
+            name={`${seriesName(s, i)} — cooperation (all rounds ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)})`}
+            data={[
+              { delta: s.delta, coop: s.debrief.overall.rate },
+              { delta: s.delta, coop: s.debrief.overallRound1.rate },
+            ]}
+            dataKey="coop"
+            fill={p.series[i % 4]}
+            shape={SHAPES[i % SHAPES.length] === 'square' ? 'square' : SHAPES[i % SHAPES.length] === 'triangle' ? 'triangle' : SHAPES[i % SHAPES.length] === 'diamond' ? 'diamond' : 'circle'}
+            isAnimationActive={false}
+          />
+        ))}
+      </ComposedChart>
+    </ResponsiveContainer>
+  );
+}
+
+export interface StrategyGroup {
+  group: string;
+  strategies: string[];
+  shares: number[];
+  se: number[] | null;
+}
+
+/** Estimated shares per treatment with ± 1 bootstrap standard error bars. */
+export function StrategiesChart({ groups, theme = 'light', big = false }: { groups: StrategyGroup[]; theme?: Theme; big?: boolean }) {
+  const p = PALETTE[theme];
+  const strategies = groups[0]?.strategies ?? [];
+  const data = strategies.map((id, k) => {
+    const row: Record<string, string | number | null> = { x: id };
+    groups.forEach((g, i) => {
+      row[`g${i}`] = g.shares[k];
+      row[`g${i}_se`] = g.se ? g.se[k] : 0;
+    });
+    return row;
+  });
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <BarChart data={data} margin={{ top: 16, right: 24, bottom: 8, left: 8 }}>
+        <Patterns theme={theme} count={groups.length} />
+        <CartesianGrid stroke={p.grid} vertical={false} />
+        <XAxis dataKey="x" {...axisProps(theme, big)} />
+        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
+        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        {groups.map((g, i) => (
+          <Bar key={g.group} dataKey={`g${i}`} name={`${SHAPE_WORDS[SHAPES[i % 4]]} ${g.group}`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false}>
+            {g.se ? <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} isAnimationActive={false} /> : null}
+          </Bar>
+        ))}
+      </BarChart>
+    </ResponsiveContainer>
+  );
+}
+
+/** A chart with its title, text summary, CSV link and notes. */
+export function ChartFrame({
+  id,
+  title,
+  csvHref,
+  summary,
+  notes,
+  children,
+  theme = 'light',
+  height = 'h-72',
+}: {
+  id: ChartId;
+  title: string;
+  csvHref: string;
+  summary: string;
+  notes?: ReactNode;
+  children: ReactNode;
+  theme?: Theme;
+  height?: string;
+}) {
+  const dark = theme === 'dark';
+  return (
+    <figure data-chart={id} aria-labelledby={`chart-${id}`} className={cx('flex flex-col gap-2 rounded-lg border p-4', dark ? 'border-slate-700 bg-slate-950' : 'border-slate-200 bg-white')}>
+      <div className="flex flex-wrap items-baseline justify-between gap-2">
+        <h2 id={`chart-${id}`} className={cx('font-semibold', dark ? 'text-4xl text-white' : 'text-lg text-slate-900')}>
+          {title}
+        </h2>
+        <a href={csvHref} download className={cx('inline-flex min-h-11 items-center gap-1 rounded-md px-2 font-semibold underline-offset-4 hover:underline', dark ? 'text-accent-200' : 'text-accent-700')}>
+          <span aria-hidden="true">⤓</span> download data (CSV)<span className="sr-only"> of “{title}”</span>
+        </a>
+      </div>
+      <div className={cx('w-full', height)} role="img" aria-label={summary}>
+        {children}
+      </div>
+      {notes ? <figcaption className={cx(dark ? 'text-2xl text-slate-200' : 'text-sm text-slate-600')}>{notes}</figcaption> : null}
+    </figure>
+  );
+}

@@ -1,0 +1,146 @@
+// The body of the staff Debrief, for one session or several side by side (treatments).
+import type { EstimateStatus } from '#app/models/estimate.server';
+import type { DebriefSession } from '#app/models/debrief.server';
+import { DataTable, staffColumnHelper } from './data-table';
+import { csvHref, debriefCharts } from './debrief';
+import { ChartFrame, pct } from './debrief-charts';
+import { EstimateProgress, EstimateResults, EstimationForm, StoredEstimates, useEstimateRun } from './estimation-panel';
+import { ButtonLink, Notice } from './ui';
+
+const f3 = (x: number) => String(Number(x.toFixed(3)));
+
+export function DebriefView({
+  courseId,
+  sessions,
+  estimates,
+  current,
+  basePath,
+}: {
+  courseId: number;
+  sessions: DebriefSession[];
+  estimates: EstimateStatus[];
+  current: EstimateStatus | null;
+  /** this page's URL up to and including "?" or "&", for links that add `estimate=` */
+  basePath: string;
+}) {
+  const ids = sessions.map((s) => s.id);
+  const run = useEstimateRun(courseId, current);
+  const charts = debriefCharts(courseId, sessions);
+  const estimate = run.current;
+  const projector = `/courses/${courseId}/debrief/projector?sessions=${ids.join(',')}${estimate?.status === 'done' ? `&estimate=${estimate.id}` : ''}`;
+  return (
+    <div className="flex flex-col gap-8">
+      {sessions.some((s) => s.simulated) ? (
+        <Notice title="Simulated data">
+          {sessions.filter((s) => s.simulated).map((s) => `#${s.id}`).join(', ')}: demo session{sessions.filter((s) => s.simulated).length > 1 ? 's' : ''} whose choices were simulated from a
+          stated strategy mixture with a seeded generator; the participants are invented.
+        </Notice>
+      ) : null}
+      {sessions.some((s) => s.status !== 'complete' && s.status !== 'archived') ? (
+        <Notice tone="warn" title="Not finished">
+          A session still running shows the choices so far; its numbers change as it goes on.
+        </Notice>
+      ) : null}
+      <div className="flex flex-wrap gap-2">
+        <ButtonLink to={projector} variant="secondary">
+          <span aria-hidden="true">▣</span> Projector mode
+        </ButtonLink>
+      </div>
+      <TreatmentTable sessions={sessions} estimate={estimate?.status === 'done' ? estimate : null} />
+      <div className="grid gap-6 xl:grid-cols-2">
+        {charts.map((c) => (
+          <ChartFrame key={c.id} id={c.id} title={c.title} csvHref={c.csvHref} summary={c.summary} notes={c.notes}>
+            {c.render('light', false)}
+          </ChartFrame>
+        ))}
+      </div>
+      <section aria-labelledby="estimation" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
+        <h2 id="estimation" className="text-xl font-semibold">
+          Which strategies did the class use?
+        </h2>
+        <p className="max-w-3xl text-slate-700">
+          Strategy-frequency estimation (Dal Bó & Fréchette 2011): each participant is taken to follow one strategy of the set for the chosen supergames, with occasional
+          slips; shares are estimated per treatment. Standard errors come from a bootstrap over participants, run on worker threads. The result is stored: the same
+          request later opens at once.
+        </p>
+        <EstimationForm courseId={courseId} sessionIds={ids} start={run.start} />
+        {estimate ? (
+          <div className="flex flex-col gap-4 border-t border-slate-200 pt-4">
+            <h3 className="font-semibold">
+              {`Estimation #${estimate.id}: ${estimate.request.strategies.join(', ')}; B = ${estimate.request.bootstrap}, seed ${estimate.request.seed}`}
+            </h3>
+            <EstimateProgress estimate={estimate} />
+            {estimate.status === 'done' ? <EstimateResults estimate={estimate} csvHref={csvHref(courseId, 'strategies', ids, estimate.id)} /> : null}
+          </div>
+        ) : null}
+        <StoredEstimates estimates={estimates} currentId={estimate?.id ?? null} basePath={basePath} />
+      </section>
+    </div>
+  );
+}
+
+interface TreatmentRow {
+  treatment: string;
+  sessions: string;
+  delta: number;
+  participants: number;
+  choices: number;
+  cooperation: number | null;
+  round1: number | null;
+  sizeBAD: number;
+  shares: Record<string, string>;
+}
+
+/** Cooperation and (when estimated) strategy shares per treatment. */
+function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; estimate: EstimateStatus | null }) {
+  const byTreatment = new Map<string, DebriefSession[]>();
+  for (const s of sessions) byTreatment.set(s.treatment, [...(byTreatment.get(s.treatment) ?? []), s]);
+  const strategies = estimate?.result?.strategies ?? [];
+  const rows: TreatmentRow[] = [...byTreatment].map(([treatment, ss]) => {
+    const n = ss.reduce((t, s) => t + s.debrief.overall.n, 0);
+    const c = ss.reduce((t, s) => t + s.debrief.overall.cooperate, 0);
+    const n1 = ss.reduce((t, s) => t + s.debrief.overallRound1.n, 0);
+    const c1 = ss.reduce((t, s) => t + s.debrief.overallRound1.cooperate, 0);
+    const g = estimate?.result?.groups.find((x) => x.group === treatment);
+    const shares: Record<string, string> = {};
+    for (const id of strategies) {
+      const k = g ? g.strategies.indexOf(id) : -1;
+      shares[id] = g && k >= 0 ? `${pct(g.shares[k])}${g.se ? ` ± ${pct(g.se[k])}` : ''}` : '–';
+    }
+    return {
+      treatment,
+      sessions: ss.map((s) => `#${s.id}`).join(', '),
+      delta: ss[0].delta,
+      participants: ss.reduce((t, s) => t + s.debrief.participants, 0),
+      choices: n,
+      cooperation: n ? c / n : null,
+      round1: n1 ? c1 / n1 : null,
+      sizeBAD: ss[0].debrief.theory.sizeBAD,
+      shares,
+    };
+  });
+  const col = staffColumnHelper<TreatmentRow>();
+  const columns = col.columns([
+    col.accessor('treatment', { header: 'Treatment' }),
+    col.accessor('sessions', { header: 'Sessions' }),
+    col.accessor('delta', { header: 'δ', cell: (i) => f3(i.getValue()), meta: { align: 'right' } }),
+    col.accessor('sizeBAD', { header: 'sizeBAD', cell: (i) => f3(i.getValue()), meta: { align: 'right' } }),
+    col.accessor('participants', { header: 'Participants', meta: { align: 'right' } }),
+    col.accessor('choices', { header: 'Choices', meta: { align: 'right' } }),
+    col.accessor('cooperation', { header: 'Cooperation', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
+    col.accessor('round1', { header: 'Round 1', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
+    ...strategies.map((id) => col.accessor((r) => r.shares[id], { id: `share-${id}`, header: id, cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span>, meta: { align: 'right' } })),
+  ]);
+  return (
+    <section aria-labelledby="treatments" className="flex flex-col gap-2">
+      <h2 id="treatments" className="text-lg font-semibold">
+        Cooperation{strategies.length ? ' and strategy shares' : ''} per treatment
+      </h2>
+      <DataTable columns={columns} data={rows} caption="Cooperation and strategy shares per treatment" filterLabel="Filter treatments" />
+      <p className="text-sm text-slate-600">
+        {strategies.length ? `Shares ± 1 bootstrap standard error from estimation #${estimate!.id}. ` : 'Run an estimation below to add strategy shares. '}
+        Cooperation: share of participants’ choices that were cooperate.
+      </p>
+    </section>
+  );
+}

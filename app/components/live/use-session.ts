@@ -1,0 +1,74 @@
+import { useCallback, useEffect, useRef, useState } from 'react';
+import { io, type Socket } from 'socket.io-client';
+import type { Ack, ClientToServerEvents, ServerToClientEvents } from '#realtime/protocol';
+import type { BigScreenView, FloorView, ParticipantView } from '#realtime/engine/types';
+
+type ViewOf = { participant: ParticipantView; floor: FloorView; 'big-screen': BigScreenView };
+export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
+
+/**
+ * The live view of a session over socket.io: connects with the sign-in cookie, watches the
+ * session as participant, floor or big screen, and watches again after every reconnect (a phone
+ * that slept gets its full current view back).
+ */
+export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K, initial: ViewOf[K] | null) {
+  const [view, setView] = useState<ViewOf[K] | null>(initial);
+  const [connected, setConnected] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const socketRef = useRef<LiveSocket | null>(null);
+
+  useEffect(() => {
+    const socket: LiveSocket = io({ transports: ['websocket'], reconnectionDelayMax: 4000 });
+    socketRef.current = socket;
+    const watch = () => {
+      socket.emit('session:watch', { sessionId, as }, (res) => {
+        if (res.ok) {
+          setView(res.data as ViewOf[K]);
+          setError(null);
+        } else setError(res.message);
+      });
+    };
+    socket.on('connect', () => {
+      setConnected(true);
+      watch();
+    });
+    socket.on('disconnect', () => setConnected(false));
+    socket.on('connect_error', () => setConnected(false));
+    const eventName = as === 'participant' ? 'view:participant' : as === 'floor' ? 'view:floor' : 'view:big-screen';
+    const onView = (v: ViewOf[K]) => setView(v);
+    socket.on(eventName as 'view:participant', onView as (v: ParticipantView) => void);
+    return () => {
+      socket.close();
+      socketRef.current = null;
+    };
+  }, [sessionId, as]);
+
+  const emit = useCallback(
+    <E extends keyof ClientToServerEvents>(event: E, payload: Parameters<ClientToServerEvents[E]>[0]) =>
+      new Promise<Ack<unknown>>((resolve) => {
+        const s = socketRef.current;
+        if (!s || !s.connected) {
+          resolve({ ok: false, code: 'server-error', message: 'Not connected. Trying again…' });
+          return;
+        }
+        (s.timeout(8000).emit as (e: string, p: unknown, cb: (err: Error | null, res: Ack<unknown>) => void) => void)(event, payload, (err, res) =>
+          resolve(err ? { ok: false, code: 'server-error', message: 'No answer from the server. Try again.' } : res),
+        );
+      }),
+    [],
+  );
+
+  return { view, connected, error, emit, socket: socketRef };
+}
+
+/** Milliseconds left until a server deadline, kept in step with the server's clock. */
+export function useCountdown(deadline: number | null, serverOffsetMs: number) {
+  const [now, setNow] = useState(() => Date.now());
+  useEffect(() => {
+    if (deadline === null) return;
+    const t = setInterval(() => setNow(Date.now()), 250);
+    return () => clearInterval(t);
+  }, [deadline]);
+  if (deadline === null) return null;
+  return Math.max(0, deadline - (now + serverOffsetMs));
+}

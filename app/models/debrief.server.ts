@@ -1,0 +1,89 @@
+// What every Debrief page (session, compare, projector, CSV) loads: the chosen sessions of a
+// course, each with its de-identified Debrief numbers, and the stored estimations on them.
+import { sessionDebrief, type SessionDebrief } from '#app/lib/debrief';
+import type { Design } from '#app/lib/design';
+import { count, inArray } from 'drizzle-orm';
+import { db } from '#app/utils/db.server';
+import { sessionParticipants } from '#drizzle/schema';
+import { estimatesForSessions, type EstimateStatus } from './estimate.server';
+import { loadSessionPanel } from './panel.server';
+
+export interface DebriefSession {
+  id: number;
+  /** short label for legends: "#12 · Short horizon (δ = 1/2) — demo" */
+  label: string;
+  treatment: string;
+  status: string;
+  simulated: boolean;
+  completedAt: string | null;
+  payoffs: Design['payoffs'];
+  labels: Design['labels'];
+  delta: number;
+  debrief: SessionDebrief;
+}
+
+export interface DebriefData {
+  sessions: DebriefSession[];
+  /** stored estimations on exactly these sessions, newest first */
+  estimates: EstimateStatus[];
+}
+
+/** Throws 404 when a session is not in the course (another course's session is not found either). */
+export async function loadDebrief(courseId: number, sessionIds: readonly number[]): Promise<DebriefData> {
+  const sessions: DebriefSession[] = [];
+  for (const id of sessionIds) {
+    const s = await loadSessionPanel(courseId, id);
+    if (!s) throw new Response(`No session ${id} in this course.`, { status: 404 });
+    const d = s.session.design;
+    sessions.push({
+      id,
+      label: `#${id} · ${s.session.treatment}`,
+      treatment: s.session.treatment,
+      status: s.session.status,
+      simulated: s.session.simulated,
+      completedAt: s.session.completedAt?.toISOString() ?? null,
+      payoffs: d.payoffs,
+      labels: d.labels,
+      delta: d.delta,
+      debrief: sessionDebrief(s.rows, d),
+    });
+  }
+  return { sessions, estimates: await estimatesForSessions(courseId, sessionIds) };
+}
+
+/** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */
+export function sessionIdsParam(url: URL, max = 20): number[] {
+  // `?sessions=3,4` from links, `?sessions=3&sessions=4` from the list's checkboxes
+  const raw = url.searchParams.getAll('sessions').join(',');
+  const parts = raw.split(',').map((s) => s.trim()).filter(Boolean);
+  const ids = parts.map(Number);
+  if (parts.length === 0 || ids.some((n) => !Number.isSafeInteger(n) || n <= 0)) {
+    throw new Response('Name the sessions as ?sessions=1,2 (session numbers of this course).', { status: 400 });
+  }
+  if (ids.length > max) throw new Response(`At most ${max} sessions at once.`, { status: 400 });
+  return [...new Set(ids)];
+}
+
+/** The session id in the URL; anything but a positive whole number is a 404. */
+export function sessionIdParam(raw: string | undefined): number {
+  const id = Number(raw);
+  if (!raw || !Number.isSafeInteger(id) || id <= 0) throw new Response('No such session.', { status: 404 });
+  return id;
+}
+
+/** `?estimate=ID` when it is one of these sessions' estimations, else the newest. */
+export function pickEstimate(estimates: EstimateStatus[], url: URL): EstimateStatus | null {
+  const wanted = Number(url.searchParams.get('estimate'));
+  return estimates.find((e) => e.id === wanted) ?? estimates[0] ?? null;
+}
+
+/** Participants per session (ids already scoped to a course by the caller). */
+export async function participantCounts(sessionIds: readonly number[]): Promise<Map<number, number>> {
+  if (sessionIds.length === 0) return new Map();
+  const rows = await db()
+    .select({ sessionId: sessionParticipants.sessionId, n: count() })
+    .from(sessionParticipants)
+    .where(inArray(sessionParticipants.sessionId, [...sessionIds]))
+    .groupBy(sessionParticipants.sessionId);
+  return new Map(rows.map((r) => [r.sessionId, Number(r.n)]));
+}

@@ -1,0 +1,291 @@
+// Strategy-frequency estimations of a course, stored in `estimates` so a Debrief reloads
+// instantly and the same request is answered from the stored row. Runs in this process, one at a
+// time; the bootstrap goes to worker threads (app/lib/sfem-workers.server.ts), progress is
+// written to the row as replicates come back, so any page can poll it.
+import { createHash } from 'node:crypto';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { and, desc, eq, ne } from 'drizzle-orm';
+import { z } from 'zod';
+import { libraryStrategy } from '#app/lib/automata';
+import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
+import { estimateGroups } from '#app/lib/sfem';
+import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
+import { db } from '#app/utils/db.server';
+import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
+import { datasets, estimates } from '#drizzle/schema';
+import { estimationRows, getCourseSessions, loadSessionPanel } from './panel.server';
+
+export interface GroupResult {
+  group: string;
+  sessions: string[];
+  subjects: number;
+  choices: number;
+  strategies: string[];
+  shares: number[];
+  /** bootstrap standard deviations of the shares (null without a bootstrap) */
+  se: number[] | null;
+  beta: number;
+  seBeta: number | null;
+  gamma: number;
+  errorProbability: number;
+  logLik: number;
+  aic: number;
+  bic: number;
+  converged: boolean;
+  /** subjects whose highest posterior is this strategy (ties: the earlier strategy) */
+  assigned: number[];
+  /** Σ_i posterior probability of each strategy (expected number of subjects) */
+  expected: number[];
+}
+
+export interface EstimateResult {
+  window: string;
+  strategies: string[];
+  bootstrap: number;
+  seed: number;
+  warnings: string[];
+  groups: GroupResult[];
+}
+
+export interface EstimateStatus {
+  id: number;
+  status: 'queued' | 'running' | 'done' | 'failed';
+  progress: number;
+  total: number;
+  error: string | null;
+  request: EstimateRequest;
+  result: EstimateResult | null;
+  createdAt: string;
+}
+
+export const requestKey = (r: EstimateRequest) => createHash('sha256').update(JSON.stringify(canonicalRequest(r))).digest('hex');
+
+type Row = typeof estimates.$inferSelect;
+const toStatus = (r: Row): EstimateStatus => ({
+  id: r.id,
+  status: r.status,
+  progress: r.progress,
+  total: r.total,
+  error: r.error,
+  request: estimateRequestSchema.parse(r.request),
+  result: (r.result as EstimateResult | null) ?? null,
+  createdAt: r.createdAt.toISOString(),
+});
+
+export async function getEstimate(courseId: number, id: number): Promise<EstimateStatus | null> {
+  const [r] = await db()
+    .select()
+    .from(estimates)
+    .where(and(eq(estimates.courseId, courseId), eq(estimates.id, id)));
+  if (!r) return null;
+  // A queued or running row nobody in this process works on was cut off by a restart: run it again.
+  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id)) enqueue(r.id);
+  return toStatus(r);
+}
+
+/** The course's estimations on exactly these sessions (any window), newest first. */
+export async function estimatesForSessions(courseId: number, sessionIds: readonly number[]): Promise<EstimateStatus[]> {
+  const wanted = [...new Set(sessionIds)].sort((a, b) => a - b).join(',');
+  const rows = await db().select().from(estimates).where(eq(estimates.courseId, courseId)).orderBy(desc(estimates.id)).limit(200);
+  return rows
+    .map(toStatus)
+    .filter((e) => e.request.source.kind === 'sessions' && e.request.source.sessionIds.join(',') === wanted);
+}
+
+export type StartResult = { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; status: 404; message: string };
+
+/**
+ * Starts an estimation, or returns the stored one for the same request (same data, window,
+ * strategies, B and seed). A failed run is not reused: asking again runs it again.
+ */
+export async function startEstimate(courseId: number, userId: number, input: EstimateRequest): Promise<StartResult> {
+  const request = canonicalRequest(input);
+  if (request.source.kind === 'sessions') {
+    const found = await getCourseSessions(courseId, request.source.sessionIds);
+    if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, message: 'A chosen session is not in this course.' };
+  } else {
+    const [d] = await db()
+      .select({ id: datasets.id })
+      .from(datasets)
+      .where(and(eq(datasets.courseId, courseId), eq(datasets.id, request.source.datasetId)));
+    if (!d) return { ok: false, status: 404, message: 'That dataset is not in this course.' };
+  }
+  const key = requestKey(request);
+  const [existing] = await db()
+    .select()
+    .from(estimates)
+    .where(and(eq(estimates.courseId, courseId), eq(estimates.requestKey, key), ne(estimates.status, 'failed')))
+    .orderBy(desc(estimates.id))
+    .limit(1);
+  if (existing) {
+    const estimate = (await getEstimate(courseId, existing.id))!;
+    return { ok: true, estimate, reused: true };
+  }
+  const [res] = await db().insert(estimates).values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
+  enqueue(res.insertId);
+  return { ok: true, estimate: (await getEstimate(courseId, res.insertId))!, reused: false };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The runner: one estimation at a time in this process (two bootstrap workers already fill the
+// machine's two cores), kept on globalThis so a development reload does not start a second queue.
+
+const g = globalThis as unknown as { __parleyEstimates?: { known: Set<number>; chain: Promise<void> } };
+function jobs() {
+  g.__parleyEstimates ??= { known: new Set(), chain: Promise.resolve() };
+  return g.__parleyEstimates;
+}
+
+function enqueue(id: number) {
+  const j = jobs();
+  if (j.known.has(id)) return;
+  j.known.add(id);
+  j.chain = j.chain
+    .then(() => run(id))
+    .catch(async (e: unknown) => {
+      const message = (e instanceof Error ? e.message : String(e)).slice(0, 480);
+      await db()
+        .update(estimates)
+        .set({ status: 'failed', error: message, finishedAt: new Date() })
+        .where(eq(estimates.id, id))
+        .catch(() => undefined);
+    })
+    .finally(() => j.known.delete(id));
+}
+
+const datasetRowSchema = z.object({
+  session: z.coerce.string().min(1),
+  treatment: z.coerce.string().min(1),
+  subject: z.coerce.string().min(1),
+  partner: z.coerce.string(),
+  supergame: z.number().int().min(1),
+  round: z.number().int().min(1),
+  action: z.enum(['C', 'D']),
+  partnerAction: z.enum(['C', 'D']),
+});
+
+async function loadRows(courseId: number, request: EstimateRequest): Promise<ChoiceRow[]> {
+  if (request.source.kind === 'sessions') {
+    const rows: ChoiceRow[] = [];
+    for (const id of request.source.sessionIds) {
+      const s = await loadSessionPanel(courseId, id);
+      if (!s) throw new Error(`Session ${id} is not in this course.`);
+      rows.push(...estimationRows(s.rows));
+    }
+    return rows;
+  }
+  const [d] = await db()
+    .select({ rows: datasets.rows })
+    .from(datasets)
+    .where(and(eq(datasets.courseId, courseId), eq(datasets.id, request.source.datasetId)));
+  if (!d) throw new Error('The dataset was deleted.');
+  const parsed = z.array(datasetRowSchema).safeParse(d.rows);
+  if (!parsed.success) throw new Error('The stored dataset does not have the choice-panel shape.');
+  return parsed.data;
+}
+
+async function run(id: number) {
+  const [row] = await db().select().from(estimates).where(eq(estimates.id, id));
+  if (!row || row.status === 'done' || row.status === 'failed') return;
+  const request = estimateRequestSchema.parse(row.request);
+  await db().update(estimates).set({ status: 'running', progress: 0 }).where(eq(estimates.id, id));
+
+  const built = buildPanel(await loadRows(row.courseId, request));
+  if (built.errors.length > 0) throw new Error(`The data cannot be estimated: ${built.errors[0].message}`);
+  const groups = estimateGroups(built.panel, {
+    by: 'treatment',
+    window: parseWindow(request.window),
+    strategies: request.strategies.map(libraryStrategy),
+    seed: request.seed,
+  });
+  if (groups.length === 0) throw new Error('No participant has choices in this window of supergames.');
+  const B = request.bootstrap;
+  const total = B * groups.length;
+  await db().update(estimates).set({ total }).where(eq(estimates.id, id));
+
+  // Progress goes to the row at most every 150 ms, one write at a time.
+  let written = 0;
+  let wanted = 0;
+  let writing: Promise<unknown> = Promise.resolve();
+  let last = 0;
+  const report = (done: number, force = false) => {
+    wanted = done;
+    const now = Date.now();
+    if (!force && now - last < 150) return;
+    last = now;
+    writing = writing.then(async () => {
+      if (wanted === written) return;
+      const v = wanted;
+      await db().update(estimates).set({ progress: v }).where(eq(estimates.id, id));
+      written = v;
+    });
+  };
+
+  const results: GroupResult[] = [];
+  for (const [i, gEst] of groups.entries()) {
+    const e = gEst.estimate;
+    const boot = B > 0 ? await bootstrapOnWorkers(gEst.table, e, { B, seed: request.seed, workers: 2, workerUrl: workerUrl(), onProgress: (done) => report(i * B + done) }) : null;
+    const K = e.strategies.length;
+    const assigned = new Array<number>(K).fill(0);
+    const expected = new Array<number>(K).fill(0);
+    for (const p of e.posteriors) {
+      let best = 0;
+      p.probabilities.forEach((v, k) => {
+        expected[k] += v;
+        if (v > p.probabilities[best] + 1e-12) best = k;
+      });
+      assigned[best]++;
+    }
+    results.push({
+      group: gEst.group,
+      sessions: [...new Set(gEst.table.subjects.map((s) => s.slice(0, s.indexOf('/'))))],
+      subjects: e.subjects,
+      choices: e.choices,
+      strategies: e.strategies,
+      shares: e.shares,
+      se: boot ? boot.sdShares : null,
+      beta: e.beta,
+      seBeta: boot ? boot.sdBeta : null,
+      gamma: e.gamma,
+      errorProbability: e.errorProbability,
+      logLik: e.logLik,
+      aic: e.aic,
+      bic: e.bic,
+      converged: e.converged,
+      assigned,
+      expected,
+    });
+  }
+  report(total, true);
+  await writing;
+  const result: EstimateResult = {
+    window: request.window,
+    strategies: request.strategies,
+    bootstrap: B,
+    seed: request.seed,
+    warnings: built.warnings.map((w) => w.message),
+    groups: results,
+  };
+  await db().update(estimates).set({ status: 'done', progress: total, result, finishedAt: new Date() }).where(eq(estimates.id, id));
+}
+
+/**
+ * The bootstrap workers' entry. From source (tsx, Vite in development, vitest) the module's own
+ * file is right (undefined = the default). In the production build this code is bundled into
+ * build/server, whose files must not be a worker's entry (they would load the whole app), so the
+ * source file is used through tsx, which the server runs with anyway (docs/decisions/010).
+ */
+export function workerUrl(): URL | undefined {
+  if (import.meta.url.endsWith('.ts')) return undefined;
+  const rel = path.join('app', 'lib', 'sfem-workers.server.ts');
+  let dir = path.dirname(fileURLToPath(import.meta.url));
+  for (let i = 0; i < 5; i++) {
+    if (existsSync(path.join(dir, rel))) return pathToFileURL(path.join(dir, rel));
+    dir = path.dirname(dir);
+  }
+  const fromCwd = path.resolve(rel);
+  if (existsSync(fromCwd)) return pathToFileURL(fromCwd);
+  throw new Error(`The bootstrap worker's entry ${rel} was not found beside the build.`);
+}

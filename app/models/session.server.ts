@@ -1,0 +1,103 @@
+import { and, count, desc, eq, inArray } from 'drizzle-orm';
+import { designSchema } from '#app/lib/design';
+import { normaliseSeed } from '#app/lib/rng';
+import { db } from '#app/utils/db.server';
+import { designs, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { newJoinCode, newSeed } from './live.server';
+
+export async function listSessions(courseId: number) {
+  const joined = db()
+    .select({ sessionId: sessionParticipants.sessionId, n: count().as('n') })
+    .from(sessionParticipants)
+    .groupBy(sessionParticipants.sessionId)
+    .as('joined');
+  const rows = await db()
+    .select({
+      id: sessions.id,
+      treatment: sessions.treatment,
+      status: sessions.status,
+      joinCode: sessions.joinCode,
+      simulated: sessions.simulated,
+      createdAt: sessions.createdAt,
+      startedAt: sessions.startedAt,
+      completedAt: sessions.completedAt,
+      currentSupergame: sessions.currentSupergame,
+      participants: joined.n,
+    })
+    .from(sessions)
+    .leftJoin(joined, eq(joined.sessionId, sessions.id))
+    .where(eq(sessions.courseId, courseId))
+    .orderBy(desc(sessions.createdAt));
+  return rows.map((r) => ({ ...r, simulated: r.simulated === 1, participants: Number(r.participants ?? 0) }));
+}
+
+export type OpenResult = { ok: true; sessionId: number } | { ok: false; field: string; message: string };
+
+/** A new draft session with the design frozen into it, a fresh join code and a seed. */
+export async function createSessionFromDesign(opts: {
+  courseId: number;
+  designId: number;
+  userId: number;
+  seed: string | null;
+  admission: 'roster' | 'open';
+  emailDomain: string | null;
+}): Promise<OpenResult> {
+  const [d] = await db()
+    .select({ name: designs.name, params: designs.params, archivedAt: designs.archivedAt })
+    .from(designs)
+    .where(and(eq(designs.courseId, opts.courseId), eq(designs.id, opts.designId)));
+  if (!d) return { ok: false, field: 'designId', message: 'Choose a design of this course.' };
+  if (d.archivedAt) return { ok: false, field: 'designId', message: 'That design is archived; restore it first.' };
+  const params = designSchema.parse(d.params);
+  let seed: number;
+  try {
+    seed = opts.seed ? normaliseSeed(/^\d+$/.test(opts.seed) ? Number(opts.seed) : opts.seed) : newSeed();
+  } catch (error) {
+    return { ok: false, field: 'seed', message: error instanceof Error ? error.message : 'That seed cannot be used.' };
+  }
+  for (let attempt = 0; attempt < 5; attempt++) {
+    try {
+      const [res] = await db().insert(sessions).values({
+        courseId: opts.courseId,
+        designId: opts.designId,
+        treatment: d.name,
+        params,
+        seed,
+        joinCode: newJoinCode(),
+        status: 'draft',
+        admission: opts.admission,
+        emailDomain: opts.emailDomain,
+        createdBy: opts.userId,
+      });
+      return { ok: true, sessionId: res.insertId };
+    } catch (error) {
+      // a join code collision: draw another
+      if (!(error instanceof Error && /Duplicate entry/.test(error.message + String((error as { cause?: unknown }).cause)))) throw error;
+    }
+  }
+  throw new Error('could not draw a free join code');
+}
+
+export async function findByJoinCode(code: string) {
+  const [s] = await db()
+    .select({ id: sessions.id, courseId: sessions.courseId, status: sessions.status, admission: sessions.admission, emailDomain: sessions.emailDomain })
+    .from(sessions)
+    .where(and(eq(sessions.joinCode, code.toUpperCase()), inArray(sessions.status, ['open', 'running', 'paused', 'complete'])));
+  return s ?? null;
+}
+
+export async function setConsent(sessionId: number, userId: number, consent: boolean) {
+  await db()
+    .update(sessionParticipants)
+    .set({ consent: consent ? 1 : 0, consentAt: new Date() })
+    .where(and(eq(sessionParticipants.sessionId, sessionId), eq(sessionParticipants.userId, userId)));
+}
+
+/** Names and e-mails behind the pseudonyms, for staff who ask for them on the Floor. */
+export async function namesOf(sessionId: number) {
+  return db()
+    .select({ participantKey: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, name: users.name, email: users.email })
+    .from(sessionParticipants)
+    .innerJoin(users, eq(users.id, sessionParticipants.userId))
+    .where(eq(sessionParticipants.sessionId, sessionId));
+}

@@ -1,0 +1,58 @@
+// GET: the data behind one Debrief chart as CSV (papaparse), for the sessions named in
+// ?sessions=1,2, or for a stored estimation (?estimate=ID, chart "strategies"). De-identified.
+import Papa from 'papaparse';
+import { z } from 'zod';
+import type { Route } from './+types/csv';
+import { CHART_IDS, chartTable, type Table } from '#app/lib/debrief-tables';
+import { loadDebrief, sessionIdsParam } from '#app/models/debrief.server';
+import { getEstimate } from '#app/models/estimate.server';
+import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+
+const chartSchema = z.enum(CHART_IDS as [string, ...string[]]);
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
+  const chart = chartSchema.safeParse(params.chart);
+  if (!chart.success) throw new Response(`No chart "${params.chart}". Charts: ${CHART_IDS.join(', ')}.`, { status: 404 });
+  const url = new URL(request.url);
+  let rows: Table;
+  let name: string;
+  if (chart.data === 'strategies') {
+    const id = Number(url.searchParams.get('estimate'));
+    const e = Number.isSafeInteger(id) && id > 0 ? await getEstimate(course.id, id) : null;
+    if (!e) throw new Response('No such estimation in this course.', { status: 404 });
+    if (!e.result) throw new Response('This estimation has not finished yet.', { status: 409 });
+    rows = e.result.groups.flatMap((g) =>
+      g.strategies.map((s, k) => ({
+        treatment: g.group,
+        sessions: g.sessions.join(' '),
+        strategy: s,
+        share: g.shares[k],
+        bootstrap_se: g.se ? g.se[k] : null,
+        participants_assigned: g.assigned[k],
+        participants_expected: g.expected[k],
+        beta: g.beta,
+        gamma: Number.isFinite(g.gamma) ? g.gamma : null,
+        log_likelihood: g.logLik,
+        subjects: g.subjects,
+        choices: g.choices,
+        window: e.result!.window,
+        B: e.result!.bootstrap,
+        seed: e.result!.seed,
+      })),
+    );
+    name = `estimate-${e.id}-strategies`;
+  } else {
+    const ids = sessionIdsParam(url);
+    const { sessions } = await loadDebrief(course.id, ids);
+    rows = chartTable(chart.data as Exclude<(typeof CHART_IDS)[number], 'strategies'>, sessions);
+    name = `sessions-${ids.join('-')}-${chart.data}`;
+  }
+  return new Response(Papa.unparse(rows), {
+    headers: {
+      'Content-Type': 'text/csv; charset=utf-8',
+      'Content-Disposition': `attachment; filename="${name}.csv"`,
+      'Cache-Control': 'no-store',
+    },
+  });
+}

@@ -1,0 +1,19 @@
+// POST: start a strategy-frequency estimation (or get the stored one for the same request).
+// JSON in both directions of the page's fetcher: { ok, estimate, reused } or { ok: false, errors }.
+import type { Route } from './+types/estimates';
+import { startEstimate } from '#app/models/estimate.server';
+import { estimateRequestFromForm } from '#app/utils/estimate-form';
+import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+
+export async function loader() {
+  return Response.json({ ok: false, message: 'POST an estimation request here; GET /courses/:courseId/estimates/:id for its status.' }, { status: 405 });
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { course, user } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
+  const parsed = estimateRequestFromForm(await request.formData());
+  if (!parsed.ok) return Response.json({ ok: false, errors: parsed.errors }, { status: 400 });
+  const started = await startEstimate(course.id, user.id, parsed.request);
+  if (!started.ok) return Response.json({ ok: false, message: started.message }, { status: started.status });
+  return Response.json({ ok: true, estimate: started.estimate, reused: started.reused }, { status: started.reused ? 200 : 202 });
+}

@@ -1,0 +1,82 @@
+// A participant's own summary of a session: their supergames and points, nothing about anyone
+// else (partners stay anonymous). Staff use the Debrief instead.
+import { Link } from 'react-router';
+import type { Route } from './+types/mine';
+import { ParticipantShell } from '#app/components/shells';
+import { sessionIdParam } from '#app/models/debrief.server';
+import { getCourseSessions, loadSessionPanel, pseudonymOf } from '#app/models/panel.server';
+import { requireCourseRole } from '#app/utils/permissions.server';
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { course, user } = await requireCourseRole(request, params.courseId, ['participant', 'instructor', 'assistant', 'researcher']);
+  const sessionId = sessionIdParam(params.sessionId);
+  const [session] = await getCourseSessions(course.id, [sessionId]);
+  if (!session) throw new Response('No such session in this course.', { status: 404 });
+  const pseudonym = await pseudonymOf(sessionId, user.id);
+  if (!pseudonym) throw new Response('You did not take part in this session, so it has no summary for you.', { status: 404 });
+  const panel = (await loadSessionPanel(course.id, sessionId))!;
+  const mine = panel.rows.filter((r) => r.subject === pseudonym);
+  const supergames = [...new Set(mine.map((r) => r.supergame))].sort((a, b) => a - b).map((s) => {
+    const rows = mine.filter((r) => r.supergame === s);
+    return {
+      supergame: s,
+      rounds: rows.filter((r) => r.paid).length,
+      partner: rows[0].partner.startsWith('computer:') ? `a computer (${rows[0].partner.slice(9)}), disclosed` : 'another participant',
+      ownC: rows.filter((r) => r.action === 'C').length,
+      partnerC: rows.filter((r) => r.partnerAction === 'C').length,
+      points: rows.reduce((t, r) => t + (r.paid ? r.payoff : 0), 0),
+    };
+  });
+  return {
+    email: user.email,
+    course: { title: course.title, isDemo: course.isDemo },
+    session: { treatment: session.treatment, status: session.status, labels: session.design.labels, simulated: session.simulated },
+    pseudonym,
+    supergames,
+    total: supergames.reduce((t, s) => t + s.points, 0),
+  };
+}
+
+export default function MySummary({ loaderData }: Route.ComponentProps) {
+  const { email, course, session, pseudonym, supergames, total } = loaderData;
+  return (
+    <ParticipantShell email={email}>
+      <div className="flex flex-col gap-1">
+        <p className="text-sm text-slate-600">
+          {course.title}
+          {course.isDemo ? ' · demo, invented data' : ''}
+        </p>
+        <h1 className="text-2xl font-semibold">Your summary</h1>
+        <p className="text-slate-700">
+          {session.treatment} · you were <strong>{pseudonym}</strong>
+        </p>
+      </div>
+      <div className="rounded-lg border border-accent-200 bg-white p-4">
+        <p className="text-sm text-slate-600">Your points</p>
+        <p className="num text-4xl font-semibold" data-testid="total-points">
+          {total}
+        </p>
+        {session.status !== 'complete' && session.status !== 'archived' ? <p className="text-sm text-slate-600">The session is not over yet: this is so far.</p> : null}
+      </div>
+      <ul className="flex flex-col gap-3" aria-label="Your supergames">
+        {supergames.map((s) => (
+          <li key={s.supergame} className="rounded-lg border border-slate-200 bg-white p-4">
+            <p className="font-semibold">Supergame {s.supergame}</p>
+            <p className="text-slate-700">
+              {s.rounds} round{s.rounds === 1 ? '' : 's'} with {s.partner}
+            </p>
+            <p className="text-slate-700">
+              You chose {session.labels.C} {s.ownC}×, your partner {s.partnerC}×
+            </p>
+            <p className="num text-lg font-semibold">{s.points} points</p>
+          </li>
+        ))}
+      </ul>
+      <p className="text-sm text-slate-600">
+        Partners stay anonymous: this page shows your own choices and points only. <Link to="/" className="font-semibold text-accent-700 underline">Parley’s start page</Link>
+      </p>
+    </ParticipantShell>
+  );
+}
+
+export const meta: Route.MetaFunction = () => [{ title: 'Your summary · Parley' }];

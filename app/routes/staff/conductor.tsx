@@ -1,0 +1,147 @@
+import { useState } from 'react';
+import { Link } from 'react-router';
+import type { Route } from './+types/conductor';
+import { useSessionView } from '#app/components/live/use-session';
+import { CourseCrumbs, PageHeader } from '#app/components/shells';
+import { Button, ButtonLink, Notice } from '#app/components/ui';
+import { getSession } from '#app/models/live.server';
+import { env } from '#app/utils/env.server';
+import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { STATUS_WORDS } from '#app/utils/session-words';
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { course, role } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
+  const session = await getSession(parseId(params.sessionId));
+  if (!session || session.courseId !== course.id) throw new Response('No such session in this course.', { status: 404 });
+  const d = session.design;
+  return {
+    course,
+    role,
+    session: { id: session.id, treatment: session.treatment, joinCode: session.joinCode, seed: session.seed, simulated: session.simulated, status: session.status },
+    joinUrl: session.joinCode ? new URL(`/join/${session.joinCode}`, env().APP_URL).toString() : null,
+    design: { delta: d.delta, supergames: d.supergames, roundSeconds: d.roundSeconds, payoffs: d.payoffs, labels: d.labels },
+  };
+}
+
+const pct = (x: number | null) => (x === null ? '—' : `${Math.round(x * 100)} %`);
+
+export default function Conductor({ loaderData }: Route.ComponentProps) {
+  const { course, role, session, design, joinUrl } = loaderData;
+  const canSeeFloor = role === 'instructor' || role === 'assistant';
+  const { view, connected, error, emit } = useSessionView(session.id, canSeeFloor ? 'floor' : 'big-screen', null);
+  const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
+  const status = view?.status ?? session.status;
+  const isInstructor = role === 'instructor';
+
+  const command = async (c: 'start' | 'pause' | 'resume' | 'end-after-supergame' | 'end-now', confirmText?: string) => {
+    if (confirmText && !window.confirm(confirmText)) return;
+    const res = await emit('session:control', { sessionId: session.id, command: c });
+    setMessage(res.ok ? { ok: true, text: `Done: the session is ${STATUS_WORDS[(res.data as { status: keyof typeof STATUS_WORDS }).status].word.toLowerCase()}.` } : { ok: false, text: res.message });
+  };
+  const floor = view && 'counts' in view ? view : null;
+
+  return (
+    <>
+      <PageHeader
+        title={`Session #${session.id}: ${session.treatment}`}
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/sessions`, label: 'Sessions' }]} />}
+      >
+        {canSeeFloor ? (
+          <ButtonLink to={`/courses/${course.id}/sessions/${session.id}/floor`} variant="secondary">
+            Floor
+          </ButtonLink>
+        ) : null}
+        <ButtonLink to={`/screen/${session.id}`} variant="secondary" target="_blank" rel="noreferrer">
+          Big screen ↗
+        </ButtonLink>
+      </PageHeader>
+      {session.simulated ? <Notice title="Simulated session">The choices of this demo session were simulated from a stated strategy mixture; nobody played it.</Notice> : null}
+      <div className="mt-4 grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,24rem)]">
+        <section aria-labelledby="conductor-title" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
+          <div className="flex flex-wrap items-center justify-between gap-2">
+            <h2 id="conductor-title" className="text-lg font-semibold">
+              Conductor
+            </h2>
+            <p className="text-sm text-slate-600" aria-live="polite">
+              <span aria-hidden="true">{connected ? '●' : '○'} </span>
+              {connected ? 'Live' : 'Connecting…'}
+            </p>
+          </div>
+          <p className="text-2xl font-semibold" data-testid="session-status">
+            <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
+            {STATUS_WORDS[status].word}
+          </p>
+          {error ? <Notice tone="error">{error}</Notice> : null}
+          <div className="flex flex-wrap gap-2">
+            {isInstructor && status === 'open' ? <Button onClick={() => command('start')}>Start the session</Button> : null}
+            {status === 'running' ? (
+              <Button variant="secondary" onClick={() => command('pause')}>
+                Pause
+              </Button>
+            ) : null}
+            {status === 'paused' ? <Button onClick={() => command('resume')}>Resume</Button> : null}
+            {isInstructor && (status === 'running' || status === 'paused') ? (
+              <>
+                <Button variant="secondary" onClick={() => command('end-after-supergame')} disabled={floor?.endAfterSupergame}>
+                  {floor?.endAfterSupergame ? 'Ends after this supergame' : 'End after this supergame'}
+                </Button>
+                <Button variant="danger" onClick={() => command('end-now', 'End the session now? Open rounds are dropped and everyone sees their final points.')}>
+                  End now
+                </Button>
+              </>
+            ) : null}
+          </div>
+          <div aria-live="polite">{message ? <Notice tone={message.ok ? 'ok' : 'error'}>{message.text}</Notice> : null}</div>
+          {floor ? (
+            <dl className="grid grid-cols-2 gap-3 sm:grid-cols-4" data-testid="live-counts">
+              {[
+                ['Joined', String(floor.counts.joined)],
+                ['Connected', String(floor.counts.connected)],
+                ['Supergame', floor.supergame ? `${floor.supergame} of ${floor.supergames}` : `— of ${floor.supergames}`],
+                ['Pairs done', `${floor.counts.pairsDone} of ${floor.counts.pairs}`],
+                ['Cooperation, latest round', pct(floor.currentCooperation.rate)],
+                ['Alerts', String(floor.alerts.length)],
+              ].map(([k, v]) => (
+                <div key={k} className="rounded-lg border border-slate-200 p-3">
+                  <dt className="text-sm text-slate-600">{k}</dt>
+                  <dd className="num text-2xl font-semibold">{v}</dd>
+                </div>
+              ))}
+            </dl>
+          ) : null}
+        </section>
+        <aside className="flex flex-col gap-4">
+          {session.joinCode && (status === 'open' || status === 'running' || status === 'paused') ? (
+            <section aria-labelledby="join-title" className="rounded-lg border border-slate-200 bg-white p-4">
+              <h2 id="join-title" className="mb-2 text-lg font-semibold">
+                Join
+              </h2>
+              <p className="font-mono text-4xl font-bold tracking-[0.2em]" data-testid="join-code">
+                {session.joinCode}
+              </p>
+              <p className="mt-2 text-sm break-all text-slate-600">{joinUrl}</p>
+            </section>
+          ) : null}
+          <section aria-labelledby="frozen-title" className="rounded-lg border border-slate-200 bg-white p-4 text-sm">
+            <h2 id="frozen-title" className="mb-2 text-lg font-semibold">
+              Frozen design
+            </h2>
+            <p className="num">
+              T {design.payoffs.T} · R {design.payoffs.R} · P {design.payoffs.P} · S {design.payoffs.S} · δ = {design.delta} · {design.supergames} supergames · {design.roundSeconds} s a round
+            </p>
+            <p className="mt-1 text-slate-600">
+              Seed <span className="font-mono">{session.seed}</span> (type it when opening another session to reuse these draws)
+            </p>
+            <p className="mt-2">
+              <Link to={`/courses/${course.id}/sessions`} className="font-semibold text-accent-700 underline">
+                All sessions
+              </Link>
+            </p>
+          </section>
+        </aside>
+      </div>
+    </>
+  );
+}
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Session #${data?.session.id ?? ''} · Conductor · Parley` }];

@@ -1,0 +1,14 @@
+import type { SessionRunner } from '#realtime/runner';
+
+// server.ts creates the one SessionRunner of this process and leaves it here; route modules come
+// from the build bundle, which holds its own copies of modules, so they reach it through globalThis.
+const g = globalThis as unknown as { __parleyRunner?: SessionRunner };
+
+export function setRunner(r: SessionRunner | undefined) {
+  g.__parleyRunner = r;
+}
+
+export function runner(): SessionRunner {
+  if (!g.__parleyRunner) throw new Error('The session runner is not started (server.ts starts it).');
+  return g.__parleyRunner;
+}

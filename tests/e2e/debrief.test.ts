@@ -1,0 +1,65 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Browser } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DESKTOP, launch, newContext, pageErrors, signInInBrowser } from '#tests/helpers/browser';
+
+// Screenshots to look at after a run (not compared by the test).
+const SHOTS = path.resolve('.data/test/screenshots');
+
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launch();
+  fs.mkdirSync(SHOTS, { recursive: true });
+});
+afterAll(async () => {
+  await browser?.close();
+});
+
+describe('Debrief, in Chromium', () => {
+  it('the demo’s two completed sessions side by side, an estimation with a bootstrap run from the page, then projector mode', async () => {
+    const page = await (await newContext(browser, DESKTOP)).newPage();
+    await page.goto('/sign-in');
+    await signInInBrowser(page, 'm.achterberg@halvorsen.example');
+    await page.getByRole('link', { name: 'ECON 214 Strategy and Markets' }).click();
+    await page.getByRole('link', { name: 'Debrief' }).click();
+    await page.getByRole('checkbox', { name: /Short horizon/ }).check();
+    await page.getByRole('checkbox', { name: /Long horizon/ }).check();
+    await page.getByRole('button', { name: 'Compare the ticked sessions' }).click();
+    await expect.poll(() => page.getByRole('heading', { name: 'Debrief: sessions side by side' }).isVisible()).toBe(true);
+
+    // Both treatments in the table and in every chart's legend; each chart has its CSV link.
+    const table = page.getByRole('table', { name: 'Cooperation and strategy shares per treatment' });
+    await expect.poll(() => table.getByRole('row').count()).toBe(3);
+    const coop = page.locator('figure[data-chart="cooperation-by-supergame"]');
+    await expect.poll(() => coop.locator('.recharts-legend-item').count()).toBe(4);
+    expect(await coop.textContent()).toContain('Short horizon');
+    expect(await coop.textContent()).toContain('Long horizon');
+    expect(await page.getByRole('link', { name: /download data \(CSV\)/ }).count()).toBe(6);
+
+    // An estimation with a bootstrap: the progress bar shows while it runs and reaches B.
+    await page.getByLabel('Bootstrap replicates (B)').fill('200');
+    await page.getByLabel('Seed').fill('2027');
+    await page.getByRole('button', { name: 'Run estimation' }).click();
+    const progress = page.getByTestId('estimate-progress');
+    await expect.poll(() => page.getByRole('progressbar', { name: 'Bootstrap replicates done' }).isVisible()).toBe(true);
+    await expect.poll(() => progress.getAttribute('data-status'), { timeout: 30_000 }).toBe('done');
+    // two treatments × B = 200 replicates
+    expect(await progress.textContent()).toContain('400 of 400 bootstrap replicates (100 %)');
+    await expect.poll(() => page.getByTestId('estimate-results').isVisible()).toBe(true);
+    await expect.poll(() => table.getByRole('columnheader', { name: 'TFT' }).isVisible()).toBe(true);
+    await page.screenshot({ path: path.join(SHOTS, 'debrief-compare-desktop.png'), fullPage: true });
+
+    // Projector mode: one chart at a time, ← / → between them, the estimate's chart included.
+    await page.getByRole('link', { name: 'Projector mode' }).click();
+    await expect.poll(() => page.getByRole('heading', { name: 'Cooperation by supergame' }).isVisible()).toBe(true);
+    expect(await page.getByRole('navigation', { name: 'Charts' }).textContent()).toContain('1 / 7');
+    await page.keyboard.press('ArrowRight');
+    await expect.poll(() => page.getByRole('heading', { name: 'Cooperation by round within the supergame' }).isVisible()).toBe(true);
+    await page.keyboard.press('ArrowLeft');
+    await page.keyboard.press('ArrowLeft');
+    await expect.poll(() => page.getByRole('heading', { name: 'Estimated strategy shares' }).isVisible()).toBe(true);
+    await page.screenshot({ path: path.join(SHOTS, 'debrief-projector.png') });
+    expect(pageErrors).toEqual([]);
+  });
+});

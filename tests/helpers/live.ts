@@ -1,0 +1,65 @@
+// Helpers for live-session tests: a design in the database, opening through the real page action,
+// joining through the real join page, and socket.io clients with the real sign-in cookie.
+import { io, type Socket } from 'socket.io-client';
+import { designSchema, type DesignInput } from '#app/lib/design';
+import { designs } from '#drizzle/schema';
+import type { ClientToServerEvents, ServerToClientEvents } from '#realtime/protocol';
+import type { ParticipantView } from '#realtime/engine/types';
+import { testDb } from './db';
+import { baseUrl, type Client } from './http';
+
+export type TestSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
+
+export async function createDesign(courseId: number, createdBy: number, over: Partial<DesignInput> = {}) {
+  const params = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.5, supergames: 2, roundSeconds: 60, ...over });
+  const [res] = await testDb().insert(designs).values({ courseId, name: `Test design ${Date.now()}`, params, createdBy });
+  return res.insertId;
+}
+
+export async function openSession(instructor: Client, courseId: number, designId: number, extra: Record<string, string> = {}) {
+  const res = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '', emailDomain: '', ...extra });
+  if (res.status !== 302) throw new Error(`opening answered ${res.status}: ${(await res.text()).slice(0, 300)}`);
+  const sessionId = Number(/sessions\/(\d+)/.exec(res.headers.get('location')!)![1]);
+  const page = await (await instructor.get(`/courses/${courseId}/sessions/${sessionId}`)).text();
+  const code = /data-testid="join-code">([A-Z0-9]{6})</.exec(page)?.[1];
+  if (!code) throw new Error('no join code on the conductor page');
+  return { sessionId, code };
+}
+
+export async function join(participant: Client, code: string, fields: Record<string, string> = {}) {
+  const res = await participant.post(`/join/${code}`, fields);
+  if (res.status !== 302) throw new Error(`joining answered ${res.status}: ${(await res.text()).slice(0, 300)}`);
+  return res.headers.get('location')!;
+}
+
+const open: TestSocket[] = [];
+
+export function connect(cookie: string, url = baseUrl()): Promise<TestSocket> {
+  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie }, reconnection: false, forceNew: true });
+  open.push(s);
+  return new Promise((resolve, reject) => {
+    s.on('connect', () => resolve(s));
+    s.on('connect_error', reject);
+  });
+}
+
+export function closeSockets() {
+  while (open.length) open.pop()!.close();
+}
+
+/** Resolves with the first participant view (already received or next) that satisfies `test`. */
+export function nextView(s: TestSocket, test: (v: ParticipantView) => boolean, ms = 15_000): Promise<ParticipantView> {
+  return new Promise((resolve, reject) => {
+    const t = setTimeout(() => {
+      s.off('view:participant', on);
+      reject(new Error('no matching participant view in time'));
+    }, ms);
+    const on = (v: ParticipantView) => {
+      if (!test(v)) return;
+      clearTimeout(t);
+      s.off('view:participant', on);
+      resolve(v);
+    };
+    s.on('view:participant', on);
+  });
+}
