@@ -1,4 +1,4 @@
-import { type RouteConfig, index, layout, route } from '@react-router/dev/routes';
+import { type RouteConfig, index, layout, prefix, route } from '@react-router/dev/routes';
 
 export default [
   index('routes/home.tsx'),
@@ -24,10 +24,31 @@ export default [
     route('courses/:courseId/sessions/:sessionId', 'routes/staff/conductor.tsx'),
     route('courses/:courseId/sessions/:sessionId/floor', 'routes/staff/floor.tsx'),
     route('admin', 'routes/staff/admin.tsx'),
+    // Data in and out (docs/decisions/020-*.md).
+    route('courses/:courseId/data', 'routes/staff/data.tsx'),
+    route('courses/:courseId/roster', 'routes/staff/roster.tsx'),
+    route('courses/:courseId/datasets', 'routes/staff/datasets.tsx'),
+    route('courses/:courseId/sessions/:sessionId/results', 'routes/staff/session-results.tsx'),
+    route('settings/tokens', 'routes/staff/tokens.tsx'),
     // Debrief (staff): choose sessions, one session, several side by side.
     route('courses/:courseId/debrief', 'routes/staff/debrief.tsx'),
     route('courses/:courseId/debrief/compare', 'routes/staff/debrief-compare.tsx'),
     route('courses/:courseId/debrief/:sessionId', 'routes/staff/debrief-session.tsx'),
+  ]),
+  route('courses/:courseId/data/panel', 'routes/data/panel.ts'),
+  route('courses/:courseId/data/codebook.csv', 'routes/data/codebook.ts'),
+  route('courses/:courseId/sessions/:sessionId/credit.csv', 'routes/data/credit.ts'),
+  route('courses/:courseId/sessions/:sessionId/result-mails', 'routes/data/result-mails.ts'),
+
+  // The research API (bearer tokens; JSON errors). Documented in README.md.
+  ...prefix('api/v1', [
+    route('courses', 'routes/api/courses.ts'),
+    route('courses/:courseId', 'routes/api/course.ts'),
+    route('courses/:courseId/sessions', 'routes/api/sessions.ts'),
+    route('courses/:courseId/estimates', 'routes/api/estimates.ts'),
+    route('sessions/:sessionId', 'routes/api/session.ts'),
+    route('sessions/:sessionId/panel', 'routes/api/panel.ts'),
+    route('*', 'routes/api/not-found.ts'),
   ]),
 
   // Debrief outside the staff shell: the projector (full screen), a participant's own summary,

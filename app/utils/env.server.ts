@@ -29,6 +29,8 @@ const schema = z.object({
   /** wrong codes an e-mail address may enter per 15 minutes before it must wait (counted on the
    * server: the strategy's own attempt counter lives in a cookie the client holds) */
   CODE_FAILURES_PER_EMAIL: z.coerce.number().int().min(1).default(5),
+  /** results e-mails after a session are sent in the background, at most this many per minute */
+  RESULT_MAILS_PER_MINUTE: z.coerce.number().int().min(1).max(6000).default(300),
   /** behind a reverse proxy, read the client address from X-Forwarded-For */
   TRUST_PROXY: z
     .enum(['0', '1', 'true', 'false'])

@@ -48,6 +48,18 @@ export class Client {
     this.keep(res);
     return res;
   }
+
+  /** A multipart POST (file uploads), as a browser without JS sends it. */
+  async postForm(path: string, form: FormData) {
+    const res = await fetch(new URL(path, baseUrl()), {
+      method: 'POST',
+      headers: { cookie: this.cookieHeader(), origin: baseUrl() },
+      body: form,
+      redirect: 'manual',
+    });
+    this.keep(res);
+    return res;
+  }
 }
 
 /** Signs in through the real flow: e-mail form → code read from maildev → code form. */
@@ -72,4 +84,17 @@ let counter = 0;
 export function uniqueEmail(prefix = 'user') {
   counter += 1;
   return `${prefix}-${process.pid}-${Date.now().toString(36)}-${counter}@tests.parley.test`;
+}
+
+/** A server-rendered page's text as a person reads it: tags and React's markers out, entities decoded. */
+export function pageText(html: string) {
+  return html
+    .replace(/<!-- -->/g, '')
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/&quot;/g, '"')
+    .replace(/&#x27;/g, "'")
+    .replace(/&lt;/g, '<')
+    .replace(/&gt;/g, '>')
+    .replace(/&amp;/g, '&')
+    .replace(/\s+/g, ' ');
 }

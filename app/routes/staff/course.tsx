@@ -15,6 +15,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export default function CoursePage({ loaderData }: Route.ComponentProps) {
   const { course, role, counts } = loaderData;
   const canSeeMembers = role === 'instructor' || role === 'assistant' || role === 'admin';
+  const canSeeData = role === 'instructor' || role === 'researcher' || role === 'admin';
   return (
     <>
       <PageHeader
@@ -42,6 +43,16 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
         {canSeeMembers ? (
           <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">
             Members
+          </ButtonLink>
+        ) : null}
+        {role === 'instructor' || role === 'admin' ? (
+          <ButtonLink to={`/courses/${course.id}/roster`} variant="secondary">
+            Roster upload
+          </ButtonLink>
+        ) : null}
+        {canSeeData ? (
+          <ButtonLink to={`/courses/${course.id}/data`} variant="secondary">
+            Data
           </ButtonLink>
         ) : null}
       </PageHeader>

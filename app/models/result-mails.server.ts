@@ -1,0 +1,206 @@
+/**
+ * The summary e-mail each participant can receive after a session (product.md, "E-mail"): their
+ * supergames, points and credit. One `result_mails` row per recipient holds its status; a
+ * background loop in this process sends the queued ones at a bounded rate (RESULT_MAILS_PER_MINUTE)
+ * and records failures, which the instructor can queue again.
+ */
+import { and, asc, eq, inArray, sql } from 'drizzle-orm';
+import { creditFor, describeCreditRule, formatCredit } from '#app/lib/credit';
+import { db } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
+import { escapeHtml, htmlFrame, type Mail, sendMail } from '#app/utils/mail.server';
+import { courses, resultMails, sessionParticipants, users } from '#drizzle/schema';
+import { type PanelSession, type PanelRow, panelPages } from './panel-export.server';
+
+export interface SupergameLine {
+  supergame: number;
+  partners: string[];
+  /** rounds that count (L) */
+  rounds: number;
+  points: number;
+}
+
+/** One participant's supergames from their panel rows (rounds after L under block termination do not count). */
+export function summarise(rows: readonly PanelRow[]): { supergames: SupergameLine[]; points: number } {
+  const bySupergame = new Map<number, SupergameLine>();
+  for (const r of rows) {
+    let line = bySupergame.get(r.supergame);
+    if (!line) bySupergame.set(r.supergame, (line = { supergame: r.supergame, partners: [], rounds: 0, points: 0 }));
+    if (!line.partners.includes(r.partner)) line.partners.push(r.partner);
+    if (r.supergame_length !== null && r.round > r.supergame_length) continue;
+    line.rounds += 1;
+    line.points += r.payoff;
+  }
+  const supergames = [...bySupergame.values()].sort((a, b) => a.supergame - b.supergame);
+  const points = Math.round(supergames.reduce((s, l) => s + l.points, 0) * 1e4) / 1e4;
+  return { supergames, points };
+}
+
+const partnerWords = (p: string) => (p.startsWith('computer:') ? `a computer partner (${p.slice('computer:'.length)})` : p);
+
+export function resultMail(opts: { to: string; name: string | null; course: string; session: PanelSession; pseudonym: string; rows: PanelRow[] }): Mail {
+  const { supergames, points } = summarise(opts.rows);
+  const credit = formatCredit(creditFor(opts.session.credit, points));
+  const rule = describeCreditRule(opts.session.credit);
+  const hello = opts.name ? `Hello ${opts.name},` : 'Hello,';
+  const lines = supergames.map(
+    (s) => `Supergame ${s.supergame}: with ${s.partners.map(partnerWords).join(', then ')}, ${s.rounds} round${s.rounds === 1 ? '' : 's'}, ${s.points} points`,
+  );
+  const title = `Your results: ${opts.course}`;
+  return {
+    to: opts.to,
+    subject: `Your results from session ${opts.session.id} of ${opts.course}`,
+    text: [
+      hello,
+      '',
+      `here is your summary of session ${opts.session.id} (${opts.session.treatment}). You played as ${opts.pseudonym}.`,
+      '',
+      ...lines,
+      '',
+      `Points: ${points}`,
+      `Credit: ${credit} (${rule})`,
+      '',
+      opts.session.simulated ? 'This session is part of Parley’s demo: its choices are simulated.' : 'Thank you for taking part.',
+    ].join('\n'),
+    html: htmlFrame(
+      title,
+      `<p style="font-size:16px">${escapeHtml(hello)} here is your summary of session ${opts.session.id} (${escapeHtml(opts.session.treatment)}). You played as <strong>${escapeHtml(opts.pseudonym)}</strong>.</p>
+<table style="border-collapse:collapse;font-size:15px;width:100%"><thead><tr><th style="text-align:left;padding:4px">Supergame</th><th style="text-align:left;padding:4px">Partner</th><th style="text-align:right;padding:4px">Rounds</th><th style="text-align:right;padding:4px">Points</th></tr></thead><tbody>
+${supergames
+  .map(
+    (s) =>
+      `<tr><td style="padding:4px">${s.supergame}</td><td style="padding:4px">${escapeHtml(s.partners.map(partnerWords).join(', then '))}</td><td style="text-align:right;padding:4px">${s.rounds}</td><td style="text-align:right;padding:4px">${s.points}</td></tr>`,
+  )
+  .join('\n')}
+</tbody></table>
+<p style="font-size:16px"><strong>Points: ${points}</strong><br><strong>Credit: ${escapeHtml(credit)}</strong> <span style="color:#475569">(${escapeHtml(rule)})</span></p>
+<p style="color:#475569;font-size:14px">${opts.session.simulated ? 'This session is part of Parley’s demo: its choices are simulated.' : 'Thank you for taking part.'}</p>`,
+    ),
+  };
+}
+
+/** Queues a mail for every participant who has none yet (a sent one is never sent twice). */
+export async function queueResultMails(sessionId: number): Promise<number> {
+  const people = await db().select({ userId: sessionParticipants.userId }).from(sessionParticipants).where(eq(sessionParticipants.sessionId, sessionId));
+  if (people.length === 0) return 0;
+  const [res] = await db()
+    .insert(resultMails)
+    .values(people.map((p) => ({ sessionId, userId: p.userId })))
+    .onDuplicateKeyUpdate({ set: { sessionId: sql`session_id` } });
+  // affectedRows counts 1 per insert and 0 per untouched duplicate
+  return res.affectedRows;
+}
+
+export async function retryFailedMails(sessionId: number): Promise<number> {
+  const [res] = await db()
+    .update(resultMails)
+    .set({ status: 'queued', error: null })
+    .where(and(eq(resultMails.sessionId, sessionId), eq(resultMails.status, 'failed')));
+  return res.affectedRows;
+}
+
+export async function resultMailStatus(sessionId: number) {
+  const rows = await db()
+    .select({
+      id: resultMails.id,
+      email: users.email,
+      name: users.name,
+      pseudonym: sessionParticipants.pseudonym,
+      status: resultMails.status,
+      attempts: resultMails.attempts,
+      error: resultMails.error,
+      sentAt: resultMails.sentAt,
+    })
+    .from(resultMails)
+    .innerJoin(users, eq(users.id, resultMails.userId))
+    .leftJoin(sessionParticipants, and(eq(sessionParticipants.sessionId, resultMails.sessionId), eq(sessionParticipants.userId, resultMails.userId)))
+    .where(eq(resultMails.sessionId, sessionId))
+    .orderBy(asc(sessionParticipants.seq));
+  const counts = { queued: 0, sending: 0, sent: 0, failed: 0 };
+  for (const r of rows) counts[r.status] += 1;
+  return { rows, counts, busy: counts.queued + counts.sending > 0 };
+}
+
+export interface DrainOptions {
+  send?: (mail: Mail) => Promise<void>;
+  /** pause between two mails */
+  intervalMs?: number;
+}
+
+/**
+ * Sends a session's queued mails one by one until none is left. A row is claimed by a guarded
+ * update (queued → sending), so two loops never send the same mail.
+ */
+export async function drainResultMails(session: PanelSession, opts: DrainOptions = {}): Promise<void> {
+  const send = opts.send ?? sendMail;
+  const intervalMs = opts.intervalMs ?? Math.ceil(60_000 / env().RESULT_MAILS_PER_MINUTE);
+  const [course] = await db().select({ title: courses.title }).from(courses).where(eq(courses.id, session.courseId));
+  for (;;) {
+    const [next] = await db()
+      .select({ id: resultMails.id, userId: resultMails.userId })
+      .from(resultMails)
+      .where(and(eq(resultMails.sessionId, session.id), eq(resultMails.status, 'queued')))
+      .orderBy(asc(resultMails.id))
+      .limit(1);
+    if (!next) return;
+    const [claim] = await db()
+      .update(resultMails)
+      .set({ status: 'sending', attempts: sql`${resultMails.attempts} + 1` })
+      .where(and(eq(resultMails.id, next.id), eq(resultMails.status, 'queued')));
+    if (claim.affectedRows !== 1) continue;
+    try {
+      const [who] = await db()
+        .select({ email: users.email, name: users.name, key: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym })
+        .from(users)
+        .innerJoin(sessionParticipants, and(eq(sessionParticipants.userId, users.id), eq(sessionParticipants.sessionId, session.id)))
+        .where(eq(users.id, next.userId));
+      if (!who) throw new Error('not a participant of this session');
+      const rows: PanelRow[] = [];
+      for await (const page of panelPages([session], { identified: true, participantKeys: [who.key] })) rows.push(...page.rows);
+      await send(resultMail({ to: who.email, name: who.name, course: course?.title ?? 'your course', session, pseudonym: who.pseudonym, rows }));
+      await db().update(resultMails).set({ status: 'sent', sentAt: new Date(), error: null }).where(eq(resultMails.id, next.id));
+    } catch (error) {
+      const message = error instanceof Error ? error.message : String(error);
+      await db()
+        .update(resultMails)
+        .set({ status: 'failed', error: message.slice(0, 500) })
+        .where(eq(resultMails.id, next.id));
+    }
+    await new Promise((r) => setTimeout(r, intervalMs));
+  }
+}
+
+// One background loop per session in this process; started (or resumed) by the results page.
+interface Loop {
+  again: boolean;
+}
+const g = globalThis as unknown as { __parleyResultMailLoops?: Map<number, Loop> };
+
+export function startResultMailLoop(session: PanelSession): void {
+  const loops = (g.__parleyResultMailLoops ??= new Map());
+  const running = loops.get(session.id);
+  if (running) {
+    // mails queued while the loop was finishing are picked up by one more pass
+    running.again = true;
+    return;
+  }
+  const loop: Loop = { again: false };
+  loops.set(session.id, loop);
+  void (async () => {
+    // A mail left "sending" by a stopped process was never confirmed: send it again.
+    await db()
+      .update(resultMails)
+      .set({ status: 'queued' })
+      .where(and(eq(resultMails.sessionId, session.id), inArray(resultMails.status, ['sending'])));
+    do {
+      loop.again = false;
+      await drainResultMails(session);
+    } while (loop.again);
+  })()
+    .catch((error) => console.error('[parley] results e-mails:', error))
+    .finally(() => loops.delete(session.id));
+}
+
+export function resultMailLoopRunning(sessionId: number): boolean {
+  return g.__parleyResultMailLoops?.has(sessionId) ?? false;
+}
