@@ -28,6 +28,7 @@ export default [
     route('courses/:courseId/data', 'routes/staff/data.tsx'),
     route('courses/:courseId/roster', 'routes/staff/roster.tsx'),
     route('courses/:courseId/datasets', 'routes/staff/datasets.tsx'),
+    route('courses/:courseId/datasets/:datasetId/estimate', 'routes/staff/dataset-estimate.tsx'),
     route('courses/:courseId/sessions/:sessionId/results', 'routes/staff/session-results.tsx'),
     route('settings/tokens', 'routes/staff/tokens.tsx'),
     // Debrief (staff): choose sessions, one session, several side by side.

@@ -75,7 +75,20 @@ export function EstimateProgress({ estimate }: { estimate: EstimateStatus }) {
   );
 }
 
-export function EstimationForm({ courseId, sessionIds, start, defaults }: { courseId: number; sessionIds: number[]; start: ReturnType<typeof useEstimateRun>['start']; defaults?: { bootstrap?: number; seed?: number } }) {
+export function EstimationForm({
+  courseId,
+  sessionIds,
+  datasetId,
+  start,
+  defaults,
+}: {
+  courseId: number;
+  /** the sessions to estimate on, or (instead) an uploaded dataset */
+  sessionIds?: number[];
+  datasetId?: number;
+  start: ReturnType<typeof useEstimateRun>['start'];
+  defaults?: { bootstrap?: number; seed?: number };
+}) {
   const [windowKind, setWindowKind] = useState('all');
   const [preset, setPreset] = useState('dbf2011');
   const errors = start.data && !start.data.ok ? (start.data.errors ?? {}) : {};
@@ -83,7 +96,7 @@ export function EstimationForm({ courseId, sessionIds, start, defaults }: { cour
   const groupId = useId();
   return (
     <start.Form method="post" action={`/courses/${courseId}/estimates`} className="flex flex-col gap-4" aria-label="Estimate strategy shares">
-      <input type="hidden" name="sessions" value={sessionIds.join(',')} />
+      {datasetId !== undefined ? <input type="hidden" name="dataset" value={datasetId} /> : <input type="hidden" name="sessions" value={(sessionIds ?? []).join(',')} />}
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
         <SelectField
           label="Supergames to use"

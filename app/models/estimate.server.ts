@@ -94,6 +94,12 @@ export async function estimatesForSessions(courseId: number, sessionIds: readonl
     .filter((e) => e.request.source.kind === 'sessions' && e.request.source.sessionIds.join(',') === wanted);
 }
 
+/** The course's estimations on one uploaded dataset, newest first. */
+export async function estimatesForDataset(courseId: number, datasetId: number): Promise<EstimateStatus[]> {
+  const rows = await db().select().from(estimates).where(eq(estimates.courseId, courseId)).orderBy(desc(estimates.id)).limit(200);
+  return rows.map(toStatus).filter((e) => e.request.source.kind === 'dataset' && e.request.source.datasetId === datasetId);
+}
+
 export type StartResult = { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; status: 404; message: string };
 
 /**

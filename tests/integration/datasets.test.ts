@@ -57,6 +57,12 @@ describe('external panel upload', () => {
       action: expect.stringMatching(/^[CD]$/),
       partnerAction: expect.stringMatching(/^[CD]$/),
     });
+    // The dataset's own estimation page (same request, workers and storage as the Debrief's).
+    const page = await researcher.get(`/courses/${courseId}/datasets/${d.id}/estimate`);
+    expect(page.status).toBe(200);
+    expect(text(await page.text())).toContain('Strategy-frequency estimation');
+    expect((await assistant.get(`/courses/${courseId}/datasets/${d.id}/estimate`)).status).toBe(403);
+    expect((await researcher.get(`/courses/${courseId}/datasets/99999999/estimate`)).status).toBe(404);
   });
 
   it('asks for a column mapping when the names differ, then stores with it', async () => {

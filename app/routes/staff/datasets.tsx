@@ -1,5 +1,5 @@
 import Papa from 'papaparse';
-import { data, Form, useNavigation } from 'react-router';
+import { data, Form, Link, useNavigation } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/datasets';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
@@ -114,7 +114,17 @@ export async function action({ request, params }: Route.ActionArgs) {
 type DatasetRow = Route.ComponentProps['loaderData']['datasets'][number];
 const col = staffColumnHelper<DatasetRow>();
 const columns = col.columns([
-  col.accessor('name', { header: 'Name' }),
+  col.accessor('name', {
+    header: 'Name',
+    cell: (i) => (
+      <span className="flex flex-wrap items-center gap-3">
+        <span className="font-semibold">{i.getValue()}</span>
+        <Link to={`./${i.row.original.id}/estimate`} relative="path" className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+          Estimate strategies<span className="sr-only"> in {i.getValue()}</span>
+        </Link>
+      </span>
+    ),
+  }),
   col.accessor('rowCount', { header: 'Choices', meta: { align: 'right' }, sortFn: 'basic', cell: (i) => `${i.getValue().toLocaleString('en-GB')} rows` }),
   col.accessor('createdAt', { header: 'Uploaded', sortFn: 'datetime', cell: (i) => formatDate(i.getValue()) }),
   col.accessor('by', { header: 'By' }),
