@@ -9,6 +9,7 @@ import express from 'express';
 import type { ServerBuild } from 'react-router';
 import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
+import { resumeResultMails } from '#app/models/result-mails.server';
 import { attachHub } from '#realtime/hub';
 
 const config = env();
@@ -54,6 +55,10 @@ runner
   .recoverAll()
   .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
   .catch((error) => console.error('[parley] could not resume live sessions', error));
+// …and every results e-mail still queued when it stopped.
+resumeResultMails()
+  .then((n) => n && console.log(`[parley] resumed results e-mails of ${n} session(s)`))
+  .catch((error) => console.error('[parley] could not resume results e-mails', error));
 
 httpServer.listen(config.PORT, config.HOST, () => {
   console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);

@@ -9,8 +9,8 @@ import { creditFor, describeCreditRule, formatCredit } from '#app/lib/credit';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { escapeHtml, htmlFrame, type Mail, sendMail } from '#app/utils/mail.server';
-import { courses, resultMails, sessionParticipants, users } from '#drizzle/schema';
-import { type PanelSession, type PanelRow, panelPages } from './panel-export.server';
+import { courses, resultMails, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { type PanelSession, type PanelRow, panelPages, panelSessions } from './panel-export.server';
 
 export interface SupergameLine {
   supergame: number;
@@ -203,4 +203,18 @@ export function startResultMailLoop(session: PanelSession): void {
 
 export function resultMailLoopRunning(sessionId: number): boolean {
   return g.__parleyResultMailLoops?.has(sessionId) ?? false;
+}
+
+/** After a restart: carry on sending every session's queued (or unconfirmed) results e-mails. */
+export async function resumeResultMails(): Promise<number> {
+  const pending = await db()
+    .selectDistinct({ sessionId: resultMails.sessionId, courseId: sessions.courseId })
+    .from(resultMails)
+    .innerJoin(sessions, eq(sessions.id, resultMails.sessionId))
+    .where(inArray(resultMails.status, ['queued', 'sending']));
+  for (const p of pending) {
+    const [session] = await panelSessions(p.courseId, [p.sessionId]);
+    if (session) startResultMailLoop(session);
+  }
+  return pending.length;
 }

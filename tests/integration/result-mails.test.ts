@@ -1,10 +1,10 @@
 import { asc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { panelSessions } from '#app/models/panel-export.server';
-import { drainResultMails } from '#app/models/result-mails.server';
+import { drainResultMails, resumeResultMails } from '#app/models/result-mails.server';
 import { closeDb } from '#app/utils/db.server';
 import { sendMail } from '#app/utils/mail.server';
-import { resultMails } from '#drizzle/schema';
+import { resultMails, sessionParticipants } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { mailTo, waitForMail } from '#tests/helpers/mail';
@@ -121,5 +121,20 @@ describe('results e-mails', () => {
     expect(retried.counts).toEqual({ queued: 0, sending: 0, sent: 3, failed: 0 });
     expect(retried.rows.find((r) => r.email === b.emails[1])).toMatchObject({ status: 'sent', attempts: 2, error: null });
     await waitForMail(b.emails[1], { subject: new RegExp(`Your results from session ${b.sessionId}`) });
+  });
+
+  it('mails queued when the server stopped are sent after a restart', async () => {
+    // As a stopped process leaves them: one queued, one claimed but never confirmed.
+    const existing = await testDb().select().from(resultMails).where(eq(resultMails.sessionId, b.sessionId));
+    if (existing.length === 0) {
+      const ps = await testDb().select().from(sessionParticipants).where(eq(sessionParticipants.sessionId, b.sessionId));
+      await testDb().insert(resultMails).values(ps.slice(0, 2).map((p, k) => ({ sessionId: b.sessionId, userId: p.userId, status: k === 0 ? ('queued' as const) : ('sending' as const) })));
+    } else {
+      await testDb().update(resultMails).set({ status: 'queued' }).where(eq(resultMails.sessionId, b.sessionId));
+    }
+    expect(await resumeResultMails()).toBeGreaterThanOrEqual(1);
+    const done = await settled(b.sessionId);
+    expect(done.counts.queued + done.counts.sending).toBe(0);
+    expect(done.counts.sent).toBeGreaterThanOrEqual(2);
   });
 });
