@@ -74,12 +74,12 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
           {error ? <Notice tone="error">{error}</Notice> : null}
           <div className="flex flex-wrap gap-2">
             {isInstructor && status === 'open' ? <Button onClick={() => command('start')}>Start the session</Button> : null}
-            {status === 'running' ? (
+            {status === 'running' && canSeeFloor ? (
               <Button variant="secondary" onClick={() => command('pause')}>
                 Pause
               </Button>
             ) : null}
-            {status === 'paused' ? <Button onClick={() => command('resume')}>Resume</Button> : null}
+            {status === 'paused' && canSeeFloor ? <Button onClick={() => command('resume')}>Resume</Button> : null}
             {isInstructor && (status === 'running' || status === 'paused') ? (
               <>
                 <Button variant="secondary" onClick={() => command('end-after-supergame')} disabled={floor?.endAfterSupergame}>
