@@ -1,5 +1,5 @@
 import { type ComponentProps, type ReactNode, useId } from 'react';
-import { Link } from 'react-router';
+import { Form, Link } from 'react-router';
 
 export function cx(...parts: (string | false | null | undefined)[]) {
   return parts.filter(Boolean).join(' ');
@@ -133,5 +133,44 @@ export function DemoBadge() {
     <span className="inline-flex items-center gap-1 rounded-full border border-slate-300 bg-white px-2 py-0.5 text-xs font-semibold text-slate-700" title="Invented demo data">
       <span aria-hidden="true">◇</span> Demo · invented data
     </span>
+  );
+}
+
+/**
+ * A one-button form for a row of a staff table (remove, delete, revoke…): hidden fields, an
+ * optional confirmation, and the row's name for screen readers after the visible label.
+ */
+export function RowAction({
+  fields,
+  label,
+  target,
+  confirmText,
+  tone = 'danger',
+}: {
+  fields: Record<string, string | number>;
+  label: string;
+  /** what the row is, read after the label: "Remove ada@…" */
+  target: string;
+  confirmText?: string;
+  tone?: 'danger' | 'quiet';
+}) {
+  return (
+    <Form
+      method="post"
+      onSubmit={(e) => {
+        if (confirmText && !window.confirm(confirmText)) e.preventDefault();
+      }}
+    >
+      {Object.entries(fields).map(([k, v]) => (
+        <input key={k} type="hidden" name={k} value={v} />
+      ))}
+      <button
+        type="submit"
+        className={cx('min-h-9 rounded px-2 font-semibold', tone === 'danger' ? 'text-danger-600 hover:bg-danger-50' : 'text-accent-700 hover:bg-accent-50')}
+      >
+        {label}
+        <span className="sr-only"> {target}</span>
+      </button>
+    </Form>
   );
 }

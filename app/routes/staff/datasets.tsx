@@ -5,7 +5,7 @@ import type { Route } from './+types/datasets';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { CsvFileField, LineIssues } from '#app/components/upload';
-import { Button, Notice, TextField } from '#app/components/ui';
+import { Button, Notice, RowAction, TextField } from '#app/components/ui';
 import { buildPanel, type PanelIssue } from '#app/lib/panel';
 import { type ColumnMap, PARLEY_COLUMNS, parseChoiceCsv } from '#app/lib/panel-csv';
 import { createDataset, DATASET_LIMITS, deleteDataset, listDatasets } from '#app/models/datasets.server';
@@ -132,18 +132,7 @@ const columns = col.columns([
     id: 'actions',
     header: () => <span className="sr-only">Actions</span>,
     cell: (i) => (
-      <Form
-        method="post"
-        onSubmit={(e) => {
-          if (!confirm(`Delete the dataset “${i.row.original.name}”?`)) e.preventDefault();
-        }}
-      >
-        <input type="hidden" name="intent" value="delete" />
-        <input type="hidden" name="id" value={i.row.original.id} />
-        <button type="submit" className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
-          Delete<span className="sr-only"> {i.row.original.name}</span>
-        </button>
-      </Form>
+      <RowAction fields={{ intent: 'delete', id: i.row.original.id }} label="Delete" target={i.row.original.name} confirmText={`Delete the dataset “${i.row.original.name}”?`} />
     ),
   }),
 ]);

@@ -1,9 +1,9 @@
-import { data, Form, Link } from 'react-router';
+import { data, Link } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/designs';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { Notice } from '#app/components/ui';
+import { Notice, RowAction } from '#app/components/ui';
 import { duplicateDesign, listDesigns, setDesignArchived } from '#app/models/design.server';
 import { formatDate } from '#app/utils/format';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
@@ -87,19 +87,13 @@ function columnsFor(courseId: number, canEdit: boolean) {
             header: () => <span className="sr-only">Actions</span>,
             cell: (i) => (
               <div className="flex gap-1">
-                <Form method="post">
-                  <input type="hidden" name="designId" value={i.row.original.id} />
-                  <button name="intent" value="duplicate" className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50">
-                    Duplicate<span className="sr-only"> {i.row.original.name}</span>
-                  </button>
-                </Form>
-                <Form method="post">
-                  <input type="hidden" name="designId" value={i.row.original.id} />
-                  <button name="intent" value={i.row.original.status === 'archived' ? 'restore' : 'archive'} className="min-h-9 rounded px-2 font-semibold text-slate-700 hover:bg-slate-100">
-                    {i.row.original.status === 'archived' ? 'Restore' : 'Archive'}
-                    <span className="sr-only"> {i.row.original.name}</span>
-                  </button>
-                </Form>
+                <RowAction fields={{ intent: 'duplicate', designId: i.row.original.id }} label="Duplicate" target={i.row.original.name} tone="quiet" />
+                <RowAction
+                  fields={{ intent: i.row.original.status === 'archived' ? 'restore' : 'archive', designId: i.row.original.id }}
+                  label={i.row.original.status === 'archived' ? 'Restore' : 'Archive'}
+                  target={i.row.original.name}
+                  tone="quiet"
+                />
               </div>
             ),
           }),

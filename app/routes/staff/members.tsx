@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Route } from './+types/members';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { Button, Notice, SelectField, TextField } from '#app/components/ui';
+import { Button, Notice, RowAction, SelectField, TextField } from '#app/components/ui';
 import {
   changeMemberRole,
   createInvitation,
@@ -120,19 +120,12 @@ function columnsFor(canManage: boolean, me: number) {
             id: 'actions',
             header: () => <span className="sr-only">Actions</span>,
             cell: (i) => (
-              <Form
-                method="post"
-                onSubmit={(e) => {
-                  const who = i.row.original.userId === me ? 'yourself' : i.row.original.email;
-                  if (!confirm(`Remove ${who} from this course?`)) e.preventDefault();
-                }}
-              >
-                <input type="hidden" name="intent" value="remove" />
-                <input type="hidden" name="memberId" value={i.row.original.memberId} />
-                <button type="submit" className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
-                  Remove<span className="sr-only"> {i.row.original.email}</span>
-                </button>
-              </Form>
+              <RowAction
+                fields={{ intent: 'remove', memberId: i.row.original.memberId }}
+                label="Remove"
+                target={i.row.original.email}
+                confirmText={`Remove ${i.row.original.userId === me ? 'yourself' : i.row.original.email} from this course?`}
+              />
             ),
           }),
         ]

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Route } from './+types/tokens';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { PageHeader } from '#app/components/shells';
-import { Button, FieldError, Notice, TextField } from '#app/components/ui';
+import { Button, FieldError, Notice, RowAction, TextField } from '#app/components/ui';
 import { createApiToken, listApiTokens, revokeApiToken, tokenCourseChoices } from '#app/models/api-tokens.server';
 import { requireUser } from '#app/utils/auth.server';
 import { env } from '#app/utils/env.server';
@@ -66,22 +66,17 @@ function columnsFor(titles: Map<number, string>) {
             <span aria-hidden="true">✕</span> Revoked
           </span>
         ) : (
-          <Form
-            method="post"
-            className="flex items-center gap-2"
-            onSubmit={(e) => {
-              if (!confirm(`Revoke “${i.row.original.name}”? Scripts using it stop working.`)) e.preventDefault();
-            }}
-          >
+          <span className="flex items-center gap-2">
             <span className="inline-flex items-center gap-1">
               <span aria-hidden="true">✓</span> Active
             </span>
-            <input type="hidden" name="intent" value="revoke" />
-            <input type="hidden" name="id" value={i.row.original.id} />
-            <button type="submit" className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
-              Revoke<span className="sr-only"> {i.row.original.name}</span>
-            </button>
-          </Form>
+            <RowAction
+              fields={{ intent: 'revoke', id: i.row.original.id }}
+              label="Revoke"
+              target={i.row.original.name}
+              confirmText={`Revoke “${i.row.original.name}”? Scripts using it stop working.`}
+            />
+          </span>
         ),
     }),
   ]);
