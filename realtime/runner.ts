@@ -22,6 +22,7 @@ interface Live {
 class StaleState extends Error {}
 
 const TICK_MS = 5000;
+const EVICT_AFTER_MS = 60_000;
 
 export class SessionRunner {
   private live = new Map<number, Live>();
@@ -96,7 +97,14 @@ export class SessionRunner {
       }
     }
     live.state = res.state;
-    if (res.state.status === 'complete' || res.state.status === 'archived') live.session = { ...live.session, status: res.state.status };
+    if (res.state.status === 'complete' || res.state.status === 'archived') {
+      live.session = { ...live.session, status: res.state.status };
+      // A finished session leaves memory a little later; a phone that asks again reloads it.
+      const t = setTimeout(() => {
+        if (this.live.get(live.session.id) === live) this.live.delete(live.session.id);
+      }, EVICT_AFTER_MS);
+      t.unref();
+    }
     this.applyTimers(live.session.id, res.effects);
     this.broadcast(live, res.effects);
     return res;

@@ -165,10 +165,12 @@ describe('a live session over real sockets', () => {
     await seats[0].socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: v.round!, action: 'C', clientChoiceId: 'in-time-00001' });
     const resolved = await nextView(seats[0].socket!, (x) => x.history.length >= 1, 12_000);
     expect(resolved.history[0].own).toBe('C');
-    const rows = await testDb()
-      .select()
-      .from(choices)
-      .where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+    // The other pair's timer fires at about the same moment: wait for all four round-1 rows.
+    let rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+    for (let i = 0; i < 50 && rows.length < 4; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+    }
     const timeouts = rows.filter((r) => r.source === 'timeout');
     expect(timeouts.length).toBe(3);
     expect(timeouts.every((r) => r.action === 'D')).toBe(true);
