@@ -54,6 +54,9 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
         <ButtonLink to={`/screen/${session.id}`} variant="secondary" target="_blank" rel="noreferrer">
           Big screen ↗
         </ButtonLink>
+        <ButtonLink to={`/courses/${course.id}/debrief/${session.id}`} variant={status === 'complete' ? 'primary' : 'secondary'}>
+          Debrief
+        </ButtonLink>
       </PageHeader>
       {session.simulated ? <Notice title="Simulated session">The choices of this demo session were simulated from a stated strategy mixture; nobody played it.</Notice> : null}
       <div className="mt-4 grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,24rem)]">
