@@ -10,6 +10,8 @@ import type { ServerBuild } from 'react-router';
 import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { resumeResultMails } from '#app/models/result-mails.server';
+import { pruneAuthSessions } from '#app/utils/auth.server';
+import { pruneSignInCodes } from '#app/utils/sign-in.server';
 import { attachHub } from '#realtime/hub';
 
 const config = env();
@@ -59,6 +61,12 @@ runner
 resumeResultMails()
   .then((n) => n && console.log(`[parley] resumed results e-mails of ${n} session(s)`))
   .catch((error) => console.error('[parley] could not resume results e-mails', error));
+
+// Expired sign-ins, old sign-in codes and sign-in events are forgotten every hour.
+const prune = () =>
+  Promise.all([pruneAuthSessions(), pruneSignInCodes()]).catch((error) => console.error('[parley] could not prune sign-in records', error));
+void prune();
+setInterval(prune, 3600_000).unref();
 
 httpServer.listen(config.PORT, config.HOST, () => {
   console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);

@@ -9,6 +9,7 @@ export default [
   route('sign-in/code', 'routes/auth/sign-in-code.tsx'),
   route('sign-in/link', 'routes/auth/sign-in-link.ts'),
   route('sign-out', 'routes/auth/sign-out.ts'),
+  route('account', 'routes/account.tsx'),
   route('invitations/:token', 'routes/invitation.tsx'),
 
   // Staff pages (desktop first): instructors, assistants, researchers, site admins.

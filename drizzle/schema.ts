@@ -95,6 +95,49 @@ export const authEvents = mysqlTable(
   (t) => [index('auth_events_email').on(t.kind, t.email, t.createdAt), index('auth_events_ip').on(t.kind, t.ip, t.createdAt)],
 );
 
+/**
+ * Every sign-in code Parley e-mailed, bound to the address it went to. The sign-in library keeps the
+ * pending e-mail in a cookie the browser can edit, so this row, not the cookie, decides whose code it
+ * is (docs/decisions/024). Keyed by the SHA-256 of the encrypted code data the library puts in that
+ * cookie; the code itself is never stored. Also the ledger for the code-request limits.
+ */
+export const signInCodes = mysqlTable(
+  'sign_in_codes',
+  {
+    id: bigint('id', { mode: 'number' }).autoincrement().primaryKey(),
+    tokenHash: varchar('token_hash', { length: 64 }).notNull().unique(),
+    email: varchar('email', { length: 254 }).notNull(),
+    ip: varchar('ip', { length: 64 }).notNull(),
+    createdAt: createdAt(),
+    expiresAt: datetime('expires_at', { mode: 'date', fsp: 3 }).notNull(),
+    /** wrong codes typed against this one; at the limit it no longer works */
+    failures: int('failures').notNull().default(0),
+    /** a code (or its link) signs in once */
+    usedAt: datetime('used_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [index('sign_in_codes_email').on(t.email, t.createdAt), index('sign_in_codes_ip').on(t.ip, t.createdAt)],
+);
+
+/**
+ * Sign-ins kept on the server: the signed cookie carries only a random token whose SHA-256 is the id
+ * here, so signing out (here or everywhere) really ends it.
+ */
+export const authSessions = mysqlTable(
+  'auth_sessions',
+  {
+    id: varchar('id', { length: 64 }).primaryKey(),
+    userId: int('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    createdAt: createdAt(),
+    lastSeenAt: datetime('last_seen_at', { mode: 'date', fsp: 3 }).notNull(),
+    expiresAt: datetime('expires_at', { mode: 'date', fsp: 3 }).notNull(),
+    ip: varchar('ip', { length: 64 }).notNull(),
+    userAgent: varchar('user_agent', { length: 255 }),
+  },
+  (t) => [index('auth_sessions_user').on(t.userId), index('auth_sessions_expires').on(t.expiresAt)],
+);
+
 /** JSON kept as text: MariaDB's JSON is LONGTEXT, and we parse and validate it ourselves. */
 const jsonText = <T>(name: string) =>
   customType<{ data: T; driverData: string }>({

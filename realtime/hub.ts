@@ -6,11 +6,12 @@ import { eq } from 'drizzle-orm';
 import { Server, type Socket } from 'socket.io';
 import type { z } from 'zod';
 import { LIBRARY } from '#app/lib/automata';
-import { isAdminEmail, userIdFromCookie } from '#app/utils/auth.server';
+import { isAdminEmail, signedInFromCookie } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
 import { roleIn } from '#app/utils/permissions.server';
 import type { CourseRole } from '#app/utils/roles';
 import { setRunner } from '#app/utils/runner.server';
+import { setSocketControl } from '#app/utils/sockets.server';
 import { users } from '#drizzle/schema';
 import { roomOf } from './engine/engine';
 import type { EngineEvent } from './engine/types';
@@ -48,11 +49,21 @@ export function attachHub(httpServer: HttpServer) {
   const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
   setRunner(runner);
 
+  // Every socket belongs to one server-side sign-in; its rooms let a sign-out, a removal or a role
+  // change close it at once (the client reconnects and is authorised afresh, or refused).
+  const userRoom = (userId: number) => `user:${userId}`;
+  const authRoom = (authKey: string) => `auth:${authKey}`;
+  setSocketControl({
+    dropAuthSession: (authKey) => io.in(authRoom(authKey)).disconnectSockets(true),
+    dropUser: (userId) => io.in(userRoom(userId)).disconnectSockets(true),
+  });
+
   io.use(async (socket, next) => {
     try {
-      const userId = await userIdFromCookie(socket.handshake.headers.cookie);
-      if (userId === null) return next(new Error(UNAUTHORIZED));
-      socket.data.userId = userId;
+      const signedIn = await signedInFromCookie(socket.handshake.headers.cookie);
+      if (!signedIn) return next(new Error(UNAUTHORIZED));
+      socket.data.userId = signedIn.userId;
+      socket.data.authKey = signedIn.authKey;
       next();
     } catch {
       next(new Error(UNAUTHORIZED));
@@ -82,6 +93,7 @@ export function attachHub(httpServer: HttpServer) {
   io.on('connection', (socket) => {
     const userId = socket.data.userId;
     const me = String(userId);
+    void socket.join([userRoom(userId), authRoom(socket.data.authKey)]);
     /** sessions this socket plays in, to report its connection state */
     const playing = new Set<number>();
 
@@ -90,7 +102,9 @@ export function attachHub(httpServer: HttpServer) {
     socket.on('session:watch', (payload, ack) =>
       handle(SessionWatch, payload, ack, async ({ sessionId, as }) => {
         if (as === 'participant') {
-          await sessionFor(sessionId);
+          const session = await sessionFor(sessionId);
+          // A member removed from the course keeps no seat, whatever the session's state says.
+          if (!(await roleFor(userId, session.courseId))) throw new Refusal('forbidden', 'You are no longer a member of this course.');
           const state = await runner.state(sessionId);
           if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
           await socket.join(roomOf('participant', String(sessionId), me));
@@ -113,6 +127,9 @@ export function attachHub(httpServer: HttpServer) {
     socket.on('choice:submit', (payload, ack) =>
       handle(ChoiceSubmit, payload, ack, async (c) => {
         await sessionFor(c.sessionId);
+        // Only a socket that was admitted to this session as a participant (session:watch checks
+        // membership) may choose; a removal closes the socket, so its replacement must ask again.
+        if (!playing.has(c.sessionId)) throw new Refusal('forbidden', 'Open the session on this device first.');
         const res = await runner.dispatch(c.sessionId, {
           type: 'choose',
           participantId: me,

@@ -70,6 +70,8 @@ export interface ServerToClientEvents {
 
 export interface SocketData {
   userId: number;
+  /** the server-side sign-in this socket came in with (auth_sessions id) */
+  authKey: string;
 }
 
 /** Error sent with a refused handshake (socket.io `connect_error`). */

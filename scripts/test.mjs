@@ -48,8 +48,6 @@ const env = {
   MAIL_FROM: 'Parley <no-reply@parley.test>',
   APP_URL: `http://127.0.0.1:${port}`,
   ADMIN_EMAILS: 'admin@halvorsen.example',
-  // One address sends every test's requests; the per-address limit has its own test.
-  CODE_REQUESTS_PER_IP: '100000',
   ...localSecrets(dataDir),
   PARLEY_TEST_URL: `http://127.0.0.1:${port}`,
   PARLEY_MAIL_API: `http://127.0.0.1:${mailWebPort}`,

@@ -22,9 +22,14 @@ export function ParticipantShell({ children, email }: { children: ReactNode; ema
       <header className="flex items-center justify-between border-b border-slate-200 bg-white px-4 py-3">
         <Wordmark />
         {email ? (
-          <Form method="post" action="/sign-out">
-            <button className="min-h-11 px-2 text-sm font-semibold text-accent-700 underline-offset-4 hover:underline">Sign out</button>
-          </Form>
+          <div className="flex items-center gap-1">
+            <Link to="/account" className="min-h-11 content-center px-2 text-sm font-semibold text-accent-700 underline-offset-4 hover:underline">
+              Sign-ins
+            </Link>
+            <Form method="post" action="/sign-out">
+              <button className="min-h-11 px-2 text-sm font-semibold text-accent-700 underline-offset-4 hover:underline">Sign out</button>
+            </Form>
+          </div>
         ) : null}
       </header>
       <main className="mx-auto flex w-full max-w-md flex-1 flex-col gap-6 px-4 py-6">{children}</main>
@@ -60,9 +65,9 @@ export function StaffShell({ user, children }: { user: StaffNavUser; children: R
             ) : null}
           </nav>
           <div className="flex items-center gap-3 text-sm text-slate-600">
-            <span className="hidden sm:inline" title="Signed in as">
+            <Link to="/account" className="hidden min-h-11 content-center hover:underline sm:inline" title="Signed in as — your sign-ins">
               {user.email}
-            </span>
+            </Link>
             <Form method="post" action="/sign-out">
               <button className="min-h-11 rounded-md px-3 font-semibold text-accent-700 hover:bg-accent-50">Sign out</button>
             </Form>

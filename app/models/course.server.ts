@@ -165,13 +165,13 @@ export async function acceptInvitation(token: string, user: { id: number; email:
   });
 }
 
-export type MemberChange = { ok: true } | { ok: false; message: string; status: 400 | 404 };
+export type MemberChange = { ok: true; userId: number } | { ok: false; message: string; status: 400 | 404 };
 
 /** Role change and removal keep at least one instructor in the course. */
 export async function changeMemberRole(courseId: number, memberId: number, role: CourseRole | null): Promise<MemberChange> {
   return db().transaction(async (tx) => {
     const [m] = await tx
-      .select({ role: courseMembers.role })
+      .select({ role: courseMembers.role, userId: courseMembers.userId })
       .from(courseMembers)
       .where(and(eq(courseMembers.id, memberId), eq(courseMembers.courseId, courseId)))
       .for('update');
@@ -185,6 +185,6 @@ export async function changeMemberRole(courseId: number, memberId: number, role:
     }
     if (role === null) await tx.delete(courseMembers).where(eq(courseMembers.id, memberId));
     else await tx.update(courseMembers).set({ role }).where(eq(courseMembers.id, memberId));
-    return { ok: true };
+    return { ok: true, userId: m.userId };
   });
 }

@@ -1,30 +1,31 @@
-// Sign-in: e-mailed one-time codes (remix-auth-totp) and a signed cookie.
+// Who is signed in: a signed cookie that carries only a random token, and a row per sign-in in
+// MariaDB (auth_sessions), so signing out (here or everywhere) really ends it. The e-mailed codes
+// that lead here live in sign-in.server.ts.
 // Word clash: the *sign-in session* (a cookie) is not an experiment *session*; code here says
 // "auth session" for the former.
-import { and, count, eq, gt, lt, min } from 'drizzle-orm';
+import { createHash, randomBytes } from 'node:crypto';
+import { and, desc, eq, gt, lt } from 'drizzle-orm';
 import { createCookieSessionStorage, redirect } from 'react-router';
-import { Authenticator } from 'remix-auth';
-import { TOTPStrategy } from 'remix-auth-totp';
-import { authEvents, users } from '#drizzle/schema';
+import { authEvents, authSessions, users } from '#drizzle/schema';
 import { db } from './db.server';
 import { env } from './env.server';
-import { sendMail, signInCodeMail } from './mail.server';
+import { sockets } from './sockets.server';
 
-export const CODE_MINUTES = 10;
-const WINDOW_MINUTES = 15;
+const AUTH_DAYS = 30;
+/** last_seen_at is written at most this often per sign-in (one UPDATE, not one per request) */
+const SEEN_EVERY_MS = 5 * 60_000;
 
-export interface AuthSessionData {
-  userId: number;
+export interface AuthCookieData {
+  /** the random token whose SHA-256 names the auth_sessions row */
+  token: string;
+  /** where to go after signing in (kept while the code is on its way) */
   redirectTo: string;
 }
 
-const g = globalThis as unknown as {
-  __parleyAuthStorage?: ReturnType<typeof makeStorage>;
-  __parleyAuthenticator?: Authenticator<number>;
-};
+const g = globalThis as unknown as { __parleyAuthStorage?: ReturnType<typeof makeStorage> };
 
 function makeStorage() {
-  return createCookieSessionStorage<AuthSessionData>({
+  return createCookieSessionStorage<AuthCookieData>({
     cookie: {
       name: '__parley_auth',
       httpOnly: true,
@@ -32,7 +33,7 @@ function makeStorage() {
       path: '/',
       secure: env().APP_URL.startsWith('https://'),
       secrets: [env().SESSION_SECRET],
-      maxAge: 60 * 60 * 24 * 30,
+      maxAge: 60 * 60 * 24 * AUTH_DAYS,
     },
   });
 }
@@ -46,11 +47,32 @@ export async function getAuthSession(request: Request) {
   return authSessionStorage().getSession(request.headers.get('Cookie'));
 }
 
-/** Reads the user id from a raw Cookie header (also used by the socket hub's handshake). */
-export async function userIdFromCookie(cookieHeader: string | null | undefined): Promise<number | null> {
+const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
+
+export interface SignedIn {
+  userId: number;
+  /** the auth_sessions id (a hash, safe to use as a socket room name) */
+  authKey: string;
+}
+
+/**
+ * The sign-in behind a raw Cookie header, if the server still holds it (pages and the socket hub's
+ * handshake alike). A valid signature is not enough: the row must exist and not have expired.
+ */
+export async function signedInFromCookie(cookieHeader: string | null | undefined): Promise<SignedIn | null> {
   const s = await authSessionStorage().getSession(cookieHeader ?? null);
-  const id = s.get('userId');
-  return typeof id === 'number' ? id : null;
+  const token = s.get('token');
+  if (typeof token !== 'string' || token.length < 32) return null;
+  const authKey = sha256(token);
+  const [row] = await db()
+    .select({ userId: authSessions.userId, lastSeenAt: authSessions.lastSeenAt })
+    .from(authSessions)
+    .where(and(eq(authSessions.id, authKey), gt(authSessions.expiresAt, new Date())));
+  if (!row) return null;
+  if (Date.now() - row.lastSeenAt.getTime() > SEEN_EVERY_MS) {
+    await db().update(authSessions).set({ lastSeenAt: new Date() }).where(eq(authSessions.id, authKey));
+  }
+  return { userId: row.userId, authKey };
 }
 
 export interface CurrentUser {
@@ -65,16 +87,32 @@ export function isAdminEmail(email: string) {
 }
 
 export async function getUser(request: Request): Promise<CurrentUser | null> {
-  const id = await userIdFromCookie(request.headers.get('Cookie'));
-  if (id === null) return null;
-  const [u] = await db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.id, id));
+  const signedIn = await signedInFromCookie(request.headers.get('Cookie'));
+  if (!signedIn) return null;
+  const [u] = await db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.id, signedIn.userId));
   return u ? { ...u, isAdmin: isAdminEmail(u.email) } : null;
 }
 
-/** Safe in-app path to return to after sign-in: never another host. */
+/**
+ * A path on this site to return to after sign-in, or the fallback. The target is resolved the way a
+ * browser resolves it (the URL parser drops tabs and newlines, reads `\` as `/`), and only a result
+ * on our own origin whose path cannot be read as another host is kept.
+ */
 export function safeRedirect(to: FormDataEntryValue | string | null | undefined, fallback = '/') {
-  if (typeof to !== 'string' || !to.startsWith('/') || to.startsWith('//') || to.startsWith('/\\')) return fallback;
-  return to;
+  if (typeof to !== 'string' || !to.startsWith('/')) return fallback;
+  const base = new URL(env().APP_URL);
+  let url: URL;
+  try {
+    url = new URL(to, base);
+  } catch {
+    return fallback;
+  }
+  if (url.origin !== base.origin) return fallback;
+  const path = url.pathname + url.search + url.hash;
+  // "/.//evil.example" resolves to the path "//evil.example": same origin here, another host in a
+  // Location header.
+  if (!path.startsWith('/') || path.startsWith('//') || path.startsWith('/\\')) return fallback;
+  return path;
 }
 
 export async function requireUser(request: Request): Promise<CurrentUser> {
@@ -98,135 +136,67 @@ export function clientIp(request: Request) {
   return request.headers.get('x-parley-client-ip') ?? 'unknown';
 }
 
-export async function recordAuthEvent(kind: 'code-request' | 'code-failure' | 'sign-in', email: string, ip: string) {
+export async function recordAuthEvent(kind: 'code-failure' | 'sign-in', email: string, ip: string) {
   await db().insert(authEvents).values({ kind, email: email.toLowerCase(), ip });
 }
 
-async function countSince(kind: 'code-request' | 'code-failure', column: 'email' | 'ip', value: string, since: Date) {
-  const col = column === 'email' ? authEvents.email : authEvents.ip;
-  const [row] = await db()
-    .select({ n: count(), oldest: min(authEvents.createdAt) })
-    .from(authEvents)
-    .where(and(eq(authEvents.kind, kind), eq(col, value), gt(authEvents.createdAt, since)));
-  return { n: row?.n ?? 0, oldest: row?.oldest ?? null };
+/** Starts a sign-in for a verified e-mail: the user (created if new), a server-side row, the cookie. */
+export async function signInAs(request: Request, email: string) {
+  const normalised = email.trim().toLowerCase();
+  await db().insert(users).values({ email: normalised }).onDuplicateKeyUpdate({ set: { lastSignInAt: new Date() } });
+  const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, normalised));
+  const token = randomBytes(32).toString('base64url');
+  const now = new Date();
+  await db()
+    .insert(authSessions)
+    .values({
+      id: sha256(token),
+      userId: u.id,
+      lastSeenAt: now,
+      expiresAt: new Date(now.getTime() + AUTH_DAYS * 24 * 3600_000),
+      ip: clientIp(request),
+      userAgent: (request.headers.get('user-agent') ?? '').slice(0, 255) || null,
+    });
+  const session = await getAuthSession(request);
+  const to = safeRedirect(session.get('redirectTo'));
+  session.unset('redirectTo');
+  session.set('token', token);
+  await recordAuthEvent('sign-in', normalised, clientIp(request));
+  return { to, cookie: await authSessionStorage().commitSession(session) };
 }
 
-export interface Limited {
-  limited: true;
-  retryAfterSeconds: number;
-  reason: string;
-}
-
-/** Rate limits on code requests (per e-mail and per address) and on wrong codes (per e-mail). */
-export async function checkSignInLimits(
-  kind: 'code-request' | 'code-failure',
-  email: string | null,
-  ip: string,
-): Promise<Limited | null> {
-  const e = env();
-  const since = new Date(Date.now() - WINDOW_MINUTES * 60_000);
-  const checks: { column: 'email' | 'ip'; value: string; max: number; reason: string }[] = [];
-  if (kind === 'code-request') {
-    if (email) checks.push({ column: 'email', value: email.toLowerCase(), max: e.CODE_REQUESTS_PER_EMAIL, reason: 'Too many codes were requested for this e-mail address.' });
-    checks.push({ column: 'ip', value: ip, max: e.CODE_REQUESTS_PER_IP, reason: 'Too many codes were requested from this network.' });
-  } else if (email) {
-    checks.push({ column: 'email', value: email.toLowerCase(), max: e.CODE_FAILURES_PER_EMAIL, reason: 'Too many wrong codes were entered for this e-mail address.' });
-  }
-  for (const c of checks) {
-    const { n, oldest } = await countSince(kind, c.column, c.value, since);
-    if (n >= c.max) {
-      const freeAt = (oldest ?? new Date()).getTime() + WINDOW_MINUTES * 60_000;
-      return { limited: true, reason: c.reason, retryAfterSeconds: Math.max(1, Math.ceil((freeAt - Date.now()) / 1000)) };
+/**
+ * Ends this sign-in (or, `everywhere`, every sign-in of its user) on the server, closes the sockets
+ * that came in with it, and returns the Set-Cookie that clears the browser's copy.
+ */
+export async function signOut(request: Request, { everywhere = false } = {}) {
+  const session = await getAuthSession(request);
+  const signedIn = await signedInFromCookie(request.headers.get('Cookie'));
+  if (signedIn) {
+    if (everywhere) {
+      await db().delete(authSessions).where(eq(authSessions.userId, signedIn.userId));
+      sockets().dropUser(signedIn.userId);
+    } else {
+      await db().delete(authSessions).where(eq(authSessions.id, signedIn.authKey));
+      sockets().dropAuthSession(signedIn.authKey);
     }
   }
-  return null;
+  return authSessionStorage().destroySession(session);
 }
 
-export async function pruneAuthEvents() {
+/** Forgets expired sign-ins and old sign-in events (scheduled by server.ts). */
+export async function pruneAuthSessions() {
+  await db().delete(authSessions).where(lt(authSessions.expiresAt, new Date()));
   await db()
     .delete(authEvents)
     .where(lt(authEvents.createdAt, new Date(Date.now() - 24 * 3600_000)));
 }
 
-/** Finds or creates the user for a verified e-mail and returns the auth session cookie. */
-export async function signInAs(request: Request, email: string) {
-  const normalised = email.trim().toLowerCase();
-  await db().insert(users).values({ email: normalised }).onDuplicateKeyUpdate({ set: { lastSignInAt: new Date() } });
-  const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, normalised));
-  const session = await getAuthSession(request);
-  const to = safeRedirect(session.get('redirectTo'));
-  session.unset('redirectTo');
-  session.set('userId', u.id);
-  await recordAuthEvent('sign-in', normalised, clientIp(request));
-  return { to, cookie: await authSessionStorage().commitSession(session) };
-}
-
-export function authenticator() {
-  if (g.__parleyAuthenticator) return g.__parleyAuthenticator;
-  const a = new Authenticator<number>();
-  const e = env();
-  a.use(
-    new TOTPStrategy(
-      {
-        secret: e.TOTP_SECRET,
-        emailSentRedirect: '/sign-in/code',
-        magicLinkPath: '/sign-in/link',
-        successRedirect: '/',
-        failureRedirect: '/sign-in/code',
-        // Digits only: phones then show the number pad.
-        totpGeneration: { digits: 6, charSet: '0123456789', period: CODE_MINUTES * 60, maxAttempts: 5 },
-        cookieOptions: { maxAge: CODE_MINUTES * 60, path: '/', ...(e.APP_URL.startsWith('https://') ? { secure: true as const } : {}) },
-        customErrors: {
-          invalidTotp: 'That code is not right. Check the latest e-mail and try again.',
-          expiredTotp: 'That code has expired. Ask for a new one.',
-          rateLimitExceeded: 'Too many wrong codes. Ask for a new code.',
-          missingSessionEmail: 'Start again: enter your e-mail address to get a code.',
-          missingSessionTotp: 'That code is no longer valid. Ask for a new one.',
-        },
-        sendTOTP: async ({ email, code, magicLink }) => {
-          // Links in the e-mail must point at the public address, not the one the request came in on.
-          const link = new URL(magicLink);
-          const publicLink = new URL(link.pathname + link.search, e.APP_URL).toString();
-          await sendMail(signInCodeMail(email, code, publicLink, CODE_MINUTES));
-        },
-      },
-      async ({ email, request }) => {
-        const { to, cookie } = await signInAs(request, email);
-        throw redirect(to, { headers: { 'Set-Cookie': cookie } });
-      },
-    ),
-    'TOTP',
-  );
-  g.__parleyAuthenticator = a;
-  return a;
-}
-
-/** The e-mail address waiting for a code, read from the strategy's own cookie. */
-export function pendingSignInEmail(request: Request): string | null {
-  const cookie = request.headers.get('Cookie') ?? '';
-  const raw = cookie
-    .split(/;\s*/)
-    .find((c) => c.startsWith('_totp='))
-    ?.slice('_totp='.length);
-  if (!raw) return null;
-  try {
-    const params = new URLSearchParams(decodeURIComponent(raw));
-    return params.get('email');
-  } catch {
-    return null;
-  }
-}
-
-export function pendingSignInError(request: Request): string | null {
-  const cookie = request.headers.get('Cookie') ?? '';
-  const raw = cookie
-    .split(/;\s*/)
-    .find((c) => c.startsWith('_totp='))
-    ?.slice('_totp='.length);
-  if (!raw) return null;
-  try {
-    return new URLSearchParams(decodeURIComponent(raw)).get('error');
-  } catch {
-    return null;
-  }
+/** The account's sign-ins still held by the server, newest first (the account page lists them). */
+export async function listSignIns(userId: number) {
+  return db()
+    .select({ id: authSessions.id, createdAt: authSessions.createdAt, lastSeenAt: authSessions.lastSeenAt, ip: authSessions.ip, userAgent: authSessions.userAgent })
+    .from(authSessions)
+    .where(and(eq(authSessions.userId, userId), gt(authSessions.expiresAt, new Date())))
+    .orderBy(desc(authSessions.lastSeenAt));
 }

@@ -22,13 +22,16 @@ const schema = z.object({
   SMTP_URL: z.string().startsWith('smtp', 'SMTP_URL must be an smtp:// or smtps:// URL'),
   MAIL_FROM: z.string().min(3).default('Parley <no-reply@parley.test>'),
   ADMIN_EMAILS: csv,
-  /** sign-in codes a single e-mail address may request per 15 minutes */
-  CODE_REQUESTS_PER_EMAIL: z.coerce.number().int().min(1).default(5),
-  /** sign-in codes a single network address may request per 15 minutes (a lecture hall shares few) */
-  CODE_REQUESTS_PER_IP: z.coerce.number().int().min(1).default(200),
-  /** wrong codes an e-mail address may enter per 15 minutes before it must wait (counted on the
-   * server: the strategy's own attempt counter lives in a cookie the client holds) */
-  CODE_FAILURES_PER_EMAIL: z.coerce.number().int().min(1).default(5),
+  /** sign-in codes one e-mail address may be sent per 15 minutes from one network */
+  CODE_REQUESTS_PER_EMAIL_AND_IP: z.coerce.number().int().min(1).default(5),
+  /** sign-in codes one e-mail address may be sent per 15 minutes from anywhere: bounds guessing
+   * (each code takes CODE_WRONG_TRIES tries) and the mail one person can be sent */
+  CODE_REQUESTS_PER_EMAIL: z.coerce.number().int().min(1).default(10),
+  /** sign-in codes one network address may request per 15 minutes (a lecture hall behind one NAT
+   * address signs in 600 students in 10 minutes) */
+  CODE_REQUESTS_PER_IP: z.coerce.number().int().min(1).default(1000),
+  /** wrong codes a code takes before it stops working; its owner asks for a new one */
+  CODE_WRONG_TRIES: z.coerce.number().int().min(1).max(20).default(5),
   /** results e-mails after a session are sent in the background, at most this many per minute */
   RESULT_MAILS_PER_MINUTE: z.coerce.number().int().min(1).max(6000).default(300),
   /** behind a reverse proxy, read the client address from X-Forwarded-For */

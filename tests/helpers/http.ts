@@ -19,7 +19,8 @@ export class Client {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
   }
 
-  private keep(res: Response) {
+  /** Keeps the cookies a response sets, as a browser does. */
+  remember(res: Response) {
     for (const line of res.headers.getSetCookie()) {
       const [pair, ...attrs] = line.split(';');
       const eq = pair.indexOf('=');
@@ -33,7 +34,7 @@ export class Client {
 
   async get(path: string) {
     const res = await fetch(new URL(path, this.base), { headers: { cookie: this.cookieHeader() }, redirect: 'manual' });
-    this.keep(res);
+    this.remember(res);
     return res;
   }
 
@@ -45,7 +46,7 @@ export class Client {
       body,
       redirect: 'manual',
     });
-    this.keep(res);
+    this.remember(res);
     return res;
   }
 
@@ -57,7 +58,7 @@ export class Client {
       body: form,
       redirect: 'manual',
     });
-    this.keep(res);
+    this.remember(res);
     return res;
   }
 }

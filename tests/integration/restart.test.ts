@@ -1,6 +1,5 @@
 // A second app server on its own port (same database) that the test kills with SIGKILL mid-round
 // and starts again: no acknowledged choice may be lost and the session must finish.
-import { type ChildProcess, spawn } from 'node:child_process';
 import { and, eq } from 'drizzle-orm';
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
 import { choices, sessions } from '#drizzle/schema';
@@ -8,32 +7,12 @@ import type { ParticipantView } from '#realtime/engine/types';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, nextView, openSession } from '#tests/helpers/live';
+import { SecondServer } from '#tests/helpers/second-server';
 
-const port = Number(new URL(process.env.PARLEY_TEST_URL!).port) + 40;
-const base = `http://127.0.0.1:${port}`;
-let server: ChildProcess | null = null;
-
-async function startServer() {
-  server = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, PORT: String(port) }, stdio: 'ignore' });
-  const until = Date.now() + 30_000;
-  while (Date.now() < until) {
-    try {
-      if ((await fetch(`${base}/healthz`)).ok) return;
-    } catch {
-      // not listening yet
-    }
-    await new Promise((r) => setTimeout(r, 150));
-  }
-  throw new Error('the second server did not start');
-}
-
-function killServer(signal: NodeJS.Signals) {
-  return new Promise<void>((resolve) => {
-    if (!server || server.exitCode !== null) return resolve();
-    server.once('exit', () => resolve());
-    server.kill(signal);
-  });
-}
+const server = new SecondServer(Number(new URL(process.env.PARLEY_TEST_URL!).port) + 40);
+const base = server.base;
+const startServer = () => server.start();
+const killServer = (signal: NodeJS.Signals) => server.kill(signal);
 
 afterEach(closeSockets);
 afterAll(async () => {

@@ -3,18 +3,20 @@ import { z } from 'zod';
 import type { Route } from './+types/sign-in-code';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice, TextField } from '#app/components/ui';
-import {
-  authenticator,
-  checkSignInLimits,
-  clientIp,
-  CODE_MINUTES,
-  getUser,
-  pendingSignInEmail,
-  pendingSignInError,
-  recordAuthEvent,
-} from '#app/utils/auth.server';
+import { clientIp, getUser } from '#app/utils/auth.server';
 import { formatWait } from '#app/utils/format';
 import { strategyRequest } from '#app/utils/http.server';
+import {
+  authenticator,
+  checkCodeRequestLimits,
+  CODE_MINUTES,
+  codeState,
+  countWrongTry,
+  issueCode,
+  pendingCode,
+  refusalMessage,
+  strategyFailed,
+} from '#app/utils/sign-in.server';
 
 const CodeForm = z.object({
   code: z
@@ -23,40 +25,44 @@ const CodeForm = z.object({
     .pipe(z.string().regex(/^\d{6}$/, 'The code has six digits.')),
 });
 
+type Refused = { reason: string; title: string; retryAfterSeconds: number | null };
+
 export async function loader({ request }: Route.LoaderArgs) {
   if (await getUser(request)) throw redirect('/');
-  const email = pendingSignInEmail(request);
-  const error = pendingSignInError(request);
-  if (!email && !error) throw redirect('/sign-in');
-  return { email, error, minutes: CODE_MINUTES };
+  const pending = pendingCode(request);
+  const error = refusalMessage(new URL(request.url).searchParams.get('refused')) ?? pending.error;
+  if (!pending.email && !error) throw redirect('/sign-in');
+  return { email: pending.email, error, minutes: CODE_MINUTES };
 }
 
 export async function action({ request }: Route.ActionArgs) {
   const form = await request.clone().formData();
-  const email = pendingSignInEmail(request);
+  const pending = pendingCode(request);
+  const email = pending.email;
   if (!email) throw redirect('/sign-in');
   const ip = clientIp(request);
+  const refuse = (status: number, refused: Refused) =>
+    data({ errors: {} as { code?: string }, refused }, { status, headers: refused.retryAfterSeconds ? { 'Retry-After': String(refused.retryAfterSeconds) } : undefined });
 
   if (form.get('intent') === 'resend') {
-    const limited = await checkSignInLimits('code-request', email, ip);
-    if (limited) return data({ errors: {}, limited }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
-    await recordAuthEvent('code-request', email, ip);
+    const limited = await checkCodeRequestLimits(email, ip);
+    if (limited) return refuse(429, { title: 'Too many requests', reason: limited.reason, retryAfterSeconds: limited.retryAfterSeconds });
     // No e-mail and no code in the form: the strategy sends a new code to the pending address.
-    await authenticator().authenticate('TOTP', strategyRequest(request, {}));
-    throw new Error('the sign-in strategy returned without a redirect');
+    const { issue, response } = await issueCode(strategyRequest(request, {}), email, ip);
+    if (!issue.sent) return refuse(503, { title: 'Not sent', reason: issue.message, retryAfterSeconds: null });
+    throw response;
   }
 
   const parsed = CodeForm.safeParse({ code: String(form.get('code') ?? '') });
-  if (!parsed.success) return data({ errors: { code: parsed.error.issues[0]?.message }, limited: null }, { status: 400 });
-  const limited = await checkSignInLimits('code-failure', email, ip);
-  if (limited) return data({ errors: {}, limited }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
+  if (!parsed.success) return data({ errors: { code: parsed.error.issues[0]?.message }, refused: null }, { status: 400 });
+  // Parley's record of the code decides, not the cookie (app/utils/sign-in.server.ts).
+  const state = await codeState(pending);
+  if (!state.ok) return refuse(state.reason === 'dead' ? 429 : 400, { title: 'This code no longer works', reason: state.message, retryAfterSeconds: null });
   try {
     await authenticator().authenticate('TOTP', strategyRequest(request, { code: parsed.data.code }));
   } catch (thrown) {
     // The strategy answers a wrong or expired code with a redirect back to this page.
-    if (thrown instanceof Response && new URL(thrown.headers.get('Location') ?? '/', 'http://x').pathname === '/sign-in/code') {
-      await recordAuthEvent('code-failure', email, ip);
-    }
+    if (strategyFailed(thrown)) await countWrongTry(pending, ip);
     throw thrown;
   }
   throw new Error('the sign-in strategy returned without a redirect');
@@ -77,9 +83,10 @@ export default function SignInCode({ loaderData, actionData }: Route.ComponentPr
         ) : null}
       </div>
       {loaderData.error ? <Notice tone="error">{loaderData.error}</Notice> : null}
-      {actionData?.limited ? (
-        <Notice tone="error" title="Too many attempts">
-          {actionData.limited.reason} Try again in {formatWait(actionData.limited.retryAfterSeconds)}.
+      {actionData?.refused ? (
+        <Notice tone="error" title={actionData.refused.title}>
+          {actionData.refused.reason}
+          {actionData.refused.retryAfterSeconds ? ` Try again in ${formatWait(actionData.refused.retryAfterSeconds)}.` : null}
         </Notice>
       ) : null}
       {loaderData.email ? (

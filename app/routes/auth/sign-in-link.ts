@@ -1,9 +1,21 @@
+import { redirect } from 'react-router';
 import type { Route } from './+types/sign-in-link';
-import { authenticator } from '#app/utils/auth.server';
+import { clientIp } from '#app/utils/auth.server';
+import { authenticator, codeState, countWrongTry, pendingCode, strategyFailed } from '#app/utils/sign-in.server';
 
-// The magic link in the sign-in e-mail: the strategy validates it (same device: it needs the
-// pending-code cookie) and redirects to the app or back to the code page with a message.
+// The magic link in the sign-in e-mail: the strategy checks it (same device: it needs the
+// pending-code cookie), and Parley's record of the code decides whether it may sign in
+// (app/utils/sign-in.server.ts); then on to the app, or back to the code page with a message.
 export async function loader({ request }: Route.LoaderArgs) {
-  await authenticator().authenticate('TOTP', request);
+  const pending = pendingCode(request);
+  if (!pending.email) throw redirect('/sign-in');
+  const state = await codeState(pending);
+  if (!state.ok) throw redirect(`/sign-in/code?refused=${state.reason}`);
+  try {
+    await authenticator().authenticate('TOTP', request);
+  } catch (thrown) {
+    if (strategyFailed(thrown)) await countWrongTry(pending, clientIp(request));
+    throw thrown;
+  }
   throw new Error('the sign-in strategy returned without a redirect');
 }

@@ -3,16 +3,8 @@ import { z } from 'zod';
 import type { Route } from './+types/sign-in';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice, TextField } from '#app/components/ui';
-import {
-  authenticator,
-  authSessionStorage,
-  checkSignInLimits,
-  clientIp,
-  getAuthSession,
-  getUser,
-  recordAuthEvent,
-  safeRedirect,
-} from '#app/utils/auth.server';
+import { authSessionStorage, clientIp, getAuthSession, getUser, safeRedirect } from '#app/utils/auth.server';
+import { checkCodeRequestLimits, issueCode } from '#app/utils/sign-in.server';
 import { formatWait } from '#app/utils/format';
 import { strategyRequest, withCookie } from '#app/utils/http.server';
 
@@ -32,25 +24,21 @@ export async function action({ request }: Route.ActionArgs) {
   const form = await request.clone().formData();
   const parsed = SignInForm.safeParse({ email: String(form.get('email') ?? '').trim(), redirectTo: form.get('redirectTo') ?? undefined });
   if (!parsed.success) {
-    return data({ errors: { email: parsed.error.issues[0]?.message } as { email?: string }, limited: null }, { status: 400 });
+    return data({ errors: { email: parsed.error.issues[0]?.message } as { email?: string }, limited: null, email: String(form.get('email') ?? '') }, { status: 400 });
   }
   const email = parsed.data.email.toLowerCase();
   const ip = clientIp(request);
-  const limited = await checkSignInLimits('code-request', email, ip);
-  if (limited) return data({ errors: {} as { email?: string }, limited }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
-  await recordAuthEvent('code-request', email, ip);
+  const limited = await checkCodeRequestLimits(email, ip);
+  if (limited) return data({ errors: {} as { email?: string }, limited, email }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
 
   const session = await getAuthSession(request);
   session.set('redirectTo', safeRedirect(parsed.data.redirectTo));
   const cookie = await authSessionStorage().commitSession(session);
   // The strategy re-reads the body, so hand it a request whose e-mail is normalised.
-  const forStrategy = strategyRequest(request, { email });
-  try {
-    await authenticator().authenticate('TOTP', forStrategy);
-  } catch (thrown) {
-    throw withCookie(thrown, cookie);
-  }
-  throw new Error('the sign-in strategy returned without a redirect');
+  const { issue, response } = await issueCode(strategyRequest(request, { email }), email, ip);
+  // Mail server down or slow: say so on this form, keep what was typed, count nothing.
+  if (!issue.sent) return data({ errors: { email: issue.message } as { email?: string }, limited: null, email }, { status: 503 });
+  throw withCookie(response, cookie);
 }
 
 export default function SignIn({ loaderData, actionData }: Route.ComponentProps) {
@@ -78,6 +66,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
           spellCheck={false}
           required
           autoFocus
+          defaultValue={actionData?.email}
           error={actionData?.errors?.email}
         />
         <Button type="submit" disabled={busy} className="min-h-14 text-lg">

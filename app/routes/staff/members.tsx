@@ -12,6 +12,7 @@ import {
   revokeInvitation,
 } from '#app/models/course.server';
 import { env } from '#app/utils/env.server';
+import { sockets } from '#app/utils/sockets.server';
 import { fieldErrors } from '#app/utils/forms';
 import { formatDate, ROLE_WORDS } from '#app/utils/format';
 import { invitationMail, sendMail } from '#app/utils/mail.server';
@@ -64,6 +65,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     case 'remove': {
       const res = await changeMemberRole(course.id, a.memberId, a.intent === 'remove' ? null : a.role);
       if (!res.ok) return fail(res.message, res.status);
+      // Live pages of that person reconnect and are authorised under the new role (or refused).
+      sockets().dropUser(res.userId);
       return { ok: true as const, intent: a.intent, message: a.intent === 'remove' ? 'Member removed.' : 'Role changed.' };
     }
     case 'revoke': {

@@ -1,0 +1,41 @@
+// A second app server on its own port (same database and build), for tests that must kill a server
+// or start one with another environment (a dead mail server, say).
+import { type ChildProcess, spawn } from 'node:child_process';
+
+export class SecondServer {
+  process: ChildProcess | null = null;
+
+  constructor(
+    readonly port: number,
+    readonly env: Record<string, string> = {},
+  ) {}
+
+  get base() {
+    return `http://127.0.0.1:${this.port}`;
+  }
+
+  /** Starts it and waits until /healthz answers. */
+  async start() {
+    this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, ...this.env, PORT: String(this.port) }, stdio: 'ignore' });
+    const until = Date.now() + 30_000;
+    while (Date.now() < until) {
+      try {
+        if ((await fetch(`${this.base}/healthz`)).ok) return;
+      } catch {
+        // not listening yet
+      }
+      await new Promise((r) => setTimeout(r, 150));
+    }
+    throw new Error(`the second server on port ${this.port} did not start`);
+  }
+
+  /** Stops it with a signal and waits for the process to exit. */
+  kill(signal: NodeJS.Signals = 'SIGKILL') {
+    const p = this.process;
+    return new Promise<void>((resolve) => {
+      if (!p || p.exitCode !== null || p.signalCode !== null) return resolve();
+      p.once('exit', () => resolve());
+      p.kill(signal);
+    });
+  }
+}
