@@ -409,10 +409,16 @@ function beginSupergame(d: Draft, number: number, at: number): void {
   });
   const oddCounts: Record<string, number> = {};
   for (const id of pool) oddCounts[id] = s.participants[id].oddCount;
+  // s.pairs still holds the supergame just played: nobody meets that partner again when avoidable
+  const lastPairs = Object.values(s.pairs).flatMap((pair): [string, string][] => {
+    const [x, y] = pair.seats;
+    return x.participantId && y.participantId ? [[x.participantId, y.participantId]] : [];
+  });
   const matching = matchSupergame({
     supergame: number,
     participants: pool,
     pastPairs: s.pastPairs,
+    lastPairs,
     oddCounts,
     policy: design.oddCount,
     seed: s.seed,

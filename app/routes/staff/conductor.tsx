@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { Link } from 'react-router';
 import type { Route } from './+types/conductor';
+import { MATCHING_RULE } from '#app/lib/matching-rule';
 import { useSessionView } from '#app/components/live/use-session';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, ButtonLink, Notice } from '#app/components/ui';
@@ -134,6 +135,9 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
             </p>
             <p className="mt-1 text-slate-600">
               Seed <span className="font-mono">{session.seed}</span> (type it when opening another session to reuse these draws)
+            </p>
+            <p className="mt-2 text-slate-700">
+              <span className="font-semibold">Matching.</span> {MATCHING_RULE}
             </p>
             <p className="mt-2">
               <Link to={`/courses/${course.id}/sessions`} className="font-semibold text-accent-700 underline">
