@@ -13,29 +13,62 @@ import type { GroupBy } from '../app/lib/panel';
 import type { BootstrapSummary } from '../app/lib/sfem';
 import { bootstrapOnWorkers } from '../app/lib/sfem-workers.server';
 
-const argv = process.argv.slice(2);
-const { values } = parseArgs({
-  args: argv[0] === '--' ? argv.slice(1) : argv,
-  options: {
-    file: { type: 'string' },
-    map: { type: 'string', multiple: true },
-    by: { type: 'string', default: 'treatment' },
-    window: { type: 'string', default: 'all' },
-    strategies: { type: 'string' },
-    bootstrap: { type: 'string', default: '0' },
-    seed: { type: 'string', default: '1' },
-    starts: { type: 'string' },
-    workers: { type: 'string', default: '2' },
-    json: { type: 'boolean', default: false },
-  },
-});
+const USAGE = `Strategy-frequency estimation (SFEM) on a choice-panel CSV.
+
+Usage: npm run -s estimate -- --file panel.csv [options]
+
+  --file PATH            the panel (Parley's export, or any panel with --map)
+  --map FIELD=COLUMN     read FIELD from COLUMN (repeat; fields: session, treatment, subject,
+                         partner, supergame, round, action, partner_action)
+  --by treatment|session|none   groups estimated separately (default treatment)
+  --window all|after-rounds:R|last:N|supergames:A-B   supergames used (default all)
+  --strategies ALLD,ALLC,Grim,TFT,WSLS,T2   the strategy set (default: those six)
+  --bootstrap B          bootstrap replicates over subjects for standard errors (default 0)
+  --seed S               seed of the bootstrap (default 1)
+  --starts N             EM starting points
+  --workers N            worker threads for the bootstrap (default 2)
+  --json                 print JSON instead of a table
+  --help                 this text
+
+Example (Dal Bó & Fréchette 2011 panel):
+  npm run -s estimate -- --file choices.csv --window after-rounds:110 --bootstrap 200 --seed 1 \\
+    --map subject=subject --map action=cooperate --map partner_action=partner_cooperate`;
 
 function fail(message: string): never {
   console.error(message);
   process.exit(1);
 }
 
-if (!values.file) fail('Usage: estimate --file panel.csv [--map field=column …] [--by treatment] [--window after-rounds:110] [--strategies ALLD,ALLC,Grim,TFT,WSLS,T2] [--bootstrap 200 --seed 1] [--json]');
+const argv = process.argv.slice(2);
+const args = argv[0] === '--' ? argv.slice(1) : argv;
+if (args.includes('--help') || args.includes('-h')) {
+  console.log(USAGE);
+  process.exit(0);
+}
+let parsed;
+try {
+  parsed = parseArgs({
+    args,
+    options: {
+      file: { type: 'string' },
+      map: { type: 'string', multiple: true },
+      by: { type: 'string', default: 'treatment' },
+      window: { type: 'string', default: 'all' },
+      strategies: { type: 'string' },
+      bootstrap: { type: 'string', default: '0' },
+      seed: { type: 'string', default: '1' },
+      starts: { type: 'string' },
+      workers: { type: 'string', default: '2' },
+      json: { type: 'boolean', default: false },
+    },
+  });
+} catch (e) {
+  // an unknown or malformed option: say which, then how to call it
+  fail(`${e instanceof Error ? e.message : String(e)}\n\n${USAGE}`);
+}
+const { values } = parsed;
+
+if (!values.file) fail(USAGE);
 if (!['treatment', 'session', 'none'].includes(values.by)) fail(`--by must be treatment, session or none (got ${values.by})`);
 const B = Number(values.bootstrap);
 const seed = Number(values.seed);

@@ -32,13 +32,17 @@ export function csvHref(courseId: number, chart: ChartId, sessionIds: number[], 
     : `/courses/${courseId}/debrief/csv/${chart}?sessions=${sessionIds.join(',')}`;
 }
 
-/** Words for the χ² test of one session's lengths (methods.md §2). */
+/** Words for the test of one session's lengths against the geometric law. */
 export function lengthTestWords(s: TableSession): string {
   const t = s.debrief.lengths.test;
-  if (!t.ok) return `#${s.id}: no χ² test — ${s.debrief.lengths.lengths.length} supergames are too few for two bins with expected counts of at least 5.`;
+  if (!t.ok) return `#${s.id}: no test — ${t.message}.`;
   const r = t.result;
   const bins = r.bins.map((b) => (b.to === null ? `${b.from}+` : String(b.from))).join(', ');
-  return `#${s.id}: χ² = ${r.statistic.toFixed(3)}, df = ${r.df}, p = ${r.pValue.toFixed(3)} (${r.n} supergames; bins ${bins}; δ = ${f3(r.delta)} known).`;
+  const p =
+    r.method === 'simulated'
+      ? `simulated p = ${r.pValue.toFixed(3)} from ${r.replicates?.toLocaleString('en-US')} seeded samples (too few supergames for the χ² distribution)`
+      : `df = ${r.df}, p = ${r.pValue.toFixed(3)}`;
+  return `#${s.id}: χ² = ${r.statistic.toFixed(3)}, ${p} (${r.n} supergames; bins ${bins}; δ = ${f3(r.delta)} known).`;
 }
 
 export function debriefCharts(courseId: number, sessions: TableSession[], estimate?: { id: number; groups: StrategyGroup[]; B: number; seed: number; window: string }): DebriefChart[] {

@@ -51,8 +51,48 @@ describe('geometricLengthGof', () => {
   });
 
   it('refuses what cannot be tested', () => {
-    expect(() => geometricLengthGof([1, 2, 3], 0.5)).toThrow(/too few supergames/);
     expect(() => geometricLengthGof([1, 2.5], 0.5)).toThrow(/integers/);
     expect(() => geometricLengthGof([1, 2], 1)).toThrow(/δ must lie/);
+    expect(() => geometricLengthGof([], 0.5)).toThrow(/no supergame lengths/);
+  });
+
+  it('small samples (25 supergames at δ = 0.9) get a simulated p-value, seeded and reproducible', () => {
+    // n(1−δ) = 2.5 < 5: no two bins can expect 5, so the χ² distribution does not apply.
+    const lengths = [1, 3, 12, 5, 9, 2, 20, 7, 1, 14, 6, 4, 30, 8, 10, 2, 11, 17, 3, 9, 5, 1, 25, 13, 6];
+    const r = geometricLengthGof(lengths, 0.9, { seed: 1 });
+    expect(r.method).toBe('simulated');
+    expect(r.replicates).toBe(9999);
+    // bins expect ≥ 1: 25·0.1·0.9^(k−1) ≥ 1 up to k = 9, so bins 1…8 and 9+ [calc]
+    expect(r.tailFrom).toBe(9);
+    expect(r.bins.reduce((s, b) => s + b.expected, 0)).toBeCloseTo(25, 9);
+    expect(r.pValue).toBeGreaterThan(0);
+    expect(r.pValue).toBeLessThanOrEqual(1);
+    expect(geometricLengthGof(lengths, 0.9, { seed: 1 }).pValue).toBe(r.pValue);
+  });
+
+  it('the simulated p-value is valid: under the law, p ≤ 0.05 in about 5 % of samples', () => {
+    // Source: a valid test's size [common practice]. 400 seeded samples of 20 lengths at δ = 0.9,
+    // B = 999 each; the count with p ≤ 0.05 is Binomial(400, 0.05) under the law: mean 20, and
+    // 6…36 holds with probability > 0.999 [calc].
+    let small = 0;
+    for (let s = 0; s < 400; s++) {
+      const u = (k: number) => ((Math.sin(s * 97.13 + k * 13.7) * 43758.5453) % 1 + 1) % 1 || 0.5;
+      const lengths = Array.from({ length: 20 }, (_, k) => 1 + Math.floor(Math.log(u(k)) / Math.log(0.9)));
+      if (geometricLengthGof(lengths, 0.9, { seed: s, replicates: 999 }).pValue <= 0.05) small++;
+    }
+    expect(small).toBeGreaterThanOrEqual(6);
+    expect(small).toBeLessThanOrEqual(36);
+  });
+
+  it('with enough supergames the simulated and the χ² p-value agree within Monte Carlo error', () => {
+    const lengths = [...Array(55).fill(1), ...Array(20).fill(2), ...Array(15).fill(3), ...Array(6).fill(4), 5, 6, 7, 9];
+    const chi = geometricLengthGof(lengths, 0.5);
+    // the same bins through the small-sample path: force it by asking every bin to expect ≥ 1000
+    const sim = geometricLengthGof(lengths, 0.5, { minExpected: 1000, seed: 3 });
+    expect(sim.method).toBe('simulated');
+    const same = geometricLengthGof(lengths, 0.5, { tailFrom: sim.tailFrom });
+    // standard error of a Monte Carlo p near 0.3 with B = 9,999 is about 0.005: allow 4 of them
+    expect(Math.abs(sim.pValue - same.pValue)).toBeLessThan(0.02);
+    expect(chi.method).toBe('chi-square');
   });
 });

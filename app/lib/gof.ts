@@ -3,6 +3,7 @@
  * (methods.md §2): P(L = k) = (1−δ)δ^(k−1), P(L ≥ k) = δ^(k−1). One length per session-supergame
  * (all pairs of a session share the draw). Pearson's χ² with δ known. Pure.
  */
+import { randomInt, rngFor } from './rng';
 
 /** ln Γ(x) for x > 0, Lanczos approximation (g = 7, n = 9; Numerical Recipes §6.1 style). */
 function logGamma(x: number): number {
@@ -93,9 +94,21 @@ export interface GofResult {
   /** bins − 1: δ is known, no degree of freedom is lost (methods.md §2) */
   df: number;
   pValue: number;
+  /**
+   * 'chi-square': p from the χ² distribution (every bin expects ≥ 5);
+   * 'simulated': too few supergames for that, so p is the share of `replicates` seeded samples of
+   * n geometric lengths whose statistic (same bins) is at least the observed one, (1 + #≥)/(1 + B)
+   * (a Monte Carlo test; Davison & Hinkley 1997, ch. 4 [recalled from memory]).
+   */
+  method: 'chi-square' | 'simulated';
+  /** for 'simulated': B and the seed of the samples */
+  replicates: number | null;
   /** m of the tail bin "m+" */
   tailFrom: number;
 }
+
+/** Samples drawn for a small-sample p-value: its Monte Carlo standard error is at most 0.005. */
+export const SIMULATED_REPLICATES = 9999;
 
 /**
  * Pearson χ² of realised lengths against the geometric law with δ known (methods.md §2).
@@ -104,11 +117,14 @@ export interface GofResult {
  * with the longest length that still reaches it, so m is the largest k with n(1−δ)δ^(k−1) ≥ 5 and
  * every bin's expected count is ≥ 5. This is the rule behind methods.md §2's check values (bins
  * 1…9, 10+ for the δ = 3/4 sessions of dbf2011, 1…5, 6+ for δ = 1/2); `tailFrom` overrides it.
+ *
+ * Too few supergames for two such bins (e.g. 25 at δ = 0.9): the same statistic with bins that
+ * expect at least 1, and a simulated p-value instead of the χ² distribution's.
  */
 export function geometricLengthGof(
   lengths: readonly number[],
   delta: number,
-  options: { minExpected?: number; tailFrom?: number } = {},
+  options: { minExpected?: number; tailFrom?: number; seed?: number; replicates?: number } = {},
 ): GofResult {
   if (!(delta > 0 && delta < 1)) throw new Error(`δ must lie in (0, 1) (got ${delta})`);
   for (const L of lengths)
@@ -118,19 +134,43 @@ export function geometricLengthGof(
   const minExpected = options.minExpected ?? 5;
   // Source: methods.md §2, P(L = k) = (1−δ)δ^(k−1), P(L ≥ k) = δ^(k−1).
   const pointExpected = (k: number) => n * (1 - delta) * delta ** (k - 1);
-  let m = options.tailFrom ?? 1;
-  if (options.tailFrom === undefined) while (pointExpected(m + 1) >= minExpected) m++;
-  if (!Number.isInteger(m) || m < 2)
-    throw new Error(
-      `too few supergames for a χ² test against the geometric law: need at least two bins with expected counts ≥ ${minExpected}`,
-    );
+  const tailFor = (least: number) => {
+    let m = 1;
+    while (pointExpected(m + 1) >= least) m++;
+    return m;
+  };
+  let m = options.tailFrom ?? tailFor(minExpected);
+  let method: GofResult['method'] = 'chi-square';
+  if (options.tailFrom === undefined && m < 2) {
+    method = 'simulated';
+    m = Math.max(2, tailFor(1));
+  }
+  if (!Number.isInteger(m) || m < 2) throw new Error(`tailFrom must be an integer ≥ 2 (got ${m})`);
 
-  const bins: GofBin[] = [];
-  for (let k = 1; k < m; k++)
-    bins.push({ from: k, to: k, observed: lengths.filter((L) => L === k).length, expected: pointExpected(k) });
-  bins.push({ from: m, to: null, observed: lengths.filter((L) => L >= m).length, expected: n * delta ** (m - 1) });
-
-  const statistic = bins.reduce((s, b) => s + (b.observed - b.expected) ** 2 / b.expected, 0);
+  const expected = Array.from({ length: m }, (_, i) => (i + 1 < m ? pointExpected(i + 1) : n * delta ** (m - 1)));
+  const observedIn = (ls: ArrayLike<number>) => {
+    const counts = new Array<number>(m).fill(0);
+    for (let i = 0; i < ls.length; i++) counts[Math.min(ls[i], m) - 1]++;
+    return counts;
+  };
+  const pearson = (counts: readonly number[]) => counts.reduce((s, o, i) => s + (o - expected[i]) ** 2 / expected[i], 0);
+  const observed = observedIn(lengths);
+  const bins: GofBin[] = observed.map((o, i) => ({ from: i + 1, to: i + 1 < m ? i + 1 : null, observed: o, expected: expected[i] }));
+  const statistic = pearson(observed);
   const df = bins.length - 1;
-  return { n, delta, bins, statistic, df, pValue: chiSquareSurvival(statistic, df), tailFrom: m };
+  if (method === 'chi-square') return { n, delta, bins, statistic, df, pValue: chiSquareSurvival(statistic, df), method, replicates: null, tailFrom: m };
+
+  const B = options.replicates ?? SIMULATED_REPLICATES;
+  const rng = rngFor(options.seed ?? 0, 'gof', 0);
+  // Geometric lengths by inversion: L = 1 + ⌊ln U / ln δ⌋, U uniform on (0, 1] in steps of 2^−31.
+  const SCALE = 2 ** 31;
+  const logDelta = Math.log(delta);
+  const sample = new Int32Array(n);
+  let atLeast = 0;
+  for (let b = 0; b < B; b++) {
+    for (let i = 0; i < n; i++) sample[i] = 1 + Math.floor(Math.log(randomInt(rng, 1, SCALE) / SCALE) / logDelta);
+    // a tiny tolerance: the observed statistic and an equal simulated one may differ in the last bit
+    if (pearson(observedIn(sample)) >= statistic - 1e-9) atLeast++;
+  }
+  return { n, delta, bins, statistic, df, pValue: (1 + atLeast) / (1 + B), method, replicates: B, tailFrom: m };
 }

@@ -49,7 +49,7 @@ function mix32(x: number): number {
 }
 
 /** Separate domains so the draw stream and the matching stream of one seed never coincide. */
-const DOMAINS = { draws: 0x64726177, matching: 0x6d617463, schedule: 0x73636864 } as const;
+const DOMAINS = { draws: 0x64726177, matching: 0x6d617463, schedule: 0x73636864, gof: 0x676f6674 } as const;
 export type RngDomain = keyof typeof DOMAINS;
 
 /**
