@@ -85,7 +85,7 @@ describe('who sees a Debrief', () => {
 
   it('the staff Debrief is de-identified: pseudonyms, no names or e-mails', async () => {
     const page = await (await clients.researcher.get(`/courses/${courseId}/debrief/csv/points?sessions=${sessionId}`)).text();
-    expect(page.split('\r\n')[0]).toBe('session,treatment,pseudonym,points');
+    expect(page.split('\n')[0]).toBe('session,treatment,pseudonym,points');
     expect(page).toContain('P-001');
     expect(page).not.toMatch(/@tests\.parley\.test/);
   });
@@ -190,7 +190,7 @@ describe('estimation through the real server', () => {
     const csv = await clients.instructor.get(`/courses/${courseId}/debrief/csv/strategies?estimate=${started.estimate.id}`);
     expect(csv.status).toBe(200);
     expect(csv.headers.get('content-type')).toContain('text/csv');
-    expect((await csv.text()).split('\r\n')).toHaveLength(7);
+    expect((await csv.text()).trimEnd().split('\n')).toHaveLength(7);
   });
 
   it('an uploaded dataset with the same rows gives the same estimate', async () => {
