@@ -7,7 +7,6 @@ import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { and, desc, eq, ne } from 'drizzle-orm';
-import { z } from 'zod';
 import { libraryStrategy } from '#app/lib/automata';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
 import { estimateGroups } from '#app/lib/sfem';
@@ -15,6 +14,7 @@ import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 import { db } from '#app/utils/db.server';
 import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
 import { datasets, estimates } from '#drizzle/schema';
+import { datasetChoiceRows } from './datasets.server';
 import { estimationRows, getCourseSessions, loadSessionPanel } from './panel.server';
 
 export interface GroupResult {
@@ -161,17 +161,6 @@ function enqueue(id: number) {
     .finally(() => j.known.delete(id));
 }
 
-const datasetRowSchema = z.object({
-  session: z.coerce.string().min(1),
-  treatment: z.coerce.string().min(1),
-  subject: z.coerce.string().min(1),
-  partner: z.coerce.string(),
-  supergame: z.number().int().min(1),
-  round: z.number().int().min(1),
-  action: z.enum(['C', 'D']),
-  partnerAction: z.enum(['C', 'D']),
-});
-
 async function loadRows(courseId: number, request: EstimateRequest): Promise<ChoiceRow[]> {
   if (request.source.kind === 'sessions') {
     const rows: ChoiceRow[] = [];
@@ -182,14 +171,9 @@ async function loadRows(courseId: number, request: EstimateRequest): Promise<Cho
     }
     return rows;
   }
-  const [d] = await db()
-    .select({ rows: datasets.rows })
-    .from(datasets)
-    .where(and(eq(datasets.courseId, courseId), eq(datasets.id, request.source.datasetId)));
-  if (!d) throw new Error('The dataset was deleted.');
-  const parsed = z.array(datasetRowSchema).safeParse(d.rows);
-  if (!parsed.success) throw new Error('The stored dataset does not have the choice-panel shape.');
-  return parsed.data;
+  const rows = await datasetChoiceRows(courseId, request.source.datasetId);
+  if (!rows) throw new Error('The dataset was deleted.');
+  return rows;
 }
 
 async function run(id: number) {

@@ -6,11 +6,12 @@ import jstat from 'jstat';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sessionDebrief } from '#app/lib/debrief';
 import { designSchema } from '#app/lib/design';
+import { createDataset } from '#app/models/datasets.server';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import { participantKeyOf, writeEffects } from '#app/models/live.server';
 import { loadSessionPanel } from '#app/models/panel.server';
 import { closeDb } from '#app/utils/db.server';
-import { courses, datasets, estimates, sessions, supergameDraws, users } from '#drizzle/schema';
+import { courses, estimates, sessions, supergameDraws, users } from '#drizzle/schema';
 import { simulateSession } from '#seeds/simulate';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -196,8 +197,8 @@ describe('estimation through the real server', () => {
   it('an uploaded dataset with the same rows gives the same estimate', async () => {
     const panel = (await loadSessionPanel(courseId, sessionId))!;
     const rows = panel.rows.map(({ session, treatment, subject, partner, supergame, round, action, partnerAction }) => ({ session, treatment, subject, partner, supergame, round, action, partnerAction }));
-    const [d] = await testDb().insert(datasets).values({ courseId, name: 'Same rows', rows, rowCount: rows.length, createdBy: ids.researcher });
-    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: d.insertId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
+    const datasetId = await createDataset(courseId, ids.researcher, 'Same rows', rows);
+    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
     expect(res.status).toBe(202);
     const { estimate } = (await res.json()) as { estimate: EstimateStatus };
     const { last } = await waitDone(clients.researcher, estimate.id);
