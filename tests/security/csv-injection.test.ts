@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CHART_IDS } from '#app/lib/debrief-tables';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { waitEstimate } from '#tests/helpers/estimates';
 import { baseUrl, type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
@@ -149,12 +150,7 @@ describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
     const start = await researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 3 });
     expect([200, 202]).toContain(start.status);
     const { estimate } = (await start.json()) as { estimate: EstimateStatus };
-    let last = estimate;
-    for (const until = Date.now() + 25_000; last.status !== 'done' && last.status !== 'failed' && Date.now() < until; ) {
-      await new Promise((r) => setTimeout(r, 100));
-      last = (await (await researcher.get(`/courses/${courseId}/estimates/${estimate.id}`)).json()) as EstimateStatus;
-    }
-    expect(last.status).toBe('done');
+    expect((await waitEstimate(researcher, courseId, estimate.id)).status).toBe('done');
     const res = await researcher.get(`/courses/${courseId}/debrief/csv/strategies?estimate=${estimate.id}`);
     expect(res.status).toBe(200);
     expectSafe('debrief strategies', await res.text(), [HYPERLINK, '@lab']);

@@ -11,6 +11,7 @@ import type { EstimateStatus } from '#app/models/estimate.server';
 import { closeDb } from '#app/utils/db.server';
 import { estimates } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { waitEstimate } from '#tests/helpers/estimates';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 
 const CAP = Number(process.env.ESTIMATES_PER_USER ?? 3);
@@ -45,14 +46,7 @@ const ask = (c: Client, seed: number, bootstrap: number) =>
   c.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap, seed });
 const rowsOfCourse = async () => (await testDb().select({ id: estimates.id }).from(estimates).where(eq(estimates.courseId, courseId))).length;
 
-async function waitDone(c: Client, id: number) {
-  for (const until = Date.now() + 60_000; Date.now() < until; ) {
-    const e = (await (await c.get(`/courses/${courseId}/estimates/${id}`)).json()) as EstimateStatus;
-    if (e.status === 'done' || e.status === 'failed') return e;
-    await new Promise((r) => setTimeout(r, 200));
-  }
-  throw new Error(`estimate ${id} did not finish`);
-}
+const waitDone = (c: Client, id: number) => waitEstimate(c, courseId, id);
 
 describe('estimations per user', () => {
   it(`a user with ${CAP} queued or running gets a 429 for one more, and nothing is stored`, { timeout: 120_000 }, async () => {

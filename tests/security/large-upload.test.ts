@@ -10,6 +10,7 @@ import type { EstimateStatus } from '#app/models/estimate.server';
 import { closeDb } from '#app/utils/db.server';
 import { datasets } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { waitEstimate } from '#tests/helpers/estimates';
 import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 
 const SUBJECTS = 300;
@@ -90,11 +91,7 @@ describe('uploaded panels of any size under the limit', () => {
     const start = await researcher.post(`/courses/${courseId}/estimates`, { dataset: d.id, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 5 });
     expect(start.status).toBe(202);
     const { estimate } = (await start.json()) as { estimate: EstimateStatus };
-    let last = estimate;
-    for (const until = Date.now() + 90_000; last.status !== 'done' && last.status !== 'failed' && Date.now() < until; ) {
-      await new Promise((r) => setTimeout(r, 250));
-      last = (await (await researcher.get(`/courses/${courseId}/estimates/${estimate.id}`)).json()) as EstimateStatus;
-    }
+    const last = await waitEstimate(researcher, courseId, estimate.id, 90_000);
     expect(last.error).toBeNull();
     expect(last.status).toBe('done');
     const groups = last.result!.groups;
