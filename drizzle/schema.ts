@@ -8,6 +8,7 @@ import {
   mysqlEnum,
   mysqlTable,
   primaryKey,
+  text,
   uniqueIndex,
   varchar,
 } from 'drizzle-orm/mysql-core';
@@ -373,8 +374,6 @@ export const datasets = mysqlTable(
       .notNull()
       .references(() => courses.id, { onDelete: 'cascade' }),
     name: varchar('name', { length: 160 }).notNull(),
-    /** the validated panel rows (app/lib/panel.ts shape) */
-    rows: jsonText<unknown>('rows').notNull(),
     rowCount: int('row_count').notNull(),
     createdBy: int('created_by')
       .notNull()
@@ -382,6 +381,31 @@ export const datasets = mysqlTable(
     createdAt: createdAt(),
   },
   (t) => [index('datasets_course').on(t.courseId)],
+);
+
+/**
+ * The validated rows of an uploaded panel (app/lib/panel.ts's ChoiceRow), one per choice, `seq`
+ * their order in the file. Rows, not one JSON value: a panel under the upload limit can be larger
+ * as JSON than MariaDB's max_allowed_packet. Labels are TEXT: the files come from elsewhere and
+ * their labels have no length limit of ours.
+ */
+export const datasetRows = mysqlTable(
+  'dataset_rows',
+  {
+    datasetId: int('dataset_id')
+      .notNull()
+      .references(() => datasets.id, { onDelete: 'cascade' }),
+    seq: int('seq').notNull(),
+    session: text('session').notNull(),
+    treatment: text('treatment').notNull(),
+    subject: text('subject').notNull(),
+    partner: text('partner').notNull(),
+    supergame: int('supergame').notNull(),
+    round: int('round').notNull(),
+    action: mysqlEnum('action', ['C', 'D']).notNull(),
+    partnerAction: mysqlEnum('partner_action', ['C', 'D']).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.datasetId, t.seq] })],
 );
 
 /** Bearer tokens for /api/v1: shown once, stored hashed, scoped to courses, revocable. */

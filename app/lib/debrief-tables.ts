@@ -2,6 +2,7 @@
  * The data behind each Debrief chart as flat rows, for its "download data (CSV)" link and for the
  * chart itself (so the file holds exactly what is drawn). Pure.
  */
+import type { CsvColumn } from './csv';
 import type { SessionDebrief } from './debrief';
 import { pointsHistogram } from './debrief';
 import type { StageGame } from './stage-game';
@@ -29,6 +30,14 @@ export interface TableSession {
 
 export type Cell = string | number | null;
 export type Table = Record<string, Cell>[];
+
+/** The tables' text columns (labels people chose, or words); every other column is a number. */
+const TEXT_COLUMNS = new Set(['treatment', 'sessions', 'pseudonym', 'strategy', 'window']);
+
+/** A table's columns for the CSV writer (app/lib/csv.ts), in the order of its first row. */
+export function tableColumns(rows: Table): CsvColumn[] {
+  return Object.keys(rows[0] ?? {}).map((key) => ({ key, type: TEXT_COLUMNS.has(key) ? 'text' : 'number' }));
+}
 
 const r4 = (x: number | null) => (x === null ? null : Math.round(x * 1e4) / 1e4);
 

@@ -3,7 +3,7 @@
  * meaning, type and values. Pure, so the Data page, the README inside a zip and the API docs all
  * show the same words. The column names are also what app/lib/panel-csv.ts reads back.
  */
-import Papa from 'papaparse';
+import { type CsvColumn, csvColumns, csvLines } from './csv';
 
 export interface CodebookEntry {
   column: string;
@@ -62,8 +62,17 @@ export function codebookFor(identified: boolean): CodebookEntry[] {
   return identified ? [...PANEL_CODEBOOK, ...IDENTIFIED_CODEBOOK] : [...PANEL_CODEBOOK];
 }
 
+/** The panel's columns for the CSV writer, typed by the codebook: numbers stay numbers. */
+export function panelCsvColumns(identified: boolean): CsvColumn[] {
+  return codebookFor(identified).map((c) => ({ key: c.column, type: c.type === 'integer' || c.type === 'number' ? 'number' : 'text' }));
+}
+
+/** How every CSV Parley writes treats text that a spreadsheet would run (app/lib/csv.ts). */
+export const FORMULA_NOTE =
+  'A text cell that begins with =, +, -, @, a tab or a carriage return is prefixed with a single quote (\'), so that spreadsheets show it as text instead of running it as a formula.';
+
 export function codebookCsv(identified = false): string {
-  return Papa.unparse(codebookFor(identified), { columns: ['column', 'type', 'meaning', 'values'], newline: '\n' }) + '\n';
+  return csvLines(codebookFor(identified) as unknown as Record<string, string>[], csvColumns(['column', 'type', 'meaning', 'values'], 'text'));
 }
 
 const cell = (s: string) => s.replace(/\|/g, '\\|');
@@ -93,6 +102,8 @@ export function panelReadme(opts: { course: string; sessions: { id: number; trea
     '## Reading it',
     '',
     'One row per participant × supergame × round; a header line, no index column, `.` as the decimal mark, timestamps in ISO 8601 (UTC).',
+    '',
+    FORMULA_NOTE,
     '',
     '```r',
     'panel <- read.csv("panel.csv")',

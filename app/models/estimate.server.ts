@@ -1,20 +1,23 @@
 // Strategy-frequency estimations of a course, stored in `estimates` so a Debrief reloads
 // instantly and the same request is answered from the stored row. Runs in this process, one at a
-// time; the bootstrap goes to worker threads (app/lib/sfem-workers.server.ts), progress is
-// written to the row as replicates come back, so any page can poll it.
+// time, taking turns between courses (app/lib/fair-queue.ts), at most ESTIMATES_PER_USER queued
+// or running per person; the bootstrap goes to worker threads (app/lib/sfem-workers.server.ts),
+// progress is written to the row as replicates come back, so any page can poll it.
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { and, desc, eq, ne } from 'drizzle-orm';
-import { z } from 'zod';
 import { libraryStrategy } from '#app/lib/automata';
+import { FairQueue } from '#app/lib/fair-queue';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
 import { estimateGroups } from '#app/lib/sfem';
 import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 import { db } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
 import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
 import { datasets, estimates } from '#drizzle/schema';
+import { datasetChoiceRows } from './datasets.server';
 import { estimationRows, getCourseSessions, loadSessionPanel } from './panel.server';
 
 export interface GroupResult {
@@ -81,7 +84,7 @@ export async function getEstimate(courseId: number, id: number): Promise<Estimat
     .where(and(eq(estimates.courseId, courseId), eq(estimates.id, id)));
   if (!r) return null;
   // A queued or running row nobody in this process works on was cut off by a restart: run it again.
-  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id)) enqueue(r.id);
+  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id)) enqueue({ id: r.id, courseId: r.courseId, userId: r.createdBy });
   return toStatus(r);
 }
 
@@ -100,7 +103,10 @@ export async function estimatesForDataset(courseId: number, datasetId: number): 
   return rows.map(toStatus).filter((e) => e.request.source.kind === 'dataset' && e.request.source.datasetId === datasetId);
 }
 
-export type StartResult = { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; status: 404; message: string };
+export type StartResult =
+  | { ok: true; estimate: EstimateStatus; reused: boolean }
+  | { ok: false; status: 404; code: 'not_found'; message: string }
+  | { ok: false; status: 429; code: 'too_many_estimations'; message: string };
 
 /**
  * Starts an estimation, or returns the stored one for the same request (same data, window,
@@ -110,13 +116,13 @@ export async function startEstimate(courseId: number, userId: number, input: Est
   const request = canonicalRequest(input);
   if (request.source.kind === 'sessions') {
     const found = await getCourseSessions(courseId, request.source.sessionIds);
-    if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, message: 'A chosen session is not in this course.' };
+    if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, code: 'not_found', message: 'A chosen session is not in this course.' };
   } else {
     const [d] = await db()
       .select({ id: datasets.id })
       .from(datasets)
       .where(and(eq(datasets.courseId, courseId), eq(datasets.id, request.source.datasetId)));
-    if (!d) return { ok: false, status: 404, message: 'That dataset is not in this course.' };
+    if (!d) return { ok: false, status: 404, code: 'not_found', message: 'That dataset is not in this course.' };
   }
   const key = requestKey(request);
   const [existing] = await db()
@@ -129,48 +135,97 @@ export async function startEstimate(courseId: number, userId: number, input: Est
     const estimate = (await getEstimate(courseId, existing.id))!;
     return { ok: true, estimate, reused: true };
   }
-  const [res] = await db().insert(estimates).values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
-  enqueue(res.insertId);
-  return { ok: true, estimate: (await getEstimate(courseId, res.insertId))!, reused: false };
+  // The cap is checked and a place taken in one synchronous step, so two requests at once cannot
+  // both take the last place; the place is the queue's entry once the row exists.
+  const j = jobs();
+  const cap = env().ESTIMATES_PER_USER;
+  const held = liveOf(userId) + (j.admitting.get(userId) ?? 0);
+  if (held >= cap) {
+    return {
+      ok: false,
+      status: 429,
+      code: 'too_many_estimations',
+      message: `You have ${held} estimations queued or running, the most one person may have at a time (${cap}). Start this one when one of them has finished.`,
+    };
+  }
+  j.admitting.set(userId, (j.admitting.get(userId) ?? 0) + 1);
+  let id: number;
+  try {
+    const [res] = await db().insert(estimates).values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
+    id = res.insertId;
+    enqueue({ id, courseId, userId });
+  } finally {
+    const left = j.admitting.get(userId)! - 1;
+    if (left > 0) j.admitting.set(userId, left);
+    else j.admitting.delete(userId);
+  }
+  return { ok: true, estimate: (await getEstimate(courseId, id))!, reused: false };
 }
 
 // ---------------------------------------------------------------------------------------------
 // The runner: one estimation at a time in this process (two bootstrap workers already fill the
-// machine's two cores), kept on globalThis so a development reload does not start a second queue.
+// machine's two cores), the next one taken from the course served least recently, so one
+// course's batch of estimations does not hold up another course's. Kept on globalThis so a
+// development reload does not start a second queue.
 
-const g = globalThis as unknown as { __parleyEstimates?: { known: Set<number>; chain: Promise<void> } };
-function jobs() {
-  g.__parleyEstimates ??= { known: new Set(), chain: Promise.resolve() };
-  return g.__parleyEstimates;
+interface Job {
+  id: number;
+  courseId: number;
+  userId: number;
 }
 
-function enqueue(id: number) {
+interface Runner {
+  /** every job queued or running in this process, by estimate id */
+  known: Map<number, Job>;
+  queue: FairQueue<number, Job>;
+  running: boolean;
+  /** places taken by requests between the cap check and their queue entry, per user */
+  admitting: Map<number, number>;
+}
+
+const g = globalThis as unknown as { __parleyEstimatesFair?: Runner };
+function jobs(): Runner {
+  g.__parleyEstimatesFair ??= { known: new Map(), queue: new FairQueue(), running: false, admitting: new Map() };
+  return g.__parleyEstimatesFair;
+}
+
+/** A user's estimations queued or running in this process. */
+function liveOf(userId: number): number {
+  let n = 0;
+  for (const job of jobs().known.values()) if (job.userId === userId) n++;
+  return n;
+}
+
+function enqueue(job: Job) {
   const j = jobs();
-  if (j.known.has(id)) return;
-  j.known.add(id);
-  j.chain = j.chain
-    .then(() => run(id))
-    .catch(async (e: unknown) => {
-      const message = (e instanceof Error ? e.message : String(e)).slice(0, 480);
-      await db()
-        .update(estimates)
-        .set({ status: 'failed', error: message, finishedAt: new Date() })
-        .where(eq(estimates.id, id))
-        .catch(() => undefined);
-    })
-    .finally(() => j.known.delete(id));
+  if (j.known.has(job.id)) return;
+  j.known.set(job.id, job);
+  j.queue.push(job.courseId, job);
+  if (!j.running) void drain(j);
 }
 
-const datasetRowSchema = z.object({
-  session: z.coerce.string().min(1),
-  treatment: z.coerce.string().min(1),
-  subject: z.coerce.string().min(1),
-  partner: z.coerce.string(),
-  supergame: z.number().int().min(1),
-  round: z.number().int().min(1),
-  action: z.enum(['C', 'D']),
-  partnerAction: z.enum(['C', 'D']),
-});
+async function drain(j: Runner) {
+  j.running = true;
+  try {
+    for (let job = j.queue.shift(); job; job = j.queue.shift()) {
+      const { id } = job;
+      try {
+        await run(id);
+      } catch (e: unknown) {
+        const message = (e instanceof Error ? e.message : String(e)).slice(0, 480);
+        await db()
+          .update(estimates)
+          .set({ status: 'failed', error: message, finishedAt: new Date() })
+          .where(eq(estimates.id, id))
+          .catch(() => undefined);
+      } finally {
+        j.known.delete(id);
+      }
+    }
+  } finally {
+    j.running = false;
+  }
+}
 
 async function loadRows(courseId: number, request: EstimateRequest): Promise<ChoiceRow[]> {
   if (request.source.kind === 'sessions') {
@@ -182,14 +237,9 @@ async function loadRows(courseId: number, request: EstimateRequest): Promise<Cho
     }
     return rows;
   }
-  const [d] = await db()
-    .select({ rows: datasets.rows })
-    .from(datasets)
-    .where(and(eq(datasets.courseId, courseId), eq(datasets.id, request.source.datasetId)));
-  if (!d) throw new Error('The dataset was deleted.');
-  const parsed = z.array(datasetRowSchema).safeParse(d.rows);
-  if (!parsed.success) throw new Error('The stored dataset does not have the choice-panel shape.');
-  return parsed.data;
+  const rows = await datasetChoiceRows(courseId, request.source.datasetId);
+  if (!rows) throw new Error('The dataset was deleted.');
+  return rows;
 }
 
 async function run(id: number) {

@@ -1,7 +1,7 @@
 // Exports that carry personal data (the identified panel, the credit sheet) and their log.
 import { and, count, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
-import Papa from 'papaparse';
 import { type Credit, creditFor } from '#app/lib/credit';
+import { type CsvColumn, csvLines } from '#app/lib/csv';
 import { type CreditRule, designSchema } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { choices, exportLog, sessionParticipants, sessions, users } from '#drizzle/schema';
@@ -101,9 +101,10 @@ export async function creditSheet(session: PanelSession): Promise<CreditLine[]> 
 /** The sheet as CSV for a gradebook import: one line per participant, `.` decimals. */
 export function creditCsv(lines: readonly CreditLine[], rule: CreditRule): string {
   const paid = rule.kind === 'paid';
-  const columns = paid
-    ? ['student_id', 'name', 'email', 'pseudonym', 'points', 'payout', 'currency']
-    : ['student_id', 'name', 'email', 'pseudonym', 'points', 'credit'];
+  const text = (key: string): CsvColumn => ({ key, type: 'text' });
+  const number = (key: string): CsvColumn => ({ key, type: 'number' });
+  const person = [text('student_id'), text('name'), text('email'), text('pseudonym'), number('points')];
+  const columns = paid ? [...person, number('payout'), text('currency')] : [...person, number('credit')];
   const rows = lines.map((l) => ({
     student_id: l.studentId,
     name: l.name,
@@ -112,5 +113,5 @@ export function creditCsv(lines: readonly CreditLine[], rule: CreditRule): strin
     points: l.points,
     ...(l.credit.kind === 'paid' ? { payout: l.credit.payout.toFixed(l.credit.decimals), currency: l.credit.currency } : { credit: l.credit.credit }),
   }));
-  return Papa.unparse(rows, { columns, newline: '\n', escapeFormulae: true }) + '\n';
+  return csvLines(rows, columns);
 }

@@ -12,10 +12,10 @@
 import { and, asc, eq, gt, inArray, or, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
 import { Zip, ZipDeflate } from 'fflate';
-import Papa from 'papaparse';
+import { csvLines } from '#app/lib/csv';
 import type { Action } from '#app/lib/automata';
 import { type CreditRule, designSchema } from '#app/lib/design';
-import { codebookCsv, IDENTIFIED_COLUMNS, PANEL_COLUMNS, panelReadme } from '#app/lib/panel-codebook';
+import { codebookCsv, panelCsvColumns, panelReadme } from '#app/lib/panel-codebook';
 import { stagePayoff } from '#app/lib/stage-game';
 import { db } from '#app/utils/db.server';
 import { choices, courseMembers, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
@@ -346,19 +346,13 @@ function bodyFrom(pieces: AsyncGenerator<string | Uint8Array>): ReadableStream<U
   );
 }
 
-function columnsOf(identified: boolean): string[] {
-  return identified ? IDENTIFIED_COLUMNS : PANEL_COLUMNS;
-}
-
 /** CSV in pieces: a header, then one piece per database page. R- and pandas-friendly (codebook). */
 export async function* panelCsvPieces(list: readonly PanelSession[], opts: PanelOptions = {}): AsyncGenerator<string> {
-  const columns = columnsOf(Boolean(opts.identified));
-  yield columns.join(',') + '\n';
-  for await (const page of panelPages(list, opts)) {
-    // Names come from people: keep a spreadsheet from reading "=…" as a formula. Numbers are left
-    // alone (papaparse never escapes them), so negative payoffs stay numbers.
-    yield Papa.unparse(page.rows as object[], { columns, header: false, newline: '\n', escapeFormulae: Boolean(opts.identified) }) + '\n';
-  }
+  const columns = panelCsvColumns(Boolean(opts.identified));
+  yield csvLines([], columns);
+  // Each page through the one CSV writer: treatments and names come from people and are
+  // neutralised as text; the codebook's number columns stay numbers (negative payoffs too).
+  for await (const page of panelPages(list, opts)) yield csvLines(page.rows as unknown as Record<string, unknown>[], columns, { header: false });
 }
 
 async function* panelJsonPieces(list: readonly PanelSession[], opts: PanelOptions): AsyncGenerator<string> {

@@ -34,6 +34,8 @@ const schema = z.object({
   CODE_WRONG_TRIES: z.coerce.number().int().min(1).max(20).default(5),
   /** results e-mails after a session are sent in the background, at most this many per minute */
   RESULT_MAILS_PER_MINUTE: z.coerce.number().int().min(1).max(6000).default(300),
+  /** strategy-frequency estimations one person may have queued or running at a time */
+  ESTIMATES_PER_USER: z.coerce.number().int().min(1).max(100).default(3),
   /** behind a reverse proxy, read the client address from X-Forwarded-For */
   TRUST_PROXY: z
     .enum(['0', '1', 'true', 'false'])

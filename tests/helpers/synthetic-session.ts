@@ -23,6 +23,10 @@ export interface SyntheticOptions {
   enrol?: boolean;
   seed?: number;
   tag?: string;
+  /** the session's treatment (the design's name); default "Synthetic δ = … (simulated)" */
+  treatment?: string;
+  /** each participant's name (default "Synthetic Person N") */
+  name?: (index: number) => string;
 }
 
 const BATCH = 5000;
@@ -41,7 +45,7 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
   const start = Date.UTC(2027, 3, 7, 9, 0);
 
   const emails = Array.from({ length: opts.participants }, (_, i) => `p${i + 1}-${tag}@synthetic.parley.test`);
-  await db.insert(schema.users).values(emails.map((email, i) => ({ email, name: `Synthetic Person ${i + 1}` })));
+  await db.insert(schema.users).values(emails.map((email, i) => ({ email, name: opts.name?.(i) ?? `Synthetic Person ${i + 1}` })));
   const people = await db.select({ id: schema.users.id, email: schema.users.email }).from(schema.users).where(inArray(schema.users.email, emails));
   const idOf = new Map(people.map((p) => [p.email, p.id]));
   const userIds = emails.map((e) => idOf.get(e)!);
@@ -53,7 +57,7 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
 
   const [res] = await db.insert(schema.sessions).values({
     courseId: opts.courseId,
-    treatment: `Synthetic δ = ${design.delta} (simulated)`,
+    treatment: opts.treatment ?? `Synthetic δ = ${design.delta} (simulated)`,
     params: design,
     seed: opts.seed ?? 7,
     status: 'complete',

@@ -1,6 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DATASET_LIMITS } from '#app/models/datasets.server';
+import { DATASET_LIMITS, datasetChoiceRows } from '#app/models/datasets.server';
+import { closeDb } from '#app/utils/db.server';
 import { datasets } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, pageText as text, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -37,6 +38,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await session?.remove();
   await closeTestDb();
+  await closeDb();
 });
 
 describe('external panel upload', () => {
@@ -47,7 +49,7 @@ describe('external panel upload', () => {
     expect(text(await res.text())).toContain('“Lab session, spring” stored: 20 choices of 4 participants');
     const [d] = await stored(courseId);
     expect(d).toMatchObject({ name: 'Lab session, spring', rowCount: 20 });
-    expect((d.rows as unknown[])[0]).toEqual({
+    expect((await datasetChoiceRows(courseId, d.id))![0]).toEqual({
       session: String(session.sessionId),
       treatment: 'Synthetic δ = 0.75 (simulated)',
       subject: 'P-001',

@@ -6,11 +6,12 @@ import jstat from 'jstat';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sessionDebrief } from '#app/lib/debrief';
 import { designSchema } from '#app/lib/design';
+import { createDataset } from '#app/models/datasets.server';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import { participantKeyOf, writeEffects } from '#app/models/live.server';
 import { loadSessionPanel } from '#app/models/panel.server';
 import { closeDb } from '#app/utils/db.server';
-import { courses, datasets, estimates, sessions, supergameDraws, users } from '#drizzle/schema';
+import { courses, estimates, sessions, supergameDraws, users } from '#drizzle/schema';
 import { simulateSession } from '#seeds/simulate';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -85,7 +86,7 @@ describe('who sees a Debrief', () => {
 
   it('the staff Debrief is de-identified: pseudonyms, no names or e-mails', async () => {
     const page = await (await clients.researcher.get(`/courses/${courseId}/debrief/csv/points?sessions=${sessionId}`)).text();
-    expect(page.split('\r\n')[0]).toBe('session,treatment,pseudonym,points');
+    expect(page.split('\n')[0]).toBe('session,treatment,pseudonym,points');
     expect(page).toContain('P-001');
     expect(page).not.toMatch(/@tests\.parley\.test/);
   });
@@ -190,14 +191,14 @@ describe('estimation through the real server', () => {
     const csv = await clients.instructor.get(`/courses/${courseId}/debrief/csv/strategies?estimate=${started.estimate.id}`);
     expect(csv.status).toBe(200);
     expect(csv.headers.get('content-type')).toContain('text/csv');
-    expect((await csv.text()).split('\r\n')).toHaveLength(7);
+    expect((await csv.text()).trimEnd().split('\n')).toHaveLength(7);
   });
 
   it('an uploaded dataset with the same rows gives the same estimate', async () => {
     const panel = (await loadSessionPanel(courseId, sessionId))!;
     const rows = panel.rows.map(({ session, treatment, subject, partner, supergame, round, action, partnerAction }) => ({ session, treatment, subject, partner, supergame, round, action, partnerAction }));
-    const [d] = await testDb().insert(datasets).values({ courseId, name: 'Same rows', rows, rowCount: rows.length, createdBy: ids.researcher });
-    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: d.insertId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
+    const datasetId = await createDataset(courseId, ids.researcher, 'Same rows', rows);
+    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
     expect(res.status).toBe(202);
     const { estimate } = (await res.json()) as { estimate: EstimateStatus };
     const { last } = await waitDone(clients.researcher, estimate.id);

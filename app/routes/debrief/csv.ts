@@ -1,9 +1,9 @@
-// GET: the data behind one Debrief chart as CSV (papaparse), for the sessions named in
+// GET: the data behind one Debrief chart as CSV (the one writer, app/lib/csv.ts), for the sessions named in
 // ?sessions=1,2, or for a stored estimation (?estimate=ID, chart "strategies"). De-identified.
-import Papa from 'papaparse';
 import { z } from 'zod';
 import type { Route } from './+types/csv';
-import { CHART_IDS, chartTable, type Table } from '#app/lib/debrief-tables';
+import { csvLines } from '#app/lib/csv';
+import { CHART_IDS, chartTable, type Table, tableColumns } from '#app/lib/debrief-tables';
 import { loadDebrief, sessionIdsParam } from '#app/models/debrief.server';
 import { getEstimate } from '#app/models/estimate.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
@@ -48,7 +48,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     rows = chartTable(chart.data as Exclude<(typeof CHART_IDS)[number], 'strategies'>, sessions);
     name = `sessions-${ids.join('-')}-${chart.data}`;
   }
-  return new Response(Papa.unparse(rows), {
+  return new Response(csvLines(rows, tableColumns(rows)), {
     headers: {
       'Content-Type': 'text/csv; charset=utf-8',
       'Content-Disposition': `attachment; filename="${name}.csv"`,

@@ -14,6 +14,6 @@ export async function action({ request, params }: Route.ActionArgs) {
   const parsed = estimateRequestFromForm(await request.formData());
   if (!parsed.ok) return Response.json({ ok: false, errors: parsed.errors }, { status: 400 });
   const started = await startEstimate(course.id, user.id, parsed.request);
-  if (!started.ok) return Response.json({ ok: false, message: started.message }, { status: started.status });
+  if (!started.ok) return Response.json({ ok: false, code: started.code, message: started.message }, { status: started.status });
   return Response.json({ ok: true, estimate: started.estimate, reused: started.reused }, { status: started.reused ? 200 : 202 });
 }

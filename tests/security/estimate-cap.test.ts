@@ -1,0 +1,85 @@
+// Issue 9, finding 12 (second half): one estimation queue for all courses and no cap per user,
+// so one person could fill the machine's queue. Each user may have at most ESTIMATES_PER_USER
+// (default 3) estimations queued or running; one more is refused with a 429 and nothing stored.
+// (The queue's fairness between courses is a pure unit: app/lib/fair-queue.test.ts.)
+import { eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { libraryStrategy, STRATEGY_SETS } from '#app/lib/automata';
+import { simulatePanel } from '#app/lib/simulate-panel';
+import { createDataset } from '#app/models/datasets.server';
+import type { EstimateStatus } from '#app/models/estimate.server';
+import { closeDb } from '#app/utils/db.server';
+import { estimates } from '#drizzle/schema';
+import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { waitEstimate } from '#tests/helpers/estimates';
+import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+
+const CAP = Number(process.env.ESTIMATES_PER_USER ?? 3);
+
+let first: Client;
+let second: Client;
+let courseId: number;
+let datasetId: number;
+
+beforeAll(async () => {
+  const a = uniqueEmail('res-a');
+  const b = uniqueEmail('res-b');
+  const aId = await createUser(a);
+  courseId = await createCourse('Estimation cap course', [
+    { userId: await createUser(uniqueEmail('instr')), role: 'instructor' },
+    { userId: aId, role: 'researcher' },
+    { userId: await createUser(b), role: 'researcher' },
+  ]);
+  // 400 simulated subjects: a bootstrap of 2,000 replicates keeps the first job busy for a while
+  const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
+  const sim = simulatePanel({ strategies, shares: strategies.map(() => 1 / strategies.length), beta: 0.9, subjects: 400, supergames: 10, delta: 0.75, seed: 12 });
+  datasetId = await createDataset(courseId, aId, 'Simulated (cap test)', sim.rows);
+  [first, second] = await Promise.all([signIn(a), signIn(b)]);
+});
+
+afterAll(async () => {
+  await closeTestDb();
+  await closeDb();
+});
+
+const ask = (c: Client, seed: number, bootstrap: number) =>
+  c.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap, seed });
+const rowsOfCourse = async () => (await testDb().select({ id: estimates.id }).from(estimates).where(eq(estimates.courseId, courseId))).length;
+
+const waitDone = (c: Client, id: number) => waitEstimate(c, courseId, id);
+
+describe('estimations per user', () => {
+  it(`a user with ${CAP} queued or running gets a 429 for one more, and nothing is stored`, { timeout: 120_000 }, async () => {
+    const started: number[] = [];
+    for (let k = 0; k < CAP; k++) {
+      // the first runs long; the others wait behind it in the queue
+      const res = await ask(first, 100 + k, k === 0 ? 2000 : 0);
+      expect(res.status).toBe(202);
+      started.push(((await res.json()) as { estimate: EstimateStatus }).estimate.id);
+    }
+    const before = await rowsOfCourse();
+    const refused = await ask(first, 999, 0);
+    expect(refused.status).toBe(429);
+    const body = (await refused.json()) as { ok: boolean; code: string; message: string };
+    expect(body).toMatchObject({ ok: false, code: 'too_many_estimations' });
+    expect(body.message).toContain(`${CAP} estimations`);
+    expect(await rowsOfCourse()).toBe(before);
+
+    // the cap is per user: another researcher of the same course may start one
+    const other = await ask(second, 999, 0);
+    expect(other.status).toBe(202);
+    const otherId = ((await other.json()) as { estimate: EstimateStatus }).estimate.id;
+
+    // asking again for a stored request is answered from it, cap or not
+    const again = await ask(first, 100, 2000);
+    expect(again.status).toBe(200);
+    expect(((await again.json()) as { reused: boolean }).reused).toBe(true);
+
+    // once they have finished, the first user may start more
+    for (const id of started) expect((await waitDone(first, id)).status).toBe('done');
+    await waitDone(second, otherId);
+    const later = await ask(first, 998, 0);
+    expect(later.status).toBe(202);
+    await waitDone(first, ((await later.json()) as { estimate: EstimateStatus }).estimate.id);
+  });
+});
