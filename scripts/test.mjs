@@ -50,6 +50,8 @@ const env = {
   ADMIN_EMAILS: 'admin@halvorsen.example',
   // One address sends every test's requests; the per-address limit has its own test.
   CODE_REQUESTS_PER_IP: '100000',
+  // Test seam: mail to an address listed in this file fails as if the mail server were down.
+  PARLEY_TEST_MAIL_FAULTS: path.join(dataDir, 'mail-faults.txt'),
   ...localSecrets(dataDir),
   PARLEY_TEST_URL: `http://127.0.0.1:${port}`,
   PARLEY_MAIL_API: `http://127.0.0.1:${mailWebPort}`,

@@ -22,6 +22,11 @@ const schema = z.object({
   SMTP_URL: z.string().startsWith('smtp', 'SMTP_URL must be an smtp:// or smtps:// URL'),
   MAIL_FROM: z.string().min(3).default('Parley <no-reply@parley.test>'),
   ADMIN_EMAILS: csv,
+  /** how long a mail may wait for the mail server to connect, greet or answer, in milliseconds */
+  SMTP_TIMEOUT_MS: z.coerce.number().int().min(500).max(60_000).default(5000),
+  /** test seam (set by scripts/test.mjs only): a file of addresses whose mail fails as if the
+   * mail server were down; unset in production */
+  PARLEY_TEST_MAIL_FAULTS: z.string().optional(),
   /** sign-in codes a single e-mail address may request per 15 minutes */
   CODE_REQUESTS_PER_EMAIL: z.coerce.number().int().min(1).default(5),
   /** sign-in codes a single network address may request per 15 minutes (a lecture hall shares few) */

@@ -1,3 +1,4 @@
+import fs from 'node:fs';
 import nodemailer, { type Transporter } from 'nodemailer';
 import { env } from './env.server';
 
@@ -8,15 +9,56 @@ export interface Mail {
   html: string;
 }
 
+/**
+ * A mail that did not go out. Its message is fit to show to anyone (no host, port or server
+ * reply); the original error is `cause` and is logged on the server.
+ */
+export class MailNotSentError extends Error {
+  constructor(options?: { cause?: unknown }) {
+    super('We could not send the e-mail. Please try again in a moment.', options);
+    this.name = 'MailNotSentError';
+  }
+}
+
+/**
+ * A transport that gives up within SMTP_TIMEOUT_MS at each step: nodemailer's defaults wait up to
+ * 2 minutes to connect and 30 s for the greeting, and a sign-in or invitation should not hang that
+ * long when the mail server is down.
+ */
+export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: number = env().SMTP_TIMEOUT_MS): Transporter {
+  return nodemailer.createTransport({ url, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
+}
+
 const g = globalThis as unknown as { __parleyMailer?: Transporter };
 
 function transport() {
-  g.__parleyMailer ??= nodemailer.createTransport(env().SMTP_URL);
+  g.__parleyMailer ??= createMailTransport();
   return g.__parleyMailer;
 }
 
-export async function sendMail(mail: Mail) {
-  await transport().sendMail({ from: env().MAIL_FROM, ...mail });
+/** The test seam: is this address listed in PARLEY_TEST_MAIL_FAULTS (read on every send)? */
+function faultInjected(to: string) {
+  const file = env().PARLEY_TEST_MAIL_FAULTS;
+  if (!file) return false;
+  let listed: string;
+  try {
+    listed = fs.readFileSync(file, 'utf8');
+  } catch {
+    return false;
+  }
+  return listed.split('\n').some((line) => line.trim().toLowerCase() === to.toLowerCase());
+}
+
+/** Sends one mail, or throws MailNotSentError (within a few seconds when the server is down). */
+export async function sendMail(mail: Mail, via: Transporter = transport()) {
+  try {
+    if (faultInjected(mail.to)) throw new Error('mail fault injected by PARLEY_TEST_MAIL_FAULTS');
+    await via.sendMail({ from: env().MAIL_FROM, ...mail });
+  } catch (error) {
+    // Neither the recipient nor the subject (it may carry a sign-in code) goes to the log.
+    console.error('[mail] not sent:', error);
+    throw new MailNotSentError({ cause: error });
+  }
 }
 
 export function escapeHtml(s: string) {
