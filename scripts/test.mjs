@@ -50,6 +50,8 @@ const env = {
   ADMIN_EMAILS: 'admin@halvorsen.example',
   // One address sends every test's requests; the per-address limit has its own test.
   CODE_REQUESTS_PER_IP: '100000',
+  // Addresses of this domain may create courses (tests/security/course-creation.test.ts).
+  INSTRUCTOR_DOMAINS: 'faculty.parley.test',
   // Test seam: mail to an address listed in this file fails as if the mail server were down.
   PARLEY_TEST_MAIL_FAULTS: path.join(dataDir, 'mail-faults.txt'),
   ...localSecrets(dataDir),

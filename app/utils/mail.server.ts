@@ -97,31 +97,40 @@ export function signInCodeMail(email: string, code: string, magicLink: string, m
   };
 }
 
+/**
+ * Who sends an invitation or roster mail, as recipients read it: the name (if the account has one)
+ * and always the signed-in address, which Parley has checked, so nobody can pose as someone else.
+ */
+export function senderOf(user: { name: string | null; email: string }) {
+  return user.name ? `${user.name} (${user.email})` : user.email;
+}
+
 export function invitationMail(opts: {
   to: string;
   courseTitle: string;
   role: string;
-  inviter: string;
+  inviter: { name: string | null; email: string };
   link: string;
   days: number;
 }): Mail {
   const article = /^[aeiou]/.test(opts.role) ? 'an' : 'a';
+  const inviter = senderOf(opts.inviter);
   return {
     to: opts.to,
-    subject: `Invitation to ${opts.courseTitle} on Parley`,
+    subject: `Invitation to ${opts.courseTitle} on Parley, from ${opts.inviter.email}`,
     text: [
-      `${opts.inviter} invites you to join “${opts.courseTitle}” on Parley as ${article} ${opts.role}.`,
+      `${inviter} invites you to join “${opts.courseTitle}” on Parley as ${article} ${opts.role}.`,
       '',
       `Accept the invitation here (you will sign in with a code sent to this address):`,
       opts.link,
       '',
-      `The invitation is valid for ${opts.days} days.`,
+      `The invitation is valid for ${opts.days} days. If you do not know ${opts.inviter.email}, ignore this e-mail.`,
     ].join('\n'),
     html: htmlFrame(
       `Join ${opts.courseTitle}`,
-      `<p style="font-size:16px">${escapeHtml(opts.inviter)} invites you to join <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley as ${article} <strong>${escapeHtml(opts.role)}</strong>.</p>
+      `<p style="font-size:16px">${escapeHtml(inviter)} invites you to join <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley as ${article} <strong>${escapeHtml(opts.role)}</strong>.</p>
 <p><a href="${escapeHtml(opts.link)}" style="display:inline-block;background:#0e5357;color:#fff;padding:12px 20px;border-radius:8px;text-decoration:none;font-weight:600">See the invitation</a></p>
-<p style="color:#475569;font-size:14px">You will sign in with a code sent to this address. The invitation is valid for ${opts.days} days.</p>`,
+<p style="color:#475569;font-size:14px">You will sign in with a code sent to this address. The invitation is valid for ${opts.days} days. If you do not know ${escapeHtml(opts.inviter.email)}, ignore this e-mail.</p>`,
     ),
   };
 }
