@@ -244,14 +244,14 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                 </span>
                 {canManage ? (
                   <span className="flex items-center gap-1">
-                  {inv.sentAt ? null : <RowAction fields={{ intent: 'resend', invitationId: inv.id }} label="Resend" target={`invitation to ${inv.email}`} tone="quiet" />}
-                  <Form method="post">
-                    <input type="hidden" name="intent" value="revoke" />
-                    <input type="hidden" name="invitationId" value={inv.id} />
-                    <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
-                      Withdraw<span className="sr-only"> invitation to {inv.email}</span>
-                    </button>
-                  </Form>
+                    {inv.sentAt ? null : <RowAction fields={{ intent: 'resend', invitationId: inv.id }} label="Resend" target={`invitation to ${inv.email}`} tone="quiet" />}
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="revoke" />
+                      <input type="hidden" name="invitationId" value={inv.id} />
+                      <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
+                        Withdraw<span className="sr-only"> invitation to {inv.email}</span>
+                      </button>
+                    </Form>
                   </span>
                 ) : null}
               </li>
