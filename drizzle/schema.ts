@@ -28,6 +28,9 @@ export const users = mysqlTable('users', {
   name: varchar('name', { length: 120 }),
   createdAt: createdAt(),
   lastSignInAt: datetime('last_sign_in_at', { mode: 'date', fsp: 3 }),
+  /** 1 when a site admin granted this account the right to create courses
+   * (docs/decisions/023-who-creates-courses.md) */
+  mayCreateCourses: int('may_create_courses').notNull().default(0),
 });
 
 export const courses = mysqlTable('courses', {
@@ -56,6 +59,9 @@ export const courseMembers = mysqlTable(
       .references(() => users.id, { onDelete: 'cascade' }),
     role: mysqlEnum('role', COURSE_ROLES).notNull(),
     studentId: varchar('student_id', { length: 60 }),
+    /** the name this course's roster gives the person; never copied to users.name, so one
+     * course's roster cannot rename someone in another course */
+    name: varchar('name', { length: 120 }),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex('course_members_course_user').on(t.courseId, t.userId), index('course_members_user').on(t.userId)],
@@ -79,8 +85,33 @@ export const invitations = mysqlTable(
     expiresAt: datetime('expires_at', { mode: 'date', fsp: 3 }).notNull(),
     acceptedAt: datetime('accepted_at', { mode: 'date', fsp: 3 }),
     revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
+    /** when its mail went out; null = not sent (the mail failed), shown with a Resend button.
+     * The default only fills rows that existed before the column: those were sent. Inserts set
+     * null explicitly and the sender fills it in. */
+    sentAt: datetime('sent_at', { mode: 'date', fsp: 3 }).default(sql`CURRENT_TIMESTAMP(3)`),
   },
   (t) => [index('invitations_course').on(t.courseId), index('invitations_email').on(t.email)],
+);
+
+/**
+ * Invitation and roster mails a course sent, for the daily cap per course
+ * (INVITES_PER_COURSE_PER_DAY). A row is written before the mail goes out and deleted if it fails.
+ */
+export const courseMails = mysqlTable(
+  'course_mails',
+  {
+    id: bigint('id', { mode: 'number' }).autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    kind: mysqlEnum('kind', ['invitation', 'roster']).notNull(),
+    email: varchar('email', { length: 254 }).notNull(),
+    sentBy: int('sent_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index('course_mails_course').on(t.courseId, t.createdAt)],
 );
 
 /** Sign-in events used for rate limits and attempt counting (kept short: pruned after a day). */

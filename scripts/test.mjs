@@ -48,6 +48,10 @@ const env = {
   MAIL_FROM: 'Parley <no-reply@parley.test>',
   APP_URL: `http://127.0.0.1:${port}`,
   ADMIN_EMAILS: 'admin@halvorsen.example',
+  // Addresses of this domain may create courses (tests/security/course-creation.test.ts).
+  INSTRUCTOR_DOMAINS: 'faculty.parley.test',
+  // Test seam: mail to an address listed in this file fails as if the mail server were down.
+  PARLEY_TEST_MAIL_FAULTS: path.join(dataDir, 'mail-faults.txt'),
   ...localSecrets(dataDir),
   PARLEY_TEST_URL: `http://127.0.0.1:${port}`,
   PARLEY_MAIL_API: `http://127.0.0.1:${mailWebPort}`,

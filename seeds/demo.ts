@@ -54,6 +54,8 @@ export async function seedDemo(db: Db) {
   const staffIds = new Map<string, number>();
   for (const s of DEMO_STAFF) staffIds.set(s.email, await upsertUser(db, s.email, s.name));
   const instructorId = staffIds.get(DEMO_STAFF[0].email)!;
+  // The demo instructor may create courses (docs/decisions/023-who-creates-courses.md).
+  await db.update(users).set({ mayCreateCourses: 1 }).where(eq(users.id, instructorId));
 
   let [course] = await db
     .select({ id: courses.id })

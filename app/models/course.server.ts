@@ -1,7 +1,8 @@
 import { createHash, randomBytes } from 'node:crypto';
-import { and, asc, count, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
-import { courseMembers, courses, invitations, users, type CourseRole } from '#drizzle/schema';
+import { and, asc, count, eq, gt, gte, inArray, isNull, sql } from 'drizzle-orm';
+import { courseMails, courseMembers, courses, invitations, users, type CourseRole } from '#drizzle/schema';
 import { db } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
 import { INVITATION_DAYS } from '#app/utils/roles';
 
 export { INVITATION_DAYS };
@@ -46,13 +47,19 @@ export async function createCourse(userId: number, input: { title: string; insti
   });
 }
 
+/**
+ * The name a course shows for a member: its own roster's name, else the account's name (set by
+ * the operator, e.g. the demo seed; a roster never writes it). Use with a join on both tables.
+ */
+export const memberName = sql<string | null>`COALESCE(${courseMembers.name}, ${users.name})`;
+
 export async function listMembers(courseId: number) {
   return db()
     .select({
       memberId: courseMembers.id,
       userId: users.id,
       email: users.email,
-      name: users.name,
+      name: memberName,
       role: courseMembers.role,
       studentId: courseMembers.studentId,
       joinedAt: courseMembers.createdAt,
@@ -76,7 +83,14 @@ export async function countByRole(courseId: number) {
 
 export async function listPendingInvitations(courseId: number) {
   return db()
-    .select({ id: invitations.id, email: invitations.email, role: invitations.role, createdAt: invitations.createdAt, expiresAt: invitations.expiresAt })
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      createdAt: invitations.createdAt,
+      expiresAt: invitations.expiresAt,
+      sentAt: invitations.sentAt,
+    })
     .from(invitations)
     .where(
       and(eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())),
@@ -86,7 +100,7 @@ export async function listPendingInvitations(courseId: number) {
 
 export const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');
 
-export type InviteResult = { ok: true; token: string } | { ok: false; field: 'email'; message: string };
+export type InviteResult = { ok: true; token: string; invitationId: number } | { ok: false; field: 'email'; message: string };
 
 /** A new invitation (an earlier pending one to the same address is replaced). */
 export async function createInvitation(courseId: number, email: string, role: CourseRole, invitedBy: number): Promise<InviteResult> {
@@ -98,21 +112,95 @@ export async function createInvitation(courseId: number, email: string, role: Co
     .where(and(eq(courseMembers.courseId, courseId), eq(users.email, normalised)));
   if (existing) return { ok: false, field: 'email', message: `${normalised} is already a member (${existing.role}). Change the role in the table instead.` };
   const token = randomBytes(24).toString('base64url');
-  await db().transaction(async (tx) => {
+  const invitationId = await db().transaction(async (tx) => {
     await tx
       .update(invitations)
       .set({ revokedAt: new Date() })
       .where(and(eq(invitations.courseId, courseId), eq(invitations.email, normalised), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
-    await tx.insert(invitations).values({
+    const [res] = await tx.insert(invitations).values({
       courseId,
       email: normalised,
       role,
       tokenHash: hashToken(token),
       invitedBy,
       expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000),
+      // not sent until its mail went out (markInvitationSent)
+      sentAt: null,
     });
+    return res.insertId;
   });
-  return { ok: true, token };
+  return { ok: true, token, invitationId };
+}
+
+export async function markInvitationSent(invitationId: number) {
+  await db().update(invitations).set({ sentAt: new Date() }).where(eq(invitations.id, invitationId));
+}
+
+/** A pending invitation of the course, or null. */
+export async function findPendingInvitation(courseId: number, invitationId: number) {
+  const [inv] = await db()
+    .select({ id: invitations.id, email: invitations.email, role: invitations.role })
+    .from(invitations)
+    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+  return inv ?? null;
+}
+
+/**
+ * A fresh link for a pending invitation of the course, for Resend: only the hash of a token is
+ * kept, so the old link cannot be sent again. The old link stops working; the validity restarts.
+ */
+export async function reissueInvitation(courseId: number, invitationId: number) {
+  const token = randomBytes(24).toString('base64url');
+  const [res] = await db()
+    .update(invitations)
+    .set({ tokenHash: hashToken(token), sentAt: null, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000) })
+    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+  return res.affectedRows === 1 ? token : null;
+}
+
+/**
+ * Reserves up to `wanted` of the course's invitation and roster mails for the last 24 hours
+ * (INVITES_PER_COURSE_PER_DAY): the course row is locked, so concurrent requests cannot both take
+ * the last places. Returns one reservation id per granted recipient, in order; release the id of a
+ * mail that then fails, so only mail that went out counts.
+ */
+export async function reserveCourseMails(courseId: number, sentBy: number, kind: 'invitation' | 'roster', emails: readonly string[]) {
+  if (emails.length === 0) return [];
+  return db().transaction(async (tx) => {
+    await tx.select({ id: courses.id }).from(courses).where(eq(courses.id, courseId)).for('update');
+    const [{ n }] = await tx
+      .select({ n: count() })
+      .from(courseMails)
+      .where(and(eq(courseMails.courseId, courseId), gte(courseMails.createdAt, new Date(Date.now() - 86400_000))));
+    const granted = emails.slice(0, Math.max(0, env().INVITES_PER_COURSE_PER_DAY - n));
+    const ids: number[] = [];
+    for (const email of granted) {
+      const [res] = await tx.insert(courseMails).values({ courseId, kind, email, sentBy });
+      ids.push(res.insertId);
+    }
+    return ids;
+  });
+}
+
+export async function releaseCourseMail(reservationId: number) {
+  await db().delete(courseMails).where(eq(courseMails.id, reservationId));
+}
+
+/** Accounts a site admin allowed to create courses (docs/decisions/023-who-creates-courses.md). */
+export async function listCourseCreators() {
+  return db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.mayCreateCourses, 1)).orderBy(asc(users.email));
+}
+
+/** Grants the right by address: an account that has not signed in yet is made, as a roster does. */
+export async function grantCourseCreation(email: string) {
+  const normalised = email.trim().toLowerCase();
+  await db().insert(users).values({ email: normalised, mayCreateCourses: 1 }).onDuplicateKeyUpdate({ set: { mayCreateCourses: 1 } });
+}
+
+/** Courses already made stay with their instructors; only new ones are refused. */
+export async function revokeCourseCreation(userId: number) {
+  const [res] = await db().update(users).set({ mayCreateCourses: 0 }).where(eq(users.id, userId));
+  return res.affectedRows > 0;
 }
 
 export async function revokeInvitation(courseId: number, invitationId: number) {

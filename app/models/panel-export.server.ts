@@ -18,6 +18,7 @@ import { type CreditRule, designSchema } from '#app/lib/design';
 import { codebookCsv, panelCsvColumns, panelReadme } from '#app/lib/panel-codebook';
 import { stagePayoff } from '#app/lib/stage-game';
 import { db } from '#app/utils/db.server';
+import { memberName } from '#app/models/course.server';
 import { choices, courseMembers, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
 
 export interface PanelRow {
@@ -141,7 +142,7 @@ export async function panelParticipants(session: PanelSession): Promise<Particip
       seq: sessionParticipants.seq,
       pseudonym: sessionParticipants.pseudonym,
       consent: sessionParticipants.consent,
-      name: users.name,
+      name: memberName,
       email: users.email,
       studentId: courseMembers.studentId,
     })

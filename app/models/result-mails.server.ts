@@ -9,7 +9,8 @@ import { creditFor, describeCreditRule, formatCredit } from '#app/lib/credit';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { escapeHtml, htmlFrame, type Mail, sendMail } from '#app/utils/mail.server';
-import { courses, resultMails, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { courseMembers, courses, resultMails, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { memberName } from './course.server';
 import { type PanelSession, type PanelRow, panelPages, panelSessions } from './panel-export.server';
 
 export interface SupergameLine {
@@ -104,7 +105,7 @@ export async function resultMailStatus(sessionId: number) {
     .select({
       id: resultMails.id,
       email: users.email,
-      name: users.name,
+      name: memberName,
       pseudonym: sessionParticipants.pseudonym,
       status: resultMails.status,
       attempts: resultMails.attempts,
@@ -114,6 +115,8 @@ export async function resultMailStatus(sessionId: number) {
     .from(resultMails)
     .innerJoin(users, eq(users.id, resultMails.userId))
     .leftJoin(sessionParticipants, and(eq(sessionParticipants.sessionId, resultMails.sessionId), eq(sessionParticipants.userId, resultMails.userId)))
+    .innerJoin(sessions, eq(sessions.id, resultMails.sessionId))
+    .leftJoin(courseMembers, and(eq(courseMembers.userId, resultMails.userId), eq(courseMembers.courseId, sessions.courseId)))
     .where(eq(resultMails.sessionId, sessionId))
     .orderBy(asc(sessionParticipants.seq));
   const counts = { queued: 0, sending: 0, sent: 0, failed: 0 };
@@ -150,9 +153,10 @@ export async function drainResultMails(session: PanelSession, opts: DrainOptions
     if (claim.affectedRows !== 1) continue;
     try {
       const [who] = await db()
-        .select({ email: users.email, name: users.name, key: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym })
+        .select({ email: users.email, name: memberName, key: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym })
         .from(users)
         .innerJoin(sessionParticipants, and(eq(sessionParticipants.userId, users.id), eq(sessionParticipants.sessionId, session.id)))
+        .leftJoin(courseMembers, and(eq(courseMembers.userId, users.id), eq(courseMembers.courseId, session.courseId)))
         .where(eq(users.id, next.userId));
       if (!who) throw new Error('not a participant of this session');
       const rows: PanelRow[] = [];

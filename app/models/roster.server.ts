@@ -8,7 +8,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import type { RosterIssue, RosterRow } from '#app/lib/roster-csv';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
-import { escapeHtml, htmlFrame, type Mail } from '#app/utils/mail.server';
+import { escapeHtml, htmlFrame, type Mail, senderOf } from '#app/utils/mail.server';
 import { ROLE_WORDS } from '#app/utils/format';
 import { courseMembers, users } from '#drizzle/schema';
 
@@ -16,7 +16,7 @@ export type RosterStatus = 'new' | 'unchanged' | 'student-id-changes';
 
 export interface PlannedRow extends RosterRow {
   status: RosterStatus;
-  /** the name Parley already has for this person, kept when it differs from the file's */
+  /** the name this course already has for this person, kept when it differs from the file's */
   knownName: string | null;
 }
 
@@ -33,10 +33,10 @@ export async function planRoster(courseId: number, rows: readonly RosterRow[], r
   const planned: PlannedRow[] = [];
   if (rows.length === 0) return { rows: planned, errors };
   const emails = rows.map((r) => r.email);
-  const known = await reader.select({ id: users.id, email: users.email, name: users.name }).from(users).where(inArray(users.email, emails));
+  const known = await reader.select({ id: users.id, email: users.email }).from(users).where(inArray(users.email, emails));
   const userByEmail = new Map(known.map((u) => [u.email.toLowerCase(), u]));
   const members = await reader
-    .select({ userId: courseMembers.userId, role: courseMembers.role, studentId: courseMembers.studentId, email: users.email })
+    .select({ userId: courseMembers.userId, role: courseMembers.role, studentId: courseMembers.studentId, email: users.email, name: courseMembers.name })
     .from(courseMembers)
     .innerJoin(users, eq(users.id, courseMembers.userId))
     .where(eq(courseMembers.courseId, courseId));
@@ -55,7 +55,8 @@ export async function planRoster(courseId: number, rows: readonly RosterRow[], r
       errors.push({ line: r.line, message: `student id ${r.studentId} already belongs to ${holder.email} in this course` });
       continue;
     }
-    const knownName = user?.name && user.name !== r.name ? user.name : null;
+    // Names are the course's own (course_members.name): another course's roster never shows here.
+    const knownName = member?.name && member.name !== r.name ? member.name : null;
     const status: RosterStatus = !member ? 'new' : member.studentId === r.studentId ? 'unchanged' : 'student-id-changes';
     planned.push({ ...r, status, knownName });
   }
@@ -92,16 +93,16 @@ export async function importRoster(courseId: number, rows: readonly RosterRow[])
           unchanged += 1;
           continue;
         }
-        await tx.insert(users).values({ email: r.email, name: r.name }).onDuplicateKeyUpdate({ set: { email: r.email } });
-        const [u] = await tx.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, r.email));
-        if (u.name === null) await tx.update(users).set({ name: r.name }).where(eq(users.id, u.id));
+        // The account gets no name from a roster: users.name is shared by every course.
+        await tx.insert(users).values({ email: r.email }).onDuplicateKeyUpdate({ set: { email: r.email } });
+        const [u] = await tx.select({ id: users.id }).from(users).where(eq(users.email, r.email));
         if (r.status === 'new') {
-          await tx.insert(courseMembers).values({ courseId, userId: u.id, role: 'participant', studentId: r.studentId });
+          await tx.insert(courseMembers).values({ courseId, userId: u.id, role: 'participant', studentId: r.studentId, name: r.name });
           added.push(r);
         } else {
           await tx
             .update(courseMembers)
-            .set({ studentId: r.studentId })
+            .set({ studentId: r.studentId, name: r.knownName ?? r.name })
             .where(and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, u.id)));
           changed += 1;
         }
@@ -116,15 +117,16 @@ export async function importRoster(courseId: number, rows: readonly RosterRow[])
 }
 
 /** "You are on the roster": how a participant added by an import hears about it. */
-export function rosterMail(opts: { to: string; name: string; courseTitle: string; instructor: string }): Mail {
+export function rosterMail(opts: { to: string; name: string; courseTitle: string; instructor: { name: string | null; email: string } }): Mail {
   const link = new URL('/sign-in', env().APP_URL).toString();
+  const instructor = senderOf(opts.instructor);
   return {
     to: opts.to,
-    subject: `You are on the roster of ${opts.courseTitle} on Parley`,
+    subject: `You are on the roster of ${opts.courseTitle} on Parley, added by ${opts.instructor.email}`,
     text: [
       `Hello ${opts.name},`,
       '',
-      `${opts.instructor} added you as a participant of “${opts.courseTitle}” on Parley, where the class runs its experiments on phones.`,
+      `${instructor} added you as a participant of “${opts.courseTitle}” on Parley, where the class runs its experiments on phones.`,
       '',
       'There is nothing to do now. In class you will type a join code and sign in with a code e-mailed to this address (no app, no password).',
       `You can sign in beforehand here: ${link}`,
@@ -134,7 +136,7 @@ export function rosterMail(opts: { to: string; name: string; courseTitle: string
     html: htmlFrame(
       `You are on the roster of ${opts.courseTitle}`,
       `<p style="font-size:16px">Hello ${escapeHtml(opts.name)},</p>
-<p style="font-size:16px">${escapeHtml(opts.instructor)} added you as a participant of <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley, where the class runs its experiments on phones.</p>
+<p style="font-size:16px">${escapeHtml(instructor)} added you as a participant of <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley, where the class runs its experiments on phones.</p>
 <p style="font-size:16px">There is nothing to do now. In class you will type a join code and sign in with a code e-mailed to this address (no app, no password).</p>
 <p><a href="${escapeHtml(link)}" style="display:inline-block;background:#0e5357;color:#fff;padding:12px 20px;border-radius:8px;text-decoration:none;font-weight:600">Sign in to Parley</a></p>
 <p style="color:#475569;font-size:14px">If you think this is a mistake, reply to your instructor.</p>`,

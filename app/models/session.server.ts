@@ -2,7 +2,8 @@ import { and, count, desc, eq, inArray } from 'drizzle-orm';
 import { designSchema } from '#app/lib/design';
 import { normaliseSeed } from '#app/lib/rng';
 import { db } from '#app/utils/db.server';
-import { designs, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { courseMembers, designs, sessionParticipants, sessions, users } from '#drizzle/schema';
+import { memberName } from './course.server';
 import { newJoinCode, newSeed } from './live.server';
 
 export async function listSessions(courseId: number) {
@@ -96,9 +97,11 @@ export async function setConsent(sessionId: number, userId: number, consent: boo
 /** Names and e-mails behind the pseudonyms, for staff who ask for them on the Floor. */
 export async function namesOf(sessionId: number) {
   return db()
-    .select({ participantKey: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, name: users.name, email: users.email })
+    .select({ participantKey: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, name: memberName, email: users.email })
     .from(sessionParticipants)
     .innerJoin(users, eq(users.id, sessionParticipants.userId))
+    .innerJoin(sessions, eq(sessions.id, sessionParticipants.sessionId))
+    .leftJoin(courseMembers, and(eq(courseMembers.userId, sessionParticipants.userId), eq(courseMembers.courseId, sessions.courseId)))
     .where(eq(sessionParticipants.sessionId, sessionId));
 }
 

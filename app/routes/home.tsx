@@ -6,15 +6,16 @@ import { listCoursesForUser } from '#app/models/course.server';
 import { sessionsOfParticipant } from '#app/models/session.server';
 import { getUser } from '#app/utils/auth.server';
 import { ROLE_WORDS } from '#app/utils/format';
+import { mayCreateCourses } from '#app/utils/permissions.server';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await getUser(request);
-  if (!user) return { user: null, courses: [], played: [] };
+  if (!user) return { user: null, courses: [], played: [], canCreate: false };
   const courses = await listCoursesForUser(user.id, false);
   // Staff land on their courses; participants stay on this phone-first page.
   if (user.isAdmin || courses.some((c) => c.role !== 'participant')) throw redirect('/courses');
-  const played = await sessionsOfParticipant(user.id);
-  return { user: { email: user.email }, courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })), played };
+  const [played, canCreate] = await Promise.all([sessionsOfParticipant(user.id), mayCreateCourses(user)]);
+  return { user: { email: user.email }, courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })), played, canCreate };
 }
 
 export default function Home({ loaderData }: Route.ComponentProps) {
@@ -75,13 +76,17 @@ export default function Home({ loaderData }: Route.ComponentProps) {
           </ul>
         </section>
       ) : null}
-      <p className="text-sm text-slate-600">
-        Teaching a class?{' '}
-        <Link to="/courses/new" className="font-semibold text-accent-700 underline underline-offset-4">
-          Create a course
-        </Link>{' '}
-        and you become its instructor.
-      </p>
+      {loaderData.canCreate ? (
+        <p className="text-sm text-slate-600">
+          Teaching a class?{' '}
+          <Link to="/courses/new" className="font-semibold text-accent-700 underline underline-offset-4">
+            Create a course
+          </Link>{' '}
+          and you become its instructor.
+        </p>
+      ) : (
+        <p className="text-sm text-slate-600">Teaching a class? Ask a site administrator of Parley to let your account create courses.</p>
+      )}
     </ParticipantShell>
   );
 }

@@ -22,6 +22,16 @@ const schema = z.object({
   SMTP_URL: z.string().startsWith('smtp', 'SMTP_URL must be an smtp:// or smtps:// URL'),
   MAIL_FROM: z.string().min(3).default('Parley <no-reply@parley.test>'),
   ADMIN_EMAILS: csv,
+  /** e-mail domains whose addresses may create courses themselves, matched exactly
+   * (docs/decisions/023-who-creates-courses.md); empty: only admins and granted accounts */
+  INSTRUCTOR_DOMAINS: csv,
+  /** invitation and roster e-mails one course may send per 24 hours */
+  INVITES_PER_COURSE_PER_DAY: z.coerce.number().int().min(1).default(500),
+  /** how long a mail may wait for the mail server to connect, greet or answer, in milliseconds */
+  SMTP_TIMEOUT_MS: z.coerce.number().int().min(500).max(60_000).default(5000),
+  /** test seam (set by scripts/test.mjs only): a file of addresses whose mail fails as if the
+   * mail server were down; unset in production */
+  PARLEY_TEST_MAIL_FAULTS: z.string().optional(),
   /** sign-in codes one e-mail address may be sent per 15 minutes from one network */
   CODE_REQUESTS_PER_EMAIL_AND_IP: z.coerce.number().int().min(1).default(5),
   /** sign-in codes one e-mail address may be sent per 15 minutes from anywhere: bounds guessing

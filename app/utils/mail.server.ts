@@ -1,3 +1,4 @@
+import fs from 'node:fs';
 import nodemailer, { type Transporter } from 'nodemailer';
 import { env } from './env.server';
 
@@ -8,15 +9,56 @@ export interface Mail {
   html: string;
 }
 
+/**
+ * A mail that did not go out. Its message is fit to show to anyone (no host, port or server
+ * reply); the original error is `cause` and is logged on the server.
+ */
+export class MailNotSentError extends Error {
+  constructor(options?: { cause?: unknown }) {
+    super('We could not send the e-mail. Please try again in a moment.', options);
+    this.name = 'MailNotSentError';
+  }
+}
+
+/**
+ * A transport that gives up within SMTP_TIMEOUT_MS at each step: nodemailer's defaults wait up to
+ * 2 minutes to connect and 30 s for the greeting, and a sign-in or invitation should not hang that
+ * long when the mail server is down.
+ */
+export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: number = env().SMTP_TIMEOUT_MS): Transporter {
+  return nodemailer.createTransport({ url, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
+}
+
 const g = globalThis as unknown as { __parleyMailer?: Transporter };
 
 function transport() {
-  g.__parleyMailer ??= nodemailer.createTransport(env().SMTP_URL);
+  g.__parleyMailer ??= createMailTransport();
   return g.__parleyMailer;
 }
 
-export async function sendMail(mail: Mail) {
-  await transport().sendMail({ from: env().MAIL_FROM, ...mail });
+/** The test seam: is this address listed in PARLEY_TEST_MAIL_FAULTS (read on every send)? */
+function faultInjected(to: string) {
+  const file = env().PARLEY_TEST_MAIL_FAULTS;
+  if (!file) return false;
+  let listed: string;
+  try {
+    listed = fs.readFileSync(file, 'utf8');
+  } catch {
+    return false;
+  }
+  return listed.split('\n').some((line) => line.trim().toLowerCase() === to.toLowerCase());
+}
+
+/** Sends one mail, or throws MailNotSentError (within a few seconds when the server is down). */
+export async function sendMail(mail: Mail, via: Transporter = transport()) {
+  try {
+    if (faultInjected(mail.to)) throw new Error('mail fault injected by PARLEY_TEST_MAIL_FAULTS');
+    await via.sendMail({ from: env().MAIL_FROM, ...mail });
+  } catch (error) {
+    // Neither the recipient nor the subject (it may carry a sign-in code) goes to the log.
+    console.error('[mail] not sent:', error);
+    throw new MailNotSentError({ cause: error });
+  }
 }
 
 export function escapeHtml(s: string) {
@@ -55,31 +97,40 @@ export function signInCodeMail(email: string, code: string, magicLink: string, m
   };
 }
 
+/**
+ * Who sends an invitation or roster mail, as recipients read it: the name (if the account has one)
+ * and always the signed-in address, which Parley has checked, so nobody can pose as someone else.
+ */
+export function senderOf(user: { name: string | null; email: string }) {
+  return user.name ? `${user.name} (${user.email})` : user.email;
+}
+
 export function invitationMail(opts: {
   to: string;
   courseTitle: string;
   role: string;
-  inviter: string;
+  inviter: { name: string | null; email: string };
   link: string;
   days: number;
 }): Mail {
   const article = /^[aeiou]/.test(opts.role) ? 'an' : 'a';
+  const inviter = senderOf(opts.inviter);
   return {
     to: opts.to,
-    subject: `Invitation to ${opts.courseTitle} on Parley`,
+    subject: `Invitation to ${opts.courseTitle} on Parley, from ${opts.inviter.email}`,
     text: [
-      `${opts.inviter} invites you to join “${opts.courseTitle}” on Parley as ${article} ${opts.role}.`,
+      `${inviter} invites you to join “${opts.courseTitle}” on Parley as ${article} ${opts.role}.`,
       '',
       `Accept the invitation here (you will sign in with a code sent to this address):`,
       opts.link,
       '',
-      `The invitation is valid for ${opts.days} days.`,
+      `The invitation is valid for ${opts.days} days. If you do not know ${opts.inviter.email}, ignore this e-mail.`,
     ].join('\n'),
     html: htmlFrame(
       `Join ${opts.courseTitle}`,
-      `<p style="font-size:16px">${escapeHtml(opts.inviter)} invites you to join <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley as ${article} <strong>${escapeHtml(opts.role)}</strong>.</p>
+      `<p style="font-size:16px">${escapeHtml(inviter)} invites you to join <strong>${escapeHtml(opts.courseTitle)}</strong> on Parley as ${article} <strong>${escapeHtml(opts.role)}</strong>.</p>
 <p><a href="${escapeHtml(opts.link)}" style="display:inline-block;background:#0e5357;color:#fff;padding:12px 20px;border-radius:8px;text-decoration:none;font-weight:600">See the invitation</a></p>
-<p style="color:#475569;font-size:14px">You will sign in with a code sent to this address. The invitation is valid for ${opts.days} days.</p>`,
+<p style="color:#475569;font-size:14px">You will sign in with a code sent to this address. The invitation is valid for ${opts.days} days. If you do not know ${escapeHtml(opts.inviter.email)}, ignore this e-mail.</p>`,
     ),
   };
 }

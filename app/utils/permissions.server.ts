@@ -1,7 +1,8 @@
 import { and, eq } from 'drizzle-orm';
-import { courseMembers, courses, type CourseRole } from '#drizzle/schema';
+import { courseMembers, courses, type CourseRole, users } from '#drizzle/schema';
 import { type CurrentUser, requireUser } from './auth.server';
 import { db } from './db.server';
+import { env } from './env.server';
 
 export const STAFF_ROLES = ['instructor', 'assistant', 'researcher'] as const satisfies readonly CourseRole[];
 
@@ -58,4 +59,27 @@ export async function requireCourseRole(
     );
   }
   return { user, course: { ...course, isDemo: course.isDemo === 1 }, role };
+}
+
+/** The part of an address after the last @, lower-cased. */
+export const emailDomain = (email: string) => email.slice(email.lastIndexOf('@') + 1).toLowerCase();
+
+/**
+ * Who may create a course (docs/decisions/023-who-creates-courses.md): site admins, accounts an
+ * admin granted, and addresses of an INSTRUCTOR_DOMAINS domain, matched exactly (students often
+ * have a subdomain of the staff domain).
+ */
+export async function mayCreateCourses(user: CurrentUser): Promise<boolean> {
+  if (user.isAdmin || env().INSTRUCTOR_DOMAINS.includes(emailDomain(user.email))) return true;
+  const [u] = await db().select({ granted: users.mayCreateCourses }).from(users).where(eq(users.id, user.id));
+  return u?.granted === 1;
+}
+
+/** Guard of course creation: 403 with the way to get the right. */
+export async function requireCourseCreator(request: Request): Promise<CurrentUser> {
+  const user = await requireUser(request);
+  if (!(await mayCreateCourses(user))) {
+    throw new Response('Your account may not create courses. Ask a site administrator of Parley to allow it.', { status: 403 });
+  }
+  return user;
 }

@@ -233,9 +233,9 @@ export function authenticator() {
           try {
             await sendMail(signInCodeMail(email, code, publicLink, CODE_MINUTES));
           } catch (error) {
-            // The strategy shows an error's message to the user: never the mail server's own words.
-            console.error('[parley] could not send a sign-in code', error);
-            throw new Error(MESSAGES.mailFailed);
+            // The strategy shows an error's message to the user: never the mail server's own words
+            // (sendMail has logged the cause).
+            throw new Error(MESSAGES.mailFailed, { cause: error });
           }
         },
       },

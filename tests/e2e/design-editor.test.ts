@@ -1,6 +1,7 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DESKTOP, launch, newContext, pageErrors, signInInBrowser } from '#tests/helpers/browser';
+import { closeTestDb, createCourseCreator } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
 
 let browser: Browser;
@@ -9,6 +10,7 @@ beforeAll(async () => {
 });
 afterAll(async () => {
   await browser?.close();
+  await closeTestDb();
 });
 
 const verdict = (page: Page, condition: string) =>
@@ -17,8 +19,10 @@ const verdict = (page: Page, condition: string) =>
 describe('design editor, in Chromium', () => {
   it('an instructor creates a design, sees verdicts flip at the thresholds, builds and saves an automaton', async () => {
     const page = await (await newContext(browser, DESKTOP)).newPage();
+    const designer = uniqueEmail('designer');
+    await createCourseCreator(designer);
     await page.goto('/sign-in');
-    await signInInBrowser(page, uniqueEmail('designer'));
+    await signInInBrowser(page, designer);
     await page.goto('/courses/new');
     await page.getByLabel('Title').fill('Repeated games lab');
     await page.getByRole('button', { name: 'Create course' }).click();

@@ -29,3 +29,9 @@ export async function createCourse(title: string, members: { userId: number; rol
   if (members.length) await testDb().insert(schema.courseMembers).values(members.map((m) => ({ ...m, courseId })));
   return courseId;
 }
+
+/** An account allowed to create courses, as a site admin would grant it (docs/decisions/023). */
+export async function createCourseCreator(email: string) {
+  const [res] = await testDb().insert(schema.users).values({ email, mayCreateCourses: 1 });
+  return res.insertId;
+}

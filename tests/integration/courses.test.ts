@@ -1,7 +1,7 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { courseMembers, courses, invitations, users } from '#drizzle/schema';
-import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { closeTestDb, createCourse, createCourseCreator, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { waitForMail } from '#tests/helpers/mail';
 
@@ -15,8 +15,9 @@ async function memberRows(courseId: number) {
 }
 
 describe('courses', () => {
-  it('any signed-in user creates a course and becomes its instructor', async () => {
+  it('a user allowed to create courses creates one and becomes its instructor', async () => {
     const email = uniqueEmail('creator');
+    await createCourseCreator(email);
     const c = await signIn(email);
     const res = await c.post('/courses/new', { title: 'Game Theory 301', institution: 'Test College', term: 'Fall' });
     expect(res.status).toBe(302);
@@ -29,7 +30,9 @@ describe('courses', () => {
   });
 
   it('a course without a title returns a field error and saves nothing', async () => {
-    const c = await signIn(uniqueEmail('notitle'));
+    const email = uniqueEmail('notitle');
+    await createCourseCreator(email);
+    const c = await signIn(email);
     const before = (await testDb().select({ id: courses.id }).from(courses)).length;
     const res = await c.post('/courses/new', { title: ' x ', term: 'Fall' });
     expect(res.status).toBe(400);
@@ -134,7 +137,9 @@ describe('roles guard every course page and action', () => {
 
 describe('invitations', () => {
   it('an invited assistant receives the e-mail, accepts, and gets assistant rights', async () => {
-    const inst = await signIn(uniqueEmail('host'));
+    const host = uniqueEmail('host');
+    await createCourseCreator(host);
+    const inst = await signIn(host);
     const made = await inst.post('/courses/new', { title: 'Invitation course' });
     const courseId = Number(made.headers.get('location')!.split('/').pop());
     const invitee = uniqueEmail('invitee');

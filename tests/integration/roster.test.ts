@@ -107,7 +107,7 @@ describe('roster upload', () => {
     expect(pageText(await first.text())).toContain('4 new participants added and e-mailed, 0 student ids changed, 0 already on the roster');
     const after = await membersOf(courseId);
     const added = await testDb()
-      .select({ email: users.email, name: users.name, studentId: courseMembers.studentId, role: courseMembers.role })
+      .select({ email: users.email, name: courseMembers.name, studentId: courseMembers.studentId, role: courseMembers.role })
       .from(courseMembers)
       .innerJoin(users, eq(users.id, courseMembers.userId))
       .where(and(eq(courseMembers.courseId, courseId), eq(courseMembers.role, 'participant')))

@@ -7,7 +7,7 @@ import { ParticipantShell } from '#app/components/shells';
 import { Notice } from '#app/components/ui';
 import { getSession, participantKeyOf } from '#app/models/live.server';
 import { requireUser } from '#app/utils/auth.server';
-import { parseId } from '#app/utils/permissions.server';
+import { parseId, roleIn, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import type { Action } from '#app/lib/automata';
 import { participantView } from '#realtime/engine/views';
@@ -15,13 +15,20 @@ import type { ParticipantView } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
+  // One answer for "no such session" and "not yours": session ids are sequential, so anything
+  // else tells a stranger which sessions exist, and a redirect would hand over the join code.
+  const nothingHere = () => new Response('Nothing here.', { status: 404 });
   const session = await getSession(parseId(params.sessionId));
-  if (!session) throw new Response('No such session.', { status: 404 });
+  if (!session) throw nothingHere();
   const state = await runner().state(session.id);
   const me = participantKeyOf(user.id);
   if (!state?.participants[me]) {
-    if (session.joinCode) throw redirect(`/join/${session.joinCode}`);
-    throw new Response('You did not take part in this session.', { status: 403 });
+    const role = user.isAdmin ? 'instructor' : await roleIn(session.courseId, user.id);
+    const staff = role !== null && (STAFF_ROLES as readonly string[]).includes(role);
+    // Staff of the course see the join code on the big screen anyway.
+    if (staff && session.joinCode) throw redirect(`/join/${session.joinCode}`);
+    if (staff) throw new Response('You did not take part in this session.', { status: 403 });
+    throw nothingHere();
   }
   return { email: user.email, sessionId: session.id, courseId: session.courseId, view: participantView(state, me), serverNow: Date.now() };
 }

@@ -4,8 +4,8 @@ import type { Route } from './+types/course-new';
 import { PageHeader } from '#app/components/shells';
 import { Button, TextField } from '#app/components/ui';
 import { createCourse } from '#app/models/course.server';
-import { requireUser } from '#app/utils/auth.server';
 import { fieldErrors } from '#app/utils/forms';
+import { requireCourseCreator } from '#app/utils/permissions.server';
 
 const NewCourse = z.object({
   title: z.string().trim().min(3, 'Give the course a title of at least 3 characters.').max(160, 'At most 160 characters.'),
@@ -14,12 +14,12 @@ const NewCourse = z.object({
 });
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
+  await requireCourseCreator(request);
   return null;
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const user = await requireUser(request);
+  const user = await requireCourseCreator(request);
   const form = Object.fromEntries(await request.formData());
   const parsed = NewCourse.safeParse(form);
   if (!parsed.success) return data({ errors: fieldErrors(parsed.error), values: form }, { status: 400 });

@@ -6,11 +6,12 @@ import { DemoBadge } from '#app/components/ui';
 import { listCoursesForUser } from '#app/models/course.server';
 import { requireUser } from '#app/utils/auth.server';
 import { ROLE_WORDS } from '#app/utils/format';
+import { mayCreateCourses } from '#app/utils/permissions.server';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const courses = await listCoursesForUser(user.id, user.isAdmin);
-  return { courses: courses.map((c) => ({ ...c, role: c.role ?? 'participant' })) };
+  return { courses: courses.map((c) => ({ ...c, role: c.role ?? 'participant' })), canCreate: await mayCreateCourses(user) };
 }
 
 type CourseRow = Route.ComponentProps['loaderData']['courses'][number];
@@ -44,14 +45,17 @@ export default function Courses({ loaderData }: Route.ComponentProps) {
   return (
     <>
       <PageHeader title="Courses">
-        <Link to="/courses/new" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
-          New course
-        </Link>
+        {loaderData.canCreate ? (
+          <Link to="/courses/new" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
+            New course
+          </Link>
+        ) : null}
       </PageHeader>
       {loaderData.courses.length === 0 ? (
         <p className="text-lg text-slate-700">
-          You have no courses yet. Create one and you become its instructor; then invite assistants, researchers and
-          participants.
+          {loaderData.canCreate
+            ? 'You have no courses yet. Create one and you become its instructor; then invite assistants, researchers and participants.'
+            : 'You have no courses yet. An instructor can invite you to one; to create courses yourself, ask a site administrator of Parley.'}
         </p>
       ) : (
         <DataTable columns={columns} data={loaderData.courses} caption="Your courses" filterLabel="Filter courses" initialSorting={[{ id: 'title', desc: false }]} />

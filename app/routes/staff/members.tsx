@@ -7,17 +7,23 @@ import { Button, Notice, RowAction, SelectField, TextField } from '#app/componen
 import {
   changeMemberRole,
   createInvitation,
+  findPendingInvitation,
   listMembers,
   listPendingInvitations,
+  markInvitationSent,
+  reissueInvitation,
+  releaseCourseMail,
+  reserveCourseMails,
   revokeInvitation,
 } from '#app/models/course.server';
+import type { CurrentUser } from '#app/utils/auth.server';
 import { env } from '#app/utils/env.server';
 import { sockets } from '#app/utils/sockets.server';
 import { fieldErrors } from '#app/utils/forms';
 import { formatDate, ROLE_WORDS } from '#app/utils/format';
-import { invitationMail, sendMail } from '#app/utils/mail.server';
+import { invitationMail, MailNotSentError, sendMail } from '#app/utils/mail.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
-import { COURSE_ROLES, INVITATION_DAYS } from '#app/utils/roles';
+import { COURSE_ROLES, type CourseRole, INVITATION_DAYS } from '#app/utils/roles';
 
 const Role = z.enum(COURSE_ROLES, 'Choose a role.');
 const Id = z.coerce.number().int().positive();
@@ -26,7 +32,38 @@ const MemberAction = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('change-role'), memberId: Id, role: Role }),
   z.object({ intent: z.literal('remove'), memberId: Id }),
   z.object({ intent: z.literal('revoke'), invitationId: Id }),
+  z.object({ intent: z.literal('resend'), invitationId: Id }),
 ]);
+
+/**
+ * Sends an invitation's mail on a reserved place of the course's daily cap: marks it sent, or
+ * gives the place back and leaves it "not sent" (shown with a Resend button) when the mail fails.
+ */
+async function sendInvitation(
+  course: { id: number; title: string },
+  user: CurrentUser,
+  inv: { invitationId: number; token: string; email: string; role: CourseRole },
+  reservationId: number,
+): Promise<boolean> {
+  try {
+    await sendMail(
+      invitationMail({
+        to: inv.email,
+        courseTitle: course.title,
+        role: inv.role,
+        inviter: user,
+        link: new URL(`/invitations/${inv.token}`, env().APP_URL).toString(),
+        days: INVITATION_DAYS,
+      }),
+    );
+  } catch (error) {
+    if (!(error instanceof MailNotSentError)) throw error;
+    await releaseCourseMail(reservationId);
+    return false;
+  }
+  await markInvitationSent(inv.invitationId);
+  return true;
+}
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   // Researchers work with de-identified data only, so the roster of names is not theirs to see.
@@ -45,21 +82,38 @@ export async function action({ request, params }: Route.ActionArgs) {
   const a = parsed.data;
   const fail = (message: string, status: number) =>
     data({ ok: false as const, intent: a.intent, errors: {} as Record<string, string>, values: form, message }, { status });
+  const capReached = () =>
+    fail(
+      `This course has reached its limit of at most ${env().INVITES_PER_COURSE_PER_DAY} invitation e-mails a day (invitations and roster e-mails together, over the last 24 hours). Nothing was sent; try again later.`,
+      429,
+    );
+  const notSent = (email: string) =>
+    fail(`We could not send the e-mail to ${email}. The invitation is listed below as not sent: try again with Resend in a moment.`, 503);
   switch (a.intent) {
     case 'invite': {
-      const res = await createInvitation(course.id, a.email, a.role, user.id);
-      if (!res.ok) return data({ ok: false as const, intent: a.intent, errors: { [res.field]: res.message }, values: form, message: null }, { status: 400 });
-      await sendMail(
-        invitationMail({
-          to: a.email.toLowerCase(),
-          courseTitle: course.title,
-          role: a.role,
-          inviter: user.name ?? user.email,
-          link: new URL(`/invitations/${res.token}`, env().APP_URL).toString(),
-          days: INVITATION_DAYS,
-        }),
-      );
-      return { ok: true as const, intent: a.intent, message: `Invitation sent to ${a.email.toLowerCase()}.` };
+      const email = a.email.toLowerCase();
+      const [reservation] = await reserveCourseMails(course.id, user.id, 'invitation', [email]);
+      if (reservation === undefined) return capReached();
+      const res = await createInvitation(course.id, email, a.role, user.id);
+      if (!res.ok) {
+        await releaseCourseMail(reservation);
+        return data({ ok: false as const, intent: a.intent, errors: { [res.field]: res.message }, values: form, message: null }, { status: 400 });
+      }
+      if (!(await sendInvitation(course, user, { ...res, email, role: a.role }, reservation))) return notSent(email);
+      return { ok: true as const, intent: a.intent, message: `Invitation sent to ${email}.` };
+    }
+    case 'resend': {
+      const inv = await findPendingInvitation(course.id, a.invitationId);
+      if (!inv) return fail('That invitation is not pending in this course.', 404);
+      const [reservation] = await reserveCourseMails(course.id, user.id, 'invitation', [inv.email]);
+      if (reservation === undefined) return capReached();
+      const token = await reissueInvitation(course.id, inv.id);
+      if (!token) {
+        await releaseCourseMail(reservation);
+        return fail('That invitation is not pending in this course.', 404);
+      }
+      if (!(await sendInvitation(course, user, { invitationId: inv.id, token, email: inv.email, role: inv.role }, reservation))) return notSent(inv.email);
+      return { ok: true as const, intent: a.intent, message: `Invitation sent again to ${inv.email}.` };
     }
     case 'change-role':
     case 'remove': {
@@ -182,16 +236,26 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
             {invitations.map((inv) => (
               <li key={inv.id} className="flex flex-wrap items-center justify-between gap-2 px-4 py-2">
                 <span>
-                  <span className="break-all">{inv.email}</span> · {ROLE_WORDS[inv.role]} · until {formatDate(inv.expiresAt)}
+                  <span className="break-all">{inv.email}</span> · {ROLE_WORDS[inv.role]} ·{' '}
+                  {inv.sentAt ? (
+                    `until ${formatDate(inv.expiresAt)}`
+                  ) : (
+                    <strong className="text-danger-600">
+                      not sent <span aria-hidden="true">⚠</span>
+                    </strong>
+                  )}
                 </span>
                 {canManage ? (
-                  <Form method="post">
-                    <input type="hidden" name="intent" value="revoke" />
-                    <input type="hidden" name="invitationId" value={inv.id} />
-                    <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
-                      Withdraw<span className="sr-only"> invitation to {inv.email}</span>
-                    </button>
-                  </Form>
+                  <span className="flex items-center gap-1">
+                    {inv.sentAt ? null : <RowAction fields={{ intent: 'resend', invitationId: inv.id }} label="Resend" target={`invitation to ${inv.email}`} tone="quiet" />}
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="revoke" />
+                      <input type="hidden" name="invitationId" value={inv.id} />
+                      <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50">
+                        Withdraw<span className="sr-only"> invitation to {inv.email}</span>
+                      </button>
+                    </Form>
+                  </span>
                 ) : null}
               </li>
             ))}

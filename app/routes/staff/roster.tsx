@@ -6,7 +6,9 @@ import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { CsvFileField, LineIssues } from '#app/components/upload';
 import { Button, Notice } from '#app/components/ui';
 import { parseRoster, ROSTER_LIMITS, type RosterIssue } from '#app/lib/roster-csv';
+import { releaseCourseMail, reserveCourseMails } from '#app/models/course.server';
 import { importRoster, type PlannedRow, planRoster, rosterMail } from '#app/models/roster.server';
+import { env } from '#app/utils/env.server';
 import { sendMail } from '#app/utils/mail.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
@@ -27,7 +29,7 @@ interface Outcome {
   csv: string;
   rows: PlannedRow[];
   errors: RosterIssue[];
-  imported: { added: number; changed: number; unchanged: number; mailFailures: number } | null;
+  imported: { added: number; changed: number; unchanged: number; mailFailures: number; notMailed: number; mailCap: number } | null;
 }
 
 const sizeMessage = `The file is larger than ${ROSTER_LIMITS.maxBytes / 1024} KB: a roster of ${ROSTER_LIMITS.maxRows} people fits well below that. Export only the e-mail, name and student id columns.`;
@@ -66,15 +68,29 @@ export async function action({ request, params }: Route.ActionArgs) {
 
   const res = await importRoster(course.id, parsed.rows);
   if (!res.ok) return data({ ...outcome, errors: res.errors }, { status: 400 });
+  // The roster is written whatever the course's daily mail cap; past the cap nobody is mailed
+  // (the mail only tells people they are on the roster) and the instructor is told how many.
+  const { added } = res.result;
+  const reservations = await reserveCourseMails(course.id, user.id, 'roster', added.map((r) => r.email));
   let mailFailures = 0;
-  for (const r of res.result.added) {
+  for (const [i, id] of reservations.entries()) {
+    const r = added[i];
     try {
-      await sendMail(rosterMail({ to: r.email, name: r.name, courseTitle: course.title, instructor: user.name ?? user.email }));
+      await sendMail(rosterMail({ to: r.email, name: r.name, courseTitle: course.title, instructor: user }));
     } catch {
       mailFailures += 1;
+      await releaseCourseMail(id);
     }
   }
-  return { ...outcome, csv: '', imported: { added: res.result.added.length, changed: res.result.changed, unchanged: res.result.unchanged, mailFailures } } satisfies Outcome;
+  const imported = {
+    added: added.length,
+    changed: res.result.changed,
+    unchanged: res.result.unchanged,
+    mailFailures,
+    notMailed: added.length - reservations.length,
+    mailCap: env().INVITES_PER_COURSE_PER_DAY,
+  };
+  return { ...outcome, csv: '', imported } satisfies Outcome;
 }
 
 const STATUS = {
@@ -142,9 +158,16 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
       <div aria-live="polite" className="flex max-w-3xl flex-col gap-3">
         {outcome?.imported ? (
           <Notice tone="ok" title="Roster imported">
-            {outcome.imported.added} new participant{outcome.imported.added === 1 ? '' : 's'} added and e-mailed, {outcome.imported.changed} student id
+            {outcome.imported.added} new participant{outcome.imported.added === 1 ? '' : 's'} added{outcome.imported.notMailed ? '' : ' and e-mailed'}, {outcome.imported.changed} student id
             {outcome.imported.changed === 1 ? '' : 's'} changed, {outcome.imported.unchanged} already on the roster.
             {outcome.imported.mailFailures ? ` ${outcome.imported.mailFailures} e-mail(s) could not be sent; the people are on the roster all the same.` : ''}
+          </Notice>
+        ) : null}
+        {outcome?.imported?.notMailed ? (
+          <Notice tone="warn" title="Not everyone was e-mailed">
+            {outcome.imported.notMailed === 1 ? '1 person was' : `${outcome.imported.notMailed} people were`} not e-mailed: this course has sent its{' '}
+            {outcome.imported.mailCap} e-mails for today (invitations and roster e-mails together). They are on the roster all the same and can sign in
+            with their e-mail address.
           </Notice>
         ) : null}
         {outcome && outcome.errors.length > 0 ? (
