@@ -72,8 +72,16 @@ describe('sessionDebrief', () => {
     expect(d.theory.sizeBAD).toBe(1);
   });
 
-  it('two supergames are too few for the χ² test: the reason is given instead', () => {
-    expect(d.lengths.test.ok).toBe(false);
+  it('two supergames are too few for the χ² distribution: the p-value is simulated instead', () => {
+    if (!d.lengths.test.ok) throw new Error(d.lengths.test.message);
+    expect(d.lengths.test.result.method).toBe('simulated');
+    // n = 2, δ = 1/2: bins 1 and 2+ expect 1 each [calc]; lengths 1 and 2 fit them exactly, χ² = 0, p = 1
+    expect(d.lengths.test.result.bins.map((b) => [b.from, b.to, b.observed, b.expected])).toEqual([
+      [1, 1, 1, 1],
+      [2, null, 1, 1],
+    ]);
+    expect(d.lengths.test.result.statistic).toBe(0);
+    expect(d.lengths.test.result.pValue).toBe(1);
     expect(d.lengths.histogram).toEqual([
       { k: 1, observed: 1, expected: 1 },
       { k: 2, observed: 1, expected: 0.5 },
