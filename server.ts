@@ -10,6 +10,8 @@ import type { ServerBuild } from 'react-router';
 import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { resumeResultMails } from '#app/models/result-mails.server';
+import { userIdFromCookie } from '#app/utils/auth.server';
+import { capBodies, withReadBody } from '#app/utils/request-limits.server';
 import { attachHub } from '#realtime/hub';
 
 const config = env();
@@ -25,6 +27,8 @@ app.use((req, _res, next) => {
   req.headers['x-parley-client-ip'] = (config.TRUST_PROXY ? req.ip : req.socket.remoteAddress) ?? 'unknown';
   next();
 });
+// Bodies are read here, up to each route's limit, before anything parses them (413 above it).
+app.use(capBodies(async (cookie) => (await userIdFromCookie(cookie)) !== null));
 app.use(compression());
 
 if (production) {
@@ -32,7 +36,8 @@ if (production) {
   app.use('/assets', express.static(path.join(buildDir, 'client/assets'), { immutable: true, maxAge: '1y' }));
   app.use(express.static(path.join(buildDir, 'client'), { maxAge: '1h' }));
   const build = (await import(pathToFileURL(path.join(buildDir, 'server/index.js')).href)) as ServerBuild;
-  app.use(createRequestHandler({ build, mode: 'production' }));
+  const handler = createRequestHandler({ build, mode: 'production' });
+  app.use((req, res, next) => handler(withReadBody(req), res, next));
 } else {
   const vite = await import('vite').then((v) =>
     v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }),
@@ -41,7 +46,7 @@ if (production) {
   app.use(async (req, res, next) => {
     try {
       const build = (await vite.ssrLoadModule('virtual:react-router/server-build')) as ServerBuild;
-      await createRequestHandler({ build, mode: 'development' })(req, res, next);
+      await createRequestHandler({ build, mode: 'development' })(withReadBody(req), res, next);
     } catch (error) {
       if (error instanceof Error) vite.ssrFixStacktrace(error);
       next(error);

@@ -21,7 +21,7 @@ export default defineConfig({
         test: {
           name: 'integration',
           expect: { requireAssertions: true },
-          include: ['tests/integration/**/*.test.ts'],
+          include: ['tests/integration/**/*.test.ts', 'tests/security/**/*.test.ts'],
           testTimeout: 30_000,
           hookTimeout: 30_000,
           setupFiles: ['tests/setup/require-test-server.ts'],
