@@ -11,6 +11,7 @@ import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { resumeResultMails } from '#app/models/result-mails.server';
 import { userIdFromCookie } from '#app/utils/auth.server';
+import { requireSameOrigin } from '#app/utils/origin.server';
 import { capBodies, withReadBody } from '#app/utils/request-limits.server';
 import { attachHub } from '#realtime/hub';
 
@@ -27,6 +28,8 @@ app.use((req, _res, next) => {
   req.headers['x-parley-client-ip'] = (config.TRUST_PROXY ? req.ip : req.socket.remoteAddress) ?? 'unknown';
   next();
 });
+// Anything that may change state must come from our own pages (same-site CSRF).
+app.use(requireSameOrigin(config.APP_URL));
 // Bodies are read here, up to each route's limit, before anything parses them (413 above it).
 app.use(capBodies(async (cookie) => (await userIdFromCookie(cookie)) !== null));
 app.use(compression());

@@ -8,6 +8,8 @@ import type { z } from 'zod';
 import { LIBRARY } from '#app/lib/automata';
 import { isAdminEmail, userIdFromCookie } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
+import { allowSocketOrigin } from '#app/utils/origin.server';
 import { roleIn } from '#app/utils/permissions.server';
 import type { CourseRole } from '#app/utils/roles';
 import { setRunner } from '#app/utils/runner.server';
@@ -44,6 +46,8 @@ class Refusal extends Error {
 export function attachHub(httpServer: HttpServer) {
   const io = new Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>(httpServer, {
     serveClient: false,
+    // Pages of another origin on the same site would otherwise connect with the user's cookie.
+    allowRequest: allowSocketOrigin(env().APP_URL),
   });
   const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
   setRunner(runner);

@@ -35,7 +35,8 @@ export async function join(participant: Client, code: string, fields: Record<str
 const open: TestSocket[] = [];
 
 export function connect(cookie: string, url = baseUrl()): Promise<TestSocket> {
-  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie }, reconnection: false, forceNew: true });
+  // The Origin a browser on Parley's pages sends (the hub refuses other origins).
+  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie, origin: new URL(url).origin }, reconnection: false, forceNew: true });
   open.push(s);
   return new Promise((resolve, reject) => {
     s.on('connect', () => resolve(s));

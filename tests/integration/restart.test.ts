@@ -14,7 +14,7 @@ const base = `http://127.0.0.1:${port}`;
 let server: ChildProcess | null = null;
 
 async function startServer() {
-  server = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, PORT: String(port) }, stdio: 'ignore' });
+  server = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, PORT: String(port), APP_URL: base }, stdio: 'ignore' });
   const until = Date.now() + 30_000;
   while (Date.now() < until) {
     try {
