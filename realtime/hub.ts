@@ -30,6 +30,7 @@ import {
   type SocketData,
   UNAUTHORIZED,
 } from './protocol';
+import { EventLimiter } from './rate-limit';
 import { SessionRunner } from './runner';
 
 export type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
@@ -48,6 +49,8 @@ export function attachHub(httpServer: HttpServer) {
     serveClient: false,
     // Pages of another origin on the same site would otherwise connect with the user's cookie.
     allowRequest: allowSocketOrigin(env().APP_URL),
+    // Every payload is a few hundred bytes; socket.io's default (1 MB) would let one message hold a megabyte.
+    maxHttpBufferSize: 32 * 1024,
   });
   const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
   setRunner(runner);
@@ -88,6 +91,8 @@ export function attachHub(httpServer: HttpServer) {
     const me = String(userId);
     /** sessions this socket plays in, to report its connection state */
     const playing = new Set<number>();
+    // Before handle(): a flood is answered `rate-limited` without validating or running anything.
+    socket.use(rateLimit(new EventLimiter()));
 
     socket.on('me:get', (payload, ack) => handle(MeGet, payload, ack, async () => ({ userId })));
 
@@ -175,6 +180,17 @@ export function attachHub(httpServer: HttpServer) {
   });
 
   return { io, runner };
+}
+
+/** socket.io middleware: every incoming event passes here first; over its bucket it is refused. */
+function rateLimit(limiter: EventLimiter) {
+  return ([event, ...args]: unknown[], next: (err?: Error) => void) => {
+    if (limiter.allow(String(event))) return next();
+    const ack = args.at(-1);
+    if (typeof ack === 'function') {
+      (ack as (res: Ack<never>) => void)({ ok: false, code: 'rate-limited', message: 'Too many requests at once: wait a moment and try again.' });
+    }
+  };
 }
 
 /** Validate, run, acknowledge: every event goes through here so no payload skips zod. */
