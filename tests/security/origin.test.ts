@@ -8,6 +8,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { courseStrategies, designs, estimates, resultMails } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { baseUrl, type Client, isSignedIn, signIn, uniqueEmail } from '#tests/helpers/http';
+import { designForm } from '#tests/helpers/live';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
 const app = () => new URL(baseUrl());
@@ -41,26 +42,6 @@ function postAs(c: Client, path: string, fields: Record<string, string>, headers
   });
 }
 
-/** The design editor's fields for a valid design. */
-const design = (name: string) => ({
-  name,
-  'payoffs.R': '40',
-  'payoffs.S': '12',
-  'payoffs.T': '50',
-  'payoffs.P': '25',
-  'labels.C': 'X',
-  'labels.D': 'Y',
-  delta: '0.75',
-  supergames: '10',
-  roundSeconds: '20',
-  'termination.kind': 'standard',
-  'oddCount.kind': 'computer',
-  'oddCount.strategy': 'TFT',
-  timeout: 'repeat-last',
-  'credit.kind': 'participation',
-  'credit.credit': '1',
-  instructions: '',
-});
 const designsNamed = async (name: string) => (await testDb().select().from(designs).where(eq(designs.name, name))).length;
 
 const strategy = JSON.stringify({
@@ -108,7 +89,7 @@ describe('state-changing requests from another origin', () => {
 
   it('a page action from another origin is refused', async () => {
     const name = `Cross-origin design ${Date.now().toString(36)}`;
-    const res = await postAs(instructor, `/courses/${courseId}/designs/new`, design(name), { origin: foreignOrigins()[1] });
+    const res = await postAs(instructor, `/courses/${courseId}/designs/new`, designForm({ name }), { origin: foreignOrigins()[1] });
     expect(res.status).toBe(403);
     expect(await designsNamed(name)).toBe(0);
   });
@@ -116,10 +97,10 @@ describe('state-changing requests from another origin', () => {
   it('without Origin the Referer decides; with neither a request is refused', async () => {
     const name = `Referer design ${Date.now().toString(36)}`;
     const path = `/courses/${courseId}/designs/new`;
-    expect((await postAs(instructor, path, design(name), { referer: `${foreignOrigins()[1]}${path}` })).status).toBe(403);
-    expect((await postAs(instructor, path, design(name), {})).status).toBe(403);
+    expect((await postAs(instructor, path, designForm({ name }), { referer: `${foreignOrigins()[1]}${path}` })).status).toBe(403);
+    expect((await postAs(instructor, path, designForm({ name }), {})).status).toBe(403);
     expect(await designsNamed(name)).toBe(0);
-    const ok = await postAs(instructor, path, design(name), { referer: `${app().origin}${path}` });
+    const ok = await postAs(instructor, path, designForm({ name }), { referer: `${app().origin}${path}` });
     expect(ok.status).toBe(302);
     expect(await designsNamed(name)).toBe(1);
   });
