@@ -21,8 +21,11 @@ export function streamPost(path: string, opts: { total: number; headers?: Record
   return new Promise((resolve, reject) => {
     let sent = 0;
     let answered = false;
-    // A connection of its own: a refused body is never finished, so the socket must not be reused.
-    const req = http.request(url, { method: opts.method ?? 'POST', agent: false, headers: { origin: url.origin, ...opts.headers } });
+    // A connection of its own (a refused body is never finished, so the socket must not be reused),
+    // kept alive as a browser's is: a client that sends `Connection: close` is closed on at once.
+    const agent = new http.Agent({ keepAlive: true, maxSockets: 1 });
+    const req = http.request(url, { method: opts.method ?? 'POST', agent, headers: { origin: url.origin, ...opts.headers } });
+    req.on('close', () => agent.destroy());
     req.on('response', (res) => {
       answered = true;
       let body = '';
