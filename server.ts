@@ -10,8 +10,12 @@ import type { ServerBuild } from 'react-router';
 import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { resumeResultMails } from '#app/models/result-mails.server';
-import { pruneAuthSessions } from '#app/utils/auth.server';
+import { pruneAuthSessions, signedInFromCookie } from '#app/utils/auth.server';
 import { pruneSignInCodes } from '#app/utils/sign-in.server';
+import { cspNonce } from '#app/utils/csp-nonce.server';
+import { requireSameOrigin } from '#app/utils/origin.server';
+import { capBodies, withReadBody } from '#app/utils/request-limits.server';
+import { noStore, securityHeaders } from '#app/utils/security-headers.server';
 import { attachHub } from '#realtime/hub';
 
 const config = env();
@@ -27,6 +31,12 @@ app.use((req, _res, next) => {
   req.headers['x-parley-client-ip'] = (config.TRUST_PROXY ? req.ip : req.socket.remoteAddress) ?? 'unknown';
   next();
 });
+// Security headers on every response: a per-request CSP nonce, no framing, no sniffing.
+app.use(cspNonce, securityHeaders(config.APP_URL, config.NODE_ENV === 'development'));
+// Anything that may change state must come from our own pages (same-site CSRF).
+app.use(requireSameOrigin(config.APP_URL));
+// Bodies are read here, up to each route's limit, before anything parses them (413 above it).
+app.use(capBodies(async (cookie) => (await signedInFromCookie(cookie)) !== null));
 app.use(compression());
 
 if (production) {
@@ -34,16 +44,17 @@ if (production) {
   app.use('/assets', express.static(path.join(buildDir, 'client/assets'), { immutable: true, maxAge: '1y' }));
   app.use(express.static(path.join(buildDir, 'client'), { maxAge: '1h' }));
   const build = (await import(pathToFileURL(path.join(buildDir, 'server/index.js')).href)) as ServerBuild;
-  app.use(createRequestHandler({ build, mode: 'production' }));
+  const handler = createRequestHandler({ build, mode: 'production' });
+  app.use(noStore, (req, res, next) => handler(withReadBody(req), res, next));
 } else {
   const vite = await import('vite').then((v) =>
     v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }),
   );
   app.use(vite.middlewares);
-  app.use(async (req, res, next) => {
+  app.use(noStore, async (req, res, next) => {
     try {
       const build = (await vite.ssrLoadModule('virtual:react-router/server-build')) as ServerBuild;
-      await createRequestHandler({ build, mode: 'development' })(req, res, next);
+      await createRequestHandler({ build, mode: 'development' })(withReadBody(req), res, next);
     } catch (error) {
       if (error instanceof Error) vite.ssrFixStacktrace(error);
       next(error);

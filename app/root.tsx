@@ -1,3 +1,5 @@
+// First: configures zod before any schema is made (see the module).
+import './utils/zod-jitless';
 import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useRouteError } from 'react-router';
 import type { Route } from './+types/root';
 import { ErrorPage } from './components/error-page';

@@ -8,6 +8,8 @@ import type { z } from 'zod';
 import { LIBRARY } from '#app/lib/automata';
 import { isAdminEmail, signedInFromCookie } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
+import { env } from '#app/utils/env.server';
+import { allowSocketOrigin } from '#app/utils/origin.server';
 import { roleIn } from '#app/utils/permissions.server';
 import type { CourseRole } from '#app/utils/roles';
 import { setRunner } from '#app/utils/runner.server';
@@ -29,6 +31,7 @@ import {
   type SocketData,
   UNAUTHORIZED,
 } from './protocol';
+import { EventLimiter } from './rate-limit';
 import { SessionRunner } from './runner';
 
 export type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
@@ -45,6 +48,10 @@ class Refusal extends Error {
 export function attachHub(httpServer: HttpServer) {
   const io = new Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>(httpServer, {
     serveClient: false,
+    // Pages of another origin on the same site would otherwise connect with the user's cookie.
+    allowRequest: allowSocketOrigin(env().APP_URL),
+    // Every payload is a few hundred bytes; socket.io's default (1 MB) would let one message hold a megabyte.
+    maxHttpBufferSize: 32 * 1024,
   });
   const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
   setRunner(runner);
@@ -96,6 +103,8 @@ export function attachHub(httpServer: HttpServer) {
     void socket.join([userRoom(userId), authRoom(socket.data.authKey)]);
     /** sessions this socket plays in, to report its connection state */
     const playing = new Set<number>();
+    // Before handle(): a flood is answered `rate-limited` without validating or running anything.
+    socket.use(rateLimit(new EventLimiter()));
 
     socket.on('me:get', (payload, ack) => handle(MeGet, payload, ack, async () => ({ userId })));
 
@@ -188,6 +197,17 @@ export function attachHub(httpServer: HttpServer) {
   });
 
   return { io, runner };
+}
+
+/** socket.io middleware: every incoming event passes here first; over its bucket it is refused. */
+function rateLimit(limiter: EventLimiter) {
+  return ([event, ...args]: unknown[], next: (err?: Error) => void) => {
+    if (limiter.allow(String(event))) return next();
+    const ack = args.at(-1);
+    if (typeof ack === 'function') {
+      (ack as (res: Ack<never>) => void)({ ok: false, code: 'rate-limited', message: 'Too many requests at once: wait a moment and try again.' });
+    }
+  };
 }
 
 /** Validate, run, acknowledge: every event goes through here so no payload skips zod. */

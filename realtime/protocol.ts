@@ -3,7 +3,8 @@
 import { z } from 'zod';
 import type { BigScreenView, ChoiceRow, ErrorCode, FloorView, ParticipantView } from './engine/types';
 
-export const ACK_ERROR_CODES = ['bad-payload', 'unauthorized', 'forbidden', 'not-found', 'server-error'] as const;
+/** `rate-limited`: the socket sent this kind of event faster than realtime/rate-limit.ts allows. */
+export const ACK_ERROR_CODES = ['bad-payload', 'unauthorized', 'forbidden', 'not-found', 'server-error', 'rate-limited'] as const;
 export type AckErrorCode = (typeof ACK_ERROR_CODES)[number] | ErrorCode;
 
 export type Ack<T> = { ok: true; data: T } | { ok: false; code: AckErrorCode; message: string };

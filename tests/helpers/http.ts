@@ -52,9 +52,9 @@ export class Client {
 
   /** A multipart POST (file uploads), as a browser without JS sends it. */
   async postForm(path: string, form: FormData) {
-    const res = await fetch(new URL(path, baseUrl()), {
+    const res = await fetch(new URL(path, this.base), {
       method: 'POST',
-      headers: { cookie: this.cookieHeader(), origin: baseUrl() },
+      headers: { cookie: this.cookieHeader(), origin: this.base },
       body: form,
       redirect: 'manual',
     });

@@ -16,6 +16,30 @@ export async function createDesign(courseId: number, createdBy: number, over: Pa
   return res.insertId;
 }
 
+/** A complete, valid design form as the editor posts it. */
+export function designForm(over: Record<string, string> = {}) {
+  return {
+    name: 'Treatment A',
+    'payoffs.R': '40',
+    'payoffs.S': '12',
+    'payoffs.T': '50',
+    'payoffs.P': '25',
+    'labels.C': 'X',
+    'labels.D': 'Y',
+    delta: '0.75',
+    supergames: '10',
+    roundSeconds: '20',
+    'termination.kind': 'standard',
+    'oddCount.kind': 'computer',
+    'oddCount.strategy': 'TFT',
+    timeout: 'repeat-last',
+    'credit.kind': 'participation',
+    'credit.credit': '1',
+    instructions: '',
+    ...over,
+  };
+}
+
 export async function openSession(instructor: Client, courseId: number, designId: number, extra: Record<string, string> = {}) {
   const res = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '', emailDomain: '', ...extra });
   if (res.status !== 302) throw new Error(`opening answered ${res.status}: ${(await res.text()).slice(0, 300)}`);
@@ -35,7 +59,8 @@ export async function join(participant: Client, code: string, fields: Record<str
 const open: TestSocket[] = [];
 
 export function connect(cookie: string, url = baseUrl()): Promise<TestSocket> {
-  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie }, reconnection: false, forceNew: true });
+  // The Origin a browser on Parley's pages sends (the hub refuses other origins).
+  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie, origin: new URL(url).origin }, reconnection: false, forceNew: true });
   open.push(s);
   return new Promise((resolve, reject) => {
     s.on('connect', () => resolve(s));

@@ -14,9 +14,9 @@ export class SecondServer {
     return `http://127.0.0.1:${this.port}`;
   }
 
-  /** Starts it and waits until /healthz answers. */
+  /** Starts it (its APP_URL is its own address, so forms posted to it pass the Origin check) and waits until /healthz answers. */
   async start() {
-    this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, ...this.env, PORT: String(this.port) }, stdio: 'ignore' });
+    this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, APP_URL: this.base, ...this.env, PORT: String(this.port) }, stdio: 'ignore' });
     const until = Date.now() + 30_000;
     while (Date.now() < until) {
       try {
