@@ -5,7 +5,8 @@ import { describe, expect, it } from 'vitest';
 const run = (...args: string[]) =>
   spawnSync(process.execPath, ['--import', 'tsx', 'scripts/estimate.ts', '--', ...args], { encoding: 'utf8', timeout: 60_000 });
 
-describe('npm run estimate', () => {
+// Each test starts Node with tsx (a second or two, much more on a busy machine).
+describe('npm run estimate', { timeout: 90_000 }, () => {
   it('--help prints the usage and exits 0 (it crashed with ERR_PARSE_ARGS_UNKNOWN_OPTION)', () => {
     const r = run('--help');
     expect(r.status).toBe(0);
