@@ -44,17 +44,17 @@ export interface PanelRow {
   partner_action: Action;
   payoff: number;
   source: ChoiceSource;
-  partner_source: ChoiceSource;
-  /** 1 when round ≤ supergame_length (the round counts toward points), else 0 */
-  paid: 0 | 1;
-  origin: Origin;
-  /** 1 when a computer chose for the partner's seat in some round of this supergame */
-  computer_partner: 0 | 1;
   decision_ms: number;
   /** null only if the session's draws were never stored (not for sessions the engine ran) */
   draw: number | null;
   supergame_length: number | null;
   timestamp: string;
+  /** 1 when round ≤ supergame_length (the round counts toward points), else 0 */
+  paid: 0 | 1;
+  origin: Origin;
+  partner_source: ChoiceSource;
+  /** 1 when a computer chose for the partner's seat in some round of this supergame */
+  computer_partner: 0 | 1;
 }
 
 /** One stored seat-round (the `choices` table's columns the panel needs). */
@@ -132,14 +132,15 @@ export function panelRowOf(ctx: PanelContext, pseudonym: string, own: StoredChoi
     partner_action: partner.action,
     payoff: stagePayoff(session.payoffs, own.action, partner.action),
     source: own.source,
-    partner_source: partner.source,
-    paid: paid ? 1 : 0,
-    origin: originOf(own.source, paid),
-    computer_partner: ctx.computerSeats.has(seatKey(own.supergame, own.pairId, 1 - own.seat)) ? 1 : 0,
     decision_ms: own.decisionMs,
     draw: d?.draws[own.round - 1] ?? null,
     supergame_length: d?.length ?? null,
     timestamp: new Date(own.atMs).toISOString(),
+    // the codebook's order (JSON and the API keep it): the columns added with origins come last
+    paid: paid ? 1 : 0,
+    origin: originOf(own.source, paid),
+    partner_source: partner.source,
+    computer_partner: ctx.computerSeats.has(seatKey(own.supergame, own.pairId, 1 - own.seat)) ? 1 : 0,
   };
 }
 

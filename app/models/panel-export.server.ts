@@ -164,50 +164,67 @@ async function contextOf(session: PanelSession, people: readonly Participant[]):
 
 const partnerRow = alias(choices, 'partner_choice');
 
-/**
- * One participant's rounds after (supergame, round), each with the partner seat's choice of the
- * same round, or nulls when the partner has not chosen (a half-finished round).
- */
-async function choicePage(sessionId: number, key: string, after: { supergame: number; round: number }, limit: number) {
-  return db()
-    .select({
-      supergame: choices.supergame,
-      round: choices.round,
-      pairId: choices.pairId,
-      seat: choices.seat,
-      participantKey: choices.participantKey,
-      action: choices.action,
-      source: choices.source,
-      strategy: choices.strategy,
-      decisionMs: choices.decisionMs,
-      atMs: choices.atMs,
-      partnerKey: partnerRow.participantKey,
-      partnerAction: partnerRow.action,
-      partnerSource: partnerRow.source,
-      partnerStrategy: partnerRow.strategy,
-    })
-    // One participant's rows through (session, participant); left alone, MariaDB may walk the whole
-    // session along (session, supergame, round, …) to skip the sort, once per participant.
+const choiceColumns = {
+  participantKey: choices.participantKey,
+  supergame: choices.supergame,
+  round: choices.round,
+  pairId: choices.pairId,
+  seat: choices.seat,
+  action: choices.action,
+  source: choices.source,
+  strategy: choices.strategy,
+  decisionMs: choices.decisionMs,
+  atMs: choices.atMs,
+  partnerKey: partnerRow.participantKey,
+  partnerAction: partnerRow.action,
+  partnerSource: partnerRow.source,
+  partnerStrategy: partnerRow.strategy,
+};
+
+/** Each of some participants' choices with the partner seat's choice of the same round (or nulls). */
+function choicesWithPartner(sessionId: number, keys: readonly string[], after?: { supergame: number; round: number }) {
+  return (
+    db()
+      .select(choiceColumns)
+      // Participants' rows through (session, participant); left alone, MariaDB may walk the whole
+      // session along (session, supergame, round, …) to skip the sort, once per participant.
+      .from(choices, { forceIndex: 'choices_participant' })
+      // LEFT: a round the partner has not chosen in yet is read too, and counted as half-finished.
+      .leftJoin(
+        partnerRow,
+        and(
+          eq(partnerRow.sessionId, choices.sessionId),
+          eq(partnerRow.supergame, choices.supergame),
+          eq(partnerRow.round, choices.round),
+          eq(partnerRow.pairId, choices.pairId),
+          sql`${partnerRow.seat} = 1 - ${choices.seat}`,
+        ),
+      )
+      .where(
+        and(
+          eq(choices.sessionId, sessionId),
+          keys.length === 1 ? eq(choices.participantKey, keys[0]) : inArray(choices.participantKey, [...keys]),
+          after ? or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round))) : undefined,
+        ),
+      )
+  );
+}
+
+/** One participant's rounds after (supergame, round), in order, at most `limit`. */
+function choicePage(sessionId: number, key: string, after: { supergame: number; round: number }, limit: number) {
+  return choicesWithPartner(sessionId, [key], after).orderBy(asc(choices.supergame), asc(choices.round)).limit(limit);
+}
+
+type ChoiceJoin = Awaited<ReturnType<typeof choicePage>>[number];
+
+/** Rows per participant of a session (one grouped pass over the participant index). */
+async function rowCounts(sessionId: number): Promise<Map<string, number>> {
+  const rows = await db()
+    .select({ key: choices.participantKey, n: sql<number>`COUNT(*)` })
     .from(choices, { forceIndex: 'choices_participant' })
-    .leftJoin(
-      partnerRow,
-      and(
-        eq(partnerRow.sessionId, choices.sessionId),
-        eq(partnerRow.supergame, choices.supergame),
-        eq(partnerRow.round, choices.round),
-        eq(partnerRow.pairId, choices.pairId),
-        sql`${partnerRow.seat} = 1 - ${choices.seat}`,
-      ),
-    )
-    .where(
-      and(
-        eq(choices.sessionId, sessionId),
-        eq(choices.participantKey, key),
-        or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round))),
-      ),
-    )
-    .orderBy(asc(choices.supergame), asc(choices.round))
-    .limit(limit);
+    .where(eq(choices.sessionId, sessionId))
+    .groupBy(choices.participantKey);
+  return new Map(rows.filter((r) => r.key !== null).map((r) => [r.key!, Number(r.n)]));
 }
 
 const CONSENT_WORDS = { 1: 'yes', 0: 'no' } as const;
@@ -231,36 +248,68 @@ export async function* panelPages(list: readonly PanelSession[], opts: PanelOpti
   for (const session of list) {
     if (after && session.id < after.session) continue;
     const people = await panelParticipants(session);
-    const ctx = await contextOf(session, people);
+    const [ctx, counts] = await Promise.all([contextOf(session, people), rowCounts(session.id)]);
     // resuming: skip the participants before the cursor's (in the panel's order, not by seq)
     let startAt = 0;
     if (after && session.id === after.session) startAt = Math.max(0, people.findIndex((p) => p.seq === after.seq));
-    for (const [i, p] of people.entries()) {
-      if (i < startAt) continue;
-      if (!opts.identified && !opts.keepDeclined && p.consent === 0) continue;
-      if (opts.participantKeys && !opts.participantKeys.includes(p.key)) continue;
-      let from = { supergame: 0, round: 0 };
-      if (after && session.id === after.session && p.seq === after.seq) from = { supergame: after.supergame, round: after.round };
+    const wanted = people.filter(
+      (p, i) => i >= startAt && (opts.identified || opts.keepDeclined || p.consent !== 0) && (!opts.participantKeys || opts.participantKeys.includes(p.key)) && (counts.get(p.key) ?? 0) > 0,
+    );
+
+    const toPage = (p: Participant, batch: readonly ChoiceJoin[]): PanelPage<PanelRow | IdentifiedPanelRow> => {
+      const rows: (PanelRow | IdentifiedPanelRow)[] = [];
+      const unfinished: UnfinishedRound[] = [];
+      for (const c of batch) {
+        const partner =
+          c.partnerAction === null
+            ? null
+            : { ...c, participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy, seat: 1 - c.seat };
+        const row = panelRowOf(ctx, p.pseudonym, c, partner);
+        if (!row) unfinished.push({ pseudonym: p.pseudonym, supergame: c.supergame, round: c.round });
+        else if (!opts.identified) rows.push(row);
+        else rows.push({ ...row, name: p.name ?? '', email: p.email, student_id: p.studentId ?? '', consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1] });
+      }
+      const lastChoice = batch[batch.length - 1];
+      return { rows, unfinished, last: { session: session.id, seq: p.seq, supergame: lastChoice.supergame, round: lastChoice.round } };
+    };
+
+    for (let i = 0; i < wanted.length; ) {
+      const p = wanted[i];
+      const resume = after && session.id === after.session && p.seq === after.seq;
+      if (!resume && (counts.get(p.key) ?? 0) < pageSize) {
+        // Participants with few rows are read several at once, up to a page of rows: one query
+        // instead of one per participant (a class of hundreds has a handful of rows each).
+        const group: Participant[] = [];
+        let n = 0;
+        while (i < wanted.length && group.length < 500 && n + (counts.get(wanted[i].key) ?? 0) <= pageSize) {
+          const q = wanted[i];
+          if (after && session.id === after.session && q.seq === after.seq) break;
+          group.push(q);
+          n += counts.get(q.key) ?? 0;
+          i++;
+        }
+        if (group.length > 0) {
+          const batch = await choicesWithPartner(session.id, group.map((q) => q.key));
+          const byKey = new Map<string, ChoiceJoin[]>();
+          for (const c of batch) byKey.set(c.participantKey!, [...(byKey.get(c.participantKey!) ?? []), c]);
+          for (const q of group) {
+            const mine = (byKey.get(q.key) ?? []).sort((x, y) => x.supergame - y.supergame || x.round - y.round);
+            if (mine.length > 0) yield toPage(q, mine);
+          }
+          continue;
+        }
+      }
+      // A participant with many rows (or the one a cursor stopped in): keyset pages of their own.
+      let from = resume ? { supergame: after.supergame, round: after.round } : { supergame: 0, round: 0 };
       for (;;) {
         const batch = await choicePage(session.id, p.key, from, pageSize);
         if (batch.length === 0) break;
-        const rows: (PanelRow | IdentifiedPanelRow)[] = [];
-        const unfinished: UnfinishedRound[] = [];
-        for (const c of batch) {
-          const partner =
-            c.partnerAction === null
-              ? null
-              : { ...c, participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy, seat: 1 - c.seat };
-          const row = panelRowOf(ctx, p.pseudonym, c, partner);
-          if (!row) unfinished.push({ pseudonym: p.pseudonym, supergame: c.supergame, round: c.round });
-          else if (!opts.identified) rows.push(row);
-          else rows.push({ ...row, name: p.name ?? '', email: p.email, student_id: p.studentId ?? '', consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1] });
-        }
-        const lastChoice = batch[batch.length - 1];
-        from = { supergame: lastChoice.supergame, round: lastChoice.round };
-        yield { rows, unfinished, last: { session: session.id, seq: p.seq, ...from } };
+        const page = toPage(p, batch);
+        from = { supergame: page.last!.supergame, round: page.last!.round };
+        yield page;
         if (batch.length < pageSize) break;
       }
+      i++;
     }
   }
 }

@@ -13,6 +13,7 @@ import {
   type StoredSession,
 } from '#app/lib/choice-panel';
 import { buildPanel } from '#app/lib/panel';
+import { PANEL_COLUMNS } from '#app/lib/panel-codebook';
 
 const choice = (supergame: number, round: number, pairId: string, seat: number, participantKey: string | null, action: 'C' | 'D', decisionMs: number, atMs: number, source: StoredChoice['source'] = participantKey ? 'player' : 'computer'): StoredChoice => ({
   supergame,
@@ -175,5 +176,11 @@ describe('what analyses use', () => {
     const built = buildPanel(used.rows, { shorterSupergames: 'expected' });
     expect([built.errors, built.warnings]).toEqual([[], []]);
     expect(estimationRows(sessionPanel(early).rows, 'all').rows).toHaveLength(9);
+  });
+});
+
+describe('the row and the codebook', () => {
+  it('a row has exactly the codebook’s columns, in its order (JSON and the API keep it)', () => {
+    expect(Object.keys(sessionPanel(stored).rows[0])).toEqual(PANEL_COLUMNS);
   });
 });
