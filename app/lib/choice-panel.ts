@@ -107,7 +107,7 @@ export const inAnalysis = (row: Pick<PanelRow, 'origin'>, include: Include) => i
  * The pure step: one participant's stored choice and the partner seat's choice of the same round
  * (null when the partner never chose) → a panel row, or null for a half-finished round.
  */
-export function panelRowOf(ctx: PanelContext, pseudonym: string, own: StoredChoice, partner: StoredChoice | null): PanelRow | null {
+export function panelRowOf(ctx: PanelContext, pseudonym: string, own: StoredChoice, partner: Pick<StoredChoice, 'participantKey' | 'action' | 'source' | 'strategy'> | null): PanelRow | null {
   if (!partner) return null;
   const { session } = ctx;
   const d = ctx.draws.get(own.supergame);

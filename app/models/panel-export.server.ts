@@ -260,10 +260,7 @@ export async function* panelPages(list: readonly PanelSession[], opts: PanelOpti
       const rows: (PanelRow | IdentifiedPanelRow)[] = [];
       const unfinished: UnfinishedRound[] = [];
       for (const c of batch) {
-        const partner =
-          c.partnerAction === null
-            ? null
-            : { ...c, participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy, seat: 1 - c.seat };
+        const partner = c.partnerAction === null ? null : { participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy };
         const row = panelRowOf(ctx, p.pseudonym, c, partner);
         if (!row) unfinished.push({ pseudonym: p.pseudonym, supergame: c.supergame, round: c.round });
         else if (!opts.identified) rows.push(row);

@@ -23,7 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     return {
       supergame: s,
       rounds: rows.filter((r) => r.paid === 1).length,
-      partner: rows[0].partner.startsWith('computer:') ? `a computer (${rows[0].partner.slice(9)}), disclosed` : 'another participant',
+      partner: partnerWords(rows.map((r) => r.partner)),
       ownC: rows.filter((r) => r.action === 'C').length,
       partnerC: rows.filter((r) => r.partner_action === 'C').length,
       points: rows.reduce((t, r) => t + (r.paid === 1 ? r.payoff : 0), 0),
@@ -37,6 +37,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     supergames,
     total: supergames.reduce((t, s) => t + s.points, 0),
   };
+}
+
+/** Who the partner was, as the participant was told: another participant, a disclosed computer, or one then the other (hand-over). */
+function partnerWords(partners: readonly string[]): string {
+  const computer = partners.find((p) => p.startsWith('computer:'));
+  if (!computer) return 'another participant';
+  const words = `a computer (${computer.slice('computer:'.length)}), disclosed`;
+  return partners[0].startsWith('computer:') ? words : `another participant, then ${words}`;
 }
 
 export default function MySummary({ loaderData }: Route.ComponentProps) {
