@@ -110,16 +110,20 @@ function IncludeSwitch({ include, basePath }: { include: Include; basePath: stri
   const navigate = useNavigate();
   return (
     <label className="inline-flex min-h-11 max-w-xl items-center gap-3">
+      {/* uncontrolled, keyed by the page's state: it moves at once, the page follows the URL */}
       <input
+        key={include}
         type="checkbox"
         name="include"
         className="size-5 shrink-0"
-        checked={include === 'all'}
+        defaultChecked={include === 'all'}
         onChange={(e) => navigate(`${basePath}${e.target.checked ? 'include=all' : ''}`.replace(/[?&]$/, ''), { preventScrollReset: true })}
       />
       <span>
         <span className="font-semibold">Include timeout-filled, computer-seat and unpaid rounds</span>
-        <span className="block text-sm text-slate-600">Off: the participants’ own choices in paid rounds only.</span>
+        <span className="block text-sm text-slate-600">
+          {include === 'all' ? 'On: every choice counts, whoever or whatever made it.' : 'Off: the participants’ own choices in paid rounds only.'}
+        </span>
       </span>
     </label>
   );

@@ -39,7 +39,7 @@ describe('Debrief, in Chromium', () => {
 
     // An estimation with a bootstrap: the progress bar shows while it runs and reaches B.
     await page.getByLabel('Bootstrap replicates (B)').fill('200');
-    await page.getByLabel('Seed').fill('2027');
+    await page.getByLabel('Seed', { exact: true }).fill('2027');
     await page.getByRole('button', { name: 'Run estimation' }).click();
     const progress = page.getByTestId('estimate-progress');
     await expect.poll(() => page.getByRole('progressbar', { name: 'Bootstrap replicates done' }).isVisible()).toBe(true);
