@@ -5,6 +5,10 @@ import { DataTable, staffColumnHelper } from './data-table';
 import { csvHref, debriefCharts } from './debrief';
 import { ChartFrame, pct } from './debrief-charts';
 import { EstimateProgress, EstimateResults, EstimationForm, StoredEstimates, useEstimateRun } from './estimation-panel';
+import { useNavigate } from 'react-router';
+import type { Include } from '#app/lib/choice-panel';
+import { originWords } from '#app/lib/debrief';
+import { estimateIncludedWords } from './estimation-panel';
 import { ButtonLink, Notice } from './ui';
 
 const f3 = (x: number) => String(Number(x.toFixed(3)));
@@ -15,19 +19,25 @@ export function DebriefView({
   estimates,
   current,
   basePath,
+  include,
 }: {
   courseId: number;
   sessions: DebriefSession[];
   estimates: EstimateStatus[];
   current: EstimateStatus | null;
-  /** this page's URL up to and including "?" or "&", for links that add `estimate=` */
+  /** this page's URL up to and including "?" or "&", without `include=`, for links that add parameters */
   basePath: string;
+  /** the switch: own, paid choices (default) or every origin */
+  include: Include;
 }) {
   const ids = sessions.map((s) => s.id);
   const run = useEstimateRun(courseId, current);
-  const charts = debriefCharts(courseId, sessions);
+  const charts = debriefCharts(courseId, sessions, undefined, include);
   const estimate = run.current;
-  const projector = `/courses/${courseId}/debrief/projector?sessions=${ids.join(',')}${estimate?.status === 'done' ? `&estimate=${estimate.id}` : ''}`;
+  const withInclude = include === 'all' ? `${basePath}include=all&` : basePath;
+  const projector = `/courses/${courseId}/debrief/projector?sessions=${ids.join(',')}${include === 'all' ? '&include=all' : ''}${estimate?.status === 'done' ? `&estimate=${estimate.id}` : ''}`;
+  const unfinished = sessions.reduce((t, s) => t + s.unfinished, 0);
+  const declined = sessions.reduce((t, s) => t + s.declined, 0);
   return (
     <div className="flex flex-col gap-8">
       {sessions.some((s) => s.simulated) ? (
@@ -41,10 +51,23 @@ export function DebriefView({
           A session still running shows the choices so far; its numbers change as it goes on.
         </Notice>
       ) : null}
-      <div className="flex flex-wrap gap-2">
+      {unfinished ? (
+        <Notice title="Half-finished rounds left out">
+          {unfinished === 1 ? '1 half-finished round' : `${unfinished} half-finished rounds`}: only one of the pair had chosen when the session was stopped or looked at. Such a
+          round has no outcome, so it is in no figure, download or estimation.
+        </Notice>
+      ) : null}
+      {declined ? (
+        <Notice title="Declined research use">
+          {declined === 1 ? '1 participant' : `${declined} participants`} declined research use of their choices. The class sees its own play here, theirs included; chart
+          downloads, panel downloads and estimations leave them out.
+        </Notice>
+      ) : null}
+      <div className="flex flex-wrap items-center gap-x-6 gap-y-2">
         <ButtonLink to={projector} variant="secondary">
           <span aria-hidden="true">▣</span> Projector mode
         </ButtonLink>
+        <IncludeSwitch include={include} basePath={basePath} />
       </div>
       <TreatmentTable sessions={sessions} estimate={estimate?.status === 'done' ? estimate : null} />
       <div className="grid gap-6 xl:grid-cols-2">
@@ -63,7 +86,7 @@ export function DebriefView({
           slips; shares are estimated per treatment. Standard errors come from a bootstrap over participants, run on worker threads. The result is stored: the same
           request later opens at once.
         </p>
-        <EstimationForm courseId={courseId} sessionIds={ids} start={run.start} />
+        <EstimationForm courseId={courseId} sessionIds={ids} start={run.start} include={include} />
         {estimate ? (
           <div className="flex flex-col gap-4 border-t border-slate-200 pt-4">
             <h3 className="font-semibold">
@@ -73,9 +96,36 @@ export function DebriefView({
             {estimate.status === 'done' ? <EstimateResults estimate={estimate} csvHref={csvHref(courseId, 'strategies', ids, estimate.id)} /> : null}
           </div>
         ) : null}
-        <StoredEstimates estimates={estimates} currentId={estimate?.id ?? null} basePath={basePath} />
+        <StoredEstimates estimates={estimates} currentId={estimate?.id ?? null} basePath={withInclude} />
       </section>
     </div>
+  );
+}
+
+/**
+ * The switch between own, paid choices (the default for every figure and estimation) and every
+ * origin. It is a query parameter, so the chart downloads and the projector follow it.
+ */
+function IncludeSwitch({ include, basePath }: { include: Include; basePath: string }) {
+  const navigate = useNavigate();
+  return (
+    <label className="inline-flex min-h-11 max-w-xl items-center gap-3">
+      {/* uncontrolled, keyed by the page's state: it moves at once, the page follows the URL */}
+      <input
+        key={include}
+        type="checkbox"
+        name="include"
+        className="size-5 shrink-0"
+        defaultChecked={include === 'all'}
+        onChange={(e) => navigate(`${basePath}${e.target.checked ? 'include=all' : ''}`.replace(/[?&]$/, ''), { preventScrollReset: true })}
+      />
+      <span>
+        <span className="font-semibold">Include timeout-filled, computer-seat and unpaid rounds</span>
+        <span className="block text-sm text-slate-600">
+          {include === 'all' ? 'On: every choice counts, whoever or whatever made it.' : 'Off: the participants’ own choices in paid rounds only.'}
+        </span>
+      </span>
+    </label>
   );
 }
 
@@ -85,6 +135,7 @@ interface TreatmentRow {
   delta: number;
   participants: number;
   choices: number;
+  leftOut: number;
   cooperation: number | null;
   round1: number | null;
   sizeBAD: number;
@@ -113,6 +164,7 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
       delta: ss[0].delta,
       participants: ss.reduce((t, s) => t + s.debrief.participants, 0),
       choices: n,
+      leftOut: ss.reduce((t, s) => t + s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished, 0),
       cooperation: n ? c / n : null,
       round1: n1 ? c1 / n1 : null,
       sizeBAD: ss[0].debrief.theory.sizeBAD,
@@ -127,6 +179,7 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
     col.accessor('sizeBAD', { header: 'sizeBAD', cell: (i) => f3(i.getValue()), meta: { align: 'right' } }),
     col.accessor('participants', { header: 'Participants', meta: { align: 'right' } }),
     col.accessor('choices', { header: 'Choices', meta: { align: 'right' } }),
+    col.accessor('leftOut', { header: 'Left out', meta: { align: 'right' } }),
     col.accessor('cooperation', { header: 'Cooperation', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
     col.accessor('round1', { header: 'Round 1', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
     ...strategies.map((id) => col.accessor((r) => r.shares[id], { id: `share-${id}`, header: id, cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span>, meta: { align: 'right' } })),
@@ -139,7 +192,8 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
       <DataTable columns={columns} data={rows} caption="Cooperation and strategy shares per treatment" filterLabel="Filter treatments" />
       <p className="text-sm text-slate-600">
         {strategies.length ? `Shares ± 1 bootstrap standard error from estimation #${estimate!.id}. ` : 'Run an estimation below to add strategy shares. '}
-        Cooperation: share of participants’ choices that were cooperate.
+        Cooperation: share of the choices counted that were cooperate. {sessions.map((s) => `#${s.id}: ${originWords(s)}`).join(' ')}
+        {estimate?.result ? ` Estimation #${estimate.id}: ${estimateIncludedWords(estimate.result)}` : ''}
       </p>
     </section>
   );

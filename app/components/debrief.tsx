@@ -2,6 +2,8 @@
 import type { ReactNode } from 'react';
 import type { ChartId, TableSession } from '#app/lib/debrief-tables';
 import { CHARTS } from '#app/lib/debrief-tables';
+import type { Include } from '#app/lib/choice-panel';
+import { originWords } from '#app/lib/debrief';
 import {
   CoopByRoundChart,
   CoopBySupergameChart,
@@ -26,10 +28,11 @@ export interface DebriefChart {
 
 const f3 = (x: number) => String(Number(x.toFixed(3)));
 
-export function csvHref(courseId: number, chart: ChartId, sessionIds: number[], estimateId?: number) {
+/** A chart's CSV: the same sessions and the same choices (`include`) as the page shows. */
+export function csvHref(courseId: number, chart: ChartId, sessionIds: number[], estimateId?: number, include: Include = 'own') {
   return chart === 'strategies' && estimateId
     ? `/courses/${courseId}/debrief/csv/strategies?estimate=${estimateId}`
-    : `/courses/${courseId}/debrief/csv/${chart}?sessions=${sessionIds.join(',')}`;
+    : `/courses/${courseId}/debrief/csv/${chart}?sessions=${sessionIds.join(',')}${include === 'all' ? '&include=all' : ''}`;
 }
 
 /** Words for the test of one session's lengths against the geometric law. */
@@ -45,50 +48,59 @@ export function lengthTestWords(s: TableSession): string {
   return `#${s.id}: χ² = ${r.statistic.toFixed(3)}, ${p} (${r.n} supergames; bins ${bins}; δ = ${f3(r.delta)} known).`;
 }
 
-export function debriefCharts(courseId: number, sessions: TableSession[], estimate?: { id: number; groups: StrategyGroup[]; B: number; seed: number; window: string }): DebriefChart[] {
+export function debriefCharts(
+  courseId: number,
+  sessions: TableSession[],
+  estimate?: { id: number; groups: StrategyGroup[]; B: number; seed: number; window: string; included?: string },
+  include: Include = 'own',
+): DebriefChart[] {
   const ids = sessions.map((s) => s.id);
   const each = (fn: (s: TableSession) => string) => sessions.map(fn).join(' ');
+  const csv = (chart: ChartId) => csvHref(courseId, chart, ids, undefined, include);
+  // what every cooperation figure counts, per session
+  const included = sessions.length === 1 ? originWords(sessions[0]) : each((s) => `#${s.id}: ${originWords(s)}`);
   const charts: DebriefChart[] = [
     {
       id: 'cooperation-by-supergame',
       title: CHARTS['cooperation-by-supergame'],
-      csvHref: csvHref(courseId, 'cooperation-by-supergame', ids),
+      csvHref: csv('cooperation-by-supergame'),
       summary: each((s) => {
         const g = s.debrief.bySupergame;
         return `Session ${s.id}: cooperation ${pct(g[0]?.all.rate)} in supergame 1 and ${pct(g[g.length - 1]?.all.rate)} in supergame ${g.length}; overall ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`;
       }),
-      notes: 'Solid: all rounds; dashed: round 1 only. Share of choices that were cooperate, participants’ own choices (timeouts included, computer hand-overs left out).',
+      notes: `Solid: all rounds; dashed: round 1 only. Share of choices that were cooperate. ${included}`,
       render: (theme, big) => <CoopBySupergameChart sessions={sessions} theme={theme} big={big} />,
     },
     {
       id: 'cooperation-by-round',
       title: CHARTS['cooperation-by-round'],
-      csvHref: csvHref(courseId, 'cooperation-by-round', ids),
+      csvHref: csv('cooperation-by-round'),
       summary: each((s) => `Session ${s.id}: round 1 ${pct(s.debrief.byRound[0]?.all.rate)}, round 2 ${pct(s.debrief.byRound[1]?.all.rate)}.`),
-      notes: 'Pooled over the supergames that reached each round; late rounds rest on few supergames (see the CSV for counts).',
+      notes: `Pooled over the supergames that reached each round; late rounds rest on few supergames (see the CSV for counts). ${included}`,
       render: (theme, big) => <CoopByRoundChart sessions={sessions} theme={theme} big={big} />,
     },
     {
       id: 'outcomes',
       title: CHARTS.outcomes,
-      csvHref: csvHref(courseId, 'outcomes', ids),
+      csvHref: csv('outcomes'),
       summary: each((s) => {
         const n = s.debrief.bySupergame.reduce((t, g) => t + g.outcomes.n, 0);
         const share = (k: 'both' | 'one' | 'none') => (n ? s.debrief.bySupergame.reduce((t, g) => t + g.outcomes[k] * g.outcomes.n, 0) / n : 0);
         return `Session ${s.id}: both cooperate ${pct(share('both'))}, one ${pct(share('one'))}, neither ${pct(share('none'))}.`;
       }),
-      notes: sessions.length === 1 ? 'Share of participant-rounds by what the pair chose, per supergame.' : 'Share of participant-rounds by what the pair chose, over the whole session.',
+      notes: `${sessions.length === 1 ? 'Share of participant-rounds by what the pair chose, per supergame.' : 'Share of participant-rounds by what the pair chose, over the whole session.'} ${included}`,
       render: (theme, big) => <OutcomesChart sessions={sessions} theme={theme} big={big} />,
     },
     {
       id: 'lengths',
       title: CHARTS.lengths,
-      csvHref: csvHref(courseId, 'lengths', ids),
+      csvHref: csv('lengths'),
       summary: each(lengthTestWords),
       notes: (
         <>
-          Bars: share of supergames that lasted L rounds (one draw sequence per session, common to all pairs). Lines: the geometric law P(L = k) = (1−δ)δ^(k−1). Pearson’s
-          χ² with tail bins pooled to expected counts ≥ 5, δ known (methods.md §2). {each(lengthTestWords)}
+          Bars: share of supergames that lasted L rounds (one draw sequence per session, common to all pairs; the lengths come from the draws, whoever chose). Lines:
+          the geometric law P(L = k) = (1−δ)δ^(k−1) of random termination. Pearson’s χ² goodness-of-fit test with tail bins pooled to expected counts ≥ 5, δ known.{' '}
+          {each(lengthTestWords)}
         </>
       ),
       render: (theme, big) => <LengthsChart sessions={sessions} theme={theme} big={big} />,
@@ -96,24 +108,23 @@ export function debriefCharts(courseId: number, sessions: TableSession[], estima
     {
       id: 'points',
       title: CHARTS.points,
-      csvHref: csvHref(courseId, 'points', ids),
+      csvHref: csv('points'),
       summary: each((s) => {
         const pts = s.debrief.points.map((p) => p.points).sort((a, b) => a - b);
         return `Session ${s.id}: ${pts.length} participants, points from ${pts[0] ?? 0} to ${pts[pts.length - 1] ?? 0}, median ${pts[Math.floor(pts.length / 2)] ?? 0}.`;
       }),
-      notes: 'Paid points of each participant over the session (pseudonyms in the CSV).',
+      notes: 'Points of each participant over the session: the payoffs of every paid round, whoever chose (what each participant is credited; pseudonyms in the CSV).',
       render: (theme, big) => <PointsChart sessions={sessions} theme={theme} big={big} />,
     },
     {
       id: 'theory',
       title: CHARTS.theory,
-      csvHref: csvHref(courseId, 'theory', ids),
+      csvHref: csv('theory'),
       summary: each(
         (s) =>
           `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${s.delta >= s.debrief.theory.riskDominance ? 'grim risk-dominates always-defect' : 'always-defect risk-dominates'}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
       ),
-      notes:
-        'Markers: each session’s cooperation (all rounds and round 1) at its δ. Curve: sizeBAD, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011).',
+      notes: `Markers: each session’s cooperation (all rounds and round 1) at its δ. Curve: sizeBAD, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011). ${included}`,
       render: (theme, big) => <TheoryChart sessions={sessions} theme={theme} big={big} />,
     },
   ];
@@ -125,7 +136,7 @@ export function debriefCharts(courseId: number, sessions: TableSession[], estima
       summary: estimate.groups
         .map((g) => `${g.group}: ${g.strategies.map((id, k) => `${id} ${pct(g.shares[k])}${g.se ? ` (SE ${pct(g.se[k], 1)})` : ''}`).join(', ')}.`)
         .join(' '),
-      notes: `Strategy-frequency estimation (Dal Bó & Fréchette 2011) per treatment; ${estimate.B > 0 ? `bars: ± 1 bootstrap standard error over participants (B = ${estimate.B}, seed ${estimate.seed})` : 'no bootstrap'}; window: ${estimate.window}.`,
+      notes: `Strategy-frequency estimation (Dal Bó & Fréchette 2011) per treatment; ${estimate.B > 0 ? `bars: ± 1 bootstrap standard error over participants (B = ${estimate.B}, seed ${estimate.seed})` : 'no bootstrap'}; window: ${estimate.window}.${estimate.included ? ` ${estimate.included}` : ''}`,
       render: (theme, big) => <StrategiesChart groups={estimate.groups} theme={theme} big={big} />,
     });
   }

@@ -3,7 +3,8 @@
 import { useEffect, useId, useState } from 'react';
 import { useFetcher } from 'react-router';
 import { LIBRARY } from '#app/lib/automata';
-import type { EstimateStatus, GroupResult } from '#app/models/estimate.server';
+import type { Include } from '#app/lib/choice-panel';
+import type { EstimateResult, EstimateStatus, GroupResult } from '#app/models/estimate.server';
 import { MAX_BOOTSTRAP, STRATEGY_ORDER, STRATEGY_PRESETS, windowWords } from '#app/utils/estimate-form';
 import { DataTable, staffColumnHelper } from './data-table';
 import { ChartFrame, pct, StrategiesChart } from './debrief-charts';
@@ -81,6 +82,7 @@ export function EstimationForm({
   datasetId,
   start,
   defaults,
+  include = 'own',
 }: {
   courseId: number;
   /** the sessions to estimate on, or (instead) an uploaded dataset */
@@ -88,6 +90,8 @@ export function EstimationForm({
   datasetId?: number;
   start: ReturnType<typeof useEstimateRun>['start'];
   defaults?: { bootstrap?: number; seed?: number };
+  /** sessions only: the choices the page's switch admits, stored in the request */
+  include?: Include;
 }) {
   const [windowKind, setWindowKind] = useState('all');
   const [preset, setPreset] = useState('dbf2011');
@@ -96,7 +100,20 @@ export function EstimationForm({
   const groupId = useId();
   return (
     <start.Form method="post" action={`/courses/${courseId}/estimates`} className="flex flex-col gap-4" aria-label="Estimate strategy shares">
-      {datasetId !== undefined ? <input type="hidden" name="dataset" value={datasetId} /> : <input type="hidden" name="sessions" value={(sessionIds ?? []).join(',')} />}
+      {datasetId !== undefined ? (
+        <input type="hidden" name="dataset" value={datasetId} />
+      ) : (
+        <>
+          <input type="hidden" name="sessions" value={(sessionIds ?? []).join(',')} />
+          <input type="hidden" name="include" value={include} />
+          <p className="text-sm text-slate-700" data-testid="estimate-include">
+            {include === 'all'
+              ? 'Uses every choice, including those filled by the timeout rule, made by a computer in a participant’s seat, or made in unpaid rounds (the switch above).'
+              : 'Uses the participants’ own choices in paid rounds: each supergame up to its first choice that is not (the switch above includes the others).'}{' '}
+            Participants who declined research use are left out.
+          </p>
+        </>
+      )}
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
         <SelectField
           label="Supergames to use"
@@ -197,7 +214,7 @@ export function EstimateResults({ estimate, csvHref }: { estimate: EstimateStatu
         title="Estimated strategy shares"
         csvHref={csvHref}
         summary={result.groups.map((g) => `${g.group}: ${g.strategies.map((s, k) => `${s} ${pct(g.shares[k])}`).join(', ')}`).join('. ')}
-        notes={`Per treatment; ${result.bootstrap > 0 ? `bars: ± 1 bootstrap standard error over participants (B = ${result.bootstrap}, seed ${result.seed})` : 'no bootstrap'}. Window: ${windowWords(result.window)}.`}
+        notes={`Per treatment; ${result.bootstrap > 0 ? `bars: ± 1 bootstrap standard error over participants (B = ${result.bootstrap}, seed ${result.seed})` : 'no bootstrap'}. Window: ${windowWords(result.window)}. ${estimateIncludedWords(result)}`}
       >
         <StrategiesChart groups={result.groups} />
       </ChartFrame>
@@ -225,6 +242,31 @@ export function EstimateResults({ estimate, csvHref }: { estimate: EstimateStatu
   );
 }
 
+/** What an estimation used and left out, in words (captions and the stored list). */
+export function estimateIncludedWords(result: Pick<EstimateResult, 'include' | 'leftOut'>): string {
+  const l = result.leftOut;
+  if (!l) return '';
+  const n = (x: number) => x.toLocaleString('en-US');
+  const parts = [
+    l.timeout ? `${n(l.timeout)} filled by the timeout rule` : '',
+    l.computer_seat ? `${n(l.computer_seat)} made by a computer in a participant’s seat` : '',
+    l.unpaid_round ? `${n(l.unpaid_round)} in unpaid rounds` : '',
+    l.afterLeftOut ? `${n(l.afterLeftOut)} own choices after one of those in the same supergame` : '',
+    l.unfinished ? `${n(l.unfinished)} in half-finished rounds` : '',
+  ].filter(Boolean);
+  const used = result.include === 'all' ? `Choices used: ${n(l.used)}, every origin.` : `Choices used: ${n(l.used)} own choices in paid rounds.`;
+  const left = parts.length ? ` Left out: ${parts.join(', ')}.` : '';
+  const declined = l.declined ? ` ${n(l.declined)} participant${l.declined === 1 ? '' : 's'} who declined research use left out.` : '';
+  return used + left + declined;
+}
+
+function includeWords(r: EstimateStatus['request']): string {
+  if (r.source.kind !== 'sessions') return '';
+  if (r.include === 'all') return 'every origin; ';
+  if (r.include === 'own') return 'own, paid choices; ';
+  return 'own and timeout-filled choices (run before origins were kept); ';
+}
+
 export function StoredEstimates({ estimates, currentId, basePath }: { estimates: EstimateStatus[]; currentId: number | null; basePath: string }) {
   if (estimates.length < 2) return null;
   return (
@@ -234,7 +276,7 @@ export function StoredEstimates({ estimates, currentId, basePath }: { estimates:
         {estimates.map((e) => (
           <li key={e.id}>
             <a href={`${basePath}estimate=${e.id}`} className={cx('underline-offset-4 hover:underline', e.id === currentId ? 'font-semibold' : 'text-accent-700')}>
-              #{e.id}: {windowWords(e.request.window)}; {e.request.strategies.join(', ')}; B = {e.request.bootstrap}, seed {e.request.seed} — {STATUS[e.status][1].toLowerCase()}
+              #{e.id}: {windowWords(e.request.window)}; {includeWords(e.request)}{e.request.strategies.join(', ')}; B = {e.request.bootstrap}, seed {e.request.seed} — {STATUS[e.status][1].toLowerCase()}
             </a>
           </li>
         ))}

@@ -26,13 +26,15 @@ export interface TableSession {
   delta: number;
   payoffs: StageGame;
   debrief: SessionDebrief;
+  /** rounds only one seat of a pair chose in (left out of every figure) */
+  unfinished?: number;
 }
 
 export type Cell = string | number | null;
 export type Table = Record<string, Cell>[];
 
 /** The tables' text columns (labels people chose, or words); every other column is a number. */
-const TEXT_COLUMNS = new Set(['treatment', 'sessions', 'pseudonym', 'strategy', 'window']);
+const TEXT_COLUMNS = new Set(['treatment', 'sessions', 'pseudonym', 'strategy', 'window', 'include']);
 
 /** A table's columns for the CSV writer (app/lib/csv.ts), in the order of its first row. */
 export function tableColumns(rows: Table): CsvColumn[] {
@@ -57,12 +59,13 @@ export function chartTable(chart: Exclude<ChartId, 'strategies'>, sessions: read
             cooperation: r4(g.all.rate),
             round1_choices: g.round1.n,
             round1_cooperation: r4(g.round1.rate),
+            include: s.debrief.include,
           });
       return rows;
     case 'cooperation-by-round':
       for (const s of sessions)
         for (const r of s.debrief.byRound)
-          rows.push({ session: s.id, treatment: s.treatment, round: r.round, supergames: r.supergames, choices: r.all.n, cooperation: r4(r.all.rate) });
+          rows.push({ session: s.id, treatment: s.treatment, round: r.round, supergames: r.supergames, choices: r.all.n, cooperation: r4(r.all.rate), include: s.debrief.include });
       return rows;
     case 'outcomes':
       for (const s of sessions)
@@ -75,6 +78,7 @@ export function chartTable(chart: Exclude<ChartId, 'strategies'>, sessions: read
             both_cooperate: r4(g.outcomes.both),
             one_cooperates: r4(g.outcomes.one),
             none_cooperates: r4(g.outcomes.none),
+            include: s.debrief.include,
           });
       return rows;
     case 'lengths':
@@ -103,6 +107,12 @@ export function chartTable(chart: Exclude<ChartId, 'strategies'>, sessions: read
           size_bad: r4(sizeBAD(s.payoffs, s.delta)),
           cooperation: r4(s.debrief.overall.rate),
           round1_cooperation: r4(s.debrief.overallRound1.rate),
+          include: s.debrief.include,
+          choices: s.debrief.counts.used,
+          left_out_timeout: s.debrief.counts.timeout,
+          left_out_computer_seat: s.debrief.counts.computer_seat,
+          left_out_unpaid_round: s.debrief.counts.unpaid_round,
+          half_finished_rounds: s.unfinished ?? 0,
         });
       return rows;
   }

@@ -3,23 +3,13 @@
  * supergame and by round, outcome shares, realised lengths against the geometric law, points.
  * Pure: the loaders, the CSV downloads and the projector all chart exactly these.
  */
-import type { Action } from './automata';
+import { comparePseudonyms, type Include, inAnalysis, type OriginCounts, originCounts, type PanelRow } from './choice-panel';
 import { geometricLengthGof, type GofResult } from './gof';
 import type { StageGame } from './stage-game';
 import { theoryAt } from './thresholds';
 
-/** The columns of a panel row the Debrief reads (app/models/panel.server.ts makes them). */
-export interface DebriefRow {
-  subject: string;
-  supergame: number;
-  round: number;
-  action: Action;
-  partnerAction: Action;
-  payoff: number;
-  paid: boolean;
-  source: 'player' | 'timeout' | 'computer';
-  supergameLength: number;
-}
+/** The columns of a choice-panel row the Debrief reads (app/lib/choice-panel.ts makes them). */
+export type DebriefRow = Pick<PanelRow, 'pseudonym' | 'supergame' | 'round' | 'action' | 'partner_action' | 'payoff' | 'paid' | 'origin' | 'computer_partner' | 'supergame_length'>;
 
 export interface RateCell {
   /** choices counted (a participant's choice in a round) */
@@ -62,6 +52,12 @@ export interface LengthFit {
 
 export interface SessionDebrief {
   delta: number;
+  /** which choices the cooperation figures use: own, paid ones (default) or every origin */
+  include: Include;
+  /** choices used, and those left out by origin */
+  counts: OriginCounts;
+  /** of the choices used, those made against a disclosed computer partner */
+  againstComputer: number;
   participants: number;
   choices: number;
   overall: RateCell;
@@ -74,14 +70,17 @@ export interface SessionDebrief {
 }
 
 /**
- * Cooperation counts choices participants made themselves or by the timeout rule; rows a computer
- * played in a participant's seat (hand-over) are left out. Points are the paid payoffs of every row
- * of the seat (what the participant is credited).
+ * Cooperation, outcomes and rounds count the choices `include` admits: by default the
+ * participants' own choices in paid rounds; choices filled by the timeout rule, made by a computer
+ * in a participant's seat, or made in rounds after the supergame ended (block termination,
+ * unpaid) are left out and counted (app/lib/choice-panel.ts). Points are the paid payoffs of
+ * every row of the seat, whoever chose (what the participant is credited).
  */
-export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: StageGame; delta: number }): SessionDebrief {
-  const own = rows.filter((r) => r.source !== 'computer');
+export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: StageGame; delta: number }, include: Include = 'own'): SessionDebrief {
+  const own = rows.filter((r) => inAnalysis(r, include));
   const supergames = [...new Set(rows.map((r) => r.supergame))].sort((a, b) => a - b);
-  const lengthOf = new Map(rows.map((r) => [r.supergame, r.supergameLength]));
+  const lengthOf = new Map<number, number>();
+  for (const r of rows) lengthOf.set(r.supergame, r.supergame_length ?? Math.max(lengthOf.get(r.supergame) ?? 0, r.round));
 
   const bySupergame: SupergameRow[] = supergames.map((s) => {
     const mine = own.filter((r) => r.supergame === s);
@@ -90,7 +89,7 @@ export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: S
     let one = 0;
     let none = 0;
     for (const r of mine) {
-      const c = (r.action === 'C' ? 1 : 0) + (r.partnerAction === 'C' ? 1 : 0);
+      const c = (r.action === 'C' ? 1 : 0) + (r.partner_action === 'C' ? 1 : 0);
       if (c === 2) both++;
       else if (c === 1) one++;
       else none++;
@@ -113,13 +112,16 @@ export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: S
   }
 
   const pointsBy = new Map<string, number>();
-  for (const r of rows) pointsBy.set(r.subject, (pointsBy.get(r.subject) ?? 0) + (r.paid ? r.payoff : 0));
-  const points = [...pointsBy].map(([subject, p]) => ({ subject, points: p })).sort((a, b) => (a.subject < b.subject ? -1 : 1));
+  for (const r of rows) pointsBy.set(r.pseudonym, (pointsBy.get(r.pseudonym) ?? 0) + (r.paid ? r.payoff : 0));
+  const points = [...pointsBy].map(([subject, p]) => ({ subject, points: p })).sort((a, b) => comparePseudonyms(a.subject, b.subject));
 
   const round1 = own.filter((r) => r.round === 1);
   const theory = theoryAt(design.payoffs, design.delta);
   return {
     delta: design.delta,
+    include,
+    counts: originCounts(rows, include),
+    againstComputer: own.filter((r) => r.computer_partner === 1).length,
     participants: pointsBy.size,
     choices: own.length,
     overall: cell(own.length, own.filter((r) => r.action === 'C').length),
@@ -160,4 +162,29 @@ export function pointsHistogram(points: readonly number[], bins = 10): { from: n
   const out = Array.from({ length: count }, (_, i) => ({ from: lo + i * width, to: lo + (i + 1) * width - 1, count: 0 }));
   for (const p of points) out[Math.min(count - 1, Math.floor((p - lo) / width))].count++;
   return out;
+}
+
+const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+
+/**
+ * What a session's cooperation figures include and leave out, in words for every chart caption
+ * and beside every figure: "Own choices in paid rounds: 232. Left out: 10 filled by the timeout
+ * rule, …; 1 half-finished round."
+ */
+export function originWords(s: { debrief: Pick<SessionDebrief, 'include' | 'counts' | 'againstComputer'>; unfinished?: number }): string {
+  const { counts, include, againstComputer } = s.debrief;
+  const parts = [
+    counts.timeout ? `${counts.timeout.toLocaleString('en-US')} filled by the timeout rule` : '',
+    counts.computer_seat ? `${counts.computer_seat.toLocaleString('en-US')} made by a computer in a participant’s seat` : '',
+    counts.unpaid_round ? `${counts.unpaid_round.toLocaleString('en-US')} in unpaid rounds after the supergame ended` : '',
+  ].filter(Boolean);
+  const vsComputer = againstComputer ? ` (${againstComputer.toLocaleString('en-US')} of them against a disclosed computer partner)` : '';
+  const half = s.unfinished ? `${plural(s.unfinished, 'half-finished round')} (only one of the pair had chosen) left out.` : '';
+  if (include === 'all') {
+    const all = `All choices: ${counts.used.toLocaleString('en-US')}${vsComputer}${parts.length ? `, including ${parts.join(', ')}` : ''}.`;
+    return [all, half].filter(Boolean).join(' ');
+  }
+  const own = `Own choices in paid rounds: ${counts.used.toLocaleString('en-US')}${vsComputer}.`;
+  const left = parts.length ? `Left out: ${parts.join(', ')}.` : 'No other choices to leave out.';
+  return [own, left, half].filter(Boolean).join(' ');
 }

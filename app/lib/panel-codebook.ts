@@ -35,14 +35,44 @@ export const PANEL_CODEBOOK = [
   {
     column: 'source',
     type: 'text',
-    meaning: 'who chose the action: the participant, the design’s timeout rule when the round timer ran out, or a computer after a hand-over',
+    meaning: 'who chose the action: the participant, the design’s timeout rule when the round timer ran out, or a computer playing the participant’s seat after a hand-over',
     values: 'player, timeout, computer',
   },
   { column: 'decision_ms', type: 'integer', meaning: 'milliseconds from the round opening to this choice, paused time excluded', values: '≥ 0' },
   { column: 'draw', type: 'integer', meaning: 'the termination draw made after this round (common to all pairs of the session)', values: '1 … 100 (1 … 1000 or 1 … 10000 when 100·δ is not whole); the supergame continues while draw ≤ that maximum × δ' },
   { column: 'supergame_length', type: 'integer', meaning: 'L, the rounds of this supergame that count (first draw above the cut-off)', values: '≥ 1' },
   { column: 'timestamp', type: 'timestamp', meaning: 'server time of the choice', values: 'ISO 8601 in UTC, e.g. 2027-03-03T10:21:07.412Z' },
+  {
+    column: 'paid',
+    type: 'integer',
+    meaning: 'whether the round counts toward points: round ≤ supergame_length. Under block termination the rounds of the last block after the supergame really ended are played but not paid',
+    values: '1 (paid) or 0 (unpaid)',
+  },
+  {
+    column: 'origin',
+    type: 'text',
+    meaning:
+      'where the choice came from: own = the participant’s own choice in a paid round; timeout = filled by the design’s timeout rule; computer_seat = a computer played the participant’s seat after a hand-over; unpaid_round = a round after the supergame ended (block termination), whoever chose. Parley’s cooperation figures and estimations use origin = own unless the Debrief’s switch includes every origin',
+    values: 'own, timeout, computer_seat, unpaid_round',
+  },
+  { column: 'partner_source', type: 'text', meaning: 'who chose the partner’s action, as in source (computer also for a disclosed odd-count computer partner)', values: 'player, timeout, computer' },
+  {
+    column: 'computer_partner',
+    type: 'integer',
+    meaning: 'whether a computer chose for the partner’s seat in any round of this supergame (the disclosed odd-count partner, or the partner handed to a computer); the participant’s own choices against it are origin = own',
+    values: '1 or 0',
+  },
 ] as const satisfies readonly CodebookEntry[];
+
+/**
+ * What is not a row, and who is left out: said in the codebook's README and on the Data page
+ * (docs/decisions/026).
+ */
+export const PANEL_NOTES = [
+  'Half-finished rounds are not rows: a round in which only one of the pair chose (the session was still running when the panel was read, or was ended by “End now” in the middle of the round) has no partner action and no payoff. Parley’s figures and estimations leave them out and say how many.',
+  'Analyses on Parley use the participants’ own choices in paid rounds (origin = own) unless switched to every origin; an estimation cuts each participant’s supergame at its first choice that is not, because a strategy’s prediction in a round depends on every earlier round.',
+  'De-identified panels, chart downloads, the API and estimations leave out participants who declined research consent; the class’s own Debrief on screen shows their play to the class.',
+] as const;
 
 /** Extra columns of the identified export (instructors only, logged). */
 export const IDENTIFIED_CODEBOOK = [
@@ -103,14 +133,20 @@ export function panelReadme(opts: { course: string; sessions: { id: number; trea
     '',
     'One row per participant × supergame × round; a header line, no index column, `.` as the decimal mark, timestamps in ISO 8601 (UTC).',
     '',
+    ...PANEL_NOTES.map((n) => `- ${n}`),
+    '',
+    'The participants’ own choices in paid rounds, as Parley’s figures use them:',
+    '',
     FORMULA_NOTE,
     '',
     '```r',
     'panel <- read.csv("panel.csv")',
+    'own <- subset(panel, origin == "own")',
     '```',
     '',
     '```python',
     'panel = pandas.read_csv("panel.csv", parse_dates=["timestamp"])',
+    'own = panel[panel.origin == "own"]',
     '```',
     '',
     '## Codebook',

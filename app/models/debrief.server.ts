@@ -1,5 +1,6 @@
 // What every Debrief page (session, compare, projector, CSV) loads: the chosen sessions of a
 // course, each with its de-identified Debrief numbers, and the stored estimations on them.
+import { type Include, INCLUDES } from '#app/lib/choice-panel';
 import { sessionDebrief, type SessionDebrief } from '#app/lib/debrief';
 import type { Design } from '#app/lib/design';
 import { count, inArray } from 'drizzle-orm';
@@ -20,6 +21,12 @@ export interface DebriefSession {
   labels: Design['labels'];
   delta: number;
   debrief: SessionDebrief;
+  /** rounds only one seat of a pair chose in (still running, or ended by "End now"): left out */
+  unfinished: number;
+  /** participants who declined research consent: shown to the class, left out of research data */
+  declined: number;
+  /** whether `declined` participants are in these numbers (the page) or not (downloads) */
+  keepsDeclined: boolean;
 }
 
 export interface DebriefData {
@@ -28,11 +35,23 @@ export interface DebriefData {
   estimates: EstimateStatus[];
 }
 
+export interface DebriefOptions {
+  /** which choices the figures use (the page's switch, `?include=all`) */
+  include?: Include;
+  /**
+   * true for what leaves Parley (chart downloads): participants who declined research consent
+   * are left out. The page and the projector show the whole class its own play (teaching);
+   * docs/decisions/026.
+   */
+  research?: boolean;
+}
+
 /** Throws 404 when a session is not in the course (another course's session is not found either). */
-export async function loadDebrief(courseId: number, sessionIds: readonly number[]): Promise<DebriefData> {
+export async function loadDebrief(courseId: number, sessionIds: readonly number[], opts: DebriefOptions = {}): Promise<DebriefData> {
+  const include = opts.include ?? 'own';
   const sessions: DebriefSession[] = [];
   for (const id of sessionIds) {
-    const s = await loadSessionPanel(courseId, id);
+    const s = await loadSessionPanel(courseId, id, { keepDeclined: !opts.research });
     if (!s) throw new Response(`No session ${id} in this course.`, { status: 404 });
     const d = s.session.design;
     sessions.push({
@@ -45,10 +64,19 @@ export async function loadDebrief(courseId: number, sessionIds: readonly number[
       payoffs: d.payoffs,
       labels: d.labels,
       delta: d.delta,
-      debrief: sessionDebrief(s.rows, d),
+      debrief: sessionDebrief(s.rows, d, include),
+      unfinished: s.unfinished.length,
+      declined: s.declined,
+      keepsDeclined: !opts.research,
     });
   }
   return { sessions, estimates: await estimatesForSessions(courseId, sessionIds) };
+}
+
+/** `?include=all` → every origin; anything else → own, paid choices (the default). */
+export function includeParam(url: URL): Include {
+  const v = url.searchParams.get('include');
+  return (INCLUDES as readonly string[]).includes(v ?? '') ? (v as Include) : 'own';
 }
 
 /** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */

@@ -18,7 +18,8 @@ import { env } from '#app/utils/env.server';
 import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
 import { datasets, estimates } from '#drizzle/schema';
 import { datasetChoiceRows } from './datasets.server';
-import { estimationRows, getCourseSessions, loadSessionPanel } from './panel.server';
+import { estimationRows, type OriginCounts } from '#app/lib/choice-panel';
+import { getCourseSessions, loadSessionPanel } from './panel.server';
 
 export interface GroupResult {
   group: string;
@@ -43,8 +44,21 @@ export interface GroupResult {
   expected: number[];
 }
 
+/** What an estimation on sessions left out (stored with its result). */
+export interface LeftOut extends OriginCounts {
+  /** own, paid choices after a left-out one in the same supergame (see estimationRows) */
+  afterLeftOut: number;
+  /** rounds only one seat of a pair chose in */
+  unfinished: number;
+  /** participants who declined research consent (never estimated) */
+  declined: number;
+}
+
 export interface EstimateResult {
   window: string;
+  /** sessions only: which choices were used and what was left out (absent on older results) */
+  include?: EstimateRequest['include'];
+  leftOut?: LeftOut;
   strategies: string[];
   bootstrap: number;
   seed: number;
@@ -227,19 +241,26 @@ async function drain(j: Runner) {
   }
 }
 
-async function loadRows(courseId: number, request: EstimateRequest): Promise<ChoiceRow[]> {
+async function loadRows(courseId: number, request: EstimateRequest): Promise<{ rows: ChoiceRow[]; leftOut: LeftOut | null }> {
   if (request.source.kind === 'sessions') {
     const rows: ChoiceRow[] = [];
+    const leftOut: LeftOut = { used: 0, timeout: 0, computer_seat: 0, unpaid_round: 0, afterLeftOut: 0, unfinished: 0, declined: 0 };
     for (const id of request.source.sessionIds) {
+      // research data: participants who declined research consent are left out (docs/decisions/026)
       const s = await loadSessionPanel(courseId, id);
       if (!s) throw new Error(`Session ${id} is not in this course.`);
-      rows.push(...estimationRows(s.rows));
+      const used = estimationRows(s.rows, request.include ?? 'own');
+      rows.push(...used.rows);
+      for (const k of ['used', 'timeout', 'computer_seat', 'unpaid_round'] as const) leftOut[k] += used.counts[k];
+      leftOut.afterLeftOut += used.afterLeftOut;
+      leftOut.unfinished += s.unfinished.length;
+      leftOut.declined += s.declined;
     }
-    return rows;
+    return { rows, leftOut };
   }
   const rows = await datasetChoiceRows(courseId, request.source.datasetId);
   if (!rows) throw new Error('The dataset was deleted.');
-  return rows;
+  return { rows, leftOut: null };
 }
 
 async function run(id: number) {
@@ -248,7 +269,8 @@ async function run(id: number) {
   const request = estimateRequestSchema.parse(row.request);
   await db().update(estimates).set({ status: 'running', progress: 0 }).where(eq(estimates.id, id));
 
-  const built = buildPanel(await loadRows(row.courseId, request));
+  const loaded = await loadRows(row.courseId, request);
+  const built = buildPanel(loaded.rows, { shorterSupergames: loaded.leftOut ? 'expected' : 'warn' });
   if (built.errors.length > 0) throw new Error(`The data cannot be estimated: ${built.errors[0].message}`);
   const groups = estimateGroups(built.panel, {
     by: 'treatment',
@@ -318,6 +340,7 @@ async function run(id: number) {
   await writing;
   const result: EstimateResult = {
     window: request.window,
+    ...(loaded.leftOut ? { include: request.include ?? 'own', leftOut: loaded.leftOut } : {}),
     strategies: request.strategies,
     bootstrap: B,
     seed: request.seed,

@@ -1,9 +1,9 @@
 /**
- * The choice panel: stored session rows → one row per participant × supergame × round
- * (product.md, "Data"; columns and meanings in app/lib/panel-codebook.ts). The one place that
- * turns `choices` (+ the partner's row, the frozen design, the draws, the pseudonyms) into panel
- * rows; the CSV/JSON/zip downloads, the API, the credit sheet and the results e-mails all read
- * through it.
+ * The choice panel reader: the one way stored session rows leave the database as choice-panel
+ * rows (product.md, "Data"; docs/decisions/021 and 026). The Debrief, a participant's own
+ * summary, estimations on sessions, the CSV/JSON/zip downloads, the API, the credit sheet and the
+ * results e-mails all read through `panelPages`; each row is made by the pure rule in
+ * app/lib/choice-panel.ts.
  *
  * Memory stays flat whatever the size: rows are read in keyset pages (participant by participant,
  * ordered by supergame and round) and written into the Response body as the client reads, so a
@@ -13,36 +13,14 @@ import { and, asc, eq, gt, inArray, or, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
 import { Zip, ZipDeflate } from 'fflate';
 import { csvLines } from '#app/lib/csv';
-import type { Action } from '#app/lib/automata';
+import { comparePseudonyms, type PanelContext, type PanelRow, panelRowOf, seatKey, type UnfinishedRound } from '#app/lib/choice-panel';
 import { type CreditRule, designSchema } from '#app/lib/design';
 import { codebookCsv, panelCsvColumns, panelReadme } from '#app/lib/panel-codebook';
-import { stagePayoff } from '#app/lib/stage-game';
 import { db } from '#app/utils/db.server';
 import { memberName } from '#app/models/course.server';
 import { choices, courseMembers, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
 
-export interface PanelRow {
-  session: number;
-  treatment: string;
-  R: number;
-  S: number;
-  T: number;
-  P: number;
-  delta: number;
-  pseudonym: string;
-  partner: string;
-  supergame: number;
-  round: number;
-  action: Action;
-  partner_action: Action;
-  payoff: number;
-  source: 'player' | 'timeout' | 'computer';
-  decision_ms: number;
-  /** null only if the session's draws were never stored (not for sessions the engine ran) */
-  draw: number | null;
-  supergame_length: number | null;
-  timestamp: string;
-}
+export type { PanelRow } from '#app/lib/choice-panel';
 
 /** The identified export's extra columns (instructors only, logged). */
 export interface IdentifiedPanelRow extends PanelRow {
@@ -73,6 +51,22 @@ export async function requirePanelSession(courseId: number, rawId: string | unde
   return s;
 }
 
+/** A stored session row (with its frozen design) as the reader's session. */
+export function panelSessionOf(s: { id: number; courseId: number; treatment: string; status: PanelSession['status']; simulated: number | boolean; params: unknown; completedAt: Date | null }): PanelSession {
+  const design = designSchema.parse(s.params);
+  return {
+    id: s.id,
+    courseId: s.courseId,
+    treatment: s.treatment,
+    status: s.status,
+    simulated: s.simulated === 1 || s.simulated === true,
+    payoffs: design.payoffs,
+    delta: design.delta,
+    credit: design.credit,
+    completedAt: s.completedAt,
+  };
+}
+
 /** Sessions of a course by id (ascending); ids of other courses are simply not returned. */
 export async function panelSessions(courseId: number, ids?: readonly number[]): Promise<PanelSession[]> {
   if (ids && ids.length === 0) return [];
@@ -89,25 +83,18 @@ export async function panelSessions(courseId: number, ids?: readonly number[]): 
     .from(sessions)
     .where(and(eq(sessions.courseId, courseId), ids ? inArray(sessions.id, [...ids]) : undefined))
     .orderBy(asc(sessions.id));
-  return rows.map((s) => {
-    const design = designSchema.parse(s.params);
-    return {
-      id: s.id,
-      courseId: s.courseId,
-      treatment: s.treatment,
-      status: s.status,
-      simulated: s.simulated === 1,
-      payoffs: design.payoffs,
-      delta: design.delta,
-      credit: design.credit,
-      completedAt: s.completedAt,
-    };
-  });
+  return rows.map(panelSessionOf);
 }
 
 export interface PanelOptions {
   /** add name, e-mail, student id and consent; keep participants who declined research consent */
   identified?: boolean;
+  /**
+   * keep participants who declined research consent in a de-identified panel: only for what the
+   * class itself sees (the Debrief on screen, a participant's own summary), never for data that
+   * leaves Parley or is stored for research (docs/decisions/026)
+   */
+  keepDeclined?: boolean;
   /** only these participants (engine keys), e.g. one person's summary */
   participantKeys?: readonly string[];
   /** rows per database page */
@@ -116,7 +103,7 @@ export interface PanelOptions {
   after?: PanelCursor | null;
 }
 
-/** Position of a row in the panel's order: session id, participant join order, supergame, round. */
+/** Position of a row in the panel's order: session id, participant (join order), supergame, round. */
 export interface PanelCursor {
   session: number;
   seq: number;
@@ -134,9 +121,9 @@ export interface Participant {
   studentId: string | null;
 }
 
-/** The participants of a session in join order, with who they are (for identified uses). */
+/** The participants of a session in numeric pseudonym order, with who they are (for identified uses). */
 export async function panelParticipants(session: PanelSession): Promise<Participant[]> {
-  return db()
+  const people = await db()
     .select({
       key: sessionParticipants.participantKey,
       seq: sessionParticipants.seq,
@@ -151,109 +138,109 @@ export async function panelParticipants(session: PanelSession): Promise<Particip
     .leftJoin(courseMembers, and(eq(courseMembers.userId, sessionParticipants.userId), eq(courseMembers.courseId, session.courseId)))
     .where(eq(sessionParticipants.sessionId, session.id))
     .orderBy(asc(sessionParticipants.seq));
+  // P-999 before P-1000 (a text sort puts "P-1000" before "P-101")
+  return people.sort((a, b) => comparePseudonyms(a.pseudonym, b.pseudonym) || a.seq - b.seq);
 }
 
-async function drawsOf(sessionId: number) {
-  const rows = await db()
-    .select({ supergame: supergameDraws.supergame, draws: supergameDraws.draws, length: supergameDraws.length })
-    .from(supergameDraws)
-    .where(eq(supergameDraws.sessionId, sessionId));
-  return new Map(rows.map((r) => [r.supergame, r]));
+/** The session-wide facts the row rule needs: draws, and the seats a computer chose in. */
+async function contextOf(session: PanelSession, people: readonly Participant[]): Promise<PanelContext> {
+  const [draws, computer] = await Promise.all([
+    db()
+      .select({ supergame: supergameDraws.supergame, draws: supergameDraws.draws, length: supergameDraws.length })
+      .from(supergameDraws)
+      .where(eq(supergameDraws.sessionId, session.id)),
+    db()
+      .selectDistinct({ supergame: choices.supergame, pairId: choices.pairId, seat: choices.seat })
+      .from(choices)
+      .where(and(eq(choices.sessionId, session.id), eq(choices.source, 'computer'))),
+  ]);
+  return {
+    session: { id: session.id, treatment: session.treatment, payoffs: session.payoffs, delta: session.delta },
+    pseudonyms: new Map(people.map((p) => [p.key, p.pseudonym])),
+    draws: new Map(draws.map((d) => [d.supergame, d])),
+    computerSeats: new Set(computer.map((c) => seatKey(c.supergame, c.pairId, c.seat))),
+  };
 }
 
 const partnerRow = alias(choices, 'partner_choice');
 
-/** One participant's rounds after (supergame, round), with the partner's choice of the same round. */
-async function choicePage(sessionId: number, key: string, after: { supergame: number; round: number }, limit: number) {
-  return db()
-    .select({
-      supergame: choices.supergame,
-      round: choices.round,
-      action: choices.action,
-      source: choices.source,
-      decisionMs: choices.decisionMs,
-      atMs: choices.atMs,
-      partnerAction: partnerRow.action,
-      partnerKey: partnerRow.participantKey,
-      partnerSource: partnerRow.source,
-      partnerStrategy: partnerRow.strategy,
-    })
-    // One participant's rows through (session, participant); left alone, MariaDB may walk the whole
-    // session along (session, supergame, round, …) to skip the sort, once per participant.
-    .from(choices, { forceIndex: 'choices_participant' })
-    // A round enters the panel once both seats have chosen (a round cut by "end now" does not).
-    .innerJoin(
-      partnerRow,
-      and(
-        eq(partnerRow.sessionId, choices.sessionId),
-        eq(partnerRow.supergame, choices.supergame),
-        eq(partnerRow.round, choices.round),
-        eq(partnerRow.pairId, choices.pairId),
-        sql`${partnerRow.seat} = 1 - ${choices.seat}`,
-      ),
-    )
-    .where(
-      and(
-        eq(choices.sessionId, sessionId),
-        eq(choices.participantKey, key),
-        or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round))),
-      ),
-    )
-    .orderBy(asc(choices.supergame), asc(choices.round))
-    .limit(limit);
+const choiceColumns = {
+  participantKey: choices.participantKey,
+  supergame: choices.supergame,
+  round: choices.round,
+  pairId: choices.pairId,
+  seat: choices.seat,
+  action: choices.action,
+  source: choices.source,
+  strategy: choices.strategy,
+  decisionMs: choices.decisionMs,
+  atMs: choices.atMs,
+  partnerKey: partnerRow.participantKey,
+  partnerAction: partnerRow.action,
+  partnerSource: partnerRow.source,
+  partnerStrategy: partnerRow.strategy,
+};
+
+/** Each of some participants' choices with the partner seat's choice of the same round (or nulls). */
+function choicesWithPartner(sessionId: number, keys: readonly string[], after?: { supergame: number; round: number }) {
+  return (
+    db()
+      .select(choiceColumns)
+      // Participants' rows through (session, participant); left alone, MariaDB may walk the whole
+      // session along (session, supergame, round, …) to skip the sort, once per participant.
+      .from(choices, { forceIndex: 'choices_participant' })
+      // LEFT: a round the partner has not chosen in yet is read too, and counted as half-finished.
+      .leftJoin(
+        partnerRow,
+        and(
+          eq(partnerRow.sessionId, choices.sessionId),
+          eq(partnerRow.supergame, choices.supergame),
+          eq(partnerRow.round, choices.round),
+          eq(partnerRow.pairId, choices.pairId),
+          sql`${partnerRow.seat} = 1 - ${choices.seat}`,
+        ),
+      )
+      .where(
+        and(
+          eq(choices.sessionId, sessionId),
+          keys.length === 1 ? eq(choices.participantKey, keys[0]) : inArray(choices.participantKey, [...keys]),
+          after ? or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round))) : undefined,
+        ),
+      )
+  );
+}
+
+/** One participant's rounds after (supergame, round), in order, at most `limit`. */
+function choicePage(sessionId: number, key: string, after: { supergame: number; round: number }, limit: number) {
+  return choicesWithPartner(sessionId, [key], after).orderBy(asc(choices.supergame), asc(choices.round)).limit(limit);
 }
 
 type ChoiceJoin = Awaited<ReturnType<typeof choicePage>>[number];
 
-/** The pure step: one stored choice (with its partner's) → one panel row. */
-export function toPanelRow(
-  session: PanelSession,
-  me: Pick<Participant, 'pseudonym'>,
-  c: ChoiceJoin,
-  pseudonymOf: ReadonlyMap<string, string>,
-  draws: ReadonlyMap<number, { draws: number[]; length: number }>,
-): PanelRow {
-  const d = draws.get(c.supergame);
-  // What the participant faced: a computer whenever one chose for the partner's seat.
-  const partner =
-    c.partnerKey === null || c.partnerSource === 'computer'
-      ? `computer:${c.partnerStrategy ?? 'unknown'}`
-      : (pseudonymOf.get(c.partnerKey) ?? c.partnerKey);
-  return {
-    session: session.id,
-    treatment: session.treatment,
-    R: session.payoffs.R,
-    S: session.payoffs.S,
-    T: session.payoffs.T,
-    P: session.payoffs.P,
-    delta: session.delta,
-    pseudonym: me.pseudonym,
-    partner,
-    supergame: c.supergame,
-    round: c.round,
-    action: c.action,
-    partner_action: c.partnerAction,
-    payoff: stagePayoff(session.payoffs, c.action, c.partnerAction),
-    source: c.source,
-    decision_ms: c.decisionMs,
-    draw: d?.draws[c.round - 1] ?? null,
-    supergame_length: d?.length ?? null,
-    timestamp: new Date(c.atMs).toISOString(),
-  };
+/** Rows per participant of a session (one grouped pass over the participant index). */
+async function rowCounts(sessionId: number): Promise<Map<string, number>> {
+  const rows = await db()
+    .select({ key: choices.participantKey, n: sql<number>`COUNT(*)` })
+    .from(choices, { forceIndex: 'choices_participant' })
+    .where(eq(choices.sessionId, sessionId))
+    .groupBy(choices.participantKey);
+  return new Map(rows.filter((r) => r.key !== null).map((r) => [r.key!, Number(r.n)]));
 }
 
 const CONSENT_WORDS = { 1: 'yes', 0: 'no' } as const;
 
 export interface PanelPage<Row> {
   rows: Row[];
+  /** rounds of this page that only one seat chose in: not rows, counted */
+  unfinished: UnfinishedRound[];
   /** where the last row of this page stands */
   last: PanelCursor | null;
 }
 
 /**
- * The panel of some sessions, page by page, in a stable order (session, join order, supergame,
- * round). De-identified unless asked: pseudonyms only, and participants who declined research
- * consent (consent = 0) are left out.
+ * The panel of some sessions, page by page, in a stable order (session, numeric pseudonym,
+ * supergame, round). De-identified unless asked: pseudonyms only, and participants who declined
+ * research consent (consent = 0) are left out unless `identified` or `keepDeclined`.
  */
 export async function* panelPages(list: readonly PanelSession[], opts: PanelOptions = {}): AsyncGenerator<PanelPage<PanelRow | IdentifiedPanelRow>> {
   const pageSize = opts.pageSize ?? 2000;
@@ -261,29 +248,65 @@ export async function* panelPages(list: readonly PanelSession[], opts: PanelOpti
   for (const session of list) {
     if (after && session.id < after.session) continue;
     const people = await panelParticipants(session);
-    const pseudonymOf = new Map(people.map((p) => [p.key, p.pseudonym]));
-    const draws = await drawsOf(session.id);
-    for (const p of people) {
-      if (!opts.identified && p.consent === 0) continue;
-      if (opts.participantKeys && !opts.participantKeys.includes(p.key)) continue;
-      let from = { supergame: 0, round: 0 };
-      if (after && session.id === after.session) {
-        if (p.seq < after.seq) continue;
-        if (p.seq === after.seq) from = { supergame: after.supergame, round: after.round };
+    const [ctx, counts] = await Promise.all([contextOf(session, people), rowCounts(session.id)]);
+    // resuming: skip the participants before the cursor's (in the panel's order, not by seq)
+    let startAt = 0;
+    if (after && session.id === after.session) startAt = Math.max(0, people.findIndex((p) => p.seq === after.seq));
+    const wanted = people.filter(
+      (p, i) => i >= startAt && (opts.identified || opts.keepDeclined || p.consent !== 0) && (!opts.participantKeys || opts.participantKeys.includes(p.key)) && (counts.get(p.key) ?? 0) > 0,
+    );
+
+    const toPage = (p: Participant, batch: readonly ChoiceJoin[]): PanelPage<PanelRow | IdentifiedPanelRow> => {
+      const rows: (PanelRow | IdentifiedPanelRow)[] = [];
+      const unfinished: UnfinishedRound[] = [];
+      for (const c of batch) {
+        const partner = c.partnerAction === null ? null : { participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy };
+        const row = panelRowOf(ctx, p.pseudonym, c, partner);
+        if (!row) unfinished.push({ pseudonym: p.pseudonym, supergame: c.supergame, round: c.round });
+        else if (!opts.identified) rows.push(row);
+        else rows.push({ ...row, name: p.name ?? '', email: p.email, student_id: p.studentId ?? '', consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1] });
       }
+      const lastChoice = batch[batch.length - 1];
+      return { rows, unfinished, last: { session: session.id, seq: p.seq, supergame: lastChoice.supergame, round: lastChoice.round } };
+    };
+
+    for (let i = 0; i < wanted.length; ) {
+      const p = wanted[i];
+      const resume = after && session.id === after.session && p.seq === after.seq;
+      if (!resume && (counts.get(p.key) ?? 0) < pageSize) {
+        // Participants with few rows are read several at once, up to a page of rows: one query
+        // instead of one per participant (a class of hundreds has a handful of rows each).
+        const group: Participant[] = [];
+        let n = 0;
+        while (i < wanted.length && group.length < 500 && n + (counts.get(wanted[i].key) ?? 0) <= pageSize) {
+          const q = wanted[i];
+          if (after && session.id === after.session && q.seq === after.seq) break;
+          group.push(q);
+          n += counts.get(q.key) ?? 0;
+          i++;
+        }
+        if (group.length > 0) {
+          const batch = await choicesWithPartner(session.id, group.map((q) => q.key));
+          const byKey = new Map<string, ChoiceJoin[]>();
+          for (const c of batch) byKey.set(c.participantKey!, [...(byKey.get(c.participantKey!) ?? []), c]);
+          for (const q of group) {
+            const mine = (byKey.get(q.key) ?? []).sort((x, y) => x.supergame - y.supergame || x.round - y.round);
+            if (mine.length > 0) yield toPage(q, mine);
+          }
+          continue;
+        }
+      }
+      // A participant with many rows (or the one a cursor stopped in): keyset pages of their own.
+      let from = resume ? { supergame: after.supergame, round: after.round } : { supergame: 0, round: 0 };
       for (;;) {
         const batch = await choicePage(session.id, p.key, from, pageSize);
         if (batch.length === 0) break;
-        const rows = batch.map((c) => {
-          const row = toPanelRow(session, p, c, pseudonymOf, draws);
-          if (!opts.identified) return row;
-          return { ...row, name: p.name ?? '', email: p.email, student_id: p.studentId ?? '', consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1] } satisfies IdentifiedPanelRow;
-        });
-        const lastChoice = batch[batch.length - 1];
-        from = { supergame: lastChoice.supergame, round: lastChoice.round };
-        yield { rows, last: { session: session.id, seq: p.seq, ...from } };
+        const page = toPage(p, batch);
+        from = { supergame: page.last!.supergame, round: page.last!.round };
+        yield page;
         if (batch.length < pageSize) break;
       }
+      i++;
     }
   }
 }

@@ -3,6 +3,7 @@
 // and the Debrief's form (browser), so field names and limits are the same on both sides.
 import { z } from 'zod';
 import { LIBRARY, STRATEGY_SETS } from '#app/lib/automata';
+import { INCLUDES } from '#app/lib/choice-panel';
 
 /** Upper limits that keep one request within a minute on a 2-core machine. */
 export const MAX_BOOTSTRAP = 2000;
@@ -64,6 +65,12 @@ const sourceSchema = z.discriminatedUnion('kind', [
 export const estimateRequestSchema = z.object({
   source: sourceSchema,
   window: z.string(),
+  /**
+   * sessions only: own, paid choices (the default) or every origin (the Debrief's switch).
+   * Absent on requests stored before choices kept their origin; those used the participants' own
+   * and timeout-filled choices.
+   */
+  include: z.enum(INCLUDES).optional(),
   strategies: z
     .array(z.string().refine((id) => LIBRARY.some((a) => a.id === id), { message: 'Choose strategies from the library' }))
     .min(1, 'Choose at least one strategy')
@@ -77,7 +84,8 @@ export type EstimateRequest = z.output<typeof estimateRequestSchema>;
 export function canonicalRequest(r: EstimateRequest): EstimateRequest {
   const source = r.source.kind === 'sessions' ? { kind: 'sessions' as const, sessionIds: [...new Set(r.source.sessionIds)].sort((a, b) => a - b) } : r.source;
   const strategies = [...r.strategies].sort((a, b) => STRATEGY_ORDER.indexOf(a) - STRATEGY_ORDER.indexOf(b));
-  return { source, window: r.window, strategies, bootstrap: r.bootstrap, seed: r.seed };
+  const include = r.source.kind === 'sessions' ? { include: r.include ?? ('own' as const) } : {};
+  return { source, window: r.window, ...include, strategies, bootstrap: r.bootstrap, seed: r.seed };
 }
 
 const formSchema = z.object({
@@ -86,6 +94,7 @@ const formSchema = z.object({
     .optional()
     .transform((s) => (s ?? '').split(',').map((x) => x.trim()).filter(Boolean)),
   dataset: z.string().optional(),
+  include: z.enum(INCLUDES, { error: 'Choose which choices to use' }).default('own'),
   windowKind: z.enum(['all', 'supergames', 'last', 'after-rounds'], { error: 'Choose which supergames to use' }),
   from: z.string().optional(),
   to: z.string().optional(),
@@ -116,6 +125,7 @@ export function estimateRequestFromForm(form: FormData): EstimateFormResult {
   const parsed = formSchema.safeParse({
     sessions: str('sessions'),
     dataset: str('dataset') || undefined,
+    include: str('include') || undefined,
     windowKind: str('windowKind'),
     from: str('from'),
     to: str('to'),
@@ -150,7 +160,7 @@ export function estimateRequestFromForm(form: FormData): EstimateFormResult {
     f.dataset !== undefined
       ? { kind: 'dataset' as const, datasetId: Number(f.dataset) }
       : { kind: 'sessions' as const, sessionIds: f.sessions.map(Number) };
-  const r = estimateRequestSchema.safeParse({ source, window: w.success ? windowText(w.data) : 'all', strategies, bootstrap: f.bootstrap, seed: f.seed });
+  const r = estimateRequestSchema.safeParse({ source, window: w.success ? windowText(w.data) : 'all', include: source.kind === 'sessions' ? f.include : undefined, strategies, bootstrap: f.bootstrap, seed: f.seed });
   if (!r.success) {
     for (const issue of r.error.issues) {
       const top = String(issue.path[0]);

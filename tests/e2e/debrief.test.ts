@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, PHONE, signInInBrowser } from '#tests/helpers/browser';
 
 // Screenshots to look at after a run (not compared by the test).
 const SHOTS = path.resolve('.data/test/screenshots');
@@ -60,6 +60,49 @@ describe('Debrief, in Chromium', () => {
     await page.keyboard.press('ArrowLeft');
     await expect.poll(() => page.getByRole('heading', { name: 'Estimated strategy shares' }).isVisible()).toBe(true);
     await page.screenshot({ path: path.join(SHOTS, 'debrief-projector.png') });
+    expect(pageErrors).toEqual([]);
+  });
+
+  it('the switch for timeout-filled, computer-seat and unpaid rounds, and captions that say what is included (desktop and phone)', async () => {
+    for (const [size, email] of [
+      [DESKTOP, 'm.achterberg@halvorsen.example'],
+      [PHONE, 'r.okafor@halvorsen.example'],
+    ] as const) {
+      const page = await (await newContext(browser, size)).newPage();
+      await page.goto('/sign-in');
+      await signInInBrowser(page, email);
+      // the demo course is course 1 (seeded first)
+      await page.goto('/courses/1/debrief');
+      await page.getByRole('link', { name: /Short horizon/ }).click();
+      await expect.poll(() => page.getByRole('heading', { name: /^Debrief: .*Short horizon/ }).isVisible()).toBe(true);
+
+      // Off by default: every cooperation caption says which choices it counts and what it left out.
+      const sw = page.getByRole('checkbox', { name: /Include timeout-filled, computer-seat and unpaid rounds/ });
+      expect(await sw.isChecked()).toBe(false);
+      const caption = (chart: string) => page.locator(`figure[data-chart="${chart}"] figcaption`).textContent();
+      for (const chart of ['cooperation-by-supergame', 'cooperation-by-round', 'outcomes', 'theory']) expect(await caption(chart)).toMatch(/Own choices in paid rounds: [\d,]+\./);
+      expect(await caption('lengths')).not.toMatch(/methods\.md|§/);
+      expect(await caption('points')).toContain('whoever chose');
+      const csv = page.locator('figure[data-chart="cooperation-by-supergame"]').getByRole('link', { name: /download data \(CSV\)/ });
+      expect(await csv.getAttribute('href')).not.toContain('include=');
+      expect(await page.locator('input[type="hidden"][name="include"]').getAttribute('value')).toBe('own');
+      if (size === PHONE) await page.screenshot({ path: path.join(SHOTS, 'debrief-switch-phone.png'), fullPage: false });
+
+      // On: every origin, in the captions, the CSV links, the estimation request and the URL.
+      await sw.check();
+      await expect.poll(() => page.url()).toContain('include=all');
+      await expect.poll(() => caption('cooperation-by-supergame')).toMatch(/All choices: [\d,]+/);
+      expect(await sw.isChecked()).toBe(true);
+      expect(await csv.getAttribute('href')).toContain('include=all');
+      expect(await page.locator('input[type="hidden"][name="include"]').getAttribute('value')).toBe('all');
+      expect(await page.getByTestId('estimate-include').textContent()).toContain('Uses every choice');
+      await page.screenshot({ path: path.join(SHOTS, `debrief-switch-${size === PHONE ? 'phone' : 'desktop'}-on.png`), fullPage: size !== PHONE });
+
+      // Off again: back to own, paid choices.
+      await sw.uncheck();
+      await expect.poll(() => page.url()).not.toContain('include=all');
+      await expect.poll(() => caption('cooperation-by-supergame')).toMatch(/Own choices in paid rounds/);
+    }
     expect(pageErrors).toEqual([]);
   });
 });

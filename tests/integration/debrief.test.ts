@@ -9,6 +9,7 @@ import { designSchema } from '#app/lib/design';
 import { createDataset } from '#app/models/datasets.server';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import { participantKeyOf, writeEffects } from '#app/models/live.server';
+import { estimationRows } from '#app/lib/choice-panel';
 import { loadSessionPanel } from '#app/models/panel.server';
 import { closeDb } from '#app/utils/db.server';
 import { courses, estimates, sessions, supergameDraws, users } from '#drizzle/schema';
@@ -106,10 +107,10 @@ describe('who sees a Debrief', () => {
     const panel = (await loadSessionPanel(courseId, sessionId))!;
     const pseudonym = /you were <strong>(P-\d{3})<\/strong>/.exec(html)?.[1];
     expect(pseudonym).toMatch(/^P-\d{3}$/);
-    const points = panel.rows.filter((r) => r.subject === pseudonym && r.paid).reduce((t, r) => t + r.payoff, 0);
+    const points = panel.rows.filter((r) => r.pseudonym === pseudonym && r.paid === 1).reduce((t, r) => t + r.payoff, 0);
     expect(html).toContain(`data-testid="total-points">${points}<`);
     // partners stay anonymous: no other pseudonym on the page
-    const others = new Set(panel.rows.map((r) => r.subject).filter((s) => s !== pseudonym));
+    const others = new Set(panel.rows.map((r) => r.pseudonym).filter((s) => s !== pseudonym));
     for (const o of others) expect(html).not.toContain(o);
   });
 
@@ -196,7 +197,8 @@ describe('estimation through the real server', () => {
 
   it('an uploaded dataset with the same rows gives the same estimate', async () => {
     const panel = (await loadSessionPanel(courseId, sessionId))!;
-    const rows = panel.rows.map(({ session, treatment, subject, partner, supergame, round, action, partnerAction }) => ({ session, treatment, subject, partner, supergame, round, action, partnerAction }));
+    // the rows the estimation on the session used (own, paid choices, each supergame cut at its first other one)
+    const { rows } = estimationRows(panel.rows, 'own');
     const datasetId = await createDataset(courseId, ids.researcher, 'Same rows', rows);
     const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
     expect(res.status).toBe(202);

@@ -25,6 +25,8 @@ async function expectedPanel(sessionId: number, { identified = false } = {}) {
   const cell = new Map(all.map((c) => [`${c.supergame}/${c.round}/${c.pairId}/${c.seat}`, c]));
   const who = new Map(people.map((p) => [p.key, p]));
   const table = { CC: design.payoffs.R, CD: design.payoffs.S, DC: design.payoffs.T, DD: design.payoffs.P };
+  // seats a computer chose in at least once (odd-count partner or hand-over)
+  const computerSeats = new Set(all.filter((c) => c.source === 'computer').map((c) => `${c.supergame}/${c.pairId}/${c.seat}`));
   const rows = [];
   for (const c of all) {
     if (c.participantKey === null) continue;
@@ -51,6 +53,10 @@ async function expectedPanel(sessionId: number, { identified = false } = {}) {
         draw: draws.get(c.supergame)!.draws[c.round - 1],
         supergame_length: draws.get(c.supergame)!.length,
         timestamp: new Date(c.atMs).toISOString(),
+        paid: c.round <= draws.get(c.supergame)!.length ? 1 : 0,
+        origin: c.round > draws.get(c.supergame)!.length ? 'unpaid_round' : c.source === 'timeout' ? 'timeout' : c.source === 'computer' ? 'computer_seat' : 'own',
+        partner_source: o.source,
+        computer_partner: computerSeats.has(`${c.supergame}/${c.pairId}/${1 - c.seat}`) ? 1 : 0,
       },
     });
   }

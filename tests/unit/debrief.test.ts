@@ -1,17 +1,18 @@
 // The Debrief's numbers (app/lib/debrief.ts) on a hand-counted three-person session.
 import { describe, expect, it } from 'vitest';
-import { lengthFit, pointsHistogram, sessionDebrief, type DebriefRow } from '#app/lib/debrief';
+import { lengthFit, originWords, pointsHistogram, sessionDebrief, type DebriefRow } from '#app/lib/debrief';
 
-const row = (subject: string, supergame: number, round: number, action: 'C' | 'D', partnerAction: 'C' | 'D', payoff: number, length: number, source: DebriefRow['source'] = 'player'): DebriefRow => ({
-  subject,
+const row = (pseudonym: string, supergame: number, round: number, action: 'C' | 'D', partnerAction: 'C' | 'D', payoff: number, length: number, origin: DebriefRow['origin'] = 'own'): DebriefRow => ({
+  pseudonym,
   supergame,
   round,
   action,
-  partnerAction,
+  partner_action: partnerAction,
   payoff,
-  paid: round <= length,
-  source,
-  supergameLength: length,
+  paid: round <= length ? 1 : 0,
+  origin: round <= length ? origin : 'unpaid_round',
+  computer_partner: 0,
+  supergame_length: length,
 });
 // Axelrod's payoffs T=5, R=3, P=1, S=0 (Axelrod 1984, p. 8).
 const rows: DebriefRow[] = [
@@ -28,9 +29,34 @@ const rows: DebriefRow[] = [
 const design = { payoffs: { R: 3, S: 0, T: 5, P: 1 }, delta: 0.5 };
 
 describe('sessionDebrief', () => {
-  const d = sessionDebrief(rows, design);
+  const d = sessionDebrief(rows, design, 'all');
 
-  it('cooperation by supergame, all rounds and round 1 (timeouts count as choices)', () => {
+  it('own, paid choices by default: the timeout-filled choice is left out and counted', () => {
+    const own = sessionDebrief(rows, design);
+    expect([own.include, own.counts]).toEqual(['own', { used: 8, timeout: 1, computer_seat: 0, unpaid_round: 0 }]);
+    expect([own.overall.cooperate, own.overall.n]).toEqual([4, 8]);
+    expect(own.bySupergame[0].all).toEqual({ n: 5, cooperate: 2, rate: 2 / 5 });
+    expect(originWords({ debrief: own, unfinished: 1 })).toBe(
+      'Own choices in paid rounds: 8. Left out: 1 filled by the timeout rule. 1 half-finished round (only one of the pair had chosen) left out.',
+    );
+    // points are what each participant is credited, whoever chose
+    expect(own.points).toEqual(d.points);
+  });
+
+  it('under block termination the rounds after the end count neither in cooperation nor in “supergames that reached this round”', () => {
+    // supergame 2 really ended after round 1, but its block of 2 rounds was played
+    const block = [...rows, row('P-001', 2, 2, 'D', 'C', 5, 1), row('P-003', 2, 2, 'C', 'D', 0, 1)];
+    const own = sessionDebrief(block, design);
+    expect(own.byRound.map((r) => [r.round, r.supergames, r.all.n])).toEqual([
+      [1, 2, 6],
+      [2, 1, 2],
+    ]);
+    expect(own.counts.unpaid_round).toBe(2);
+    expect(sessionDebrief(block, design, 'all').byRound[1].supergames).toBe(2);
+    expect(own.points.find((p) => p.subject === 'P-001')!.points).toBe(4);
+  });
+
+  it('cooperation by supergame, all rounds and round 1 (every origin, by the switch)', () => {
     expect(d.bySupergame.map((g) => [g.supergame, g.length, g.all.cooperate, g.all.n, g.round1.cooperate, g.round1.n])).toEqual([
       [1, 2, 2, 6, 2, 3],
       [2, 1, 2, 3, 2, 3],
@@ -60,9 +86,9 @@ describe('sessionDebrief', () => {
   });
 
   it('rows a computer played for a participant do not count as the participant’s cooperation', () => {
-    const handed = rows.map((r) => (r.subject === 'P-003' && r.supergame === 1 && r.round === 2 ? { ...r, source: 'computer' as const, action: 'C' as const } : r));
+    const handed = rows.map((r) => (r.pseudonym === 'P-003' && r.supergame === 1 && r.round === 2 ? { ...r, origin: 'computer_seat' as const, action: 'C' as const } : r));
     const h = sessionDebrief(handed, design);
-    expect([h.overall.cooperate, h.overall.n]).toEqual([4, 8]);
+    expect([h.overall.cooperate, h.overall.n, h.counts.computer_seat]).toEqual([4, 7, 1]);
   });
 
   it('thresholds at δ = 1/2: δ_SPE 1/2, δ_RD 3/5, sizeBAD 1', () => {

@@ -15,8 +15,17 @@ describe('estimateRequestFromForm', () => {
   it('the DBF 2011 preset on two sessions, all supergames', () => {
     expect(estimateRequestFromForm(form(base))).toEqual({
       ok: true,
-      request: { source: { kind: 'sessions', sessionIds: [2, 4] }, window: 'all', strategies: ['ALLD', 'ALLC', 'Grim', 'TFT', 'WSLS', 'T2'], bootstrap: 200, seed: 9 },
+      request: { source: { kind: 'sessions', sessionIds: [2, 4] }, window: 'all', include: 'own', strategies: ['ALLD', 'ALLC', 'Grim', 'TFT', 'WSLS', 'T2'], bootstrap: 200, seed: 9 },
     });
+  });
+
+  it('the Debrief’s switch travels in the request: every origin is another request than own choices', () => {
+    const all = estimateRequestFromForm(form({ ...base, include: 'all' }));
+    const own = estimateRequestFromForm(form(base));
+    if (!all.ok || !own.ok) throw new Error('refused');
+    expect([all.request.include, own.request.include]).toEqual(['all', 'own']);
+    expect(canonicalRequest(all.request)).not.toEqual(canonicalRequest(own.request));
+    expect(estimateRequestFromForm(form({ ...base, include: 'some' }))).toEqual({ ok: false, errors: { include: 'Choose which choices to use' } });
   });
 
   it('each window kind becomes the syntax parseWindow reads', () => {

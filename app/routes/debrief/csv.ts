@@ -1,10 +1,11 @@
 // GET: the data behind one Debrief chart as CSV (the one writer, app/lib/csv.ts), for the sessions named in
-// ?sessions=1,2, or for a stored estimation (?estimate=ID, chart "strategies"). De-identified.
+// ?sessions=1,2 (and ?include=all when the page's switch is on), or for a stored estimation
+// (?estimate=ID, chart "strategies"). De-identified, without participants who declined research use.
 import { z } from 'zod';
 import type { Route } from './+types/csv';
 import { csvLines } from '#app/lib/csv';
 import { CHART_IDS, chartTable, type Table, tableColumns } from '#app/lib/debrief-tables';
-import { loadDebrief, sessionIdsParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief, sessionIdsParam } from '#app/models/debrief.server';
 import { getEstimate } from '#app/models/estimate.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
@@ -44,7 +45,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     name = `estimate-${e.id}-strategies`;
   } else {
     const ids = sessionIdsParam(url);
-    const { sessions } = await loadDebrief(course.id, ids);
+    // A download leaves Parley: participants who declined research use are left out
+    // (docs/decisions/026); the page's switch (`include`) decides which choices count.
+    const { sessions } = await loadDebrief(course.id, ids, { include: includeParam(url), research: true });
     rows = chartTable(chart.data as Exclude<(typeof CHART_IDS)[number], 'strategies'>, sessions);
     name = `sessions-${ids.join('-')}-${chart.data}`;
   }

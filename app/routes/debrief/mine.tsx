@@ -4,7 +4,7 @@ import { Link } from 'react-router';
 import type { Route } from './+types/mine';
 import { ParticipantShell } from '#app/components/shells';
 import { sessionIdParam } from '#app/models/debrief.server';
-import { getCourseSessions, loadSessionPanel, pseudonymOf } from '#app/models/panel.server';
+import { getCourseSessions, loadSessionPanel, participantOf } from '#app/models/panel.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -12,19 +12,21 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const sessionId = sessionIdParam(params.sessionId);
   const [session] = await getCourseSessions(course.id, [sessionId]);
   if (!session) throw new Response('No such session in this course.', { status: 404 });
-  const pseudonym = await pseudonymOf(sessionId, user.id);
-  if (!pseudonym) throw new Response('You did not take part in this session, so it has no summary for you.', { status: 404 });
-  const panel = (await loadSessionPanel(course.id, sessionId))!;
-  const mine = panel.rows.filter((r) => r.subject === pseudonym);
+  const me = await participantOf(sessionId, user.id);
+  if (!me) throw new Response('You did not take part in this session, so it has no summary for you.', { status: 404 });
+  const { pseudonym } = me;
+  // Their own rows only, consent or not (it is their own play); a round their partner has not
+  // chosen in yet is not a row.
+  const mine = (await loadSessionPanel(course.id, sessionId, { keepDeclined: true, participantKeys: [me.key] }))!.rows;
   const supergames = [...new Set(mine.map((r) => r.supergame))].sort((a, b) => a - b).map((s) => {
     const rows = mine.filter((r) => r.supergame === s);
     return {
       supergame: s,
-      rounds: rows.filter((r) => r.paid).length,
-      partner: rows[0].partner.startsWith('computer:') ? `a computer (${rows[0].partner.slice(9)}), disclosed` : 'another participant',
+      rounds: rows.filter((r) => r.paid === 1).length,
+      partner: partnerWords(rows.map((r) => r.partner)),
       ownC: rows.filter((r) => r.action === 'C').length,
-      partnerC: rows.filter((r) => r.partnerAction === 'C').length,
-      points: rows.reduce((t, r) => t + (r.paid ? r.payoff : 0), 0),
+      partnerC: rows.filter((r) => r.partner_action === 'C').length,
+      points: rows.reduce((t, r) => t + (r.paid === 1 ? r.payoff : 0), 0),
     };
   });
   return {
@@ -35,6 +37,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     supergames,
     total: supergames.reduce((t, s) => t + s.points, 0),
   };
+}
+
+/** Who the partner was, as the participant was told: another participant, a disclosed computer, or one then the other (hand-over). */
+function partnerWords(partners: readonly string[]): string {
+  const computer = partners.find((p) => p.startsWith('computer:'));
+  if (!computer) return 'another participant';
+  const words = `a computer (${computer.slice('computer:'.length)}), disclosed`;
+  return partners[0].startsWith('computer:') ? words : `another participant, then ${words}`;
 }
 
 export default function MySummary({ loaderData }: Route.ComponentProps) {

@@ -5,7 +5,8 @@ import { Link } from 'react-router';
 import type { Route } from './+types/projector';
 import { debriefCharts } from '#app/components/debrief';
 import { ChartFrame } from '#app/components/debrief-charts';
-import { loadDebrief, pickEstimate, sessionIdsParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief, pickEstimate, sessionIdsParam } from '#app/models/debrief.server';
+import { estimateIncludedWords } from '#app/components/estimation-panel';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { windowWords } from '#app/utils/estimate-form';
 
@@ -13,20 +14,24 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const url = new URL(request.url);
   const ids = sessionIdsParam(url);
-  const { sessions, estimates } = await loadDebrief(course.id, ids);
+  const include = includeParam(url);
+  const { sessions, estimates } = await loadDebrief(course.id, ids, { include });
   const done = estimates.filter((e) => e.status === 'done');
   const e = pickEstimate(done, url);
   return {
     course: { id: course.id, title: course.title, isDemo: course.isDemo },
     sessions,
-    estimate: e?.result ? { id: e.id, groups: e.result.groups, B: e.result.bootstrap, seed: e.result.seed, window: windowWords(e.result.window) } : undefined,
+    estimate: e?.result
+      ? { id: e.id, groups: e.result.groups, B: e.result.bootstrap, seed: e.result.seed, window: windowWords(e.result.window), included: estimateIncludedWords(e.result) }
+      : undefined,
+    include,
     chart: url.searchParams.get('chart'),
   };
 }
 
 export default function Projector({ loaderData }: Route.ComponentProps) {
-  const { course, sessions, estimate, chart } = loaderData;
-  const charts = debriefCharts(course.id, sessions, estimate);
+  const { course, sessions, estimate, chart, include } = loaderData;
+  const charts = debriefCharts(course.id, sessions, estimate, include);
   const [index, setIndex] = useState(() => Math.max(0, charts.findIndex((c) => c.id === chart)));
   const go = (delta: number) => setIndex((i) => (i + delta + charts.length) % charts.length);
   useEffect(() => {
@@ -38,7 +43,7 @@ export default function Projector({ loaderData }: Route.ComponentProps) {
     return () => window.removeEventListener('keydown', onKey);
   }, [charts.length]);
   const c = charts[index];
-  const back = sessions.length === 1 ? `/courses/${course.id}/debrief/${sessions[0].id}` : `/courses/${course.id}/debrief/compare?sessions=${sessions.map((s) => s.id).join(',')}`;
+  const back = `${sessions.length === 1 ? `/courses/${course.id}/debrief/${sessions[0].id}?` : `/courses/${course.id}/debrief/compare?sessions=${sessions.map((s) => s.id).join(',')}&`}${include === 'all' ? 'include=all' : ''}`.replace(/[?&]$/, '');
   return (
     <div className="flex min-h-dvh flex-col gap-4 bg-slate-950 px-8 py-6 text-slate-50" data-theme="dark">
       <header className="flex flex-wrap items-center justify-between gap-4 text-2xl">

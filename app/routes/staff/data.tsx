@@ -3,7 +3,7 @@ import type { Route } from './+types/data';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, ButtonLink, Notice } from '#app/components/ui';
-import { FORMULA_NOTE, PANEL_CODEBOOK } from '#app/lib/panel-codebook';
+import { FORMULA_NOTE, PANEL_CODEBOOK, PANEL_NOTES } from '#app/lib/panel-codebook';
 import { listExportableSessions, listExportLog } from '#app/models/exports.server';
 import { formatDate } from '#app/utils/format';
 import { requireCourseRole } from '#app/utils/permissions.server';
@@ -200,6 +200,11 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
           One row per participant × supergame × round. CSV with a header line, no index column, <code>.</code> as the decimal mark and ISO 8601
           timestamps (UTC): <code>read.csv()</code> in R and <code>pandas.read_csv()</code> read it as it is. {FORMULA_NOTE}
         </p>
+        <ul className="mb-3 max-w-3xl list-disc pl-5 text-slate-700">
+          {PANEL_NOTES.map((n) => (
+            <li key={n}>{n}</li>
+          ))}
+        </ul>
         <div className="overflow-x-auto rounded-lg border border-slate-200 bg-white">
           <table className="w-full text-left text-sm">
             <caption className="sr-only">Codebook of the choice panel</caption>

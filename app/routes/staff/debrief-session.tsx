@@ -1,29 +1,32 @@
 import type { Route } from './+types/debrief-session';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { loadDebrief, pickEstimate, sessionIdParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief, pickEstimate, sessionIdParam } from '#app/models/debrief.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const sessionId = sessionIdParam(params.sessionId);
-  const { sessions, estimates } = await loadDebrief(course.id, [sessionId]);
-  return { course, sessions, estimates, current: pickEstimate(estimates, new URL(request.url)) };
+  const include = includeParam(new URL(request.url));
+  const { sessions, estimates } = await loadDebrief(course.id, [sessionId], { include });
+  return { course, sessions, estimates, include, current: pickEstimate(estimates, new URL(request.url)) };
 }
 
 export default function DebriefSession({ loaderData }: Route.ComponentProps) {
-  const { course, sessions, estimates, current } = loaderData;
+  const { course, sessions, estimates, current, include } = loaderData;
   const s = sessions[0];
   return (
     <>
       <PageHeader title={`Debrief: ${s.treatment}`} eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/debrief`, label: 'Debrief' }]} />} />
-      <dl className="mb-6 grid max-w-4xl grid-cols-2 gap-3 sm:grid-cols-5">
+      <dl className="mb-6 grid max-w-5xl grid-cols-2 gap-3 sm:grid-cols-4 lg:grid-cols-7">
         {[
           ['Session', `#${s.id}`],
           ['Participants', String(s.debrief.participants)],
           ['Supergames', String(s.debrief.bySupergame.length)],
           ['δ', String(Number(s.delta.toFixed(4)))],
           ['Cooperation', s.debrief.overall.rate === null ? '–' : `${(s.debrief.overall.rate * 100).toFixed(1)} %`],
+          [include === 'all' ? 'Choices (every origin)' : 'Own, paid choices', s.debrief.counts.used.toLocaleString('en-US')],
+          ['Left out', (s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished).toLocaleString('en-US')],
         ].map(([k, v]) => (
           <div key={k} className="rounded-lg border border-slate-200 bg-white p-3">
             <dt className="text-sm text-slate-600">{k}</dt>
@@ -31,7 +34,7 @@ export default function DebriefSession({ loaderData }: Route.ComponentProps) {
           </div>
         ))}
       </dl>
-      <DebriefView courseId={course.id} sessions={sessions} estimates={estimates} current={current} basePath={`/courses/${course.id}/debrief/${s.id}?`} />
+      <DebriefView courseId={course.id} sessions={sessions} estimates={estimates} current={current} include={include} basePath={`/courses/${course.id}/debrief/${s.id}?`} />
     </>
   );
 }
