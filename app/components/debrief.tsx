@@ -2,6 +2,7 @@
 import type { ReactNode } from 'react';
 import type { ChartId, TableSession } from '#app/lib/debrief-tables';
 import { CHARTS } from '#app/lib/debrief-tables';
+import { basinAt, type Basin } from '#app/lib/thresholds';
 import {
   CoopByRoundChart,
   CoopBySupergameChart,
@@ -25,6 +26,12 @@ export interface DebriefChart {
 }
 
 const f3 = (x: number) => String(Number(x.toFixed(3)));
+/** The same comparison as the design editor's theory panel, so a tie reads as a tie in both. */
+const RISK_WORDS: Record<Basin, string> = {
+  cooperation: 'grim risk-dominates always-defect',
+  tie: 'a tie: neither risk-dominates the other',
+  defection: 'always-defect risk-dominates',
+};
 
 export function csvHref(courseId: number, chart: ChartId, sessionIds: number[], estimateId?: number) {
   return chart === 'strategies' && estimateId
@@ -110,7 +117,7 @@ export function debriefCharts(courseId: number, sessions: TableSession[], estima
       csvHref: csvHref(courseId, 'theory', ids),
       summary: each(
         (s) =>
-          `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${s.delta >= s.debrief.theory.riskDominance ? 'grim risk-dominates always-defect' : 'always-defect risk-dominates'}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
+          `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${RISK_WORDS[basinAt(s.payoffs, s.delta)]}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
       ),
       notes:
         'Markers: each session’s cooperation (all rounds and round 1) at its δ. Curve: sizeBAD, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011).',
