@@ -8,6 +8,7 @@ import {
   CoopBySupergameChart,
   LengthsChart,
   OutcomesChart,
+  payoffSets,
   PointsChart,
   pct,
   StrategiesChart,
@@ -50,6 +51,13 @@ export function lengthTestWords(s: TableSession): string {
       ? `simulated p = ${r.pValue.toFixed(3)} from ${r.replicates?.toLocaleString('en-US')} seeded samples (too few supergames for the χ² distribution)`
       : `df = ${r.df}, p = ${r.pValue.toFixed(3)}`;
   return `#${s.id}: χ² = ${r.statistic.toFixed(3)}, ${p} (${r.n} supergames; bins ${bins}; δ = ${f3(r.delta)} known).`;
+}
+
+/** Which curve each session is read against: one per payoff set. */
+function theoryCurveWords(sessions: TableSession[]): string {
+  const sets = payoffSets(sessions);
+  if (sets.length === 1) return 'Curve: sizeBAD';
+  return `Curves: sizeBAD for each payoff set, each session read against its own (${sets.map((set) => `${set.label}: ${set.sessions}`).join('; ')})`;
 }
 
 export function debriefCharts(courseId: number, sessions: TableSession[], estimate?: { id: number; groups: StrategyGroup[]; B: number; seed: number; window: string }): DebriefChart[] {
@@ -119,8 +127,7 @@ export function debriefCharts(courseId: number, sessions: TableSession[], estima
         (s) =>
           `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${RISK_WORDS[basinAt(s.payoffs, s.delta)]}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
       ),
-      notes:
-        'Markers: each session’s cooperation (all rounds and round 1) at its δ. Curve: sizeBAD, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011).',
+      notes: `Markers: each session’s cooperation (all rounds and round 1) at its δ. ${theoryCurveWords(sessions)}, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011).`,
       render: (theme, big) => <TheoryChart sessions={sessions} theme={theme} big={big} />,
     },
   ];

@@ -79,10 +79,13 @@ export function EstimationForm({
   courseId,
   sessionIds,
   datasetId,
+  separate = false,
   start,
   defaults,
 }: {
   courseId: number;
+  /** sessions that share a name but ran different treatments are estimated apart (asked for on the page) */
+  separate?: boolean;
   /** the sessions to estimate on, or (instead) an uploaded dataset */
   sessionIds?: number[];
   datasetId?: number;
@@ -97,6 +100,7 @@ export function EstimationForm({
   return (
     <start.Form method="post" action={`/courses/${courseId}/estimates`} className="flex flex-col gap-4" aria-label="Estimate strategy shares">
       {datasetId !== undefined ? <input type="hidden" name="dataset" value={datasetId} /> : <input type="hidden" name="sessions" value={(sessionIds ?? []).join(',')} />}
+      {separate ? <input type="hidden" name="treatments" value="separate" /> : null}
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
         <SelectField
           label="Supergames to use"

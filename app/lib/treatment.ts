@@ -100,3 +100,11 @@ export function groupByTreatment(sessions: readonly TreatmentSession[], opts: { 
   const groups = [...byKey.values()].map((g) => ({ ...g, title: `${g.names.join(' / ')} — ${g.label}` }));
   return { ok: true, groups, separated: conflicts };
 }
+
+/** Each session's group title when every treatment is its own group (what SFEM groups by). */
+export function treatmentTitles(sessions: readonly TreatmentSession[]): Map<number, string> {
+  const g = groupByTreatment(sessions, { separate: true });
+  const out = new Map<number, string>();
+  if (g.ok) for (const group of g.groups) for (const id of group.sessionIds) out.set(id, group.title);
+  return out;
+}

@@ -2,6 +2,7 @@
 // course, each with its de-identified Debrief numbers, and the stored estimations on them.
 import { sessionDebrief, type SessionDebrief } from '#app/lib/debrief';
 import type { Design } from '#app/lib/design';
+import { groupByTreatment } from '#app/lib/treatment';
 import { count, inArray } from 'drizzle-orm';
 import { db } from '#app/utils/db.server';
 import { sessionParticipants } from '#drizzle/schema';
@@ -19,6 +20,9 @@ export interface DebriefSession {
   payoffs: Design['payoffs'];
   labels: Design['labels'];
   delta: number;
+  /** with payoffs and δ, what makes the session's treatment (app/lib/treatment.ts) */
+  termination: Design['termination'];
+  matching: Design['matching'];
   debrief: SessionDebrief;
 }
 
@@ -45,10 +49,22 @@ export async function loadDebrief(courseId: number, sessionIds: readonly number[
       payoffs: d.payoffs,
       labels: d.labels,
       delta: d.delta,
+      termination: d.termination,
+      matching: d.matching,
       debrief: sessionDebrief(s.rows, d),
     });
   }
   return { sessions, estimates: await estimatesForSessions(courseId, sessionIds) };
+}
+
+/**
+ * The chosen sessions grouped by treatment identity (names only label the groups). Sessions that
+ * share a name but ran different treatments are refused unless the page asked for
+ * `?treatments=separate` (app/lib/treatment.ts).
+ */
+export function debriefGrouping(sessions: readonly DebriefSession[], url: URL) {
+  const separate = url.searchParams.get('treatments') === 'separate';
+  return { separate, grouping: groupByTreatment(sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })), { separate }) };
 }
 
 /** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */

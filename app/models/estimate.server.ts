@@ -12,13 +12,14 @@ import { libraryStrategy } from '#app/lib/automata';
 import { FairQueue } from '#app/lib/fair-queue';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
 import { estimateGroups } from '#app/lib/sfem';
+import { groupByTreatment, treatmentTitles, type TreatmentSession } from '#app/lib/treatment';
 import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
 import { datasets, estimates } from '#drizzle/schema';
 import { datasetChoiceRows } from './datasets.server';
-import { estimationRows, getCourseSessions, loadSessionPanel } from './panel.server';
+import { estimationRows, getCourseSessions, loadSessionPanel, type SessionInfo } from './panel.server';
 
 export interface GroupResult {
   group: string;
@@ -63,7 +64,20 @@ export interface EstimateStatus {
   createdAt: string;
 }
 
-export const requestKey = (r: EstimateRequest) => createHash('sha256').update(JSON.stringify(canonicalRequest(r))).digest('hex');
+/**
+ * Estimations on sessions group by treatment identity (docs/decisions/027); those stored before
+ * grouped by design name. The marker keeps the key of a sessions request apart from theirs, so an
+ * old name-grouped result is never handed out for a new request.
+ */
+const GROUPING = 'treatment-identity';
+const asTreatmentSession = (s: SessionInfo): TreatmentSession => ({ id: s.id, name: s.treatment, design: s.design });
+
+export const requestKey = (r: EstimateRequest) => {
+  const c = canonicalRequest(r);
+  return createHash('sha256')
+    .update(JSON.stringify(c.source.kind === 'sessions' ? { ...c, grouping: GROUPING } : c))
+    .digest('hex');
+};
 
 type Row = typeof estimates.$inferSelect;
 const toStatus = (r: Row): EstimateStatus => ({
@@ -106,17 +120,22 @@ export async function estimatesForDataset(courseId: number, datasetId: number): 
 export type StartResult =
   | { ok: true; estimate: EstimateStatus; reused: boolean }
   | { ok: false; status: 404; code: 'not_found'; message: string }
+  | { ok: false; status: 409; code: 'mixed_treatments'; message: string }
   | { ok: false; status: 429; code: 'too_many_estimations'; message: string };
 
 /**
  * Starts an estimation, or returns the stored one for the same request (same data, window,
  * strategies, B and seed). A failed run is not reused: asking again runs it again.
  */
-export async function startEstimate(courseId: number, userId: number, input: EstimateRequest): Promise<StartResult> {
+export async function startEstimate(courseId: number, userId: number, input: EstimateRequest, opts: { separate?: boolean } = {}): Promise<StartResult> {
   const request = canonicalRequest(input);
   if (request.source.kind === 'sessions') {
     const found = await getCourseSessions(courseId, request.source.sessionIds);
     if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, code: 'not_found', message: 'A chosen session is not in this course.' };
+    // Groups are treatments (frozen parameters); same-named sessions of different treatments are
+    // estimated apart only when asked, never pooled under their shared name.
+    const grouping = groupByTreatment(found.map(asTreatmentSession), opts);
+    if (!grouping.ok) return { ok: false, status: 409, code: 'mixed_treatments', message: `${grouping.message} Estimate them as separate treatments instead.` };
   } else {
     const [d] = await db()
       .select({ id: datasets.id })
@@ -230,10 +249,13 @@ async function drain(j: Runner) {
 async function loadRows(courseId: number, request: EstimateRequest): Promise<ChoiceRow[]> {
   if (request.source.kind === 'sessions') {
     const rows: ChoiceRow[] = [];
+    // SFEM groups by the rows' treatment column: for sessions that is the treatment's identity
+    // (names and parameters), not the design's name (app/lib/treatment.ts).
+    const titles = treatmentTitles((await getCourseSessions(courseId, request.source.sessionIds)).map(asTreatmentSession));
     for (const id of request.source.sessionIds) {
       const s = await loadSessionPanel(courseId, id);
       if (!s) throw new Error(`Session ${id} is not in this course.`);
-      rows.push(...estimationRows(s.rows));
+      rows.push(...estimationRows(s.rows).map((r) => ({ ...r, treatment: titles.get(id)! })));
     }
     return rows;
   }
