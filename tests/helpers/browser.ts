@@ -31,8 +31,8 @@ export const pageErrors: string[] = [];
 function watch(page: Page) {
   page.on('pageerror', (e) => pageErrors.push(`${page.url()}: ${e.message}`));
   page.on('console', (m) => {
-    // A 400/403/404 answer logs a resource error by design; everything else is a defect.
-    if (m.type() === 'error' && !/status of 4(00|03|04)/.test(m.text())) pageErrors.push(`${page.url()}: ${m.text()}`);
+    // A 400/403/404/409 answer logs a resource error by design; everything else is a defect.
+    if (m.type() === 'error' && !/status of 4(00|03|04|09)/.test(m.text())) pageErrors.push(`${page.url()}: ${m.text()}`);
   });
 }
 
