@@ -6,7 +6,7 @@ import type { EstimateStatus } from '#app/models/estimate.server';
 import { closeDb } from '#app/utils/db.server';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { waitEstimate } from '#tests/helpers/estimates';
-import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
+import { baseUrl, type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
 let courseId: number;
@@ -129,5 +129,23 @@ describe('the estimation on sessions', () => {
     expect(e2.result!.groups).toHaveLength(1);
     expect(e2.result!.groups[0].group).toBe('Baseline / Baseline (copy) — R40 S12 T50 P25, δ = 0.75, random termination');
     expect(e2.result!.groups[0].subjects).toBe(12);
+  });
+});
+
+describe('the API', () => {
+  it('gives each session its treatment identity beside its name', async () => {
+    const made = await instructor.post('/settings/tokens', { intent: 'create', name: 'pooling', courseId });
+    const token = /prl_[A-Za-z0-9_-]{43}/.exec(await made.text())![0];
+    const res = await fetch(new URL(`/api/v1/courses/${courseId}/sessions?limit=10`, baseUrl()), { headers: { authorization: `Bearer ${token}` } });
+    expect(res.status).toBe(200);
+    const { data } = (await res.json()) as { data: { id: number; treatment: string; treatment_key: string; treatment_parameters: string }[] };
+    const byId = new Map(data.map((s) => [s.id, s]));
+    expect(byId.get(ids.a)).toMatchObject({
+      treatment: 'Baseline',
+      treatment_key: 'R=40;S=12;T=50;P=25;delta=0.75;termination=standard;matching=random-rematch',
+      treatment_parameters: 'R40 S12 T50 P25, δ = 0.75, random termination',
+    });
+    expect(byId.get(ids.c)!.treatment_key).toBe(byId.get(ids.a)!.treatment_key);
+    expect(byId.get(ids.b)!.treatment_key).not.toBe(byId.get(ids.a)!.treatment_key);
   });
 });
