@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
@@ -96,13 +96,8 @@ describe('treatments on the side-by-side Debrief, in Chromium', () => {
     const low = await make('Low reward', 32, 0.75, 22);
     const again = await make('High reward', 40, 0.5, 23);
 
-    for (const [viewport, name] of [
-      [DESKTOP, 'desktop'],
-      [PHONE, 'phone'],
-    ] as const) {
-      const page = await (await newContext(browser, viewport)).newPage();
-      await page.goto('/sign-in');
-      await signInInBrowser(page, email);
+    for (const [viewport, name] of SIZES) {
+      const page = await signedInPage(browser, email, viewport);
       await page.goto(`/courses/${courseId}/debrief/compare?sessions=${high},${low}`);
       const theory = page.locator('figure[data-chart="theory"]');
       await expect.poll(() => theory.locator('.recharts-line').count()).toBe(2);

@@ -5,7 +5,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { designSchema } from '#app/lib/design';
 import { designs, sessions } from '#drizzle/schema';
-import { DESKTOP, launch, newContext, pageErrors, PHONE, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createCourseCreator, createUser, testDb } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
 
@@ -88,13 +88,8 @@ describe('a design used by a session, in Chromium', () => {
     const [d] = await testDb().insert(designs).values({ courseId, name: 'Class run', params, createdBy: userId });
     await testDb().insert(sessions).values({ courseId, designId: d.insertId, treatment: 'Class run', params, seed: 5, status: 'complete', createdBy: userId });
 
-    for (const [viewport, name] of [
-      [DESKTOP, 'desktop'],
-      [PHONE, 'phone'],
-    ] as const) {
-      const page = await (await newContext(browser, viewport)).newPage();
-      await page.goto('/sign-in');
-      await signInInBrowser(page, email);
+    for (const [viewport, name] of SIZES) {
+      const page = await signedInPage(browser, email, viewport);
       await page.goto(`/courses/${courseId}/designs/${d.insertId}`);
       await expect.poll(() => page.getByText('Read-only: used by a session').isVisible()).toBe(true);
       expect(await page.getByTestId('read-only-reason').textContent()).toContain('A session was opened from this design, so it stays exactly as they ran it');
@@ -104,9 +99,7 @@ describe('a design used by a session, in Chromium', () => {
       await page.context().close();
     }
 
-    const page = await (await newContext(browser, DESKTOP)).newPage();
-    await page.goto('/sign-in');
-    await signInInBrowser(page, email);
+    const page = await signedInPage(browser, email);
     await page.goto(`/courses/${courseId}/designs/${d.insertId}`);
     await page.getByRole('button', { name: 'Make a new version' }).click();
     await expect.poll(() => page.getByTestId('design-version').textContent()).toBe('v2 of Class run (v1)');

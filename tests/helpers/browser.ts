@@ -36,6 +36,20 @@ function watch(page: Page) {
   });
 }
 
+/** Both sizes every page is looked at in, with a name for screenshot files. */
+export const SIZES = [
+  [DESKTOP, 'desktop'],
+  [PHONE, 'phone'],
+] as const;
+
+/** A new page at this size, signed in as `email` through the real flow. */
+export async function signedInPage(browser: Browser, email: string, size: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<Page> {
+  const page = await (await newContext(browser, size)).newPage();
+  await page.goto('/sign-in');
+  await signInInBrowser(page, email);
+  return page;
+}
+
 /** The whole sign-in as a person does it: type the e-mail, read the code in the mail, type it. */
 export async function signInInBrowser(page: Page, email: string) {
   const before = (await mailTo(email)).filter((m) => /sign-in code/.test(m.subject)).length;

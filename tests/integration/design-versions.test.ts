@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb } from '#app/utils/db.server';
 import { designs, sessions } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { designForm } from '#tests/helpers/design-form';
 import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 
 afterAll(async () => {
@@ -12,29 +13,7 @@ afterAll(async () => {
   await closeDb();
 });
 
-/** A complete, valid design form as the editor posts it. */
-function form(over: Record<string, string> = {}) {
-  return {
-    name: 'Versioned',
-    'payoffs.R': '40',
-    'payoffs.S': '12',
-    'payoffs.T': '50',
-    'payoffs.P': '25',
-    'labels.C': 'X',
-    'labels.D': 'Y',
-    delta: '0.75',
-    supergames: '10',
-    roundSeconds: '20',
-    'termination.kind': 'standard',
-    'oddCount.kind': 'computer',
-    'oddCount.strategy': 'TFT',
-    timeout: 'repeat-last',
-    'credit.kind': 'participation',
-    'credit.credit': '1',
-    instructions: '',
-    ...over,
-  };
-}
+const form = (over: Record<string, string> = {}) => designForm({ name: 'Versioned', ...over });
 
 const idIn = (location: string | null) => Number(/designs\/(\d+)/.exec(location ?? '')![1]);
 const designRow = async (id: number) => (await testDb().select().from(designs).where(eq(designs.id, id)))[0];

@@ -2,33 +2,12 @@ import { count, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { courseStrategies, designs } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { designForm } from '#tests/helpers/design-form';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 
 afterAll(closeTestDb);
 
-/** A complete, valid design form as the editor posts it. */
-function form(over: Record<string, string> = {}) {
-  return {
-    name: 'Treatment A',
-    'payoffs.R': '40',
-    'payoffs.S': '12',
-    'payoffs.T': '50',
-    'payoffs.P': '25',
-    'labels.C': 'X',
-    'labels.D': 'Y',
-    delta: '0.75',
-    supergames: '10',
-    roundSeconds: '20',
-    'termination.kind': 'standard',
-    'oddCount.kind': 'computer',
-    'oddCount.strategy': 'TFT',
-    timeout: 'repeat-last',
-    'credit.kind': 'participation',
-    'credit.credit': '1',
-    instructions: '',
-    ...over,
-  };
-}
+const form = (over: Record<string, string> = {}) => designForm({ name: 'Treatment A', ...over });
 
 const html = (s: string) => s.replaceAll('<!-- -->', '');
 
