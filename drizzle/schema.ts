@@ -1,5 +1,6 @@
 import { relations, sql } from 'drizzle-orm';
 import {
+  type AnyMySqlColumn,
   bigint,
   customType,
   datetime,
@@ -191,6 +192,11 @@ export const designs = mysqlTable(
       .references(() => courses.id, { onDelete: 'cascade' }),
     name: varchar('name', { length: 120 }).notNull(),
     params: jsonText<unknown>('params').notNull(),
+    /** the design this one is a new version of (a design used by a session is read-only:
+     * editing it makes a new version; docs/decisions/027-treatment-identity.md) */
+    previousId: int('previous_id').references((): AnyMySqlColumn => designs.id, { onDelete: 'set null' }),
+    /** 1 for a new design, previous version + 1 (shown as "v2 of …") */
+    version: int('version').notNull().default(1),
     createdBy: int('created_by')
       .notNull()
       .references(() => users.id),

@@ -244,26 +244,40 @@ export function PointsChart({ sessions, theme = 'light', big = false }: ChartPro
   );
 }
 
+/** Sessions grouped by payoff set: each set has its own sizeBAD curve and thresholds. */
+export function payoffSets(sessions: readonly TableSession[]) {
+  const sets = new Map<string, { payoffs: TableSession['payoffs']; ids: number[] }>();
+  for (const s of sessions) {
+    const k = JSON.stringify([s.payoffs.R, s.payoffs.S, s.payoffs.T, s.payoffs.P]);
+    const set = sets.get(k) ?? { payoffs: s.payoffs, ids: [] };
+    set.ids.push(s.id);
+    sets.set(k, set);
+  }
+  return [...sets.values()].map((set) => ({ ...set, label: `R${fmt(set.payoffs.R)} S${fmt(set.payoffs.S)} T${fmt(set.payoffs.T)} P${fmt(set.payoffs.P)}`, sessions: set.ids.map((id) => `#${id}`).join(', ') }));
+}
+
 /**
  * Cooperation (all rounds and round 1) of each session at its δ, over the size of the basin of
  * attraction of always-defect against grim, with δ_SPE and δ_RD (methods.md §1; Dal Bó &
- * Fréchette 2011, 2018; Blonski, Ockenfels & Spagnolo 2011). Thresholds of each distinct payoff
- * set are drawn once.
+ * Fréchette 2011, 2018; Blonski, Ockenfels & Spagnolo 2011). Each payoff set has its own curve
+ * and thresholds: a session is read against the curve of its own payoffs, never another's.
  */
 export function TheoryChart({ sessions, theme = 'light', big = false }: ChartProps) {
   const p = PALETTE[theme];
-  const games = [...new Map(sessions.map((s) => [JSON.stringify(s.payoffs), s])).values()];
-  const curve = sizeBadCurve(games[0].payoffs);
-  const lines = games.flatMap((s, gi) => {
-    const tag = games.length > 1 ? ` (${s.treatment})` : '';
+  const sets = payoffSets(sessions);
+  const many = sets.length > 1;
+  const curves = sets.map((set) => sizeBadCurve(set.payoffs));
+  const data = curves[0].map((row, j) => Object.fromEntries([['delta', row.delta], ...curves.map((c, k) => [`bad${k}`, c[j].sizeBAD])]));
+  const lines = sets.flatMap((set) => {
+    const tag = many ? ` (${set.sessions})` : '';
     return [
-      { x: grimSPE(s.payoffs), label: `δ_SPE ${fmt(grimSPE(s.payoffs), 2)}${tag}`, dash: '6 3', gi },
-      { x: riskDominance(s.payoffs), label: `δ_RD ${fmt(riskDominance(s.payoffs), 2)}${tag}`, dash: '2 3', gi },
+      { x: grimSPE(set.payoffs), label: `δ_SPE ${fmt(grimSPE(set.payoffs), 2)}${tag}`, dash: '6 3' },
+      { x: riskDominance(set.payoffs), label: `δ_RD ${fmt(riskDominance(set.payoffs), 2)}${tag}`, dash: '2 3' },
     ];
   });
   return (
     <ResponsiveContainer width="100%" height="100%">
-      <ComposedChart data={curve} margin={{ top: 32, right: 24, bottom: 24, left: 8 }}>
+      <ComposedChart data={data} margin={{ top: 32, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
         <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} {...axisProps(theme, big)} label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis domain={[0, 1]} ticks={[0, 0.25, 0.5, 0.75, 1]} tickFormatter={(v) => fmt(v, 2)} width={big ? 64 : 44} {...axisProps(theme, big)} />
@@ -273,7 +287,18 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
         {lines.map((l, i) => (
           <ReferenceLine key={l.label} x={l.x} stroke={p.ref} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }} />
         ))}
-        <Line dataKey="sizeBAD" name="sizeBAD (basin of always-defect vs grim)" stroke={p.ref} strokeWidth={big ? 3 : 1.5} dot={false} isAnimationActive={false} />
+        {sets.map((set, k) => (
+          <Line
+            key={`bad${k}`}
+            dataKey={`bad${k}`}
+            name={many ? `sizeBAD at ${set.label} (${set.sessions})` : 'sizeBAD (basin of always-defect vs grim)'}
+            stroke={p.ref}
+            strokeDasharray={DASHES[k % DASHES.length]}
+            strokeWidth={big ? 3 : 1.5}
+            dot={false}
+            isAnimationActive={false}
+          />
+        ))}
         {sessions.map((s, i) => (
           <Scatter
             key={key(s, 'c')}

@@ -1,6 +1,8 @@
 // The body of the staff Debrief, for one session or several side by side (treatments).
 import type { EstimateStatus } from '#app/models/estimate.server';
 import type { DebriefSession } from '#app/models/debrief.server';
+import { sizeBAD } from '#app/lib/thresholds';
+import { groupByTreatment } from '#app/lib/treatment';
 import { DataTable, staffColumnHelper } from './data-table';
 import { csvHref, debriefCharts } from './debrief';
 import { ChartFrame, pct } from './debrief-charts';
@@ -20,11 +22,14 @@ export function DebriefView({
   current,
   basePath,
   include,
+  separate = false,
 }: {
   courseId: number;
   sessions: DebriefSession[];
   estimates: EstimateStatus[];
   current: EstimateStatus | null;
+  /** the researcher asked to see same-named sessions of different treatments apart */
+  separate?: boolean;
   /** this page's URL up to and including "?" or "&", without `include=`, for links that add parameters */
   basePath: string;
   /** the switch: own, paid choices (default) or every origin */
@@ -86,7 +91,7 @@ export function DebriefView({
           slips; shares are estimated per treatment. Standard errors come from a bootstrap over participants, run on worker threads. The result is stored: the same
           request later opens at once.
         </p>
-        <EstimationForm courseId={courseId} sessionIds={ids} start={run.start} include={include} />
+        <EstimationForm courseId={courseId} sessionIds={ids} separate={separate} start={run.start} include={include} />
         {estimate ? (
           <div className="flex flex-col gap-4 border-t border-slate-200 pt-4">
             <h3 className="font-semibold">
@@ -131,6 +136,7 @@ function IncludeSwitch({ include, basePath }: { include: Include; basePath: stri
 
 interface TreatmentRow {
   treatment: string;
+  parameters: string;
   sessions: string;
   delta: number;
   participants: number;
@@ -142,38 +148,46 @@ interface TreatmentRow {
   shares: Record<string, string>;
 }
 
-/** Cooperation and (when estimated) strategy shares per treatment. */
+/**
+ * Cooperation and (when estimated) strategy shares per treatment: sessions grouped by their frozen
+ * parameters (app/lib/treatment.ts), each group with its own δ and sizeBAD. The page refused
+ * same-named sessions of different treatments before this renders, unless asked to show them apart.
+ */
 function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; estimate: EstimateStatus | null }) {
-  const byTreatment = new Map<string, DebriefSession[]>();
-  for (const s of sessions) byTreatment.set(s.treatment, [...(byTreatment.get(s.treatment) ?? []), s]);
+  const grouping = groupByTreatment(sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })), { separate: true });
+  const byId = new Map(sessions.map((s) => [s.id, s]));
   const strategies = estimate?.result?.strategies ?? [];
-  const rows: TreatmentRow[] = [...byTreatment].map(([treatment, ss]) => {
+  const groups = grouping.ok ? grouping.groups : [];
+  const rows: TreatmentRow[] = groups.map((group) => {
+    const ss = group.sessionIds.map((id) => byId.get(id)!);
     const n = ss.reduce((t, s) => t + s.debrief.overall.n, 0);
     const c = ss.reduce((t, s) => t + s.debrief.overall.cooperate, 0);
     const n1 = ss.reduce((t, s) => t + s.debrief.overallRound1.n, 0);
     const c1 = ss.reduce((t, s) => t + s.debrief.overallRound1.cooperate, 0);
-    const g = estimate?.result?.groups.find((x) => x.group === treatment);
+    const g = estimate?.result?.groups.find((x) => x.group === group.title);
     const shares: Record<string, string> = {};
     for (const id of strategies) {
       const k = g ? g.strategies.indexOf(id) : -1;
       shares[id] = g && k >= 0 ? `${pct(g.shares[k])}${g.se ? ` ± ${pct(g.se[k])}` : ''}` : '–';
     }
     return {
-      treatment,
+      treatment: group.names.join(' / '),
+      parameters: group.label,
       sessions: ss.map((s) => `#${s.id}`).join(', '),
-      delta: ss[0].delta,
+      delta: group.design.delta,
       participants: ss.reduce((t, s) => t + s.debrief.participants, 0),
       choices: n,
       leftOut: ss.reduce((t, s) => t + s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished, 0),
       cooperation: n ? c / n : null,
       round1: n1 ? c1 / n1 : null,
-      sizeBAD: ss[0].debrief.theory.sizeBAD,
+      sizeBAD: sizeBAD(group.design.payoffs, group.design.delta),
       shares,
     };
   });
   const col = staffColumnHelper<TreatmentRow>();
   const columns = col.columns([
     col.accessor('treatment', { header: 'Treatment' }),
+    col.accessor('parameters', { header: 'Parameters' }),
     col.accessor('sessions', { header: 'Sessions' }),
     col.accessor('delta', { header: 'δ', cell: (i) => f3(i.getValue()), meta: { align: 'right' } }),
     col.accessor('sizeBAD', { header: 'sizeBAD', cell: (i) => f3(i.getValue()), meta: { align: 'right' } }),

@@ -4,11 +4,13 @@ import type { ChartId, TableSession } from '#app/lib/debrief-tables';
 import { CHARTS } from '#app/lib/debrief-tables';
 import type { Include } from '#app/lib/choice-panel';
 import { originWords } from '#app/lib/debrief';
+import { basinAt, type Basin } from '#app/lib/thresholds';
 import {
   CoopByRoundChart,
   CoopBySupergameChart,
   LengthsChart,
   OutcomesChart,
+  payoffSets,
   PointsChart,
   pct,
   StrategiesChart,
@@ -27,6 +29,12 @@ export interface DebriefChart {
 }
 
 const f3 = (x: number) => String(Number(x.toFixed(3)));
+/** The same comparison as the design editor's theory panel, so a tie reads as a tie in both. */
+const RISK_WORDS: Record<Basin, string> = {
+  cooperation: 'grim risk-dominates always-defect',
+  tie: 'a tie: neither risk-dominates the other',
+  defection: 'always-defect risk-dominates',
+};
 
 /** A chart's CSV: the same sessions and the same choices (`include`) as the page shows. */
 export function csvHref(courseId: number, chart: ChartId, sessionIds: number[], estimateId?: number, include: Include = 'own') {
@@ -46,6 +54,13 @@ export function lengthTestWords(s: TableSession): string {
       ? `simulated p = ${r.pValue.toFixed(3)} from ${r.replicates?.toLocaleString('en-US')} seeded samples (too few supergames for the χ² distribution)`
       : `df = ${r.df}, p = ${r.pValue.toFixed(3)}`;
   return `#${s.id}: χ² = ${r.statistic.toFixed(3)}, ${p} (${r.n} supergames; bins ${bins}; δ = ${f3(r.delta)} known).`;
+}
+
+/** Which curve each session is read against: one per payoff set. */
+function theoryCurveWords(sessions: TableSession[]): string {
+  const sets = payoffSets(sessions);
+  if (sets.length === 1) return 'Curve: sizeBAD';
+  return `Curves: sizeBAD for each payoff set, each session read against its own (${sets.map((set) => `${set.label}: ${set.sessions}`).join('; ')})`;
 }
 
 export function debriefCharts(
@@ -122,9 +137,9 @@ export function debriefCharts(
       csvHref: csv('theory'),
       summary: each(
         (s) =>
-          `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${s.delta >= s.debrief.theory.riskDominance ? 'grim risk-dominates always-defect' : 'always-defect risk-dominates'}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
+          `Session ${s.id} at δ = ${f3(s.delta)}: δ_SPE ${f3(s.debrief.theory.grimSPE)} (${s.delta >= s.debrief.theory.grimSPE ? 'cooperation can be an equilibrium' : 'cooperation is not an equilibrium'}), δ_RD ${f3(s.debrief.theory.riskDominance)} (${RISK_WORDS[basinAt(s.payoffs, s.delta)]}), sizeBAD ${f3(s.debrief.theory.sizeBAD)}; cooperation ${pct(s.debrief.overall.rate)}, round 1 ${pct(s.debrief.overallRound1.rate)}.`,
       ),
-      notes: `Markers: each session’s cooperation (all rounds and round 1) at its δ. Curve: sizeBAD, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011). ${included}`,
+      notes: `Markers: each session’s cooperation (all rounds and round 1) at its δ. ${theoryCurveWords(sessions)}, the size of the basin of attraction of always-defect against grim (1 below δ_SPE, under ½ beyond δ_RD). δ_SPE = (T−R)/(T−P) (grim is subgame perfect), δ_RD = (T−R+P−S)/(T−S) (grim risk-dominates always-defect); Dal Bó & Fréchette (2011, 2018), Blonski, Ockenfels & Spagnolo (2011). ${included}`,
       render: (theme, big) => <TheoryChart sessions={sessions} theme={theme} big={big} />,
     },
   ];

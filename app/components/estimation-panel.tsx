@@ -80,11 +80,14 @@ export function EstimationForm({
   courseId,
   sessionIds,
   datasetId,
+  separate = false,
   start,
   defaults,
   include = 'own',
 }: {
   courseId: number;
+  /** sessions that share a name but ran different treatments are estimated apart (asked for on the page) */
+  separate?: boolean;
   /** the sessions to estimate on, or (instead) an uploaded dataset */
   sessionIds?: number[];
   datasetId?: number;
@@ -114,6 +117,7 @@ export function EstimationForm({
           </p>
         </>
       )}
+      {separate ? <input type="hidden" name="treatments" value="separate" /> : null}
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
         <SelectField
           label="Supergames to use"

@@ -1,7 +1,7 @@
 import { type Design } from '#app/lib/design';
 import { checkStageGame, type StageGame } from '#app/lib/stage-game';
 import { blockTermination, classTimePlanner, expectedLength, medianLength, pLengthAtLeast } from '#app/lib/termination';
-import { theoryAt } from '#app/lib/thresholds';
+import { basinWords, theoryAt } from '#app/lib/thresholds';
 import { LengthChart, ThresholdChart } from './theory-charts';
 
 const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
@@ -14,8 +14,16 @@ export interface TheoryDraft {
   termination: Design['termination'] | { kind: 'block'; k: number | undefined };
 }
 
-function Verdict({ yes }: { yes: boolean }) {
-  return yes ? (
+type VerdictValue = 'yes' | 'no' | 'tie';
+
+function Verdict({ value }: { value: VerdictValue }) {
+  if (value === 'tie')
+    return (
+      <span className="inline-flex items-center gap-1 font-semibold text-slate-800">
+        <span aria-hidden="true">=</span> tie: neither strictly
+      </span>
+    );
+  return value === 'yes' ? (
     <span className="inline-flex items-center gap-1 font-semibold text-accent-800">
       <span aria-hidden="true">✓</span> yes
     </span>
@@ -25,6 +33,8 @@ function Verdict({ yes }: { yes: boolean }) {
     </span>
   );
 }
+
+const verdictOf = (yes: boolean | 'tie'): VerdictValue => (yes === 'tie' ? 'tie' : yes ? 'yes' : 'no');
 
 const complete = (g: Partial<StageGame>): g is StageGame => [g.R, g.S, g.T, g.P].every((x) => typeof x === 'number' && Number.isFinite(x));
 
@@ -52,7 +62,7 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
   }
   const t = theoryAt(game, delta);
   const tftSpeText = t.tftSPE.kind === 'knife-edge' ? `only at δ = ${fmt(t.tftSPE.delta, 4)}` : 'never (for these payoffs)';
-  const rows: { name: string; condition: string; yes: boolean; source: string }[] = [
+  const rows: { name: string; condition: string; yes: boolean | 'tie'; source: string }[] = [
     { name: 'Grim trigger is subgame perfect', condition: `δ ≥ ${fmt(t.grimSPE)}`, yes: t.verdicts.grimSPE, source: 'Friedman (1971)' },
     {
       name: 'Tit-for-tat is a Nash equilibrium',
@@ -70,7 +80,7 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
       yes: t.verdicts.wslsSPE,
       source: 'one-shot deviation',
     },
-    { name: 'Grim risk-dominates always-defect', condition: `δ ≥ ${fmt(t.riskDominance)}`, yes: t.verdicts.riskDominant, source: 'Blonski, Ockenfels & Spagnolo (2011)' },
+    { name: 'Grim risk-dominates always-defect', condition: `δ ≥ ${fmt(t.riskDominance)}`, yes: t.verdicts.basin === 'tie' ? 'tie' : t.verdicts.riskDominant, source: 'Blonski, Ockenfels & Spagnolo (2011)' },
   ];
   const supergames = draft.supergames && draft.supergames > 0 ? draft.supergames : null;
   const seconds = draft.roundSeconds && draft.roundSeconds > 0 ? draft.roundSeconds : null;
@@ -107,14 +117,14 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
         </thead>
         <tbody data-testid="verdicts">
           {rows.map((r) => (
-            <tr key={r.name} className="border-t border-slate-100 align-top" data-verdict={r.yes ? 'yes' : 'no'}>
+            <tr key={r.name} className="border-t border-slate-100 align-top" data-verdict={verdictOf(r.yes)}>
               <th scope="row" className="py-2 pr-2 text-left font-normal">
                 {r.name}
                 <span className="block text-xs text-slate-500">{r.source}</span>
               </th>
               <td className="num py-2 pr-2">{r.condition}</td>
               <td className="py-2">
-                <Verdict yes={r.yes} />
+                <Verdict value={verdictOf(r.yes)} />
               </td>
             </tr>
           ))}
@@ -124,7 +134,9 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
               <span className="block text-xs text-slate-500">Dal Bó &amp; Fréchette (2011)</span>
             </th>
             <td className="num py-2 pr-2">{fmt(t.sizeBAD)}</td>
-            <td className="py-2 text-slate-700">{t.sizeBAD < 0.5 ? 'under ½: cooperation favoured' : 'at least ½: defection favoured'}</td>
+            <td className="py-2 text-slate-700" data-basin={t.verdicts.basin}>
+              {basinWords(t.verdicts.basin)}
+            </td>
           </tr>
         </tbody>
       </table>

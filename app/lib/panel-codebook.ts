@@ -14,7 +14,13 @@ export interface CodebookEntry {
 
 export const PANEL_CODEBOOK = [
   { column: 'session', type: 'integer', meaning: 'Parley’s id of the session (one live run of a design)', values: 'positive integer' },
-  { column: 'treatment', type: 'text', meaning: 'name of the design the session ran (frozen when it opened)', values: 'free text' },
+  {
+    column: 'treatment',
+    type: 'text',
+    meaning:
+      'name of the design the session ran, frozen when it opened (“Name (v2)” for a later version of a design). A label only: names need not be unique, and two sessions are the same treatment when R, S, T, P, delta and the termination scheme (with its block size) agree, which is how Parley’s Debrief and estimation group sessions',
+    values: 'free text',
+  },
   { column: 'R', type: 'number', meaning: 'stage payoff when both choose C (reward)', values: 'points; T > R > P > S' },
   { column: 'S', type: 'number', meaning: 'stage payoff for C against D (sucker)', values: 'points' },
   { column: 'T', type: 'number', meaning: 'stage payoff for D against C (temptation)', values: 'points' },

@@ -84,8 +84,29 @@ export function riskDominance(game: StageGame): number {
 export function sizeBAD(game: StageGame, delta: number): number {
   const { T, R, P, S } = game;
   if (delta <= grimSPE(game)) return 1;
+  // At δ = δ_RD the closed form is exactly ½ [calc]; doubles land a hair either side of it, and
+  // the panel must not call the tie "defection favoured" (basinAt decides with the same test).
+  if (close(delta, riskDominance(game))) return 1 / 2;
   const num = (1 - delta) * (P - S);
   return num / (num + delta * (R - P) - (1 - delta) * (T - R));
+}
+
+/**
+ * Which side of δ_RD δ lies on; sizeBAD < ½ ⇔ δ > δ_RD and sizeBAD = ½ at δ_RD (methods.md §1).
+ * The one comparison behind both the risk-dominance verdict and the words beside sizeBAD, so the
+ * two never disagree at the tie (issue 10).
+ */
+export type Basin = 'cooperation' | 'tie' | 'defection';
+
+export function basinAt(game: StageGame, delta: number): Basin {
+  const rd = riskDominance(game);
+  if (close(delta, rd)) return 'tie';
+  return delta > rd ? 'cooperation' : 'defection';
+}
+
+/** The words beside sizeBAD in the theory panel. */
+export function basinWords(basin: Basin): string {
+  return basin === 'cooperation' ? 'under ½: cooperation favoured' : basin === 'tie' ? 'exactly ½: neither favoured' : 'over ½: defection favoured';
 }
 
 export interface TheoryAt {
@@ -104,8 +125,10 @@ export interface TheoryAt {
     tftNash: boolean;
     tftSPE: boolean;
     wslsSPE: boolean;
-    /** Grim risk-dominates ALLD (equivalently sizeBAD ≤ 1/2) */
+    /** Grim risk-dominates ALLD, weakly as in methods.md §1 (equivalently sizeBAD ≤ 1/2) */
     riskDominant: boolean;
+    /** the side of δ_RD: 'tie' at δ = δ_RD, where neither strategy strictly risk-dominates */
+    basin: Basin;
   };
 }
 
@@ -116,6 +139,7 @@ export function theoryAt(game: StageGame, delta: number): TheoryAt {
   const ts = tftSPE(game);
   const ws = wslsSPE(game);
   const rd = riskDominance(game);
+  const basin = basinAt(game, delta);
   return {
     delta,
     g: (game.T - game.R) / (game.R - game.P),
@@ -131,7 +155,8 @@ export function theoryAt(game: StageGame, delta: number): TheoryAt {
       tftNash: tn.threshold < 1 && atLeast(delta, tn.threshold),
       tftSPE: ts.kind === 'knife-edge' && close(delta, ts.delta),
       wslsSPE: ws !== null && atLeast(delta, ws),
-      riskDominant: atLeast(delta, rd),
+      riskDominant: basin !== 'defection',
+      basin,
     },
   };
 }

@@ -3,6 +3,7 @@
 import { type Include, INCLUDES } from '#app/lib/choice-panel';
 import { sessionDebrief, type SessionDebrief } from '#app/lib/debrief';
 import type { Design } from '#app/lib/design';
+import { groupByTreatment } from '#app/lib/treatment';
 import { count, inArray } from 'drizzle-orm';
 import { db } from '#app/utils/db.server';
 import { sessionParticipants } from '#drizzle/schema';
@@ -20,6 +21,9 @@ export interface DebriefSession {
   payoffs: Design['payoffs'];
   labels: Design['labels'];
   delta: number;
+  /** with payoffs and δ, what makes the session's treatment (app/lib/treatment.ts) */
+  termination: Design['termination'];
+  matching: Design['matching'];
   debrief: SessionDebrief;
   /** rounds only one seat of a pair chose in (still running, or ended by "End now"): left out */
   unfinished: number;
@@ -64,6 +68,8 @@ export async function loadDebrief(courseId: number, sessionIds: readonly number[
       payoffs: d.payoffs,
       labels: d.labels,
       delta: d.delta,
+      termination: d.termination,
+      matching: d.matching,
       debrief: sessionDebrief(s.rows, d, include),
       unfinished: s.unfinished.length,
       declined: s.declined,
@@ -77,6 +83,16 @@ export async function loadDebrief(courseId: number, sessionIds: readonly number[
 export function includeParam(url: URL): Include {
   const v = url.searchParams.get('include');
   return (INCLUDES as readonly string[]).includes(v ?? '') ? (v as Include) : 'own';
+}
+
+/**
+ * The chosen sessions grouped by treatment identity (names only label the groups). Sessions that
+ * share a name but ran different treatments are refused unless the page asked for
+ * `?treatments=separate` (app/lib/treatment.ts).
+ */
+export function debriefGrouping(sessions: readonly DebriefSession[], url: URL) {
+  const separate = url.searchParams.get('treatments') === 'separate';
+  return { separate, grouping: groupByTreatment(sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })), { separate }) };
 }
 
 /** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */

@@ -12,6 +12,7 @@ import { libraryStrategy } from '#app/lib/automata';
 import { FairQueue } from '#app/lib/fair-queue';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
 import { estimateGroups } from '#app/lib/sfem';
+import { groupByTreatment, treatmentTitles, type TreatmentSession } from '#app/lib/treatment';
 import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
@@ -19,7 +20,7 @@ import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#
 import { datasets, estimates } from '#drizzle/schema';
 import { datasetChoiceRows } from './datasets.server';
 import { estimationRows, type OriginCounts } from '#app/lib/choice-panel';
-import { getCourseSessions, loadSessionPanel } from './panel.server';
+import { getCourseSessions, loadSessionPanel, type SessionInfo } from './panel.server';
 
 export interface GroupResult {
   group: string;
@@ -77,7 +78,20 @@ export interface EstimateStatus {
   createdAt: string;
 }
 
-export const requestKey = (r: EstimateRequest) => createHash('sha256').update(JSON.stringify(canonicalRequest(r))).digest('hex');
+/**
+ * Estimations on sessions group by treatment identity (docs/decisions/027); those stored before
+ * grouped by design name. The marker keeps the key of a sessions request apart from theirs, so an
+ * old name-grouped result is never handed out for a new request.
+ */
+const GROUPING = 'treatment-identity';
+const asTreatmentSession = (s: SessionInfo): TreatmentSession => ({ id: s.id, name: s.treatment, design: s.design });
+
+export const requestKey = (r: EstimateRequest) => {
+  const c = canonicalRequest(r);
+  return createHash('sha256')
+    .update(JSON.stringify(c.source.kind === 'sessions' ? { ...c, grouping: GROUPING } : c))
+    .digest('hex');
+};
 
 type Row = typeof estimates.$inferSelect;
 const toStatus = (r: Row): EstimateStatus => ({
@@ -120,17 +134,22 @@ export async function estimatesForDataset(courseId: number, datasetId: number): 
 export type StartResult =
   | { ok: true; estimate: EstimateStatus; reused: boolean }
   | { ok: false; status: 404; code: 'not_found'; message: string }
+  | { ok: false; status: 409; code: 'mixed_treatments'; message: string }
   | { ok: false; status: 429; code: 'too_many_estimations'; message: string };
 
 /**
  * Starts an estimation, or returns the stored one for the same request (same data, window,
  * strategies, B and seed). A failed run is not reused: asking again runs it again.
  */
-export async function startEstimate(courseId: number, userId: number, input: EstimateRequest): Promise<StartResult> {
+export async function startEstimate(courseId: number, userId: number, input: EstimateRequest, opts: { separate?: boolean } = {}): Promise<StartResult> {
   const request = canonicalRequest(input);
   if (request.source.kind === 'sessions') {
     const found = await getCourseSessions(courseId, request.source.sessionIds);
     if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, code: 'not_found', message: 'A chosen session is not in this course.' };
+    // Groups are treatments (frozen parameters); same-named sessions of different treatments are
+    // estimated apart only when asked, never pooled under their shared name.
+    const grouping = groupByTreatment(found.map(asTreatmentSession), opts);
+    if (!grouping.ok) return { ok: false, status: 409, code: 'mixed_treatments', message: `${grouping.message} Estimate them as separate treatments instead.` };
   } else {
     const [d] = await db()
       .select({ id: datasets.id })
@@ -245,12 +264,16 @@ async function loadRows(courseId: number, request: EstimateRequest): Promise<{ r
   if (request.source.kind === 'sessions') {
     const rows: ChoiceRow[] = [];
     const leftOut: LeftOut = { used: 0, timeout: 0, computer_seat: 0, unpaid_round: 0, afterLeftOut: 0, unfinished: 0, declined: 0 };
+    // SFEM groups by the rows' treatment column: for sessions that is the treatment's identity
+    // (names and parameters), not the design's name (app/lib/treatment.ts).
+    const titles = treatmentTitles((await getCourseSessions(courseId, request.source.sessionIds)).map(asTreatmentSession));
     for (const id of request.source.sessionIds) {
       // research data: participants who declined research consent are left out (docs/decisions/026)
       const s = await loadSessionPanel(courseId, id);
       if (!s) throw new Error(`Session ${id} is not in this course.`);
       const used = estimationRows(s.rows, request.include ?? 'own');
-      rows.push(...used.rows);
+      const title = titles.get(id)!;
+      for (const r of used.rows) rows.push({ ...r, treatment: title });
       for (const k of ['used', 'timeout', 'computer_seat', 'unpaid_round'] as const) leftOut[k] += used.counts[k];
       leftOut.afterLeftOut += used.afterLeftOut;
       leftOut.unfinished += s.unfinished.length;

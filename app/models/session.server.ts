@@ -1,6 +1,7 @@
 import { and, count, desc, eq, inArray } from 'drizzle-orm';
 import { designSchema } from '#app/lib/design';
 import { normaliseSeed } from '#app/lib/rng';
+import { versionedName } from '#app/lib/treatment';
 import { db } from '#app/utils/db.server';
 import { courseMembers, designs, sessionParticipants, sessions, users } from '#drizzle/schema';
 import { memberName } from './course.server';
@@ -43,13 +44,6 @@ export async function createSessionFromDesign(opts: {
   admission: 'roster' | 'open';
   emailDomain: string | null;
 }): Promise<OpenResult> {
-  const [d] = await db()
-    .select({ name: designs.name, params: designs.params, archivedAt: designs.archivedAt })
-    .from(designs)
-    .where(and(eq(designs.courseId, opts.courseId), eq(designs.id, opts.designId)));
-  if (!d) return { ok: false, field: 'designId', message: 'Choose a design of this course.' };
-  if (d.archivedAt) return { ok: false, field: 'designId', message: 'That design is archived; restore it first.' };
-  const params = designSchema.parse(d.params);
   let seed: number;
   try {
     seed = opts.seed ? normaliseSeed(/^\d+$/.test(opts.seed) ? Number(opts.seed) : opts.seed) : newSeed();
@@ -58,19 +52,31 @@ export async function createSessionFromDesign(opts: {
   }
   for (let attempt = 0; attempt < 5; attempt++) {
     try {
-      const [res] = await db().insert(sessions).values({
-        courseId: opts.courseId,
-        designId: opts.designId,
-        treatment: d.name,
-        params,
-        seed,
-        joinCode: newJoinCode(),
-        status: 'draft',
-        admission: opts.admission,
-        emailDomain: opts.emailDomain,
-        createdBy: opts.userId,
+      // The design row is locked while the session copies it: a save of the design waits, then
+      // finds the session and refuses (updateDesign), so the copy is what the design shows.
+      const opened = await db().transaction(async (tx): Promise<OpenResult> => {
+        const [d] = await tx
+          .select({ name: designs.name, version: designs.version, params: designs.params, archivedAt: designs.archivedAt })
+          .from(designs)
+          .where(and(eq(designs.courseId, opts.courseId), eq(designs.id, opts.designId)))
+          .for('update');
+        if (!d) return { ok: false, field: 'designId', message: 'Choose a design of this course.' };
+        if (d.archivedAt) return { ok: false, field: 'designId', message: 'That design is archived; restore it first.' };
+        const [res] = await tx.insert(sessions).values({
+          courseId: opts.courseId,
+          designId: opts.designId,
+          treatment: versionedName(d.name, d.version).slice(0, 120),
+          params: designSchema.parse(d.params),
+          seed,
+          joinCode: newJoinCode(),
+          status: 'draft',
+          admission: opts.admission,
+          emailDomain: opts.emailDomain,
+          createdBy: opts.userId,
+        });
+        return { ok: true, sessionId: res.insertId };
       });
-      return { ok: true, sessionId: res.insertId };
+      return opened;
     } catch (error) {
       // a join code collision: draw another
       if (!(error instanceof Error && /Duplicate entry/.test(error.message + String((error as { cause?: unknown }).cause)))) throw error;

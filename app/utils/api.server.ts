@@ -4,6 +4,7 @@ import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { API_ROLES, findApiToken, touchApiToken } from '#app/models/api-tokens.server';
 import { designSchema } from '#app/lib/design';
+import { treatmentOf } from '#app/lib/treatment';
 import { courses, sessions, users } from '#drizzle/schema';
 import { isAdminEmail } from './auth.server';
 import { db } from './db.server';
@@ -113,6 +114,9 @@ export function sessionJson(s: SessionRow) {
     id: s.id,
     course_id: s.courseId,
     treatment: s.treatment,
+    // the treatment's identity: sessions with equal keys ran the same game (docs/decisions/027)
+    treatment_key: treatmentOf(design).key,
+    treatment_parameters: treatmentOf(design).label,
     status: s.status,
     simulated: s.simulated === 1,
     payoffs: design.payoffs,

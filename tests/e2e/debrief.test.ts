@@ -2,7 +2,10 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, PHONE, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
+import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
+import { uniqueEmail } from '#tests/helpers/http';
+import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
 // Screenshots to look at after a run (not compared by the test).
 const SHOTS = path.resolve('.data/test/screenshots');
@@ -102,6 +105,65 @@ describe('Debrief, in Chromium', () => {
       await sw.uncheck();
       await expect.poll(() => page.url()).not.toContain('include=all');
       await expect.poll(() => caption('cooperation-by-supergame')).toMatch(/Own choices in paid rounds/);
+    }
+    expect(pageErrors).toEqual([]);
+  });
+});
+
+describe('treatments on the side-by-side Debrief, in Chromium', () => {
+  const removers: (() => Promise<void>)[] = [];
+  afterAll(async () => {
+    for (const r of removers) await r();
+    await closeTestDb();
+  });
+
+  it('each payoff set has its own sizeBAD curve; same-named sessions of different treatments are refused, then shown apart on request', async () => {
+    const email = uniqueEmail('e2e-treat');
+    const userId = await createUser(email);
+    const courseId = await createCourse('Treatments lab', [{ userId, role: 'instructor' }]);
+    // Payoffs of Dal Bó & Fréchette (2011) with R = 40 and R = 32 (methods.md §1 table).
+    const make = async (treatment: string, R: number, delta: number, seed: number) => {
+      const s = await insertSyntheticSession(testDb(), {
+        courseId,
+        createdBy: userId,
+        participants: 4,
+        lengths: [2, 3, 1, 4],
+        design: { delta, payoffs: { R, S: 12, T: 50, P: 25 } },
+        treatment,
+        seed,
+      });
+      removers.push(s.remove);
+      return s.sessionId;
+    };
+    const high = await make('High reward', 40, 0.75, 21);
+    const low = await make('Low reward', 32, 0.75, 22);
+    const again = await make('High reward', 40, 0.5, 23);
+
+    for (const [viewport, name] of SIZES) {
+      const page = await signedInPage(browser, email, viewport);
+      await page.goto(`/courses/${courseId}/debrief/compare?sessions=${high},${low}`);
+      const theory = page.locator('figure[data-chart="theory"]');
+      await expect.poll(() => theory.locator('.recharts-line').count()).toBe(2);
+      const legend = await theory.locator('.recharts-legend-wrapper').textContent();
+      expect(legend).toContain(`sizeBAD at R40 S12 T50 P25 (#${high})`);
+      expect(legend).toContain(`sizeBAD at R32 S12 T50 P25 (#${low})`);
+      // each group with its own δ and sizeBAD: 13/48 and 13/16 at δ = 3/4 (methods.md §1)
+      const table = page.getByRole('table', { name: 'Cooperation and strategy shares per treatment' });
+      await expect.poll(() => table.getByRole('row').count()).toBe(3);
+      expect(await table.getByRole('row').nth(1).textContent()).toContain('0.271');
+      expect(await table.getByRole('row').nth(2).textContent()).toContain('0.813');
+      await theory.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(SHOTS, `debrief-treatments-${name}.png`), fullPage: true });
+
+      await page.goto(`/courses/${courseId}/debrief/compare?sessions=${high},${again}`);
+      await expect.poll(() => page.getByText('These sessions cannot be pooled').isVisible()).toBe(true);
+      await page.screenshot({ path: path.join(SHOTS, `debrief-refused-${name}.png`), fullPage: true });
+      await page.getByRole('link', { name: 'Show them as separate treatments' }).click();
+      await expect.poll(() => page.getByText('shown as separate treatments', { exact: false }).isVisible()).toBe(true);
+      await expect.poll(() => table.getByRole('row').count()).toBe(3);
+      expect(await table.getByRole('row').nth(1).textContent()).toContain('δ = 0.75');
+      expect(await table.getByRole('row').nth(2).textContent()).toContain('δ = 0.5');
+      await page.context().close();
     }
     expect(pageErrors).toEqual([]);
   });

@@ -1,12 +1,21 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { eq } from 'drizzle-orm';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, signInInBrowser } from '#tests/helpers/browser';
-import { closeTestDb, createCourseCreator } from '#tests/helpers/db';
+import { designSchema } from '#app/lib/design';
+import { designs, sessions } from '#drizzle/schema';
+import { DESKTOP, launch, newContext, pageErrors, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
+import { closeTestDb, createCourse, createCourseCreator, createUser, testDb } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
+
+// Screenshots to look at after a run (not compared by the test).
+const SHOTS = path.resolve('.data/test/screenshots');
 
 let browser: Browser;
 beforeAll(async () => {
   browser = await launch();
+  fs.mkdirSync(SHOTS, { recursive: true });
 });
 afterAll(async () => {
   await browser?.close();
@@ -66,6 +75,45 @@ describe('design editor, in Chromium', () => {
     await expect.poll(() => page.getByRole('heading', { name: 'High temptation' }).isVisible()).toBe(true);
     // The saved strategy is now in the course's list of the checker.
     expect(await page.getByLabel('Strategy', { exact: true }).locator('option', { hasText: 'Punish1' }).count()).toBe(1);
+    expect(pageErrors).toEqual([]);
+  });
+});
+
+describe('a design used by a session, in Chromium', () => {
+  it('is read-only with the reason shown; "Make a new version" opens an editable v2, whose theory panel names the δ_RD tie', async () => {
+    const email = uniqueEmail('e2e-versions');
+    const userId = await createUser(email);
+    const courseId = await createCourse('Versions lab', [{ userId, role: 'instructor' }]);
+    const params = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 });
+    const [d] = await testDb().insert(designs).values({ courseId, name: 'Class run', params, createdBy: userId });
+    await testDb().insert(sessions).values({ courseId, designId: d.insertId, treatment: 'Class run', params, seed: 5, status: 'complete', createdBy: userId });
+
+    for (const [viewport, name] of SIZES) {
+      const page = await signedInPage(browser, email, viewport);
+      await page.goto(`/courses/${courseId}/designs/${d.insertId}`);
+      await expect.poll(() => page.getByText('Read-only: used by a session').isVisible()).toBe(true);
+      expect(await page.getByTestId('read-only-reason').textContent()).toContain('A session was opened from this design, so it stays exactly as they ran it');
+      expect(await page.getByLabel('δ (chance of another round)').isDisabled()).toBe(true);
+      expect(await page.getByRole('button', { name: 'Save design' }).count()).toBe(0);
+      await page.screenshot({ path: path.join(SHOTS, `design-read-only-${name}.png`), fullPage: true });
+      await page.context().close();
+    }
+
+    const page = await signedInPage(browser, email);
+    await page.goto(`/courses/${courseId}/designs/${d.insertId}`);
+    await page.getByRole('button', { name: 'Make a new version' }).click();
+    await expect.poll(() => page.getByTestId('design-version').textContent()).toBe('v2 of Class run (v1)');
+    expect(await page.getByLabel('δ (chance of another round)').isDisabled()).toBe(false);
+
+    // Axelrod's payoffs T=5, R=3, P=1, S=0: δ_RD = 3/5, where sizeBAD is exactly ½ (methods.md §1 [calc]).
+    for (const [f, v] of [['T', '5'], ['R', '3'], ['P', '1'], ['S', '0']] as const) await page.locator(`#payoffs-${f}`).fill(v);
+    await page.getByLabel('δ (chance of another round)').fill('0.6');
+    await expect.poll(() => verdict(page, 'Grim risk-dominates always-defect')).toBe('tie');
+    expect(await page.locator('[data-basin]').textContent()).toBe('exactly ½: neither favoured');
+    await page.getByRole('button', { name: 'Save design' }).click();
+    await expect.poll(() => page.getByText('Design saved.').isVisible()).toBe(true);
+    const [old] = await testDb().select().from(designs).where(eq(designs.id, d.insertId));
+    expect((old.params as { delta: number }).delta).toBe(0.75);
     expect(pageErrors).toEqual([]);
   });
 });

@@ -31,9 +31,23 @@ export const pageErrors: string[] = [];
 function watch(page: Page) {
   page.on('pageerror', (e) => pageErrors.push(`${page.url()}: ${e.message}`));
   page.on('console', (m) => {
-    // A 400/403/404 answer logs a resource error by design; everything else is a defect.
-    if (m.type() === 'error' && !/status of 4(00|03|04)/.test(m.text())) pageErrors.push(`${page.url()}: ${m.text()}`);
+    // A 400/403/404/409 answer logs a resource error by design; everything else is a defect.
+    if (m.type() === 'error' && !/status of 4(00|03|04|09)/.test(m.text())) pageErrors.push(`${page.url()}: ${m.text()}`);
   });
+}
+
+/** Both sizes every page is looked at in, with a name for screenshot files. */
+export const SIZES = [
+  [DESKTOP, 'desktop'],
+  [PHONE, 'phone'],
+] as const;
+
+/** A new page at this size, signed in as `email` through the real flow. */
+export async function signedInPage(browser: Browser, email: string, size: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<Page> {
+  const page = await (await newContext(browser, size)).newPage();
+  await page.goto('/sign-in');
+  await signInInBrowser(page, email);
+  return page;
 }
 
 /** The whole sign-in as a person does it: type the e-mail, read the code in the mail, type it. */

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { grimSPE, riskDominance, sizeBAD, tftNash, tftSPE, theoryAt, wslsSPE } from '../../app/lib/thresholds';
+import { basinWords, grimSPE, riskDominance, sizeBAD, tftNash, tftSPE, theoryAt, wslsSPE } from '../../app/lib/thresholds';
 import { arbDelta, arbGame, expectClose } from './helpers';
 
 const AXELROD = { T: 5, R: 3, P: 1, S: 0 };
@@ -131,11 +131,48 @@ describe('theoryAt', () => {
   it('reports every threshold and verdict, counting the boundary as yes', () => {
     // Source: Axelrod's payoffs (1984, p. 8); thresholds methods.md §1 [calc].
     const t = theoryAt(AXELROD, 0.5);
-    expect(t.verdicts).toEqual({ grimSPE: true, tftNash: false, tftSPE: false, wslsSPE: false, riskDominant: false });
+    expect(t.verdicts).toEqual({ grimSPE: true, tftNash: false, tftSPE: false, wslsSPE: false, riskDominant: false, basin: 'defection' });
     expect(t.g).toBe(1);
     expect(t.l).toBe(0.5);
     expect(t.sizeBAD).toBe(1);
     expect(theoryAt(AXELROD, 2 / 3).verdicts.tftNash).toBe(true);
     expect(theoryAt(AXELROD, 0.6).verdicts.riskDominant).toBe(true);
+  });
+});
+
+describe('the tie δ = δ_RD (issue 10)', () => {
+  // Source: Axelrod's payoffs (1984, p. 8), δ_RD = 3/5 (methods.md §1 check values). At δ = δ_RD the
+  // closed form of sizeBAD is exactly ½ [calc: with δ = (T−R+P−S)/(T−S), numerator and denominator
+  // times (T−S) are (R−P)(P−S) and 2(R−P)(P−S)]. 0.6 and 3/5 are the same double.
+  it('sizeBAD is exactly ½ and both verdicts name the tie', () => {
+    for (const delta of [0.6, 3 / 5, riskDominance(AXELROD)]) {
+      const t = theoryAt(AXELROD, delta);
+      expect(t.sizeBAD).toBe(0.5);
+      expect(t.verdicts.basin).toBe('tie');
+      // the weak condition of methods.md §1 (δ ≥ δ_RD) still holds at the boundary
+      expect(t.verdicts.riskDominant).toBe(true);
+      expect(basinWords(t.verdicts.basin)).toBe('exactly ½: neither favoured');
+    }
+  });
+
+  it('on either side, the risk-dominance verdict and sizeBAD’s side of ½ agree', () => {
+    expect(theoryAt(AXELROD, 0.6001).verdicts.basin).toBe('cooperation');
+    expect(theoryAt(AXELROD, 0.6001).sizeBAD).toBeLessThan(0.5);
+    expect(theoryAt(AXELROD, 0.5999).verdicts.basin).toBe('defection');
+    expect(theoryAt(AXELROD, 0.5999).sizeBAD).toBeGreaterThan(0.5);
+    expect(theoryAt(AXELROD, 0.5999).verdicts.riskDominant).toBe(false);
+  });
+
+  it('for random games the one comparison decides both, ties included', () => {
+    fc.assert(
+      fc.property(arbGame, arbDelta, (game, delta) => {
+        for (const d of [delta, riskDominance(game)]) {
+          const t = theoryAt(game, d);
+          const side = t.sizeBAD < 0.5 ? 'cooperation' : t.sizeBAD > 0.5 ? 'defection' : 'tie';
+          expect(side).toBe(t.verdicts.basin);
+          expect(t.verdicts.riskDominant).toBe(t.verdicts.basin !== 'defection');
+        }
+      }),
+    );
   });
 });

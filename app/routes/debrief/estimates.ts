@@ -11,9 +11,12 @@ export async function loader() {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
-  const parsed = estimateRequestFromForm(await request.formData());
+  const form = await request.formData();
+  const parsed = estimateRequestFromForm(form);
   if (!parsed.ok) return Response.json({ ok: false, errors: parsed.errors }, { status: 400 });
-  const started = await startEstimate(course.id, user.id, parsed.request);
+  // the researcher's explicit choice to estimate same-named sessions of different treatments apart
+  const separate = form.get('treatments') === 'separate';
+  const started = await startEstimate(course.id, user.id, parsed.request, { separate });
   if (!started.ok) return Response.json({ ok: false, code: started.code, message: started.message }, { status: started.status });
   return Response.json({ ok: true, estimate: started.estimate, reused: started.reused }, { status: started.reused ? 200 : 202 });
 }

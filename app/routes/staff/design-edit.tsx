@@ -9,7 +9,8 @@ import { Button, FieldError, Notice, SelectField, TextField } from '#app/compone
 import { LIBRARY } from '#app/lib/automata';
 import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
 import { generateInstructions } from '#app/lib/instructions';
-import { createDesign, getDesign, listCourseStrategies, updateDesign } from '#app/models/design.server';
+import { treatmentOf } from '#app/lib/treatment';
+import { createDesign, getDesign, laterVersions, listCourseStrategies, newDesignVersion, previousVersion, updateDesign } from '#app/models/design.server';
 import { designInputFromForm } from '#app/utils/design-form';
 import { fieldErrors } from '#app/utils/forms';
 import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
@@ -28,27 +29,50 @@ const NEW_DESIGN: Design = designSchema.parse({
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const courseStrategies = await listCourseStrategies(course.id);
-  const saved = new URL(request.url).searchParams.get('saved') === '1';
+  const url = new URL(request.url);
+  const saved = url.searchParams.get('saved') === '1';
+  const madeVersion = url.searchParams.get('version') === 'new';
+  const isInstructor = role === 'instructor';
   if (!params.designId) {
-    if (role !== 'instructor') throw new Response('Only instructors create designs.', { status: 403 });
-    return { course, design: null, name: '', params: NEW_DESIGN, canEdit: true, courseStrategies, saved };
+    if (!isInstructor) throw new Response('Only instructors create designs.', { status: 403 });
+    return { course, design: null, name: '', params: NEW_DESIGN, canEdit: true, isInstructor, courseStrategies, saved, madeVersion };
   }
   const design = await getDesign(course.id, parseId(params.designId));
   if (!design) throw new Response('No such design in this course.', { status: 404 });
+  const [previous, later] = await Promise.all([previousVersion(course.id, design), laterVersions(course.id, design.id)]);
   return {
     course,
-    design: { id: design.id, archived: design.archivedAt !== null },
+    design: {
+      id: design.id,
+      archived: design.archivedAt !== null,
+      version: design.version,
+      previous,
+      later,
+      sessionCount: design.sessionCount,
+      treatment: treatmentOf(design.params).label,
+    },
     name: design.name,
     params: design.params,
-    canEdit: role === 'instructor' && design.archivedAt === null,
+    canEdit: isInstructor && design.archivedAt === null && design.sessionCount === 0,
+    isInstructor,
     courseStrategies,
     saved,
+    madeVersion,
   };
 }
+
+const usedMessage = (n: number) =>
+  `This design was used by ${n === 1 ? 'a session' : `${n} sessions`}, so it stays as they ran it and cannot be changed. Make a new version to change it.`;
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['instructor']);
   const form = await request.formData();
+  if (form.get('intent') === 'new-version') {
+    if (!params.designId) throw new Response('Save the design first.', { status: 400 });
+    const id = await newDesignVersion(course.id, parseId(params.designId), user.id);
+    if (!id) throw new Response('No such design in this course.', { status: 404 });
+    throw redirect(`/courses/${course.id}/designs/${id}?version=new`);
+  }
   const values = Object.fromEntries([...form].map(([k, v]) => [k, String(v)]));
   const name = Name.safeParse(form.get('name'));
   const input = designInputFromForm(form);
@@ -66,7 +90,11 @@ export async function action({ request, params }: Route.ActionArgs) {
   const existing = await getDesign(course.id, designId);
   if (!existing) throw new Response('No such design in this course.', { status: 404 });
   if (existing.archivedAt) return data({ ok: false as const, errors: {}, values, message: 'This design is archived; restore it before editing.' }, { status: 409 });
-  await updateDesign(course.id, designId, name.data, params_);
+  if (existing.sessionCount > 0) return data({ ok: false as const, errors: {}, values, message: usedMessage(existing.sessionCount) }, { status: 409 });
+  // false: a session opened from it (or it was archived) since it was read above
+  if (!(await updateDesign(course.id, designId, name.data, params_))) {
+    return data({ ok: false as const, errors: {}, values, message: 'This design was used by a session or archived a moment ago; nothing was saved. Make a new version to change it.' }, { status: 409 });
+  }
   return { ok: true as const, errors: {}, values: null, message: 'Design saved.' };
 }
 
@@ -117,7 +145,7 @@ function formValues(name: string, d: Design): Record<string, string> {
 }
 
 export default function DesignEditor({ loaderData, actionData }: Route.ComponentProps) {
-  const { course, design, canEdit, courseStrategies } = loaderData;
+  const { course, design, canEdit, isInstructor, courseStrategies } = loaderData;
   const initial = useMemo(() => formValues(loaderData.name, loaderData.params), [loaderData.name, loaderData.params]);
   const values: Record<string, string> = actionData && !actionData.ok && actionData.values ? actionData.values : initial;
   const errors: Record<string, string> = actionData?.errors ?? {};
@@ -139,6 +167,8 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   const draft = draftFrom(input);
   const game = parsed.success ? parsed.data.payoffs : null;
   const saved = loaderData.saved && !actionData;
+  const madeVersion = loaderData.madeVersion && !actionData && design;
+  const used = design !== null && design.sessionCount > 0;
 
   const onChange = () => {
     if (formRef.current) setInput(designInputFromForm(new FormData(formRef.current)));
@@ -174,17 +204,64 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
       <PageHeader
         title={design ? loaderData.name : 'New design'}
         eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/designs`, label: 'Designs' }]} />}
-      />
+      >
+        {design && design.version > 1 ? (
+          <p className="text-slate-700" data-testid="design-version">
+            v{design.version} of{' '}
+            {design.previous ? (
+              <Link to={`/courses/${course.id}/designs/${design.previous.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+                {design.previous.name} (v{design.previous.version})
+              </Link>
+            ) : (
+              'an earlier design'
+            )}
+          </p>
+        ) : null}
+      </PageHeader>
       <div className="mb-4 flex flex-col gap-2" aria-live="polite">
         {actionData ? <Notice tone={actionData.ok ? 'ok' : 'error'}>{actionData.message}</Notice> : null}
         {saved ? <Notice tone="ok">Design saved.</Notice> : null}
+        {madeVersion ? (
+          <Notice tone="ok">
+            New version v{design.version} made. Change it and save; sessions of the earlier version keep what they ran.
+          </Notice>
+        ) : null}
         {design?.archived ? <Notice tone="info">This design is archived and read-only. Restore it from the list to edit it.</Notice> : null}
-        {!canEdit && !design?.archived ? <Notice tone="info">You can look at this design; only the course’s instructors change it.</Notice> : null}
+        {used && !design.archived ? (
+          <Notice tone="info" title="Read-only: used by a session">
+            <span data-testid="read-only-reason">
+              {design.sessionCount === 1 ? 'A session was' : `${design.sessionCount} sessions were`} opened from this design, so it stays exactly as they ran it (treatment{' '}
+              {design.treatment}).{isInstructor ? ' To change it, make a new version: a copy you can edit, linked to this one.' : ''}
+            </span>
+            {isInstructor ? (
+              <Form method="post" className="mt-3">
+                <input type="hidden" name="intent" value="new-version" />
+                <Button type="submit" variant="secondary" disabled={busy}>
+                  Make a new version
+                </Button>
+              </Form>
+            ) : null}
+            {design.later.length > 0 ? (
+              <p className="mt-2 text-sm">
+                Newer:{' '}
+                {design.later.map((v, i) => (
+                  <span key={v.id}>
+                    {i > 0 ? ', ' : ''}
+                    <Link to={`/courses/${course.id}/designs/${v.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+                      {v.name} (v{v.version})
+                    </Link>
+                  </span>
+                ))}
+              </p>
+            ) : null}
+          </Notice>
+        ) : null}
+        {!isInstructor && !design?.archived && !used ? <Notice tone="info">You can look at this design; only the course’s instructors change it.</Notice> : null}
       </div>
       <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,30rem)]">
         <Form method="post" ref={formRef} onChange={onChange} className="flex min-w-0 flex-col gap-6" noValidate>
           <fieldset disabled={!canEdit} className="contents">
-            <TextField label="Name" name="name" defaultValue={values.name} error={errors.name} hint="Exports call a design a treatment; the name is the treatment’s name." />
+            <TextField label="Name" name="name" defaultValue={values.name} error={errors.name} hint="Exports show the name as the treatment; Parley tells treatments apart by payoffs, δ and termination, not by name." />
 
             <section aria-labelledby="payoffs-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
               <h2 id="payoffs-title" className="text-lg font-semibold">

@@ -22,6 +22,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     designs: designs.map((d) => ({
       id: d.id,
       name: d.name,
+      version: d.version,
+      sessionCount: d.sessionCount,
       payoffs: d.params.payoffs,
       delta: d.params.delta,
       supergames: d.params.supergames,
@@ -59,6 +61,7 @@ function columnsFor(courseId: number, canEdit: boolean) {
       cell: (i) => (
         <Link to={`/courses/${courseId}/designs/${i.row.original.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
           {i.getValue()}
+          {i.row.original.version > 1 ? <span className="font-normal text-slate-600"> (v{i.row.original.version})</span> : null}
         </Link>
       ),
     }),
@@ -66,6 +69,18 @@ function columnsFor(courseId: number, canEdit: boolean) {
     col.accessor('delta', { header: 'δ', cell: (i) => fmt(i.getValue()), meta: { align: 'right' } }),
     col.accessor('supergames', { header: 'Supergames', meta: { align: 'right' } }),
     col.accessor('roundSeconds', { header: 'Timer', cell: (i) => `${i.getValue()} s`, meta: { align: 'right' } }),
+    col.accessor('sessionCount', {
+      header: 'Sessions',
+      cell: (i) =>
+        i.getValue() > 0 ? (
+          <span title="Used by a session: read-only; editing makes a new version">
+            {i.getValue()} <span className="text-slate-600">· read-only</span>
+          </span>
+        ) : (
+          '0'
+        ),
+      meta: { align: 'right' },
+    }),
     col.accessor('updatedAt', { header: 'Changed', cell: (i) => formatDate(i.getValue()), sortFn: 'datetime' }),
     col.accessor('status', {
       header: 'Status',
