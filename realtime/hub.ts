@@ -114,8 +114,11 @@ export function attachHub(httpServer: HttpServer) {
           const session = await sessionFor(sessionId);
           const state = await runner.state(sessionId);
           if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
-          // A member removed from the course keeps no seat, whatever the session's state says.
-          if (!(await roleFor(userId, session.courseId))) throw new Refusal('forbidden', 'You are no longer a member of this course.');
+          // In a roster session, a member removed from the course keeps no seat, whatever the
+          // session's state says. (Open sessions admit people who are not members.)
+          if (session.admission === 'roster' && !(await roleFor(userId, session.courseId))) {
+            throw new Refusal('forbidden', 'You are no longer a member of this course.');
+          }
           await socket.join(roomOf('participant', String(sessionId), me));
           playing.add(sessionId);
           const res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });

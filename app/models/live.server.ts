@@ -118,6 +118,8 @@ export interface StoredSession {
   seed: number;
   status: (typeof sessions.$inferSelect)['status'];
   joinCode: string | null;
+  /** roster: course members only; open: anyone signed in (within the e-mail domain, if set) */
+  admission: 'roster' | 'open';
   simulated: boolean;
 }
 
@@ -132,6 +134,7 @@ export async function getSession(sessionId: number): Promise<StoredSession | nul
     seed: s.seed,
     status: s.status,
     joinCode: s.joinCode,
+    admission: s.admission,
     simulated: s.simulated === 1,
   };
 }

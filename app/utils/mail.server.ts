@@ -26,7 +26,9 @@ export class MailNotSentError extends Error {
  * long when the mail server is down.
  */
 export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: number = env().SMTP_TIMEOUT_MS): Transporter {
-  return nodemailer.createTransport({ url, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
+  // Pooled: a lecture hall asks for hundreds of codes within minutes; a few kept-open connections
+  // carry them instead of one new SMTP connection (and greeting) per mail.
+  return nodemailer.createTransport({ url, pool: true, maxConnections: 5, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
 }
 
 const g = globalThis as unknown as { __parleyMailer?: Transporter };

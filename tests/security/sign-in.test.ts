@@ -261,4 +261,17 @@ describe('signing out ends the sign-in on the server', () => {
     const ok = await sockets[1].emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'stays-abcdefgh' });
     expect(ok.ok).toBe(true);
   });
+
+  it('an open session still seats people who are not members of the course', async () => {
+    const instEmail = uniqueEmail('open-inst');
+    const instructorId = await createUser(instEmail);
+    const courseId = await createCourse('Open course', [{ userId: instructorId, role: 'instructor' }]);
+    const instructor = await signIn(instEmail);
+    const designId = await createDesign(courseId, instructorId);
+    const { sessionId, code } = await openSession(instructor, courseId, designId, { admission: 'open' });
+    const guest = await signIn(uniqueEmail('open-guest'));
+    await join(guest, code);
+    const s = await connect(guest.cookieHeader());
+    expect(await s.emitWithAck('session:watch', { sessionId, as: 'participant' })).toMatchObject({ ok: true });
+  });
 });
