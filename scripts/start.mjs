@@ -1,4 +1,6 @@
-// `npm start`: everything a fresh clone needs, then Parley on http://127.0.0.1:$PORT.
+// `npm start`: everything a fresh clone needs, then Parley on http://127.0.0.1:$PORT, kept running:
+// if the Parley process dies it is said and Parley restarts (live sessions resume from the
+// database), at most 3 times a minute; past that everything stops and the exit code is 1.
 // Ctrl-C stops what this script started.
 import { spawn } from 'node:child_process';
 import path from 'node:path';
@@ -8,7 +10,7 @@ import {
   ensureDebian,
   ensureNodeModules,
   fail,
-  keep,
+  keepSupervised,
   localSecrets,
   root,
   runTs,
@@ -18,6 +20,7 @@ import {
   stopOnSignals,
   waitForHttp,
 } from './lib/services.mjs';
+import { supervise } from './lib/supervise.mjs';
 
 // `npm run dev` passes --dev: Vite middleware with hot reload instead of the production build.
 const dev = process.argv.includes('--dev');
@@ -25,7 +28,8 @@ const port = Number(process.env.PORT ?? 3000);
 const dbPort = Number(process.env.PARLEY_DB_PORT ?? 3307);
 const smtpPort = Number(process.env.PARLEY_SMTP_PORT ?? 1025);
 const mailWebPort = Number(process.env.PARLEY_MAIL_WEB_PORT ?? 1080);
-const dataDir = path.join(root, '.data/dev');
+// Another data folder (a second instance, the supervision test) through PARLEY_DATA_DIR.
+const dataDir = process.env.PARLEY_DATA_DIR ? path.resolve(process.env.PARLEY_DATA_DIR) : path.join(root, '.data/dev');
 
 stopOnSignals();
 const t0 = Date.now();
@@ -48,21 +52,28 @@ if (!runTs('seeds/index.ts', [], env)) fail('seeding the demo failed', 'See the 
 await startMaildev({ smtp: smtpPort, web: mailWebPort });
 if (!dev) ensureBuild(env);
 
-const server = keep(
-  'Parley',
-  spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: 'inherit' }),
-);
-server.on('exit', (code) => {
-  if (code) fail(`the Parley server stopped (exit ${code})`, 'See its output above.');
+const healthz = `http://127.0.0.1:${port}/healthz`;
+const parley = supervise({
+  name: 'Parley',
+  spawn: () => spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: 'inherit' }),
+  maxRestarts: 3,
+  windowMs: 60_000,
+  say,
+  onRestart: (child) =>
+    void waitForHttp(healthz, 60_000, child).then((up) => {
+      if (up) say(`Parley is back (pid ${child.pid}) on http://127.0.0.1:${port}; live sessions resumed from the database`);
+    }),
+  onGiveUp: (reason) => fail(`${reason}: stopping everything`, 'See its output above.'),
 });
-if (!(await waitForHttp(`http://127.0.0.1:${port}/healthz`, 60_000, server))) {
+keepSupervised('Parley', parley);
+if (!(await waitForHttp(healthz, 60_000, parley.child))) {
   fail(`Parley did not answer on port ${port}`, `Is the port taken? Try PORT=3001 npm start`);
 }
-say(`ready in ${((Date.now() - t0) / 1000).toFixed(1)} s`);
+say(`ready in ${((Date.now() - t0) / 1000).toFixed(1)} s (Parley pid ${parley.child.pid})`);
 console.log(`
   Parley          http://127.0.0.1:${port}
   Mail catcher    http://127.0.0.1:${mailWebPort}   (every e-mail, including sign-in codes)
-  MariaDB         127.0.0.1:${dbPort}, data in .data/dev/mariadb
+  MariaDB         127.0.0.1:${dbPort}, data in ${path.relative(root, dataDir) || '.'}/mariadb
 
   Demo accounts (invented; sign in with the e-mail, read the code in the mail catcher):
     instructor    r.okafor@halvorsen.example

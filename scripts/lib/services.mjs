@@ -224,6 +224,20 @@ export function keep(name, child, stop) {
   return child;
 }
 
+/**
+ * A supervised child (supervise.mjs) that stops with us: told to stop first, so that a restart it
+ * may have pending never happens, then waited for like any other child.
+ */
+export function keepSupervised(name, supervisor) {
+  started.push({
+    name,
+    get child() {
+      return supervisor.child;
+    },
+    halt: () => supervisor.stop(),
+  });
+}
+
 function newestMtime(p) {
   if (!fs.existsSync(p)) return 0;
   const st = fs.statSync(p);
@@ -249,6 +263,7 @@ export function ensureBuild(env) {
 export async function stopAll() {
   while (started.length) {
     const s = started.pop();
+    if (s.halt) await s.halt();
     if (s.child.exitCode !== null || s.child.signalCode !== null) continue;
     if (s.stop) s.stop();
     else s.child.kill('SIGTERM');
