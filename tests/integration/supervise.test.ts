@@ -1,16 +1,16 @@
 // `npm start` supervises Parley: a server process killed with SIGKILL is reported and restarted
 // (on /healthz again), and Ctrl-C still stops everything. Runs the real scripts/start.mjs on ports
-// of its own (this worktree's test ports + 40) with its own data folder.
+// of its own (this worktree's test ports + 70: the restart test takes + 40) with its own data folder.
 import { type ChildProcess, spawn, spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 
 const portOf = (url: string | undefined, fallback: number) => (url ? Number(new URL(url.replace(/^mysql:/, 'http:')).port) : fallback);
 const ports = {
-  PORT: String(portOf(process.env.PARLEY_TEST_URL, 3101) + 40),
-  PARLEY_DB_PORT: String(portOf(process.env.DATABASE_URL, 3317) + 40),
-  PARLEY_SMTP_PORT: String(portOf(process.env.SMTP_URL?.replace(/^smtp:/, 'http:'), 1026) + 40),
-  PARLEY_MAIL_WEB_PORT: String(portOf(process.env.PARLEY_MAIL_API, 1081) + 40),
+  PORT: String(portOf(process.env.PARLEY_TEST_URL, 3101) + 70),
+  PARLEY_DB_PORT: String(portOf(process.env.DATABASE_URL, 3317) + 70),
+  PARLEY_SMTP_PORT: String(portOf(process.env.SMTP_URL?.replace(/^smtp:/, 'http:'), 1026) + 70),
+  PARLEY_MAIL_WEB_PORT: String(portOf(process.env.PARLEY_MAIL_API, 1081) + 70),
 };
 const base = `http://127.0.0.1:${ports.PORT}`;
 
