@@ -7,6 +7,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import {
   CHROMIUM_PACKAGES,
+  IPROUTE_PACKAGES,
   MARIADB_PACKAGES,
   ensureBuild,
   ensureDebian,
@@ -37,7 +38,7 @@ const dataDir = path.join(root, '.data/test');
 stopOnSignals();
 const t0 = Date.now();
 ensureNodeModules();
-ensureDebian([MARIADB_PACKAGES, CHROMIUM_PACKAGES]);
+ensureDebian([MARIADB_PACKAGES, CHROMIUM_PACKAGES, IPROUTE_PACKAGES]);
 await startMariadb({ dir: dataDir, port: dbPort, databases: ['parley_test'], fresh: ['parley_test'], user: 'parley', password: 'parley' });
 const env = {
   NODE_ENV: 'production',

@@ -59,6 +59,8 @@ export function ensureDebian(needs) {
 
 export const MARIADB_PACKAGES = { bin: 'mariadbd', packages: ['mariadb-server-core', 'mariadb-client'] };
 export const CHROMIUM_PACKAGES = { bin: 'chromium', packages: ['chromium', 'fonts-dejavu-core'] };
+/** `ss`, with which the supervision test finds the server's process as an operator would */
+export const IPROUTE_PACKAGES = { bin: 'ss', packages: ['iproute2'] };
 
 export function portIsFree(port, host = '127.0.0.1') {
   return new Promise((resolve) => {

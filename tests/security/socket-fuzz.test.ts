@@ -54,9 +54,10 @@ const wrongValue = fc.oneof(
   fc.array(fc.anything({ maxDepth: 2 }), { maxLength: 4 }),
   fc.dictionary(fc.string({ maxLength: 6 }), fc.anything({ maxDepth: 2 }), { maxKeys: 4 }),
   fc.constantFrom(0, -1, 1.5, -0.000001, 2 ** 31, 2 ** 53, Number.MAX_VALUE, -Number.MAX_VALUE, Number.MIN_VALUE),
-  // past every length limit, but under socket.io's 1 MB message cap even several at once
-  fc.integer({ min: 65, max: 100_000 }).map((n) => 'x'.repeat(n)),
-  fc.integer({ min: 10, max: 800 }).map((d) => deep(d, 1)),
+  // past every length limit, but under the hub's 32 KB message cap even five at once (a larger
+  // message closes the socket: the last test below)
+  fc.integer({ min: 65, max: 5_000 }).map((n) => 'x'.repeat(n)),
+  fc.integer({ min: 10, max: 300 }).map((d) => deep(d, 1)),
 );
 
 /** Payloads for one event that its own schema refuses, in every way we could think of. */
@@ -178,5 +179,16 @@ describe('malformed socket payloads', () => {
     const ok = await sockets[0].emitWithAck('choice:submit', { sessionId, supergame: 1, round: first.round!, action: 'C', clientChoiceId: `fuzz-real-${Date.now()}` });
     expect(ok.ok).toBe(true);
     expect((await rowsOf(sessionId)).choices).toBe(before.choices + 1);
+  });
+
+  it('a message over the 32 KB cap closes only that socket; the server and the others go on', { timeout: 60_000 }, async () => {
+    const a = await signIn(uniqueEmail('fuzz-big'));
+    const big = await connect(a.cookieHeader());
+    const other = await connect(a.cookieHeader());
+    const closed = new Promise<string>((resolve) => big.on('disconnect', (reason) => resolve(reason)));
+    (big as unknown as { emit: (e: string, p: unknown) => void }).emit('me:get', { pad: 'x'.repeat(40_000) });
+    expect(await closed).toBe('transport close');
+    expect(await healthy()).toBe(true);
+    expect(await other.emitWithAck('me:get', {})).toMatchObject({ ok: true });
   });
 });
