@@ -1,10 +1,11 @@
-// The class hour on a phone (issue 12): a consent tick made before the page's script has loaded.
+// The class hour on a phone (issue 12): a consent tick made before the page's script has loaded,
+// and the countdown at the start of a round.
 import type { Browser, BrowserContext, Page, Route } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, createDesign, openSession } from '#tests/helpers/live';
+import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -93,5 +94,29 @@ describe('the class hour on a phone', () => {
     await page.getByRole('button', { name: 'I have read this — join' }).click();
     await page.getByRole('heading', { name: 'You are in' }).waitFor();
     expect(page.url()).toContain('/play/');
+  });
+
+  it('shows no more seconds than the round has when a 30 s round opens', async () => {
+    const { sessionId, code, instructor, players } = await classOf(2, { roundSeconds: 30, supergames: 1, delta: 0.5 });
+    for (const p of players) await join(p, code);
+    const { page } = await phoneOf(players[0]);
+    // A slow phone: the page's script arrives two seconds after the page was made on the server.
+    const release = await holdScripts(page);
+    await page.goto(`/play/${sessionId}`, { waitUntil: 'domcontentloaded' });
+    await new Promise((r) => setTimeout(r, 2000));
+    await release();
+    await page.getByRole('heading', { name: 'You are in' }).waitFor();
+    await expect.poll(async () => /\bconnected\b/.test(await page.evaluate(() => document.body.innerText))).toBe(true);
+
+    const staff = await connect(instructor.cookieHeader());
+    const res = await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' });
+    expect(res.ok).toBe(true);
+    const countdown = page.getByTestId('countdown');
+    await countdown.waitFor();
+    const first = Number((await countdown.textContent())!.replace(/\D+/g, ''));
+    // Before the fix: "32 s" (the two seconds the script took were counted as round time).
+    expect(first).toBeLessThanOrEqual(30);
+    expect(first).toBeGreaterThanOrEqual(28);
+    expect(pageErrors).toEqual([]);
   });
 });

@@ -30,7 +30,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     if (staff) throw new Response('You did not take part in this session.', { status: 403 });
     throw nothingHere();
   }
-  return { email: user.email, sessionId: session.id, courseId: session.courseId, view: participantView(state, me), serverNow: Date.now() };
+  return {
+    email: user.email,
+    sessionId: session.id,
+    courseId: session.courseId,
+    roundMs: session.design.roundSeconds * 1000,
+    view: participantView(state, me),
+    serverNow: Date.now(),
+  };
 }
 
 /** The two actions: label plus a distinct shape, equal neutral colours (never colour alone). */
@@ -44,7 +51,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
   const { view: live, connected, emit, socket } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
   const view = (live ?? loaderData.view) as ParticipantView;
   const offset = useRef(loaderData.serverNow - Date.now()).current;
-  const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset);
+  const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset, loaderData.roundMs);
   const [pending, setPending] = useState<Action | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [nudge, setNudge] = useState<string | null>(null);
