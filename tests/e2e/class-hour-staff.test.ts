@@ -1,0 +1,67 @@
+// The class hour from the staff side in Chromium (issue 12): the Conductor's messages, the Floor
+// of a finished session.
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DESKTOP, launch, newContext, pageErrors } from '#tests/helpers/browser';
+import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
+import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
+
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launch();
+});
+afterAll(async () => {
+  closeSockets();
+  await browser?.close();
+  await closeTestDb();
+});
+
+async function classOf(n: number) {
+  const instructorEmail = uniqueEmail('chs-inst');
+  const instructorId = await createUser(instructorEmail, 'Instructor');
+  const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`chs-p${i}`));
+  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
+  const courseId = await createCourse('Class hour', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const designId = await createDesign(courseId, instructorId, { supergames: 3, delta: 0.9, roundSeconds: 60 });
+  const instructor = await signIn(instructorEmail);
+  const { sessionId, code } = await openSession(instructor, courseId, designId);
+  const players = await Promise.all(playerEmails.map((e) => signIn(e)));
+  for (const p of players) await join(p, code);
+  return { courseId, sessionId, code, instructor, players };
+}
+
+async function staffPage(client: Client, path: string): Promise<Page> {
+  const ctx = await newContext(browser, DESKTOP);
+  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  const page = await ctx.newPage();
+  page.on('dialog', (d) => void d.accept());
+  await page.goto(path);
+  await expect.poll(async () => /\bLive\b/.test(await page.evaluate(() => document.body.innerText))).toBe(true);
+  return page;
+}
+
+describe('the class hour, staff pages', () => {
+  it("the Conductor shows each command's own result, and none once the session has moved on", async () => {
+    const { courseId, sessionId, instructor } = await classOf(2);
+    const page = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}`);
+    const status = page.getByTestId('session-status');
+
+    await page.getByRole('button', { name: 'Start the session' }).click();
+    await expect.poll(() => status.textContent()).toContain('Running');
+    // Before the fix: "Done: the session is running.", after Start and after every other command.
+    await expect.poll(() => page.getByText('Started: phones are being paired for supergame 1.').isVisible()).toBe(true);
+
+    await page.getByRole('button', { name: 'End after this supergame' }).click();
+    await expect.poll(() => page.getByRole('button', { name: 'Ends after this supergame' }).isVisible()).toBe(true);
+    await expect.poll(() => page.getByText('The session will end when the current supergame is over.').isVisible()).toBe(true);
+    expect(await page.getByText('Started: phones are being paired').count()).toBe(0);
+
+    await page.getByRole('button', { name: 'End now' }).click();
+    await expect.poll(() => status.textContent()).toContain('Complete');
+    await expect.poll(() => page.getByText('Ended: everyone sees their final points.').isVisible()).toBe(true);
+    // Nothing under "Complete" still says the session is running.
+    expect(await page.locator('main').textContent()).not.toMatch(/is running|will end when/);
+    expect(pageErrors).toEqual([]);
+  });
+});
