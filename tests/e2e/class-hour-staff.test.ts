@@ -64,4 +64,19 @@ describe('the class hour, staff pages', () => {
     expect(await page.locator('main').textContent()).not.toMatch(/is running|will end when/);
     expect(pageErrors).toEqual([]);
   });
+
+  it('the Floor of a completed session offers no Nudge and no Hand to computer', async () => {
+    const { courseId, sessionId, instructor } = await classOf(2);
+    const staff = await connect(instructor.cookieHeader());
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
+    const page = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}/floor`);
+    await expect.poll(() => page.getByRole('button', { name: /^Nudge/ }).count()).toBe(2);
+
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'end-now' })).ok).toBe(true);
+    await expect.poll(async () => /\bComplete\b/.test(await page.evaluate(() => document.body.innerText))).toBe(true);
+    // Before the fix: both buttons stayed on every seat row of the finished session.
+    await expect.poll(() => page.getByRole('button', { name: /^Nudge/ }).count()).toBe(0);
+    expect(await page.getByRole('button', { name: /^Hand to computer/ }).count()).toBe(0);
+    expect(pageErrors).toEqual([]);
+  });
 });
