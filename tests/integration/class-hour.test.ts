@@ -36,4 +36,16 @@ describe('the class hour, staff side', () => {
     const hand = await staff.timeout(8000).emitWithAck('participant:act', { sessionId, participantId: String(playerIds[0]), action: 'hand-to-computer', strategy: 'TFT' });
     expect(hand).toMatchObject({ ok: false, code: 'session-not-running' });
   });
+
+  it('refuses a seed that is not a whole number, with the reason beside the field', async () => {
+    const { courseId, designId, instructor } = await classOf(0);
+    for (const seed of ['12a45', 'my seed', '4294967296', '-3']) {
+      const res = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed, emailDomain: '' });
+      // Before the fix: 302 to a new session whose seed was a hash of the text.
+      expect(res.status).toBe(400);
+      expect(pageText(await res.text())).toContain('A seed is a whole number from 0 to 4294967295');
+    }
+    const ok = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '4294967295', emailDomain: '' });
+    expect(ok.status).toBe(302);
+  });
 });
