@@ -48,4 +48,21 @@ describe('the class hour, staff side', () => {
     const ok = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '4294967295', emailDomain: '' });
     expect(ok.status).toBe(302);
   });
+
+  it('answers a mistyped join code on the join page itself, before any sign-in', async () => {
+    const { courseId, designId, instructor } = await classOf(0);
+    const { code } = await openSession(instructor, courseId, designId);
+    const stranger = new Client();
+    // A code of the right shape that no session has (the first letter changed).
+    const wrong = (code[0] === 'A' ? 'B' : 'A') + code.slice(1);
+    const miss = await stranger.post('/join', { code: wrong.toLowerCase() });
+    // Before the fix: 302 to /join/<code>, then sign-in, then "404 Nothing here".
+    expect(miss.status).toBe(404);
+    const text = pageText(await miss.text());
+    expect(text).toContain('No session is open with this code');
+    expect(text).toContain(wrong.toLowerCase());
+    const hit = await stranger.post('/join', { code: code.toLowerCase() });
+    expect(hit.status).toBe(302);
+    expect(hit.headers.get('location')).toBe(`/join/${code}`);
+  });
 });
