@@ -1,8 +1,8 @@
 // The class hour from the staff side in Chromium (issue 12): the Conductor's messages, the Floor
-// of a finished session.
+// of a finished session, cancelling an opened session and the lobby's actions.
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
@@ -77,6 +77,44 @@ describe('the class hour, staff pages', () => {
     // Before the fix: both buttons stayed on every seat row of the finished session.
     await expect.poll(() => page.getByRole('button', { name: /^Nudge/ }).count()).toBe(0);
     expect(await page.getByRole('button', { name: /^Hand to computer/ }).count()).toBe(0);
+    expect(pageErrors).toEqual([]);
+  });
+
+  it('an opened session can be cancelled before the start: the code dies and the lobby is told; a lobby participant can be removed', async () => {
+    const { courseId, sessionId, code, instructor, players } = await classOf(3);
+    const phones: Page[] = [];
+    for (const p of players) {
+      const ctx = await newContext(browser, PHONE);
+      await ctx.addCookies([...p.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+      const phone = await ctx.newPage();
+      await phone.goto(`/play/${sessionId}`);
+      await phone.getByRole('heading', { name: 'You are in' }).waitFor();
+      phones.push(phone);
+    }
+    // One phone goes to sleep in the lobby: not an alert, nothing waits for it yet.
+    await phones[2].context().close();
+
+    const floor = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}/floor`);
+    const lobbyRemove = floor.getByRole('button', { name: /^Remove P-001/ });
+    // Before the fix: no action at all for a participant in the lobby.
+    await lobbyRemove.waitFor();
+    expect(await floor.getByRole('heading', { name: 'Alerts' }).count()).toBe(0);
+    await lobbyRemove.click();
+    await phones[0].getByRole('heading', { name: 'The session is over' }).waitFor();
+    await phones[0].getByText('The instructor took you out of the session.').waitFor();
+
+    const conductor = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}`);
+    await conductor.getByRole('button', { name: 'Cancel the session' }).click();
+    await expect.poll(() => conductor.getByTestId('session-status').textContent()).toContain('Cancelled');
+    expect(await conductor.getByTestId('join-code').count()).toBe(0);
+    await phones[1].getByRole('heading', { name: 'The session was cancelled' }).waitFor();
+
+    // The code no longer opens anything.
+    const late = await (await newContext(browser, PHONE)).newPage();
+    await late.goto('/join');
+    await late.getByLabel('Join code').fill(code);
+    await late.getByRole('button', { name: 'Continue' }).click();
+    await late.getByText('No session is open with this code').waitFor();
     expect(pageErrors).toEqual([]);
   });
 });

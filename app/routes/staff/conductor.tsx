@@ -27,7 +27,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 const pct = (x: number | null) => (x === null ? '—' : `${Math.round(x * 100)} %`);
 
-type Command = 'start' | 'pause' | 'resume' | 'end-after-supergame' | 'end-now';
+type Command = 'start' | 'pause' | 'resume' | 'end-after-supergame' | 'end-now' | 'cancel';
 /** What each command did, in words (the status line above says where the session is). */
 const DONE: Record<Command, string> = {
   start: 'Started: phones are being paired for supergame 1.',
@@ -35,6 +35,7 @@ const DONE: Record<Command, string> = {
   resume: 'Resumed: the timers run again.',
   'end-after-supergame': 'The session will end when the current supergame is over.',
   'end-now': 'Ended: everyone sees their final points.',
+  cancel: 'Cancelled: the join code no longer works, and the phones in the lobby are told.',
 };
 
 export default function Conductor({ loaderData }: Route.ComponentProps) {
@@ -91,7 +92,14 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
           </p>
           {error ? <Notice tone="error">{error}</Notice> : null}
           <div className="flex flex-wrap gap-2">
-            {isInstructor && status === 'open' ? <Button onClick={() => command('start')}>Start the session</Button> : null}
+            {isInstructor && status === 'open' ? (
+              <>
+                <Button onClick={() => command('start')}>Start the session</Button>
+                <Button variant="danger" onClick={() => command('cancel', 'Cancel this session? Its join code stops working and the phones in the lobby are told. It cannot be started afterwards.')}>
+                  Cancel the session
+                </Button>
+              </>
+            ) : null}
             {status === 'running' && canSeeFloor ? (
               <Button variant="secondary" onClick={() => command('pause')}>
                 Pause

@@ -185,6 +185,11 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                 {o.pseudonym}
                 {names?.[o.participantId] ? ` · ${names[o.participantId].name ?? names[o.participantId].email}` : ''} — {o.why.replace(/-/g, ' ')}
                 {o.connected ? '' : ' · ✕ disconnected'}
+                {role === 'instructor' && floor.status === 'open' && o.why === 'lobby' ? (
+                  <button className="ml-2 min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(o.participantId, 'remove', `Remove ${o.pseudonym}`)}>
+                    Remove<span className="sr-only"> {o.pseudonym}</span>
+                  </button>
+                ) : null}
               </li>
             ))}
           </ul>
