@@ -14,6 +14,9 @@ export function Layout({ children }: { children: React.ReactNode }) {
         <meta charSet="utf-8" />
         <meta name="viewport" content="width=device-width, initial-scale=1" />
         <meta name="theme-color" content="#0e5357" />
+        {/* iOS Safari would turn numbers (points, codes) into telephone links, rewriting the page
+            before React hydrates it; React then draws it again and input made meanwhile is lost. */}
+        <meta name="format-detection" content="telephone=no, date=no, email=no, address=no" />
         <Meta />
         <Links />
       </head>

@@ -229,7 +229,7 @@ export const courseStrategies = mysqlTable(
   (t) => [uniqueIndex('course_strategies_code').on(t.courseId, t.code)],
 );
 
-export const SESSION_STATUSES = ['draft', 'open', 'running', 'paused', 'complete', 'archived'] as const;
+export const SESSION_STATUSES = ['draft', 'open', 'running', 'paused', 'complete', 'archived', 'cancelled'] as const;
 export const CHOICE_SOURCES = ['player', 'timeout', 'computer'] as const;
 
 /**

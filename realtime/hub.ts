@@ -177,6 +177,10 @@ export function attachHub(httpServer: HttpServer) {
         const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
         const state = (await runner.state(sessionId))!;
         if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
+        // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
+        if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
+          throw new Refusal('session-not-running', `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`);
+        }
         if (action === 'nudge') {
           io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', { message: 'Your partner is waiting: please choose.' });
           return { done: true as const };

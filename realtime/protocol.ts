@@ -32,7 +32,7 @@ export const ChoiceSubmit = z
   })
   .strict();
 
-export const SESSION_COMMANDS = ['start', 'pause', 'resume', 'end-after-supergame', 'end-now'] as const;
+export const SESSION_COMMANDS = ['start', 'pause', 'resume', 'end-after-supergame', 'end-now', 'cancel'] as const;
 export const SessionControl = z
   .object({
     sessionId: SessionId,

@@ -97,7 +97,7 @@ export class SessionRunner {
       }
     }
     live.state = res.state;
-    if (res.state.status === 'complete' || res.state.status === 'archived') {
+    if (res.state.status === 'complete' || res.state.status === 'archived' || res.state.status === 'cancelled') {
       live.session = { ...live.session, status: res.state.status };
       // A finished session leaves memory a little later; a phone that asks again reloads it.
       const t = setTimeout(() => {

@@ -8,4 +8,5 @@ export const STATUS_WORDS: Record<SessionStatus, { word: string; icon: string }>
   paused: { word: 'Paused', icon: '❚❚' },
   complete: { word: 'Complete', icon: '✓' },
   archived: { word: 'Archived', icon: '▣' },
+  cancelled: { word: 'Cancelled', icon: '⊘' },
 };

@@ -720,6 +720,16 @@ function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: Choice
       d.session(d.now);
       return null;
     }
+    case 'cancel': {
+      // Only before the start: nothing has been played, so nothing is lost; the lobby's phones
+      // are told, and the join code stops working (it admits open, running and paused sessions).
+      const err = transition(d, ['open'], 'cancelled', 'cancel');
+      if (err) return err;
+      d.s.completedAt = d.now;
+      d.log({ type: 'cancel' });
+      d.session(d.now);
+      return null;
+    }
     case 'handToComputer': {
       if (s.status !== 'running' && s.status !== 'paused') {
         return fail('session-not-running', `The session is ${s.status}`);

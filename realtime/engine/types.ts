@@ -7,7 +7,8 @@ import type { Design } from '../../app/lib/design';
 import type { SupergameDraws } from '../../app/lib/draws';
 import type { Matching } from '../../app/lib/matching';
 
-export type SessionStatus = 'draft' | 'open' | 'running' | 'paused' | 'complete' | 'archived';
+/** cancelled: opened, then called off before it started (its join code no longer works) */
+export type SessionStatus = 'draft' | 'open' | 'running' | 'paused' | 'complete' | 'archived' | 'cancelled';
 export type ChoiceSource = 'player' | 'timeout' | 'computer';
 
 /** One stored choice: one seat of one pair in one round. */
@@ -49,6 +50,7 @@ export type LoggedEvent =
   | { type: 'endAfterSupergame' }
   | { type: 'endNow' }
   | { type: 'archive' }
+  | { type: 'cancel' }
   | { type: 'handToComputer'; participantId: string; strategy: string }
   | { type: 'remove'; participantId: string }
   /** a participant who was handed to a computer (or is already known) joins again */
@@ -80,6 +82,7 @@ export type EngineEvent =
   | { type: 'endAfterSupergame' }
   | { type: 'endNow' }
   | { type: 'archive' }
+  | { type: 'cancel' }
   | { type: 'handToComputer'; participantId: string; strategy: string }
   | { type: 'remove'; participantId: string }
   | { type: 'reconnect'; participantId: string }
@@ -293,7 +296,7 @@ export interface ParticipantView {
   /** block termination: the latest end-of-block announcement of this supergame */
   blockNotice: string | null;
   totalPoints: number;
-  notice: 'sitting-out' | 'waiting-to-enter' | 'handed-to-computer' | 'removed' | 'ended-early' | null;
+  notice: 'sitting-out' | 'waiting-to-enter' | 'handed-to-computer' | 'removed' | 'ended-early' | 'cancelled' | null;
 }
 
 export interface FloorSeatView {

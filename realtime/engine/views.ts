@@ -38,15 +38,17 @@ export function participantView(s: EngineState, participantId: string): Particip
   const sgNumber = s.supergame?.number ?? 0;
   const pair = p.pairId ? s.pairs[p.pairId] : null;
   const seat = p.seat;
-  const finished = s.status === 'complete' || s.status === 'archived' || p.status === 'removed';
+  const finished = s.status === 'complete' || s.status === 'archived' || s.status === 'cancelled' || p.status === 'removed';
   const standard = s.design.termination.kind === 'standard';
 
   let status: ParticipantView['status'];
   let notice: ParticipantView['notice'] = null;
-  if (s.status === 'draft' || s.status === 'open') status = 'lobby';
+  // A participant removed in the lobby is out, not still waiting for the start.
+  if ((s.status === 'draft' || s.status === 'open') && p.status !== 'removed') status = 'lobby';
   else if (finished) {
     status = 'finished';
     if (p.status === 'removed') notice = 'removed';
+    else if (s.status === 'cancelled') notice = 'cancelled';
     else if (s.summaries[s.summaries.length - 1]?.truncated) notice = 'ended-early';
   } else if (!pair || seat === null) {
     if (p.entersAt > sgNumber && p.status === 'active') {
@@ -153,7 +155,8 @@ export function floorView(s: EngineState, now: number): FloorView {
   const others: FloorView['others'] = [];
   for (const id of s.joinOrder) {
     const p = s.participants[id];
-    if (p.status === 'active' && connected(id) === false) {
+    // A phone asleep in the lobby is no alarm: nothing waits for it until the session runs.
+    if (p.status === 'active' && connected(id) === false && (s.status === 'running' || s.status === 'paused')) {
       alerts.push({ participantId: id, pseudonym: p.pseudonym, kind: 'disconnected' });
     }
     if (p.pairId) continue;

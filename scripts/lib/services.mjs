@@ -108,20 +108,21 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
   let reused = false;
   const oldPid = fs.existsSync(pidFile) ? Number(fs.readFileSync(pidFile, 'utf8').trim()) : 0;
   if (oldPid && alive(oldPid) && ping()) {
-    reused = true;
-    say(`MariaDB already running from ${path.relative(root, datadir)} (pid ${oldPid}); reusing it`);
-  } else {
-    if (!fs.existsSync(path.join(datadir, 'mysql'))) {
-      fs.mkdirSync(datadir, { recursive: true });
-      const init = spawnSync(
-        which('mariadb-install-db') ?? 'mariadb-install-db',
-        ['--no-defaults', `--datadir=${datadir}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'],
-        { encoding: 'utf8' },
+    // One data folder, one server: a MariaDB left running from this folder on another port
+    // cannot be reused (the app would connect to `port` and find nothing) nor joined by a second.
+    const running = Number(client('SELECT @@port').stdout?.match(/\d+\s*$/)?.[0]);
+    if (running !== port) {
+      await failNow(
+        `MariaDB is already running from ${path.relative(root, datadir)} (pid ${oldPid}) on port ${running}, not on port ${port} as asked`,
+        `Use its port (PARLEY_DB_PORT=${running} for npm start, PARLEY_TEST_DB_PORT=${running} for npm test), or stop it first:\n  mariadb-admin --no-defaults --socket=${sock} -uroot shutdown`,
       );
-      if (init.status !== 0) fail('mariadb-install-db could not create the data folder', init.stderr || init.stdout);
     }
+    reused = true;
+    say(`MariaDB already running from ${path.relative(root, datadir)} on port ${port} (pid ${oldPid}); reusing it`);
+  } else {
+    if (!isInitialised(datadir)) await initialise(datadir);
     if (!(await portIsFree(port))) {
-      fail(
+      await failNow(
         `port ${port} on 127.0.0.1 is taken, so Parley's MariaDB cannot start`,
         `Stop whatever listens there (ss -ltnp 'sport = :${port}'), or pick another port:\n  PARLEY_DB_PORT=3407 npm start`,
       );
@@ -155,7 +156,7 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
     }
     if (!ready) {
       const tail = fs.existsSync(errLog) ? fs.readFileSync(errLog, 'utf8').split('\n').slice(-8).join('\n') : '';
-      fail('MariaDB did not start', `Its log (${path.relative(root, errLog)}) ends with:\n${tail}`);
+      await failNow('MariaDB did not start', `Its log (${path.relative(root, errLog)}) ends with:\n${tail}`);
     }
   }
   const sql = [
@@ -169,8 +170,56 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
     ]),
   ].join(' ');
   const r = client(sql);
-  if (r.status !== 0) fail('could not create the database and its user', r.stderr);
+  if (r.status !== 0) await failNow('could not create the database and its user', r.stderr);
   return { sock, reused };
+}
+
+/** Written into a data folder once mariadb-install-db has finished in it. */
+const READY = 'parley-initialised';
+const SYSTEM_SCHEMAS = new Set(['mysql', 'performance_schema', 'sys']);
+
+/**
+ * A folder is whole when it carries our marker; folders made before the marker existed count as
+ * whole when the system schema was installed to its end (`sys` comes last) or they hold a
+ * database of their own — never throw away a folder that may hold someone's data.
+ */
+function isInitialised(datadir) {
+  if (!fs.existsSync(datadir)) return false;
+  if (fs.existsSync(path.join(datadir, READY))) return true;
+  const entries = fs.readdirSync(datadir, { withFileTypes: true });
+  const whole =
+    (fs.existsSync(path.join(datadir, 'mysql', 'global_priv.frm')) && fs.existsSync(path.join(datadir, 'sys'))) ||
+    entries.some((e) => e.isDirectory() && !SYSTEM_SCHEMAS.has(e.name) && !e.name.startsWith('#'));
+  if (whole) fs.writeFileSync(path.join(datadir, READY), 'made by mariadb-install-db\n');
+  return whole;
+}
+
+/**
+ * mariadb-install-db into a side folder, moved into place only once it finished: a first start
+ * stopped half-way leaves at most the side folder, which the next start throws away.
+ */
+async function initialise(datadir) {
+  if (fs.existsSync(datadir)) {
+    say(`${path.relative(root, datadir)} was left half-made by an earlier start; making it again`);
+    fs.rmSync(datadir, { recursive: true, force: true });
+  }
+  const partial = `${datadir}.partial`;
+  fs.rmSync(partial, { recursive: true, force: true });
+  fs.mkdirSync(partial, { recursive: true });
+  const init = spawnSync(
+    which('mariadb-install-db') ?? 'mariadb-install-db',
+    ['--no-defaults', `--datadir=${partial}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'],
+    { encoding: 'utf8' },
+  );
+  if (init.status !== 0) await failNow('mariadb-install-db could not create the data folder', init.stderr || init.stdout);
+  fs.writeFileSync(path.join(partial, READY), 'made by mariadb-install-db\n');
+  fs.renameSync(partial, datadir);
+}
+
+/** fail(), and nothing after it runs: fail() stops what was started asynchronously. */
+function failNow(message, hint) {
+  fail(message, hint);
+  return new Promise(() => {});
 }
 
 /** maildev on loopback: catches every e-mail; web page and REST API on `web`. */

@@ -61,14 +61,20 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
   return { view, connected, error, emit, socket: socketRef };
 }
 
-/** Milliseconds left until a server deadline, kept in step with the server's clock. */
-export function useCountdown(deadline: number | null, serverOffsetMs: number) {
+/**
+ * Milliseconds left until a server deadline, kept in step with the server's clock, and never more
+ * than the round has (`maxMs`). The offset is measured against the loader's clock, which ran
+ * before the page travelled and hydrated: on a slow phone it is seconds short, and the first
+ * second of a 30 s round read "31 s" or more.
+ */
+export function useCountdown(deadline: number | null, serverOffsetMs: number, maxMs = Infinity) {
   const [now, setNow] = useState(() => Date.now());
   useEffect(() => {
     if (deadline === null) return;
+    setNow(Date.now());
     const t = setInterval(() => setNow(Date.now()), 250);
     return () => clearInterval(t);
   }, [deadline]);
   if (deadline === null) return null;
-  return Math.max(0, deadline - (now + serverOffsetMs));
+  return Math.min(maxMs, Math.max(0, deadline - (now + serverOffsetMs)));
 }

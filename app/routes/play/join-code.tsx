@@ -1,3 +1,4 @@
+import { useEffect, useRef } from 'react';
 import { data, Form, redirect, useNavigation } from 'react-router';
 import type { Route } from './+types/join-code';
 import { PayoffTable } from '#app/components/live/payoff-table';
@@ -51,21 +52,48 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
   const { session, refusal } = await admission(params.code, user);
-  if (refusal) return data({ error: refusal, field: null }, { status: 403 });
+  if (refusal) return data({ error: refusal, field: null, consent: null }, { status: 403 });
   const form = await request.formData();
   const consent = form.get('consent');
   if (session.design.consent && consent !== 'yes' && consent !== 'no') {
-    return data({ error: 'Choose whether your choices may be used for research.', field: 'consent' }, { status: 400 });
+    return data({ error: 'Choose whether your choices may be used for research.', field: 'consent', consent: null }, { status: 400 });
   }
   const res = await runner().dispatch(session.id, { type: 'join', participantId: participantKeyOf(user.id) });
-  if (res.error) return data({ error: res.error.message, field: null }, { status: 409 });
+  // Keep the answer ticked on the page that says why joining failed.
+  if (res.error) return data({ error: res.error.message, field: null, consent: typeof consent === 'string' ? consent : null }, { status: 409 });
   if (session.design.consent) await setConsent(session.id, user.id, consent === 'yes');
   throw redirect(`/play/${session.id}`);
+}
+
+/*
+ * public/remember-consent.js runs as the server's page is parsed, before React takes over, and
+ * remembers which consent answer was ticked. If React has to draw the page again when it hydrates
+ * (a phone's browser rewrote part of it first, e.g. iOS turning numbers into telephone links), the
+ * tick would be lost; useRememberedConsent ticks it again.
+ */
+declare global {
+  interface Window {
+    __parleyConsent?: { path: string; value: string };
+  }
+}
+
+/** Ticks again the answer given before hydration when React's drawing of the page lost it. */
+function useRememberedConsent() {
+  const form = useRef<HTMLFormElement>(null);
+  useEffect(() => {
+    const remembered = window.__parleyConsent;
+    const radios = form.current?.elements.namedItem('consent');
+    if (!remembered || remembered.path !== window.location.pathname || !(radios instanceof RadioNodeList) || radios.value) return;
+    radios.value = remembered.value;
+  }, []);
+  return form;
 }
 
 export default function JoinSession({ loaderData, actionData }: Route.ComponentProps) {
   const busy = useNavigation().state === 'submitting';
   const { refusal, instructions, labels, table, consent, late } = loaderData;
+  const form = useRememberedConsent();
+  const answered = actionData?.consent ?? null;
   return (
     <ParticipantShell email={loaderData.email}>
       <h1 className="text-3xl font-semibold">Session {loaderData.code}</h1>
@@ -81,7 +109,9 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
             <PayoffTable table={table} labels={labels} />
             <div className="flex flex-col gap-3 text-base leading-relaxed whitespace-pre-line text-slate-800">{instructions}</div>
           </section>
-          <Form method="post" className="flex flex-col gap-4">
+          {/* public/remember-consent.js: a file of ours, so the Content-Security-Policy lets it run */}
+          {consent ? <script src="/remember-consent.js" /> : null}
+          <Form method="post" className="flex flex-col gap-4" ref={form}>
             {consent ? (
               <fieldset className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4">
                 <legend className="px-1 font-semibold">Research use of your choices</legend>
@@ -90,10 +120,10 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
                   Your answer does not change your points or your grade.
                 </p>
                 <label className="flex min-h-12 items-center gap-3">
-                  <input type="radio" name="consent" value="yes" className="size-5" /> Yes, my choices may be used for research
+                  <input type="radio" name="consent" value="yes" defaultChecked={answered === 'yes'} className="size-5" /> Yes, my choices may be used for research
                 </label>
                 <label className="flex min-h-12 items-center gap-3">
-                  <input type="radio" name="consent" value="no" className="size-5" /> No, leave my choices out of research
+                  <input type="radio" name="consent" value="no" defaultChecked={answered === 'no'} className="size-5" /> No, leave my choices out of research
                 </label>
                 {actionData?.field === 'consent' ? <FieldError>{actionData.error}</FieldError> : null}
               </fieldset>

@@ -30,7 +30,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     if (staff) throw new Response('You did not take part in this session.', { status: 403 });
     throw nothingHere();
   }
-  return { email: user.email, sessionId: session.id, courseId: session.courseId, view: participantView(state, me), serverNow: Date.now() };
+  return {
+    email: user.email,
+    sessionId: session.id,
+    courseId: session.courseId,
+    roundMs: session.design.roundSeconds * 1000,
+    view: participantView(state, me),
+    serverNow: Date.now(),
+  };
 }
 
 /** The two actions: label plus a distinct shape, equal neutral colours (never colour alone). */
@@ -44,7 +51,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
   const { view: live, connected, emit, socket } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
   const view = (live ?? loaderData.view) as ParticipantView;
   const offset = useRef(loaderData.serverNow - Date.now()).current;
-  const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset);
+  const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset, loaderData.roundMs);
   const [pending, setPending] = useState<Action | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [nudge, setNudge] = useState<string | null>(null);
@@ -179,16 +186,21 @@ export default function Play({ loaderData }: Route.ComponentProps) {
 
       {view.status === 'finished' ? (
         <section className="flex flex-col gap-4" aria-live="polite">
-          <h1 className="text-3xl font-semibold">The session is over</h1>
+          <h1 className="text-3xl font-semibold">{view.notice === 'cancelled' ? 'The session was cancelled' : 'The session is over'}</h1>
+          {view.notice === 'cancelled' ? <p className="text-slate-700">The instructor called it off before it started. Nothing was recorded.</p> : null}
           {view.notice === 'ended-early' ? <p className="text-slate-700">The instructor ended it early.</p> : null}
           {view.notice === 'removed' ? <p className="text-slate-700">The instructor took you out of the session.</p> : null}
-          <p className="num text-2xl" data-testid="final-points">
-            Your points: <strong>{view.totalPoints}</strong>
-          </p>
-          <p className="text-slate-700">Thank you for taking part.</p>
-          <Link to={`/courses/${loaderData.courseId}/debrief/${loaderData.sessionId}/mine`} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white">
-            See your summary
-          </Link>
+          {view.notice === 'cancelled' ? null : (
+            <>
+              <p className="num text-2xl" data-testid="final-points">
+                Your points: <strong>{view.totalPoints}</strong>
+              </p>
+              <p className="text-slate-700">Thank you for taking part.</p>
+              <Link to={`/courses/${loaderData.courseId}/debrief/${loaderData.sessionId}/mine`} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white">
+                See your summary
+              </Link>
+            </>
+          )}
         </section>
       ) : null}
     </ParticipantShell>

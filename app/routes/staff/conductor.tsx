@@ -9,6 +9,7 @@ import { getSession } from '#app/models/live.server';
 import { env } from '#app/utils/env.server';
 import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
+import type { SessionStatus } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
@@ -26,20 +27,34 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 const pct = (x: number | null) => (x === null ? '—' : `${Math.round(x * 100)} %`);
 
+type Command = 'start' | 'pause' | 'resume' | 'end-after-supergame' | 'end-now' | 'cancel';
+/** What each command did, in words (the status line above says where the session is). */
+const DONE: Record<Command, string> = {
+  start: 'Started: phones are being paired for supergame 1.',
+  pause: 'Paused: every timer is stopped until you resume.',
+  resume: 'Resumed: the timers run again.',
+  'end-after-supergame': 'The session will end when the current supergame is over.',
+  'end-now': 'Ended: everyone sees their final points.',
+  cancel: 'Cancelled: the join code no longer works, and the phones in the lobby are told.',
+};
+
 export default function Conductor({ loaderData }: Route.ComponentProps) {
   const { course, role, session, design, joinUrl } = loaderData;
   const canSeeFloor = role === 'instructor' || role === 'assistant';
   const { view, connected, error, emit } = useSessionView(session.id, canSeeFloor ? 'floor' : 'big-screen', null);
-  const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
+  // A command's own result, shown while the session is still in the state the command left it
+  // in: once the state moves on (the supergame ends, the session completes) the line goes.
+  const [message, setMessage] = useState<{ ok: boolean; text: string; status: SessionStatus } | null>(null);
   const status = view?.status ?? session.status;
   const isInstructor = role === 'instructor';
 
-  const command = async (c: 'start' | 'pause' | 'resume' | 'end-after-supergame' | 'end-now', confirmText?: string) => {
+  const command = async (c: Command, confirmText?: string) => {
     if (confirmText && !window.confirm(confirmText)) return;
     const res = await emit('session:control', { sessionId: session.id, command: c });
-    setMessage(res.ok ? { ok: true, text: `Done: the session is ${STATUS_WORDS[(res.data as { status: keyof typeof STATUS_WORDS }).status].word.toLowerCase()}.` } : { ok: false, text: res.message });
+    setMessage(res.ok ? { ok: true, text: DONE[c], status: (res.data as { status: SessionStatus }).status } : { ok: false, text: res.message, status });
   };
   const floor = view && 'counts' in view ? view : null;
+  const shown = message && message.status === status ? message : null;
 
   return (
     <>
@@ -77,7 +92,14 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
           </p>
           {error ? <Notice tone="error">{error}</Notice> : null}
           <div className="flex flex-wrap gap-2">
-            {isInstructor && status === 'open' ? <Button onClick={() => command('start')}>Start the session</Button> : null}
+            {isInstructor && status === 'open' ? (
+              <>
+                <Button onClick={() => command('start')}>Start the session</Button>
+                <Button variant="danger" onClick={() => command('cancel', 'Cancel this session? Its join code stops working and the phones in the lobby are told. It cannot be started afterwards.')}>
+                  Cancel the session
+                </Button>
+              </>
+            ) : null}
             {status === 'running' && canSeeFloor ? (
               <Button variant="secondary" onClick={() => command('pause')}>
                 Pause
@@ -95,7 +117,7 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
               </>
             ) : null}
           </div>
-          <div aria-live="polite">{message ? <Notice tone={message.ok ? 'ok' : 'error'}>{message.text}</Notice> : null}</div>
+          <div aria-live="polite">{shown ? <Notice tone={shown.ok ? 'ok' : 'error'}>{shown.text}</Notice> : null}</div>
           {floor ? (
             <dl className="grid grid-cols-2 gap-3 sm:grid-cols-4" data-testid="live-counts">
               {[

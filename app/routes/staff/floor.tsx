@@ -33,6 +33,8 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
   }, []);
   const floor = view && 'counts' in view ? view : null;
   const now = Date.now() + offset;
+  // Nudges and hand-overs mean something only while rounds are being played.
+  const live = floor?.status === 'running' || floor?.status === 'paused';
 
   const showNames = async () => {
     if (names) return setNames(null);
@@ -147,7 +149,7 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                   <td className="px-3 py-2">
                     <div className="flex flex-col gap-1">
                       {p.seats
-                        .filter((s) => s.participantId && !s.computer)
+                        .filter((s) => live && s.participantId && !s.computer)
                         .map((s) => (
                           <div key={s.participantId} className="flex flex-wrap gap-1">
                             <button className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50" onClick={() => act(s.participantId!, 'nudge', `Nudge ${s.pseudonym}`)}>
@@ -183,6 +185,11 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                 {o.pseudonym}
                 {names?.[o.participantId] ? ` · ${names[o.participantId].name ?? names[o.participantId].email}` : ''} — {o.why.replace(/-/g, ' ')}
                 {o.connected ? '' : ' · ✕ disconnected'}
+                {role === 'instructor' && floor.status === 'open' && o.why === 'lobby' ? (
+                  <button className="ml-2 min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(o.participantId, 'remove', `Remove ${o.pseudonym}`)}>
+                    Remove<span className="sr-only"> {o.pseudonym}</span>
+                  </button>
+                ) : null}
               </li>
             ))}
           </ul>

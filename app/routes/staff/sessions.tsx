@@ -12,12 +12,18 @@ import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
 
+const MAX_SEED = 2 ** 32 - 1;
+const SEED_HINT = `A seed is a whole number from 0 to ${MAX_SEED}, as shown under “Frozen design” on another session’s page. Leave it empty for new draws.`;
+
 const OpenForm = z.object({
   designId: z.coerce.number({ error: 'Choose a design.' }).int().positive('Choose a design.'),
+  // A seed is reused by typing another session's seed as the Conductor shows it (a whole number).
+  // Any other text used to be hashed into a seed silently, so a typo gave other draws unnoticed.
   seed: z
     .string()
     .trim()
-    .max(40, 'At most 40 characters.')
+    .regex(/^\d{0,10}$/, SEED_HINT)
+    .refine((s) => s === '' || Number(s) <= MAX_SEED, SEED_HINT)
     .transform((s) => s || null),
   admission: z.enum(['roster', 'open'], 'Choose who may join.'),
   emailDomain: z
@@ -126,7 +132,8 @@ export default function Sessions({ loaderData, actionData }: Route.ComponentProp
                 name="seed"
                 defaultValue={values.seed}
                 error={errors.seed}
-                hint="Type another session’s seed to reuse its draws and matching (to hold supergame lengths fixed across treatments); empty draws a new one."
+                inputMode="numeric"
+                hint="Type another session’s seed (a whole number, under “Frozen design” on its page) to reuse its draws and matching, to hold supergame lengths fixed across treatments; empty draws a new one."
               />
               <div className="sm:col-span-2">
                 <Button type="submit" disabled={busy}>

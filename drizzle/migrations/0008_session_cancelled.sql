@@ -1,0 +1,1 @@
+ALTER TABLE `sessions` MODIFY COLUMN `status` enum('draft','open','running','paused','complete','archived','cancelled') NOT NULL DEFAULT 'draft';
