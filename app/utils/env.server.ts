@@ -42,7 +42,7 @@ const schema = z.object({
   CODE_REQUESTS_PER_IP: z.coerce.number().int().min(1).default(1000),
   /** join codes matching no open session that one network address may type per 15 minutes on
    * the public /join page (right codes do not count) */
-  JOIN_CODE_MISSES_PER_IP: z.coerce.number().int().min(1).default(30),
+  JOIN_CODE_MISSES_PER_IP: z.coerce.number().int().min(1).default(300),
   /** wrong codes a code takes before it stops working; its owner asks for a new one */
   CODE_WRONG_TRIES: z.coerce.number().int().min(1).max(20).default(5),
   /** results e-mails after a session are sent in the background, at most this many per minute */
