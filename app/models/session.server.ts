@@ -29,8 +29,11 @@ export async function listSessions(courseId: number) {
     .from(sessions)
     .leftJoin(joined, eq(joined.sessionId, sessions.id))
     .where(eq(sessions.courseId, courseId))
-    .orderBy(desc(sessions.createdAt));
-  return rows.map((r) => ({ ...r, simulated: r.simulated === 1, participants: Number(r.participants ?? 0) }));
+    // newest first by id: the demo's sessions carry invented dates that may lie ahead of today
+    .orderBy(desc(sessions.id));
+  // A join code is shown only while it admits anyone: once a session is over, it is history.
+  const admitting = new Set(['open', 'running', 'paused']);
+  return rows.map((r) => ({ ...r, joinCode: admitting.has(r.status) ? r.joinCode : null, simulated: r.simulated === 1, participants: Number(r.participants ?? 0) }));
 }
 
 export type OpenResult = { ok: true; sessionId: number } | { ok: false; field: string; message: string };
