@@ -53,13 +53,14 @@ export interface CsvOptions {
  * Rows → CSV text: `\n` line ends, a final `\n` (R's read.csv and pandas read it as it is), the
  * columns in the order given. An empty list of rows gives the header line alone.
  */
-export function csvLines(rows: readonly Record<string, Value>[], columns: readonly CsvColumn[], opts: CsvOptions = {}): string {
+export function csvLines(rows: readonly object[], columns: readonly CsvColumn[], opts: CsvOptions = {}): string {
   const header = opts.header ?? true;
   if (columns.length === 0) return '';
   const fields = columns.map((c) => neutraliseCell(c.key));
   // papaparse reads an empty `data` as one empty row; write the header alone ourselves
   if (rows.length === 0) return header ? Papa.unparse([fields], { newline: '\n' }) + '\n' : '';
-  const data = rows.map((row) => columns.map((c) => cellOf(row[c.key], c.type)));
+  // any row shape (a codebook entry, a panel row): columns name the keys that are read
+  const data = rows.map((row) => columns.map((c) => cellOf(Reflect.get(row, c.key) as Value, c.type)));
   const body = Papa.unparse(
     { fields, data },
     { header, newline: '\n', escapeFormulae: false },

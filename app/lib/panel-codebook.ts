@@ -108,7 +108,7 @@ export const FORMULA_NOTE =
   'A text cell that begins with =, +, -, @, a tab or a carriage return is prefixed with a single quote (\'), so that spreadsheets show it as text instead of running it as a formula.';
 
 export function codebookCsv(identified = false): string {
-  return csvLines(codebookFor(identified) as unknown as Record<string, string>[], csvColumns(['column', 'type', 'meaning', 'values'], 'text'));
+  return csvLines(codebookFor(identified), csvColumns(['column', 'type', 'meaning', 'values'], 'text'));
 }
 
 const cell = (s: string) => s.replace(/\|/g, '\\|');

@@ -376,7 +376,7 @@ export async function* panelCsvPieces(list: readonly PanelSession[], opts: Panel
   yield csvLines([], columns);
   // Each page through the one CSV writer: treatments and names come from people and are
   // neutralised as text; the codebook's number columns stay numbers (negative payoffs too).
-  for await (const page of panelPages(list, opts)) yield csvLines(page.rows as unknown as Record<string, unknown>[], columns, { header: false });
+  for await (const page of panelPages(list, opts)) yield csvLines(page.rows, columns, { header: false });
 }
 
 async function* panelJsonPieces(list: readonly PanelSession[], opts: PanelOptions): AsyncGenerator<string> {
