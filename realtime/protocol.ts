@@ -3,8 +3,13 @@
 import { z } from 'zod';
 import type { BigScreenView, ChoiceRow, ErrorCode, FloorView, ParticipantView } from './engine/types';
 
-/** `rate-limited`: the socket sent this kind of event faster than realtime/rate-limit.ts allows. */
-export const ACK_ERROR_CODES = ['bad-payload', 'unauthorized', 'forbidden', 'not-found', 'server-error', 'rate-limited'] as const;
+/**
+ * `rate-limited`: the socket sent this kind of event faster than realtime/rate-limit.ts allows.
+ * `unavailable`: the database did not answer within a short bound (a stall or an outage). The
+ * choice may or may not be stored: the phone keeps it and sends it again with the same client
+ * choice id, which returns the stored row if it was.
+ */
+export const ACK_ERROR_CODES = ['bad-payload', 'unauthorized', 'forbidden', 'not-found', 'server-error', 'rate-limited', 'unavailable'] as const;
 export type AckErrorCode = (typeof ACK_ERROR_CODES)[number] | ErrorCode;
 
 export type Ack<T> = { ok: true; data: T } | { ok: false; code: AckErrorCode; message: string };
@@ -67,6 +72,11 @@ export interface ServerToClientEvents {
   'view:big-screen': (view: BigScreenView) => void;
   /** staff asked this participant to choose */
   'participant:nudge': (payload: { message: string }) => void;
+  /**
+   * Sent to every socket when the server loses (ok: false) or regains (ok: true) its database, and
+   * to a socket on connect while it is lost: phones say "reconnecting" and keep their choices.
+   */
+  'storage:status': (payload: { ok: boolean }) => void;
 }
 
 export interface SocketData {
