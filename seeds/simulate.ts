@@ -51,7 +51,7 @@ export function simulateSession(opts: {
   let now = opts.startMs;
   const effects: Effect[] = [];
   const apply = (e: EngineEvent) => {
-    const res = step(state, e, now, { staffViews: 'refresh' });
+    const res = step(state, e, now, { views: 'none' });
     if (res.error) throw new Error(`simulation: ${e.type} failed: ${res.error.code} ${res.error.message}`);
     state = res.state;
     for (const x of res.effects) if (x.type.startsWith('persist-')) effects.push(x);

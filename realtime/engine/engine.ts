@@ -786,6 +786,23 @@ function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: Choice
       settle(d);
       return null;
     }
+    case 'grace': {
+      if (s.status !== 'running' && s.status !== 'paused') return null;
+      const waiting = openPairIds(s).filter((id) => !(s.pairs[id].pending[0] && s.pairs[id].pending[1]));
+      // nothing to extend: no row, so a replay (which only sees rows) stays identical
+      if (waiting.length === 0) return null;
+      d.log({ type: 'grace' });
+      for (const id of waiting) {
+        const pair = d.pair(id);
+        if (s.status === 'running') {
+          pair.deadline = d.now + roundMs(d);
+          scheduleTimer(d, pair);
+        } else {
+          pair.remainingMs = roundMs(d);
+        }
+      }
+      return null;
+    }
     case 'tick': {
       if (s.status !== 'running') return null;
       const due = openPairIds(s).filter((id) => {
@@ -822,30 +839,26 @@ export function step(state: EngineState, event: EngineEvent, now: number, option
       effects: [],
       error: fail('already-chosen', 'This round already has a stored choice'),
       row: out.alreadyChosen,
+      touched: [],
     };
   }
-  if (out) return { state, effects: [], error: out };
+  if (out) return { state, effects: [], error: out, touched: [] };
   const s = d.s;
   const quiet = event.type === 'tick' && d.persists.length === 0;
+  const touched = quiet ? [] : d.touchAll ? s.joinOrder : s.joinOrder.filter((id) => d.touched.has(id));
   const broadcasts: Effect[] = [];
-  if (!quiet) {
-    const ids = d.touchAll ? s.joinOrder : s.joinOrder.filter((id) => d.touched.has(id));
-    for (const id of ids) {
+  if (!quiet && options.views !== 'none') {
+    for (const id of touched) {
       broadcasts.push({
         type: 'broadcast',
         room: roomOf('participant', s.sessionId, id),
         payload: { kind: 'participant-view', view: participantView(s, id) },
       });
     }
-    if (options.staffViews === 'refresh') {
-      broadcasts.push({ type: 'refresh-view', room: roomOf('staff', s.sessionId), view: 'floor' });
-      broadcasts.push({ type: 'refresh-view', room: roomOf('session', s.sessionId), view: 'big-screen' });
-    } else {
-      broadcasts.push({ type: 'broadcast', room: roomOf('staff', s.sessionId), payload: { kind: 'floor-view', view: floorView(s, now) } });
-      broadcasts.push({ type: 'broadcast', room: roomOf('session', s.sessionId), payload: { kind: 'big-screen-view', view: bigScreenView(s) } });
-    }
+    broadcasts.push({ type: 'broadcast', room: roomOf('staff', s.sessionId), payload: { kind: 'floor-view', view: floorView(s, now) } });
+    broadcasts.push({ type: 'broadcast', room: roomOf('session', s.sessionId), payload: { kind: 'big-screen-view', view: bigScreenView(s) } });
   }
-  return { state: s, effects: [...d.persists, ...d.timers, ...broadcasts], row: d.row };
+  return { state: s, effects: [...d.persists, ...d.timers, ...broadcasts], row: d.row, touched };
 }
 
 /**

@@ -59,7 +59,7 @@ export function rebuild(
   let state = createSession({ sessionId: opts.sessionId, design, seed });
   const produced = new Map<number, Effect>();
   const apply = (event: EngineEvent, at: number, seq: number): void => {
-    const res = step(state, event, at);
+    const res = step(state, event, at, { views: 'none' });
     if (res.error) throw new RebuildError(`Replaying ${event.type} at #${seq} failed: ${res.error.code} (${res.error.message})`, seq);
     state = res.state;
     for (const e of res.effects) {

@@ -54,7 +54,12 @@ export type LoggedEvent =
   | { type: 'handToComputer'; participantId: string; strategy: string }
   | { type: 'remove'; participantId: string }
   /** a participant who was handed to a computer (or is already known) joins again */
-  | { type: 'join'; participantId: string };
+  | { type: 'join'; participantId: string }
+  /**
+   * After a restart or a database outage: every round still waiting for a choice gets its full time
+   * again from now, so nobody is timed out for a round their phone could not answer.
+   */
+  | { type: 'grace' };
 
 export interface LogRow {
   seq: number;
@@ -87,6 +92,7 @@ export type EngineEvent =
   | { type: 'remove'; participantId: string }
   | { type: 'reconnect'; participantId: string }
   | { type: 'disconnect'; participantId: string }
+  | { type: 'grace' }
   | { type: 'tick' };
 
 export type ErrorCode =
@@ -355,7 +361,8 @@ export type Effect =
   /** write the row; acknowledge the choice only after the commit */
   | { type: 'persist-choice'; row: ChoiceRow }
   | { type: 'persist-participant'; row: ParticipantRow }
-  | { type: 'persist-log'; row: LogRow }
+  /** `by`: the user who caused it, when the runner writes a batch of several users' events */
+  | { type: 'persist-log'; row: LogRow; by?: number | null }
   /** informational (rebuild derives it): the session row's status and current supergame */
   | { type: 'persist-session'; status: SessionStatus; supergame: number; at: number }
   /** informational: the draws of the session, stored when it opens */
@@ -364,20 +371,16 @@ export type Effect =
   | { type: 'persist-matching'; matching: Matching; pairs: { pairId: string; participants: [string | null, string | null]; computerStrategy: string | null }[] }
   | { type: 'schedule-timer'; key: string; at: number; event: EngineEvent }
   | { type: 'cancel-timer'; key: string }
-  | { type: 'broadcast'; room: string; payload: BroadcastPayload }
-  /**
-   * With step option staffViews: 'refresh': the floor or big-screen view changed; the hub computes
-   * floorView / bigScreenView when it sends (and may coalesce several refreshes into one).
-   */
-  | { type: 'refresh-view'; room: string; view: 'floor' | 'big-screen' };
+  | { type: 'broadcast'; room: string; payload: BroadcastPayload };
 
 export interface StepOptions {
   /**
-   * 'payload' (default): broadcast effects carry the floor and big-screen views.
-   * 'refresh': refresh-view markers instead — for large sessions, where building and sending the
-   * whole floor on every choice is wasteful (≈ 0.6 ms to build for 500 pairs).
+   * 'payload' (default): broadcast effects carry the participant, floor and big-screen views.
+   * 'none': no views are built; `touched` says whose participant view changed, and the caller
+   * builds views (the live runner builds each once per batch and the staff views a few times a
+   * second; a rebuild builds none).
    */
-  staffViews?: 'payload' | 'refresh';
+  views?: 'payload' | 'none';
 }
 
 export interface StepResult {
@@ -386,4 +389,6 @@ export interface StepResult {
   error?: EngineError;
   /** the stored row for a choice (new, or the earlier one on 'already-chosen') */
   row?: ChoiceRow;
+  /** participants whose own view changed in this step (empty on an error or a quiet tick) */
+  touched: readonly string[];
 }

@@ -593,17 +593,57 @@ describe('views', () => {
 });
 
 describe('large sessions', () => {
-  it('staffViews: "refresh" replaces the floor and big-screen payloads with markers the hub can coalesce', () => {
+  it('views: "none" builds no views and says whose view changed, for the runner to build once per batch', () => {
     const { hub, ids } = startSession(2, { supergames: 1 }, 62);
     const res = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' }, hub.now + SEC, {
-      staffViews: 'refresh',
+      views: 'none',
     });
-    expect(res.effects.filter((e) => e.type === 'refresh-view')).toEqual([
-      { type: 'refresh-view', room: 'staff:sess-1', view: 'floor' },
-      { type: 'refresh-view', room: 'session:sess-1', view: 'big-screen' },
-    ]);
-    const payloads = res.effects.flatMap((e) => (e.type === 'broadcast' ? [e.payload.kind] : []));
-    expect(payloads).toEqual(['participant-view', 'participant-view']);
+    expect(res.effects.filter((e) => e.type === 'broadcast')).toEqual([]);
+    expect(res.effects.filter((e) => e.type === 'persist-choice')).toHaveLength(1);
+    // the chooser's view changed, and the partner's (the pair's "waiting for partner" line)
+    expect([...res.touched].sort()).toEqual([...ids].sort());
+    const full = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' }, hub.now + SEC);
+    expect(full.touched).toEqual(res.touched);
+    expect(full.effects.filter((e) => e.type !== 'broadcast')).toEqual(res.effects);
+  });
+});
+
+describe('grace after an outage or a restart', () => {
+  it('gives every round still waiting its full time from now, logs it once, and a rebuild repeats it', () => {
+    const { hub, ids } = startSession(4, { supergames: 2, roundSeconds: 30 }, 'grace');
+    const [a] = ids;
+    const pairOfA = hub.state.participants[a].pairId!;
+    const other = hub.state.supergame!.pairIds.find((id) => id !== pairOfA)!;
+    hub.ok({ type: 'choose', participantId: a, supergame: 1, round: 1, action: 'C', clientChoiceId: 'g-a' }, hub.now + 5 * SEC);
+    const oldDeadline = hub.state.pairs[other].deadline!;
+    // the database stalls past the deadline; the timer's timeout is not applied during the stall,
+    // and when it comes back the runner applies grace first
+    const back = oldDeadline + 20 * SEC;
+    const res = hub.ok({ type: 'grace' }, back);
+    expect(res.effects.filter((e) => e.type === 'persist-log')).toEqual([{ type: 'persist-log', row: { seq: hub.state.seq, at: back, event: { type: 'grace' } } }]);
+    for (const id of hub.state.supergame!.pairIds) expect(hub.state.pairs[id].deadline).toBe(back + 30 * SEC);
+    expect(res.effects).toContainEqual({ type: 'schedule-timer', key: `sess-1:${other}:1`, at: back + 30 * SEC, event: { type: 'timeout', pairId: other, round: 1 } });
+    // the old timer, if it still fires, is refused: nobody is timed out for a round their phone could not answer
+    expect(hub.dispatch({ type: 'timeout', pairId: other, round: 1 }, back + SEC).error?.code).toBe('timer-not-due');
+    expect(logical(rebuildOf(hub))).toEqual(logical(hub.state));
+    // a grace with no round waiting (here: paused rounds only get their time back) stores nothing new
+    hub.ok({ type: 'pause' }, back + 2 * SEC);
+    const paused = hub.ok({ type: 'grace' }, back + 50 * SEC);
+    expect(hub.state.pairs[other].remainingMs).toBe(30 * SEC);
+    expect(paused.effects.filter((e) => e.type === 'schedule-timer')).toEqual([]);
+    expect(logical(rebuildOf(hub))).toEqual(logical(hub.state));
+  });
+
+  it('stores nothing when no round is waiting (before the start, after the end)', () => {
+    const hub = new TestHub(makeDesign({ supergames: 1 }), 'grace-idle');
+    hub.ok({ type: 'open' });
+    joinAll(hub, 2);
+    const stored = (at: number) => hub.ok({ type: 'grace' }, at).effects.filter((e) => e.type !== 'broadcast');
+    expect(stored(hub.now + SEC)).toEqual([]);
+    hub.ok({ type: 'start' }, hub.now + SEC);
+    play(hub, rngOf(5));
+    expect(hub.state.status).toBe('complete');
+    expect(stored(hub.now + SEC)).toEqual([]);
   });
 });
 
