@@ -253,6 +253,12 @@ export const sessions = mysqlTable(
     joinCode: varchar('join_code', { length: 8 }).unique(),
     status: mysqlEnum('status', SESSION_STATUSES).notNull().default('draft'),
     currentSupergame: int('current_supergame').notNull().default(0),
+    /**
+     * The engine's sequence number of the last stored row of this session (participants, choices,
+     * log). The live runner claims the next range with one conditional UPDATE, which also locks the
+     * row until its transaction commits: the check that no other writer moved the session on.
+     */
+    seq: int('seq').notNull().default(0),
     /** admit only course members (roster) or anyone signed in, optionally by e-mail domain */
     admission: mysqlEnum('admission', ['roster', 'open']).notNull().default('roster'),
     emailDomain: varchar('email_domain', { length: 120 }),

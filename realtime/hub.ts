@@ -33,6 +33,7 @@ import {
 } from './protocol';
 import { EventLimiter } from './rate-limit';
 import { SessionRunner } from './runner';
+import { StorageUnavailable } from './storage-health';
 
 export type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
 
@@ -53,7 +54,14 @@ export function attachHub(httpServer: HttpServer) {
     // Every payload is a few hundred bytes; socket.io's default (1 MB) would let one message hold a megabyte.
     maxHttpBufferSize: 32 * 1024,
   });
-  const runner = new SessionRunner(io as unknown as ConstructorParameters<typeof SessionRunner>[0]);
+  const runner = new SessionRunner({
+    listening: (room) => (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
+    send: (room, event, payload) => {
+      // socket.io's emit is typed per event; the runner's `send` is the same contract in one signature
+      const target = room === null ? io : io.to(room);
+      (target.emit as (e: typeof event, p: typeof payload) => boolean)(event, payload);
+    },
+  });
   setRunner(runner);
 
   // Every socket belongs to one server-side sign-in; its rooms let a sign-out, a removal or a role
@@ -101,6 +109,7 @@ export function attachHub(httpServer: HttpServer) {
     const userId = socket.data.userId;
     const me = String(userId);
     void socket.join([userRoom(userId), authRoom(socket.data.authKey)]);
+    if (!runner.health.ok) socket.emit('storage:status', { ok: false });
     /** sessions this socket plays in, to report its connection state */
     const playing = new Set<number>();
     // Before handle(): a flood is answered `rate-limited` without validating or running anything.
@@ -229,7 +238,7 @@ async function handle<S extends z.ZodType, T>(schema: S, payload: unknown, ack: 
   try {
     reply({ ok: true, data: await run(parsed.data) });
   } catch (error) {
-    if (error instanceof Refusal) {
+    if (error instanceof Refusal || error instanceof StorageUnavailable) {
       reply({ ok: false, code: error.code, message: error.message });
       return;
     }

@@ -1,28 +1,58 @@
 // The session runner: one engine state per live session in this process, rebuilt from MariaDB
-// whenever it may be stale, stepped one event at a time per session, persisted in one transaction
-// per step, then acknowledged, then timers and broadcasts. Created once, in server.ts, and reached
-// from route modules through globalThis (app/utils/runner.server.ts), because the built app bundle
-// and server.ts would otherwise each hold their own copy.
+// whenever it may be stale. Events of a session are applied in batches (group commit): while one
+// batch is being written, the events that arrive wait; when it commits they are stepped one after
+// the other on the new state and written together in one transaction — one lock and one sequence
+// check (the session row's `seq`), one multi-row INSERT — and only then acknowledged. A participant's
+// view is built once per batch; the Floor and the Big screen at most every STAFF_VIEW_MS, and only
+// while someone watches. Created once, in server.ts, and reached from route modules through
+// globalThis (app/utils/runner.server.ts), because the built app bundle and server.ts would
+// otherwise each hold their own copy.
 import { and, eq, inArray, sql } from 'drizzle-orm';
-import type { Server } from 'socket.io';
-import { getSession, rebuildSession, type StoredSession, writeEffects } from '#app/models/live.server';
+import { getSession, rebuildSession, StaleState, type StoredSession, writeEffects } from '#app/models/live.server';
 import { db } from '#app/utils/db.server';
 import { sessions } from '#drizzle/schema';
-import { resumeEffects, step } from './engine/engine';
+import { resumeEffects, roomOf, step } from './engine/engine';
 import type { Effect, EngineEvent, EngineState, StepResult } from './engine/types';
-import { bigScreenView, floorView } from './engine/views';
+import { bigScreenView, floorView, participantView } from './engine/views';
 import type { ServerToClientEvents } from './protocol';
+import { isStorageError, StorageHealth, StorageUnavailable } from './storage-health';
+
+/** What the runner needs of socket.io: who listens where, and sending to a room (or to all). */
+export interface Broadcaster {
+  listening(room: string): boolean;
+  send<E extends keyof ServerToClientEvents>(room: string | null, event: E, payload: Parameters<ServerToClientEvents[E]>[0]): void;
+}
+
+interface Waiter {
+  event: EngineEvent;
+  userId: number | null;
+  settle: (outcome: StepResult | Error) => void;
+}
 
 interface Live {
   session: StoredSession;
   state: EngineState;
-  queue: Promise<unknown>;
+  /** events waiting for the batch in flight to commit */
+  waiting: Waiter[];
+  writing: boolean;
+  staff: { dirty: boolean; last: number; timer: NodeJS.Timeout | null };
 }
 
-class StaleState extends Error {}
+const numberFromEnv = (name: string, fallback: number) => {
+  const v = Number(process.env[name]);
+  return Number.isFinite(v) && v > 0 ? v : fallback;
+};
 
 const TICK_MS = 5000;
 const EVICT_AFTER_MS = 60_000;
+/** how long an event may wait for MariaDB before it is refused with 'unavailable' */
+const STORAGE_WAIT_MS = numberFromEnv('PARLEY_STORAGE_WAIT_MS', 3000);
+/** the Floor and the Big screen are rebuilt at most this often per session */
+const STAFF_VIEW_MS = numberFromEnv('PARLEY_STAFF_VIEW_MS', 250);
+/** a batch larger than this is split: one transaction stays a few thousand rows at most */
+const MAX_BATCH = 2000;
+
+const finished = (status: string) => status === 'complete' || status === 'archived' || status === 'cancelled';
 
 export class SessionRunner {
   private live = new Map<number, Live>();
@@ -30,23 +60,56 @@ export class SessionRunner {
   private timers = new Map<string, NodeJS.Timeout>();
   private tick: NodeJS.Timeout;
   private closed = false;
+  private recovering = false;
+  readonly health: StorageHealth;
 
-  constructor(private io: Server<Record<string, never>, ServerToClientEvents> | null) {
+  constructor(private out: Broadcaster | null) {
     this.tick = setInterval(() => void this.tickAll(), TICK_MS);
     this.tick.unref();
+    this.health = new StorageHealth(
+      () => db().execute(sql`SELECT 1`),
+      (ok) => {
+        console.warn(ok ? '[parley] database answers again: every waiting round gets its full time' : '[parley] database not answering: choices are refused until it does');
+        this.out?.send(null, 'storage:status', { ok });
+        if (ok) void this.graceAll();
+      },
+    );
   }
 
-  /** After a restart: every open, running or paused session is rebuilt and its timers re-armed. */
+  /**
+   * After a restart: every open, running or paused session is rebuilt, and every round still
+   * waiting for a choice gets its full time from now (the phones could not answer while the
+   * server was down).
+   */
   async recoverAll() {
     const rows = await db()
       .select({ id: sessions.id })
       .from(sessions)
       .where(and(inArray(sessions.status, ['open', 'running', 'paused']), eq(sessions.simulated, 0)));
-    for (const r of rows) {
-      const live = await this.load(r.id);
-      if (live) this.applyTimers(r.id, resumeEffects(live.state));
+    this.recovering = true;
+    try {
+      for (const r of rows) await this.graceOne(r.id);
+    } finally {
+      this.recovering = false;
     }
     return rows.length;
+  }
+
+  private async graceAll() {
+    for (const [id, live] of this.live) {
+      if (live.state.status === 'running' || live.state.status === 'paused') await this.graceOne(id);
+    }
+  }
+
+  private async graceOne(sessionId: number) {
+    try {
+      await this.dispatch(sessionId, { type: 'grace' });
+    } catch (error) {
+      // Storage lost again: the next recovery tries again. Meanwhile arm what the state has.
+      const live = this.live.get(sessionId);
+      if (live) this.applyTimers(sessionId, resumeEffects(live.state));
+      if (!(error instanceof StorageUnavailable)) console.error('[parley] grace', error);
+    }
   }
 
   /** The current engine state of a session (loaded from the database if needed). */
@@ -60,54 +123,162 @@ export class SessionRunner {
   }
 
   /**
-   * Applies one event. Errors come back in the result (with the state unchanged); the result's
-   * `row` is a stored choice. Persisted before anything is acknowledged or broadcast.
+   * Applies one event, in the next batch of its session. Engine errors come back in the result
+   * (with the state unchanged); the result's `row` is a stored choice. Resolves only after the
+   * batch is committed. Throws StorageUnavailable when MariaDB is known to be lost or does not
+   * answer within STORAGE_WAIT_MS (the event may still be stored: a retry of a choice with the
+   * same client choice id returns the stored row).
    */
-  async dispatch(sessionId: number, event: EngineEvent, opts: { userId?: number | null } = {}): Promise<StepResult> {
-    const live = await this.load(sessionId);
-    if (!live) throw new Error(`no session ${sessionId}`);
-    const run = live.queue.then(() => this.apply(live, event, opts.userId ?? null));
-    live.queue = run.catch(() => undefined);
-    return run;
+  dispatch(sessionId: number, event: EngineEvent, opts: { userId?: number | null } = {}): Promise<StepResult> {
+    if (!this.health.ok && event.type !== 'grace') return Promise.reject(new StorageUnavailable());
+    return new Promise<StepResult>((resolve, reject) => {
+      let done = false;
+      const waiter: Waiter = {
+        event,
+        userId: opts.userId ?? null,
+        settle: (outcome) => {
+          if (done) return;
+          done = true;
+          clearTimeout(bound);
+          if (outcome instanceof Error) reject(outcome);
+          else resolve(outcome);
+        },
+      };
+      const bound = setTimeout(() => {
+        if (done) return;
+        // Still queued: it will not be applied. Already in the batch being written: its outcome
+        // is unknown until MariaDB answers; the phone's retry finds out.
+        const live = this.live.get(sessionId);
+        if (live) live.waiting = live.waiting.filter((w) => w !== waiter);
+        this.health.trouble();
+        waiter.settle(new StorageUnavailable());
+      }, STORAGE_WAIT_MS);
+      bound.unref();
+      this.load(sessionId).then(
+        (live) => {
+          if (done) return;
+          if (!live) return waiter.settle(new Error(`no session ${sessionId}`));
+          live.waiting.push(waiter);
+          this.pump(live);
+        },
+        (error) => waiter.settle(this.storageFailure(error)),
+      );
+    });
   }
 
-  private async apply(live: Live, event: EngineEvent, userId: number | null, retried = false): Promise<StepResult> {
-    const res = step(live.state, event, Date.now(), { staffViews: 'refresh' });
-    if (res.error) return res;
-    const persists = res.effects.filter((e) => e.type.startsWith('persist-'));
-    if (persists.length) {
-      try {
-        await db().transaction(async (tx) => {
-          // Serialise steps of this session across processes, and refuse to write on a stale state.
-          await tx.execute(sql`SELECT id FROM sessions WHERE id = ${live.session.id} FOR UPDATE`);
-          const [rows] = (await tx.execute(
-            sql`SELECT GREATEST(
-                  COALESCE((SELECT MAX(seq) FROM choices WHERE session_id = ${live.session.id}), 0),
-                  COALESCE((SELECT MAX(seq) FROM session_log WHERE session_id = ${live.session.id}), 0),
-                  COALESCE((SELECT MAX(seq) FROM session_participants WHERE session_id = ${live.session.id}), 0)) AS seq`,
-          )) as unknown as [{ seq: number | string }[]];
-          if (Number(rows[0]?.seq ?? 0) !== live.state.seq) throw new StaleState();
-          await writeEffects(tx, live.session.id, persists, userId);
-        });
-      } catch (error) {
-        if (retried) throw error;
-        // Another process (or a failed write) moved the session on: rebuild and try once more.
-        live.state = await rebuildSession(live.session);
-        return this.apply(live, event, userId, true);
+  /** A storage failure becomes 'unavailable' (and marks storage lost); anything else stays itself. */
+  private storageFailure(error: unknown): Error {
+    if (!isStorageError(error)) return error instanceof Error ? error : new Error(String(error));
+    this.health.trouble();
+    return new StorageUnavailable();
+  }
+
+  private pump(live: Live) {
+    if (live.writing || live.waiting.length === 0) return;
+    const batch = live.waiting.splice(0, MAX_BATCH);
+    live.writing = true;
+    void this.write(live, batch).finally(() => {
+      live.writing = false;
+      this.pump(live);
+    });
+  }
+
+  /** Step a batch on the current state, store it in one transaction, then answer everyone. */
+  private async write(live: Live, batch: Waiter[]): Promise<void> {
+    try {
+      for (let attempt = 0; ; attempt++) {
+        const from = live.state;
+        let state = from;
+        const results: StepResult[] = [];
+        const persists: Effect[] = [];
+        const timers: Effect[] = [];
+        const touched = new Set<string>();
+        for (const w of batch) {
+          const res = step(state, w.event, Date.now(), { views: 'none' });
+          results.push(res);
+          if (res.error) continue;
+          state = res.state;
+          for (const e of res.effects) {
+            if (e.type === 'persist-log') persists.push({ ...e, by: w.userId });
+            else if (e.type.startsWith('persist-')) persists.push(e);
+            else timers.push(e);
+          }
+          for (const id of res.touched) touched.add(id);
+        }
+        if (persists.length) {
+          try {
+            await db().transaction((tx) => writeEffects(tx, live.session.id, persists, null, { claim: { from: from.seq, to: state.seq } }));
+          } catch (error) {
+            // Another process (or a commit whose answer was lost) moved the session on: rebuild
+            // from the stored rows and step the batch again, once. A stored choice then comes back
+            // as 'already-chosen' with its row, which the hub acknowledges as a success.
+            if (error instanceof StaleState && attempt === 0) {
+              live.state = await rebuildSession(live.session);
+              continue;
+            }
+            throw error;
+          }
+        }
+        live.state = state;
+        batch.forEach((w, i) => w.settle(results[i]));
+        this.after(live, timers, touched, results.some((r) => !r.error));
+        return;
+      }
+    } catch (error) {
+      const failure = this.storageFailure(error);
+      if (!(failure instanceof StorageUnavailable)) console.error('[parley] batch failed', error);
+      for (const w of batch) w.settle(failure);
+    }
+  }
+
+  /** After a commit: timers, participants' own views, staff views later, eviction when finished. */
+  private after(live: Live, timers: readonly Effect[], touched: ReadonlySet<string>, changed: boolean) {
+    const id = live.session.id;
+    this.applyTimers(id, timers);
+    if (this.out) {
+      const sid = String(id);
+      for (const p of touched) {
+        const room = roomOf('participant', sid, p);
+        if (this.out.listening(room)) this.out.send(room, 'view:participant', participantView(live.state, p));
       }
     }
-    live.state = res.state;
-    if (res.state.status === 'complete' || res.state.status === 'archived' || res.state.status === 'cancelled') {
-      live.session = { ...live.session, status: res.state.status };
+    if (changed) this.staffChanged(live);
+    if (finished(live.state.status) && !finished(live.session.status)) {
+      live.session = { ...live.session, status: live.state.status };
       // A finished session leaves memory a little later; a phone that asks again reloads it.
       const t = setTimeout(() => {
-        if (this.live.get(live.session.id) === live) this.live.delete(live.session.id);
+        if (this.live.get(id) === live) this.live.delete(id);
       }, EVICT_AFTER_MS);
       t.unref();
     }
-    this.applyTimers(live.session.id, res.effects);
-    this.broadcast(live, res.effects);
-    return res;
+  }
+
+  /** Coalesce: the staff views of a session go out at most every STAFF_VIEW_MS, after the acks. */
+  private staffChanged(live: Live) {
+    const s = live.staff;
+    s.dirty = true;
+    if (s.timer || !this.out) return;
+    s.timer = setTimeout(
+      () => {
+        s.timer = null;
+        this.flushStaff(live);
+      },
+      Math.max(0, s.last + STAFF_VIEW_MS - Date.now()),
+    );
+    s.timer.unref();
+  }
+
+  private flushStaff(live: Live) {
+    const s = live.staff;
+    if (!s.dirty || !this.out) return;
+    s.dirty = false;
+    s.last = Date.now();
+    const sid = String(live.session.id);
+    const floor = roomOf('staff', sid);
+    const screen = roomOf('session', sid);
+    // Nobody watching: nothing is built (socket.io would encode the frame before it looks at the room).
+    if (this.out.listening(floor)) this.out.send(floor, 'view:floor', floorView(live.state, s.last));
+    if (this.out.listening(screen)) this.out.send(screen, 'view:big-screen', bigScreenView(live.state));
   }
 
   private applyTimers(sessionId: number, effects: readonly Effect[]) {
@@ -121,28 +292,16 @@ export class SessionRunner {
         const t = setTimeout(
           () => {
             this.timers.delete(e.key);
-            if (!this.closed) void this.dispatch(sessionId, event).catch((err) => console.error('[parley] timer', err));
+            // Storage lost: no timeout now. Recovery applies grace, which arms this round again.
+            if (this.closed || !this.health.ok) return;
+            this.dispatch(sessionId, event).catch((err) => {
+              if (!(err instanceof StorageUnavailable)) console.error('[parley] timer', err);
+            });
           },
           Math.max(0, e.at - Date.now()),
         );
         t.unref();
         this.timers.set(e.key, t);
-      }
-    }
-  }
-
-  private broadcast(live: Live, effects: readonly Effect[]) {
-    if (!this.io) return;
-    const refreshed = new Set<string>();
-    for (const e of effects) {
-      if (e.type === 'broadcast') {
-        if (e.payload.kind === 'participant-view') this.io.to(e.room).emit('view:participant', e.payload.view);
-        else if (e.payload.kind === 'floor-view') this.io.to(e.room).emit('view:floor', e.payload.view);
-        else this.io.to(e.room).emit('view:big-screen', e.payload.view);
-      } else if (e.type === 'refresh-view' && !refreshed.has(e.room)) {
-        refreshed.add(e.room);
-        if (e.view === 'floor') this.io.to(e.room).emit('view:floor', floorView(live.state, Date.now()));
-        else this.io.to(e.room).emit('view:big-screen', bigScreenView(live.state));
       }
     }
   }
@@ -155,7 +314,13 @@ export class SessionRunner {
       pending = (async () => {
         const session = await getSession(sessionId);
         if (!session) return null;
-        const live: Live = { session, state: await rebuildSession(session), queue: Promise.resolve() };
+        const live: Live = {
+          session,
+          state: await rebuildSession(session),
+          waiting: [],
+          writing: false,
+          staff: { dirty: false, last: 0, timer: null },
+        };
         this.live.set(sessionId, live);
         return live;
       })().finally(() => this.loading.delete(sessionId));
@@ -169,7 +334,9 @@ export class SessionRunner {
     this.live.delete(sessionId);
   }
 
+  /** A safety net for a lost timer: due rounds are filled in by the timeout rule. */
   private async tickAll() {
+    if (this.recovering || !this.health.ok) return;
     for (const [id, live] of this.live) {
       if (live.state.status === 'running') await this.dispatch(id, { type: 'tick' }).catch(() => undefined);
     }
@@ -177,8 +344,10 @@ export class SessionRunner {
 
   close() {
     this.closed = true;
+    this.health.close();
     clearInterval(this.tick);
     for (const t of this.timers.values()) clearTimeout(t);
     this.timers.clear();
+    for (const live of this.live.values()) if (live.staff.timer) clearTimeout(live.staff.timer);
   }
 }

@@ -1,6 +1,6 @@
 // Persistence of live sessions: the engine's effects in, the rows that rebuild it out.
 import { randomInt } from 'node:crypto';
-import { asc, eq, sql } from 'drizzle-orm';
+import { and, asc, eq, sql } from 'drizzle-orm';
 import { type Design, designSchema } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { choices, sessionLog, sessionPairs, sessionParticipants, sessions, supergameDraws } from '#drizzle/schema';
@@ -28,11 +28,50 @@ type Writer = ReturnType<typeof db> | Tx;
 export const participantKeyOf = (userId: number) => String(userId);
 const userIdOf = (key: string) => Number(key);
 
+/** Another writer moved the session on since this process last read it: rebuild and try again. */
+export class StaleState extends Error {
+  constructor(sessionId: number, from: number) {
+    super(`session ${sessionId} is no longer at sequence ${from}`);
+    this.name = 'StaleState';
+  }
+}
+
+/** the highest sequence number among the rows a batch of effects stores */
+function lastSeqOf(effects: readonly Effect[]): number {
+  let seq = 0;
+  for (const e of effects) {
+    if (e.type === 'persist-choice' || e.type === 'persist-participant' || e.type === 'persist-log') seq = Math.max(seq, e.row.seq);
+  }
+  return seq;
+}
+
 /**
- * Writes a step's persist-* effects, in the caller's transaction. A duplicate (session, seq) or
- * seat-round key throws: the caller rolls back and rebuilds (another process got there first).
+ * Writes persist-* effects (one step's, or a batch of steps'), in the caller's transaction.
+ *
+ * With `claim` (the live runner): first `UPDATE sessions SET seq = to WHERE id AND seq = from` —
+ * one statement that both checks that nobody wrote since `from` and locks the session row until
+ * the transaction ends; no row matched → StaleState. Without it (seeds, tests writing a whole
+ * simulated run), the session's seq is moved up to the last row written.
+ * A duplicate (session, seq) key still throws: the unique keys stay the last safety net.
+ * `userId` is who caused the log rows (a persist-log effect's own `by` wins, for batches).
  */
-export async function writeEffects(w: Writer, sessionId: number, effects: readonly Effect[], userId: number | null = null) {
+export async function writeEffects(
+  w: Writer,
+  sessionId: number,
+  effects: readonly Effect[],
+  userId: number | null = null,
+  opts: { claim?: { from: number; to: number } } = {},
+) {
+  if (opts.claim) {
+    const [res] = await w
+      .update(sessions)
+      .set({ seq: opts.claim.to })
+      .where(and(eq(sessions.id, sessionId), eq(sessions.seq, opts.claim.from)));
+    if (res.affectedRows !== 1) throw new StaleState(sessionId, opts.claim.from);
+  } else {
+    const last = lastSeqOf(effects);
+    if (last > 0) await w.update(sessions).set({ seq: sql`GREATEST(${sessions.seq}, ${last})` }).where(eq(sessions.id, sessionId));
+  }
   const choiceRows: (typeof choices.$inferInsert)[] = [];
   for (const e of effects) {
     switch (e.type) {
@@ -50,7 +89,7 @@ export async function writeEffects(w: Writer, sessionId: number, effects: readon
         });
         break;
       case 'persist-log':
-        await w.insert(sessionLog).values({ sessionId, seq: e.row.seq, atMs: e.row.at, event: e.row.event, userId });
+        await w.insert(sessionLog).values({ sessionId, seq: e.row.seq, atMs: e.row.at, event: e.row.event, userId: e.by === undefined ? userId : e.by });
         break;
       case 'persist-session': {
         const at = new Date(e.at);

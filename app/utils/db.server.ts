@@ -33,13 +33,18 @@ export async function closeDb() {
 
 /** True when MariaDB answers a query within two seconds. */
 export async function databaseAnswers(): Promise<boolean> {
+  let timer: NodeJS.Timeout | undefined;
   try {
     const conn = await Promise.race([
       pool().query('SELECT 1'),
-      new Promise<never>((_, reject) => setTimeout(() => reject(new Error('timeout')), 2000)),
+      new Promise<never>((_, reject) => {
+        timer = setTimeout(() => reject(new Error('timeout')), 2000);
+      }),
     ]);
     return Boolean(conn);
   } catch {
     return false;
+  } finally {
+    clearTimeout(timer);
   }
 }

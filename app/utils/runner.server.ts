@@ -12,3 +12,8 @@ export function runner(): SessionRunner {
   if (!g.__parleyRunner) throw new Error('The session runner is not started (server.ts starts it).');
   return g.__parleyRunner;
 }
+
+/** The runner when this process has one (the production server), else undefined. */
+export function runnerIfStarted(): SessionRunner | undefined {
+  return g.__parleyRunner;
+}
