@@ -11,7 +11,7 @@ import { and, eq, inArray, sql } from 'drizzle-orm';
 import { getSession, rebuildSession, StaleState, type StoredSession, writeEffects } from '#app/models/live.server';
 import { db } from '#app/utils/db.server';
 import { sessions } from '#drizzle/schema';
-import { resumeEffects, roomOf, step } from './engine/engine';
+import { newBatchScope, resumeEffects, roomOf, step } from './engine/engine';
 import type { Effect, EngineEvent, EngineState, StepResult } from './engine/types';
 import { bigScreenView, floorView, participantView } from './engine/views';
 import type { ServerToClientEvents } from './protocol';
@@ -45,8 +45,10 @@ const numberFromEnv = (name: string, fallback: number) => {
 
 const TICK_MS = 5000;
 const EVICT_AFTER_MS = 60_000;
-/** how long an event may wait for MariaDB before it is refused with 'unavailable' */
+/** a write (or the heartbeat's SELECT 1) that MariaDB has not answered after this long means storage is lost */
 const STORAGE_WAIT_MS = numberFromEnv('PARLEY_STORAGE_WAIT_MS', 3000);
+/** the longest any event waits for its answer, queueing included, before 'unavailable' */
+const WAITER_BOUND_MS = numberFromEnv('PARLEY_WAITER_BOUND_MS', 20_000);
 /** the Floor and the Big screen are rebuilt at most this often per session */
 const STAFF_VIEW_MS = numberFromEnv('PARLEY_STAFF_VIEW_MS', 250);
 /** a batch larger than this is split: one transaction stays a few thousand rows at most */
@@ -61,6 +63,8 @@ export class SessionRunner {
   private tick: NodeJS.Timeout;
   private closed = false;
   private recovering = false;
+  /** every dispatched event not answered yet */
+  private waiters = new Set<Waiter>();
   readonly health: StorageHealth;
 
   constructor(private out: Broadcaster | null) {
@@ -68,12 +72,10 @@ export class SessionRunner {
     this.tick.unref();
     this.health = new StorageHealth(
       () => db().execute(sql`SELECT 1`),
-      (ok) => {
-        console.warn(ok ? '[parley] database answers again: every waiting round gets its full time' : '[parley] database not answering: choices are refused until it does');
-        this.out?.send(null, 'storage:status', { ok });
-        if (ok) void this.graceAll();
-      },
+      (ok) => this.onStorage(ok),
+      { staleMs: STORAGE_WAIT_MS },
     );
+    this.health.startHeartbeat();
   }
 
   /**
@@ -140,19 +142,20 @@ export class SessionRunner {
           if (done) return;
           done = true;
           clearTimeout(bound);
+          this.waiters.delete(waiter);
           if (outcome instanceof Error) reject(outcome);
           else resolve(outcome);
         },
       };
+      this.waiters.add(waiter);
+      // A last resort only: a busy session legitimately queues for a while (a thousand choices at
+      // once), so waiting alone says nothing about MariaDB. Lost storage is noticed by the write
+      // watchdog and the heartbeat, and answers every waiter at once (see onStorage).
       const bound = setTimeout(() => {
-        if (done) return;
-        // Still queued: it will not be applied. Already in the batch being written: its outcome
-        // is unknown until MariaDB answers; the phone's retry finds out.
         const live = this.live.get(sessionId);
         if (live) live.waiting = live.waiting.filter((w) => w !== waiter);
-        this.health.trouble();
         waiter.settle(new StorageUnavailable());
-      }, STORAGE_WAIT_MS);
+      }, WAITER_BOUND_MS);
       bound.unref();
       this.load(sessionId).then(
         (live) => {
@@ -164,6 +167,22 @@ export class SessionRunner {
         (error) => waiter.settle(this.storageFailure(error)),
       );
     });
+  }
+
+  /**
+   * Storage lost: every event still waiting is answered 'unavailable' now (queued ones will not be
+   * applied; those in the batch being written have an unknown outcome, which a retry with the same
+   * client choice id resolves). Recovered: every waiting round gets its full time again.
+   */
+  private onStorage(ok: boolean) {
+    console.warn(ok ? '[parley] database answers again: every waiting round gets its full time' : '[parley] database not answering: choices are refused until it does');
+    this.out?.send(null, 'storage:status', { ok });
+    if (ok) {
+      void this.graceAll();
+      return;
+    }
+    for (const live of this.live.values()) live.waiting = [];
+    for (const w of [...this.waiters]) if (w.event.type !== 'grace') w.settle(new StorageUnavailable());
   }
 
   /** A storage failure becomes 'unavailable' (and marks storage lost); anything else stays itself. */
@@ -193,8 +212,9 @@ export class SessionRunner {
         const persists: Effect[] = [];
         const timers: Effect[] = [];
         const touched = new Set<string>();
+        const scope = newBatchScope();
         for (const w of batch) {
-          const res = step(state, w.event, Date.now(), { views: 'none' });
+          const res = step(state, w.event, Date.now(), { views: 'none', batch: scope });
           results.push(res);
           if (res.error) continue;
           state = res.state;
@@ -206,8 +226,12 @@ export class SessionRunner {
           for (const id of res.touched) touched.add(id);
         }
         if (persists.length) {
+          // The watchdog: MariaDB silent on this write for STORAGE_WAIT_MS → storage is lost.
+          const watchdog = setTimeout(() => this.health.trouble(), STORAGE_WAIT_MS);
+          watchdog.unref();
           try {
             await db().transaction((tx) => writeEffects(tx, live.session.id, persists, null, { claim: { from: from.seq, to: state.seq } }));
+            this.health.answered();
           } catch (error) {
             // Another process (or a commit whose answer was lost) moved the session on: rebuild
             // from the stored rows and step the batch again, once. A stored choice then comes back
@@ -217,6 +241,8 @@ export class SessionRunner {
               continue;
             }
             throw error;
+          } finally {
+            clearTimeout(watchdog);
           }
         }
         live.state = state;
@@ -292,8 +318,9 @@ export class SessionRunner {
         const t = setTimeout(
           () => {
             this.timers.delete(e.key);
-            // Storage lost: no timeout now. Recovery applies grace, which arms this round again.
-            if (this.closed || !this.health.ok) return;
+            // Storage lost, or silent for a while (a stall nobody has written into yet): no timeout
+            // now. Recovery applies grace, which arms this round again with its full time.
+            if (this.closed || !this.health.fresh()) return;
             this.dispatch(sessionId, event).catch((err) => {
               if (!(err instanceof StorageUnavailable)) console.error('[parley] timer', err);
             });

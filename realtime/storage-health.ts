@@ -40,15 +40,63 @@ export class StorageHealth {
   private lost: { since: number } | null = null;
   private probing = false;
   private closed = false;
+  private lastAnswer = Date.now();
+  private heartbeat: NodeJS.Timeout | null = null;
+  private beating: number | null = null;
 
   constructor(
     private readonly probe: () => Promise<unknown>,
     private readonly onChange: (ok: boolean) => void,
-    private readonly everyMs = 500,
+    private readonly opts: { everyMs?: number; staleMs?: number } = {},
   ) {}
+
+  private get everyMs() {
+    return this.opts.everyMs ?? 500;
+  }
 
   get ok(): boolean {
     return this.lost === null;
+  }
+
+  /** MariaDB answered (a commit, a probe). */
+  answered(): void {
+    this.lastAnswer = Date.now();
+  }
+
+  /**
+   * Storage is known to answer: not lost, and something answered within `staleMs`. A round's
+   * timer asks this before it fills in a timeout, so a stall nobody has written into yet does not
+   * time out rounds the phones cannot answer. Not fresh → storage is treated as lost (probing starts).
+   */
+  fresh(): boolean {
+    if (!this.ok) return false;
+    if (Date.now() - this.lastAnswer <= (this.opts.staleMs ?? 3000)) return true;
+    this.trouble();
+    return false;
+  }
+
+  /** A probe every second while storage is fine, so `fresh()` knows without waiting for a write. */
+  startHeartbeat(): void {
+    if (this.heartbeat) return;
+    this.heartbeat = setInterval(() => {
+      if (!this.ok || this.closed) return;
+      if (this.beating !== null) {
+        if (Date.now() - this.beating > (this.opts.staleMs ?? 3000)) this.trouble();
+        return;
+      }
+      const started = (this.beating = Date.now());
+      this.probe().then(
+        () => {
+          if (this.beating === started) this.beating = null;
+          this.answered();
+        },
+        () => {
+          if (this.beating === started) this.beating = null;
+          this.trouble();
+        },
+      );
+    }, 1000);
+    this.heartbeat.unref();
   }
 
   /** when storage was lost (ms since the epoch), or null */
@@ -81,6 +129,8 @@ export class StorageHealth {
         pending = null;
         if (answered) {
           this.lost = null;
+          this.beating = null;
+          this.answered();
           if (!this.closed) this.onChange(true);
         } else {
           await sleep(this.everyMs);
@@ -93,6 +143,7 @@ export class StorageHealth {
 
   close(): void {
     this.closed = true;
+    if (this.heartbeat) clearInterval(this.heartbeat);
   }
 }
 

@@ -65,7 +65,10 @@ await startMaildev({ smtp: smtpPort, web: mailWebPort });
 ensureBuild(env);
 
 const serverLog = fs.createWriteStream(path.join(logDir, 'server.log'));
-const server = keep('Parley (bench)', spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] }));
+// PARLEY_BENCH_PROFILE=<folder>: the server writes a V8 CPU profile there when it stops (open it in
+// Chromium's DevTools, Performance tab) — where a slow run spends its time.
+const profile = process.env.PARLEY_BENCH_PROFILE ? ['--cpu-prof', '--cpu-prof-dir', path.resolve(process.env.PARLEY_BENCH_PROFILE)] : [];
+const server = keep('Parley (bench)', spawn(process.execPath, [...profile, '--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] }));
 server.stdout.pipe(serverLog);
 server.stderr.pipe(serverLog);
 if (!(await waitForHttp(`http://127.0.0.1:${port}/healthz`, 60_000, server))) {

@@ -20,6 +20,7 @@ import { describeDraw, drawSequence, supergameDraws } from '../../app/lib/draws'
 import { matchSupergame } from '../../app/lib/matching';
 import { normaliseSeed, type Seed } from '../../app/lib/rng';
 import type {
+  BatchScope,
   ChoiceRow,
   ChoiceSource,
   Effect,
@@ -101,11 +102,22 @@ const isStrategy = (id: string): boolean => LIBRARY.some((a) => a.id === id);
  * recent choices, connections) are copied only when first written: copying 1000-key records on every
  * choice dominated the cost of a step in a large session.
  */
+type RecordKey = 'participants' | 'pairs' | 'recentChoices' | 'connections';
+
+/**
+ * A scope for a batch of steps (see BatchScope in types.ts). The state the batch started from is
+ * still never mutated. Handlers check before they write, so a step that fails leaves the batch's
+ * copies as they were (tests/unit/engine.test.ts checks a batch against single steps).
+ */
+export function newBatchScope(): BatchScope {
+  return { copied: new Set<RecordKey>(), clonedParticipants: new Set<string>(), clonedPairs: new Set<string>() };
+}
+
 class Draft {
   s: EngineState;
-  private copied = new Set<'participants' | 'pairs' | 'recentChoices' | 'connections'>();
-  private clonedParticipants = new Set<string>();
-  private clonedPairs = new Set<string>();
+  private copied: Set<RecordKey>;
+  private clonedParticipants: Set<string>;
+  private clonedPairs: Set<string>;
   persists: Effect[] = [];
   timers: Effect[] = [];
   touched = new Set<string>();
@@ -115,12 +127,16 @@ class Draft {
   constructor(
     state: EngineState,
     readonly now: number,
+    scope: BatchScope = newBatchScope(),
   ) {
     this.s = { ...state };
+    this.copied = scope.copied;
+    this.clonedParticipants = scope.clonedParticipants;
+    this.clonedPairs = scope.clonedPairs;
   }
 
   /** the record, copied once in this step, ready to be written */
-  w<K extends 'participants' | 'pairs' | 'recentChoices' | 'connections'>(key: K): EngineState[K] {
+  w<K extends RecordKey>(key: K): EngineState[K] {
     if (!this.copied.has(key)) {
       this.s[key] = { ...this.s[key] };
       this.copied.add(key);
@@ -831,7 +847,7 @@ function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: Choice
 
 /** Apply one event. On an error the state is returned unchanged and there are no effects. */
 export function step(state: EngineState, event: EngineEvent, now: number, options: StepOptions = {}): StepResult {
-  const d = new Draft(state, now);
+  const d = new Draft(state, now, options.batch);
   const out = handle(d, event);
   if (out && 'alreadyChosen' in out) {
     return {

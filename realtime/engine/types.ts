@@ -381,6 +381,23 @@ export interface StepOptions {
    * second; a rebuild builds none).
    */
   views?: 'payload' | 'none';
+  /**
+   * Steps sharing one scope (engine.ts BatchScope) write the copies made by earlier steps in
+   * place: only the result of the last step is a valid state, and only if each step's input was
+   * the previous step's result.
+   */
+  batch?: BatchScope;
+}
+
+/**
+ * What is already a private copy in a run of steps (a batch of the live runner): records and
+ * objects copied by an earlier step of the batch are written in place by later ones, so a batch
+ * of 1,000 choices copies the 1,000-key records once, not 1,000 times. Made by newBatchScope().
+ */
+export interface BatchScope {
+  readonly copied: Set<'participants' | 'pairs' | 'recentChoices' | 'connections'>;
+  readonly clonedParticipants: Set<string>;
+  readonly clonedPairs: Set<string>;
 }
 
 export interface StepResult {

@@ -3,7 +3,21 @@
 // benchmark (scripts/bench-live.ts: the same play, timed), so both measure one behaviour.
 import { io } from 'socket.io-client';
 import type { ParticipantView } from '#realtime/engine/types';
+import { ClientFrom, requestCode } from '#tests/security/helpers';
+import type { Client } from './http';
 import type { TestSocket } from './live';
+
+/**
+ * The real sign-in, from a loopback address of the crowd's own (a lecture hall's network), so a
+ * hundred code requests do not eat the suite's per-network allowance on 127.0.0.1.
+ */
+export async function signInFromHall(email: string, hall = '127.0.9.1'): Promise<Client> {
+  const c = new ClientFrom(hall);
+  const { code } = await requestCode(c, email);
+  const res = await c.post('/sign-in/code', { intent: 'verify', code });
+  if (res.status !== 302 || !c.cookies.has('__parley_auth')) throw new Error(`the code of ${email} was refused (${res.status})`);
+  return c;
+}
 
 export interface Phone {
   socket: TestSocket;
@@ -34,6 +48,8 @@ export interface CrowdResult {
   acked: Set<string>;
   /** error codes of refused choices, with how often each came */
   refused: Record<string, number>;
+  /** refusals that were retried (and then answered), by code */
+  retried: Record<string, number>;
   ackMs: number[];
   /** per pair and round: the partner who chose second, from its emit to its result view */
   slowerPartnerMs: number[];
@@ -61,6 +77,12 @@ export function connectPhone(url: string, cookie: string): Promise<TestSocket> {
   });
 }
 
+/**
+ * Refusals a phone answers by sending the same choice again: the database did not answer
+ * ('unavailable'), or the server restarted and this socket has not asked for its view yet.
+ */
+const TRANSIENT = new Set(['unavailable', 'forbidden', 'server-error', 'rate-limited']);
+
 const sameResult = (v: ParticipantView, e: Emitted) => v.lastResult?.supergame === e.supergame && v.lastResult.round === e.round;
 
 /**
@@ -71,7 +93,16 @@ const sameResult = (v: ParticipantView, e: Emitted) => v.lastResult?.supergame =
  */
 export async function playCrowd(
   phones: Phone[],
-  opts: { start: () => Promise<void>; timeoutMs: number; cooperate?: number; idPrefix?: string },
+  opts: {
+    start: () => Promise<void>;
+    timeoutMs: number;
+    cooperate?: number;
+    idPrefix?: string;
+    /** ms a phone waits before it answers a choosing view (default 0: at once) */
+    thinkMs?: () => number;
+    /** receives a function that counts the choices emitted and not yet answered (in flight) */
+    expose?: (unanswered: () => number) => void;
+  },
 ): Promise<CrowdResult> {
   const now = () => performance.now();
   const emits: Emitted[] = [];
@@ -82,11 +113,14 @@ export async function playCrowd(
   const finishedAt: (number | null)[] = phones.map(() => null);
   let reconnects = 0;
   let answered = 0;
+  /** refusals the phone retries (a restarting server, a database that does not answer) */
+  const transient: Record<string, number> = {};
   let settle: () => void = () => undefined;
   const allDone = new Promise<void>((r) => (settle = r));
   const check = () => {
     if (finishedAt.every((f) => f !== null) && answered === emits.length) settle();
   };
+  opts.expose?.(() => emits.filter((e) => e.ackedAt === null && e.refused === null).length);
   const prefix = opts.idPrefix ?? `crowd-${process.pid}-${Date.now().toString(36)}`;
 
   const submit = (i: number, e: Emitted) => {
@@ -96,6 +130,15 @@ export async function playCrowd(
       .emitWithAck('choice:submit', { sessionId: e.sessionId, supergame: e.supergame, round: e.round, action: e.action, clientChoiceId: e.clientChoiceId })
       .then((res) => {
         if (e.ackedAt !== null || e.refused !== null) return;
+        if (!res.ok && TRANSIENT.has(res.code)) {
+          // As the phone's outbox does: the same choice again, after a moment (on a reconnect the
+          // handler below sends it at once).
+          transient[res.code] = (transient[res.code] ?? 0) + 1;
+          setTimeout(() => {
+            if (e.ackedAt === null && e.refused === null && socket.connected) submit(i, e);
+          }, 500);
+          return;
+        }
         if (res.ok) e.ackedAt = now();
         else e.refused = res.code;
         answered++;
@@ -143,7 +186,9 @@ export async function playCrowd(
     };
     emits.push(e);
     waitingResult[i].push(e);
-    submit(i, e);
+    const think = opts.thinkMs?.() ?? 0;
+    if (think > 0) setTimeout(() => submit(i, e), think);
+    else submit(i, e);
   };
 
   const watch = async (i: number) => {
@@ -198,6 +243,7 @@ export async function playCrowd(
     emitted: emits.length,
     acked: new Set(emits.filter((e) => e.ackedAt !== null).map((e) => e.clientChoiceId)),
     refused,
+    retried: transient,
     ackMs: emits.flatMap((e) => (e.ackedAt === null ? [] : [e.ackedAt - e.emittedAt])),
     slowerPartnerMs,
     boundaryMs,

@@ -7,6 +7,7 @@ export class SecondServer {
 
   constructor(
     readonly port: number,
+    /** extra environment; may be changed before start() (a database of the test's own, say) */
     readonly env: Record<string, string> = {},
   ) {}
 

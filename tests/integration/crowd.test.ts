@@ -4,28 +4,15 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
 import { choices, supergameDraws } from '#drizzle/schema';
-import { connectPhone, playCrowd } from '#tests/helpers/crowd';
+import { connectPhone, playCrowd, signInFromHall } from '#tests/helpers/crowd';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { baseUrl, type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
-import { ClientFrom, requestCode } from '#tests/security/helpers';
 
 afterEach(closeSockets);
 afterAll(closeTestDb);
 
 const N = 100;
-
-/**
- * The real sign-in, from a loopback address of the crowd's own (a lecture hall's network), so a
- * hundred code requests do not eat the suite's per-network allowance on 127.0.0.1.
- */
-async function signInFromHall(email: string): Promise<Client> {
-  const c = new ClientFrom('127.0.9.1');
-  const { code } = await requestCode(c, email);
-  const res = await c.post('/sign-in/code', { intent: 'verify', code });
-  if (res.status !== 302 || !c.cookies.has('__parley_auth')) throw new Error(`the code of ${email} was refused (${res.status})`);
-  return c;
-}
 
 describe('a room of 100 phones', () => {
   it('completes two supergames and stores every acknowledged choice exactly once, every pair’s history consistent', { timeout: 240_000 }, async () => {

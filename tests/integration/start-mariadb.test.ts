@@ -4,33 +4,12 @@
 // first start that failed stopped every later start.
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
-import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { freePort, removeMariadbs, startMariadbIn, tempDir } from '#tests/helpers/private-db';
 
-const services = path.resolve('scripts/lib/services.mjs');
 const dirs: string[] = [];
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.once('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const { port } = srv.address() as net.AddressInfo;
-      srv.close(() => resolve(port));
-    });
-  });
-}
-
-/** Runs startMariadb in a child process as the start scripts do; the server it starts outlives it. */
-function startIn(dir: string, port: number) {
-  const script = `import { startMariadb } from ${JSON.stringify(services)};
-const r = await startMariadb({ dir: ${JSON.stringify(dir)}, port: ${port}, databases: ['probe'], user: 'probe', password: 'probe' });
-console.log('RESULT ' + JSON.stringify(r));
-process.exit(0);`;
-  return spawnSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8', timeout: 60_000 });
-}
+const startIn = (dir: string, port: number) => startMariadbIn(dir, port);
 
 /** The TCP port the app would connect to answers, with the app user's password. */
 function answersOn(port: number) {
@@ -38,26 +17,12 @@ function answersOn(port: number) {
 }
 
 function tmp() {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'parley-db-'));
+  const dir = tempDir();
   dirs.push(dir);
   return dir;
 }
 
-afterAll(() => {
-  for (const dir of dirs) {
-    const pidFile = path.join(dir, 'mariadb', 'mariadb.pid');
-    if (fs.existsSync(pidFile)) {
-      try {
-        process.kill(Number(fs.readFileSync(pidFile, 'utf8').trim()), 'SIGTERM');
-      } catch {
-        // already gone
-      }
-    }
-  }
-  // Give the servers a moment to let go of their files before the folders go.
-  spawnSync('sleep', ['2']);
-  for (const dir of dirs) fs.rmSync(dir, { recursive: true, force: true });
-});
+afterAll(() => removeMariadbs(dirs));
 
 describe('the private MariaDB of npm start', () => {
   it('refuses to reuse a MariaDB running from the data folder on another port, and says which', { timeout: 90_000 }, async () => {

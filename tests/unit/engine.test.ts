@@ -3,9 +3,9 @@ import { describe, expect, it } from 'vitest';
 import type { Action } from '../../app/lib/automata';
 import type { Design, DesignInput } from '../../app/lib/design';
 import { drawSequence, supergameDraws } from '../../app/lib/draws';
-import { createSession, resumeEffects, step } from '../../realtime/engine/engine';
+import { createSession, newBatchScope, resumeEffects, step } from '../../realtime/engine/engine';
 import { RebuildError, rebuild } from '../../realtime/engine/rebuild';
-import type { ChoiceRow, Effect, EngineState } from '../../realtime/engine/types';
+import type { ChoiceRow, Effect, EngineEvent, EngineState } from '../../realtime/engine/types';
 import { bigScreenView, floorView, participantView } from '../../realtime/engine/views';
 import { TestHub, T0, joinAll, logical, makeDesign, play, rngOf } from './harness';
 
@@ -605,6 +605,44 @@ describe('large sessions', () => {
     const full = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' }, hub.now + SEC);
     expect(full.touched).toEqual(res.touched);
     expect(full.effects.filter((e) => e.type !== 'broadcast')).toEqual(res.effects);
+  });
+});
+
+describe('a batch of steps (the runner\'s group commit)', () => {
+  it('gives the same state and rows as single steps, errors included, and never touches the state it started from', () => {
+    const { hub, ids } = startSession(40, { supergames: 3 }, 'batch');
+    const start = hub.state;
+    const frozen = structuredClone(start);
+    const at = hub.now + 2 * SEC;
+    const events: EngineEvent[] = [];
+    ids.forEach((id, i) => {
+      events.push({ type: 'choose', participantId: id, supergame: 1, round: 1, action: i % 3 ? 'C' : 'D', clientChoiceId: `b-${id}` });
+      // refused ones between them: a changed retry, a future round, a stranger, an early timer
+      if (i % 7 === 0) events.push({ type: 'choose', participantId: id, supergame: 1, round: 1, action: 'D', clientChoiceId: `other-${id}` });
+      if (i % 11 === 0) events.push({ type: 'choose', participantId: id, supergame: 1, round: 9, action: 'C', clientChoiceId: `late-${id}` });
+      if (i % 13 === 0) events.push({ type: 'choose', participantId: 'stranger', supergame: 1, round: 1, action: 'C', clientChoiceId: 'x-stranger' });
+      if (i % 17 === 0) events.push({ type: 'timeout', pairId: 's1-p1', round: 1 });
+    });
+    const run = (batch: boolean) => {
+      const scope = newBatchScope();
+      let state = start;
+      const rows: unknown[] = [];
+      const errors: (string | undefined)[] = [];
+      events.forEach((e, k) => {
+        const res = step(state, e, at + k, batch ? { views: 'none', batch: scope } : { views: 'none' });
+        errors.push(res.error?.code);
+        if (!res.error) state = res.state;
+        rows.push(...res.effects.filter((x) => x.type.startsWith('persist-')));
+      });
+      return { state, rows, errors };
+    };
+    const single = run(false);
+    const batched = run(true);
+    expect(batched.errors).toEqual(single.errors);
+    expect(single.errors.filter(Boolean).length).toBeGreaterThan(5);
+    expect(batched.rows).toEqual(single.rows);
+    expect(logical(batched.state)).toEqual(logical(single.state));
+    expect(start).toEqual(frozen);
   });
 });
 
