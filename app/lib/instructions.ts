@@ -300,3 +300,14 @@ export function instructionSummary(d: Design): string[] {
   if (before.length) out.push(`Before the game ${before.join(', then ')}.`);
   return out;
 }
+
+/** The payoff table as a phone shows it (components/live/payoff-table.tsx): your choice, the partner's, both points. */
+export function payoffRows(p: Design['payoffs']) {
+  const { R, S, T, P } = p;
+  return [
+    { own: 'C' as const, partner: 'C' as const, ownPoints: R, partnerPoints: R },
+    { own: 'C' as const, partner: 'D' as const, ownPoints: S, partnerPoints: T },
+    { own: 'D' as const, partner: 'C' as const, ownPoints: T, partnerPoints: S },
+    { own: 'D' as const, partner: 'D' as const, ownPoints: P, partnerPoints: P },
+  ];
+}

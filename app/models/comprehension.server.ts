@@ -2,7 +2,8 @@
 // read by the Conductor. Scoped by session and user; never exported.
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { db } from '#app/utils/db.server';
-import { comprehensionAttempts, sessionParticipants, users } from '#drizzle/schema';
+import { comprehensionAttempts, courseMembers, sessionParticipants, users } from '#drizzle/schema';
+import { memberName } from './course.server';
 
 /** The questions are on screen: the Conductor now lists this person as not yet passed. */
 export async function markCheckShown(sessionId: number, userId: number) {
@@ -49,11 +50,11 @@ export interface CheckRow {
 }
 
 /** Everyone who saw the questions of this session, those not yet passed first. */
-export async function checkStatus(sessionId: number): Promise<CheckRow[]> {
+export async function checkStatus(courseId: number, sessionId: number): Promise<CheckRow[]> {
   const rows = await db()
     .select({
       userId: comprehensionAttempts.userId,
-      name: users.name,
+      name: memberName,
       email: users.email,
       attempts: comprehensionAttempts.attempts,
       lastWrong: comprehensionAttempts.lastWrong,
@@ -64,6 +65,7 @@ export async function checkStatus(sessionId: number): Promise<CheckRow[]> {
     })
     .from(comprehensionAttempts)
     .innerJoin(users, eq(users.id, comprehensionAttempts.userId))
+    .leftJoin(courseMembers, and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, comprehensionAttempts.userId)))
     .leftJoin(sessionParticipants, and(eq(sessionParticipants.sessionId, comprehensionAttempts.sessionId), eq(sessionParticipants.userId, comprehensionAttempts.userId)))
     .where(eq(comprehensionAttempts.sessionId, sessionId))
     .orderBy(asc(comprehensionAttempts.createdAt));
