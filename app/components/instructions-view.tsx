@@ -12,10 +12,12 @@ export interface InstructionsViewProps {
 }
 
 /** The course and the instructor first: a student in a lecture hall checks they are in the right room. */
-export function InstructionsHeading({ heading, code }: Pick<InstructionsViewProps, 'heading' | 'code'>) {
+export function InstructionsHeading({ heading, code, preview = false }: Pick<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
+  // Inside the design editor's preview the page's own headings come first: one level down.
+  const Title = preview ? 'h3' : 'h1';
   return (
     <header className="flex flex-col gap-1">
-      <h1 className="text-2xl leading-tight font-semibold">{heading.course}</h1>
+      <Title className="text-2xl leading-tight font-semibold">{heading.course}</Title>
       <p className="text-slate-700">
         {heading.instructor ? <>with {heading.instructor} · </> : null}
         <span className="whitespace-nowrap">
@@ -30,12 +32,14 @@ export function InstructionsHeading({ heading, code }: Pick<InstructionsViewProp
  * What a phone reads before play, above the consent question: a short summary, the payoff table,
  * and the full rules one tap away. Shared by the instructions page and the design editor's preview.
  */
-export function InstructionsBody({ summary, table, labels, instructions }: Omit<InstructionsViewProps, 'heading' | 'code'>) {
+export function InstructionsBody({ summary, table, labels, instructions, preview = false }: Omit<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
+  const Title = preview ? 'h4' : 'h2';
+  const id = preview ? 'preview-how' : 'how';
   return (
-    <section aria-labelledby="how" className="flex flex-col gap-3">
-      <h2 id="how" className="text-xl font-semibold">
+    <section aria-labelledby={id} className="flex flex-col gap-3">
+      <Title id={id} className="text-xl font-semibold">
         In short
-      </h2>
+      </Title>
       <ul className="flex list-disc flex-col gap-2 pl-5 text-base leading-snug text-slate-800" data-testid="summary">
         {summary.map((line) => (
           <li key={line}>{line}</li>

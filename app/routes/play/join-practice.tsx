@@ -1,7 +1,7 @@
 // The practice supergame (design option `practice`): on the phone only, against a disclosed computer
 // rule, with the design's payoffs and draw rule. Nothing is sent while practising; the form at the
 // bottom joins the session (and works without JavaScript, skipping the practice).
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { data, Form, redirect, useNavigation } from 'react-router';
 import type { Route } from './+types/join-practice';
 import { PayoffTable } from '#app/components/live/payoff-table';
@@ -60,6 +60,10 @@ export default function Practice({ loaderData, actionData }: Route.ComponentProp
   const { labels, game, cutoff, drawMax, computerWords, consent } = loaderData;
   const busy = useNavigation().state === 'submitting';
   const [rounds, setRounds] = useState<PracticeRound[]>([]);
+  // The practice runs in the page's script: until it has loaded a tap would do nothing, so the
+  // buttons say they are not ready rather than swallow it.
+  const [ready, setReady] = useState(false);
+  useEffect(() => setReady(true), []);
   const last = rounds.at(-1);
   const over = last !== undefined && !last.goesOn;
   const table = payoffRows(game.payoffs);
@@ -108,7 +112,8 @@ export default function Practice({ loaderData, actionData }: Route.ComponentProp
                 key={a}
                 type="button"
                 onClick={() => choose(a)}
-                className="flex min-h-24 flex-col items-center justify-center gap-1 rounded-2xl border-2 border-dashed border-slate-400 bg-slate-100 text-3xl font-bold text-slate-900 active:bg-slate-200"
+                disabled={!ready}
+                className="flex min-h-24 flex-col items-center justify-center gap-1 rounded-2xl border-2 border-dashed border-slate-400 bg-slate-100 text-3xl font-bold text-slate-900 active:bg-slate-200 disabled:opacity-60"
               >
                 <span aria-hidden="true" className="text-3xl">
                   {SHAPES[a]}
