@@ -124,13 +124,19 @@ describe('before play, on a phone', () => {
     // From here until the join button, the phone sends nothing.
     const sent: string[] = [];
     page.on('request', (r) => sent.push(`${r.method()} ${r.url()}`));
-    await page.getByRole('button', { name: '● Y' }).click();
+    const x = page.getByRole('button', { name: 'X', exact: true });
+    const y = page.getByRole('button', { name: 'Y', exact: true });
+    await expect.poll(() => y.isEnabled()).toBe(true);
+    await y.click();
     const rounds = page.getByTestId('practice-rounds');
     await rounds.getByText('Practice round 1').waitFor();
     // Source: common practice (tit-for-tat opens with C); Y against X pays T = 50, the computer S = 12.
     expect(await rounds.textContent()).toContain('Practice round 1: you ● Y, computer ◆ X → you would get 50, the computer 12.');
     expect(await rounds.textContent()).toMatch(/Draw \d+ (≤ 50 — another round|> 50 — the supergame ends)/);
-    while (await page.getByRole('button', { name: '◆ X' }).isVisible()) await page.getByRole('button', { name: '◆ X' }).click();
+    for (let n = 2; await x.isVisible(); n++) {
+      await x.click();
+      await rounds.getByText(`Practice round ${n}:`).waitFor();
+    }
     await page.getByText('Practice over.').waitFor();
     await page.screenshot({ path: path.join(SHOTS, 'practice-phone.png'), fullPage: true });
     expect(sent).toEqual([]);
