@@ -63,11 +63,15 @@ export default [
 
   route('courses/:courseId/strategies', 'routes/staff/strategies.ts'),
   route('courses/:courseId/sessions/:sessionId/names', 'routes/staff/session-names.ts'),
+  route('courses/:courseId/sessions/:sessionId/comprehension', 'routes/staff/session-comprehension.ts'),
 
   // The projector page (dark, large type) and the participants' phone pages.
   route('screen/:sessionId', 'routes/big-screen.tsx'),
   route('join', 'routes/play/join.tsx'),
   route('join/:code', 'routes/play/join-code.tsx'),
+  // Before the lobby, when the design asks for them (issue 12): the comprehension check, a practice supergame.
+  route('join/:code/check', 'routes/play/join-check.tsx'),
+  route('join/:code/practice', 'routes/play/join-practice.tsx'),
   route('play/:sessionId', 'routes/play/play.tsx'),
 
   route('*', 'routes/not-found.tsx'),

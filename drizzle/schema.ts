@@ -506,6 +506,32 @@ export const resultMails = mysqlTable(
   (t) => [uniqueIndex('result_mails_recipient').on(t.sessionId, t.userId)],
 );
 
+/**
+ * The comprehension check before play (design option `comprehension`): one row per session and
+ * user from the moment the questions are shown, so the Conductor sees who has not passed yet.
+ * Kept for the Conductor only; never exported (docs/decisions/028).
+ */
+export const comprehensionAttempts = mysqlTable(
+  'comprehension_attempts',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    sessionId: int('session_id')
+      .notNull()
+      .references(() => sessions.id, { onDelete: 'cascade' }),
+    userId: int('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    /** answers sent so far (0: the questions are on screen, none sent yet) */
+    attempts: int('attempts').notNull().default(0),
+    /** ids of the questions answered wrongly in the last attempt, comma-separated */
+    lastWrong: varchar('last_wrong', { length: 64 }),
+    createdAt: createdAt(),
+    updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 }),
+    passedAt: datetime('passed_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [uniqueIndex('comprehension_attempts_user').on(t.sessionId, t.userId)],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));
 export const coursesRelations = relations(courses, ({ many }) => ({ members: many(courseMembers) }));
 export const courseMembersRelations = relations(courseMembers, ({ one }) => ({

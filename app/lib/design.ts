@@ -108,6 +108,10 @@ export const designSchema = z
     timeout: timeoutRuleSchema.default('repeat-last'),
     credit: creditRuleSchema.default({ kind: 'participation', credit: 1 }),
     consent: z.boolean().default(false),
+    /** before play: questions on the payoff table and the draw rule, answered correctly before the lobby */
+    comprehension: z.boolean().default(false),
+    /** before play: a practice supergame against the computer, on the phone only, never stored */
+    practice: z.boolean().default(false),
     instructions: z.string().max(20_000, 'Keep the instructions under 20,000 characters').default(''),
   })
   .superRefine((d, ctx) => {

@@ -1,5 +1,6 @@
 import { and, count, desc, eq, inArray } from 'drizzle-orm';
 import { designSchema } from '#app/lib/design';
+import { instructionProblems } from '#app/lib/instructions';
 import { normaliseSeed } from '#app/lib/rng';
 import { versionedName } from '#app/lib/treatment';
 import { db } from '#app/utils/db.server';
@@ -65,6 +66,12 @@ export async function createSessionFromDesign(opts: {
           .for('update');
         if (!d) return { ok: false, field: 'designId', message: 'Choose a design of this course.' };
         if (d.archivedAt) return { ok: false, field: 'designId', message: 'That design is archived; restore it first.' };
+        // Instructions that say another δ or other points than the design plays would mislead the
+        // room (docs/decisions/028): refused here, inside the lock, so a save in between cannot slip past.
+        const problems = instructionProblems(designSchema.parse(d.params));
+        if (problems.length) {
+          return { ok: false, field: 'designId', message: `The instructions of “${d.name}” do not match its parameters: ${problems.join(' ')} Edit the design (or make a new version) before opening a session.` };
+        }
         const [res] = await tx.insert(sessions).values({
           courseId: opts.courseId,
           designId: opts.designId,

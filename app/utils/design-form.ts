@@ -41,6 +41,8 @@ export function designInputFromForm(f: Source): DesignInput {
     timeout: (get(f, 'timeout') ?? 'repeat-last') as DesignInput['timeout'],
     credit,
     consent: f.get('consent') === 'on',
+    comprehension: f.get('comprehension') === 'on',
+    practice: f.get('practice') === 'on',
     instructions: get(f, 'instructions') ?? '',
   };
 }

@@ -1,5 +1,7 @@
 import { count, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { designSchema } from '#app/lib/design';
+import { fillInstructions } from '#app/lib/instructions';
 import { courseStrategies, designs } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -33,6 +35,14 @@ describe('the design editor', () => {
     for (const k of Object.keys(emails) as (keyof typeof emails)[]) c[k] = await signIn(emails[k]);
   });
 
+  it('refuses instructions with a placeholder the design cannot fill, beside the text, and saves nothing', async () => {
+    const before = await designCount(courseId);
+    const res = await c.instructor.post(`/courses/${courseId}/designs/new`, form({ instructions: 'Blocks of {blockRounds} rounds; chance {delta%}.' }));
+    expect(res.status).toBe(400);
+    expect(html(await res.text())).toContain('{blockRounds} has no value in this design');
+    expect(await designCount(courseId)).toBe(before);
+  });
+
   it('creates a design with generated instructions and shows it to every staff role', async () => {
     const res = await c.instructor.post(`/courses/${courseId}/designs/new`, form());
     expect(res.status).toBe(302);
@@ -41,7 +51,9 @@ describe('the design editor', () => {
     const params = row.params as { delta: number; instructions: string; payoffs: { T: number } };
     expect(params.delta).toBe(0.75);
     expect(params.payoffs.T).toBe(50);
-    expect(params.instructions).toContain('If it is 75 or less, you play another round');
+    // Stored as a template (docs/decisions/028), filled from the parameters when a phone shows it.
+    expect(params.instructions).toContain('If it is {drawCutoff} or less, you play another round');
+    expect(fillInstructions(designSchema.parse(params))).toContain('If it is 75 or less, you play another round');
     for (const k of ['instructor', 'assistant', 'researcher'] as const) {
       expect((await c[k].get(`/courses/${courseId}/designs`)).status).toBe(200);
       expect((await c[k].get(`/courses/${courseId}/designs/${id}`)).status).toBe(200);

@@ -35,6 +35,23 @@ describe('treatmentOf', () => {
     expect(b).toEqual(a);
   });
 
+  // docs/decisions/028-before-play-is-not-a-treatment.md
+  it('ignores the before-play options: a comprehension check, a practice round and templated instructions', () => {
+    const plain = base();
+    const withPreplay = base({ comprehension: true, practice: true, instructions: 'After each round: another with a chance of {delta%}.' });
+    expect(treatmentOf(withPreplay)).toEqual(treatmentOf(plain));
+    // A design stored before these options existed reads them as off and keeps its key.
+    const stored = designSchema.parse(JSON.parse(JSON.stringify({ ...plain, comprehension: undefined, practice: undefined })));
+    expect(stored.comprehension).toBe(false);
+    expect(stored.practice).toBe(false);
+    expect(treatmentOf(stored).key).toBe('R=40;S=12;T=50;P=25;delta=0.75;termination=standard;matching=random-rematch');
+    const g = groupByTreatment([
+      { id: 1, name: 'Baseline', design: plain },
+      { id: 2, name: 'Baseline', design: withPreplay },
+    ]);
+    expect(g.ok && g.groups.map((x) => x.sessionIds)).toEqual([[1, 2]]);
+  });
+
   it('tells apart any change of payoffs, δ, termination scheme or block size', () => {
     const k = (d: Partial<DesignInput>) => treatmentOf(base(d)).key;
     const keys = [

@@ -1,51 +1,31 @@
 import { useEffect, useRef } from 'react';
 import { data, Form, redirect, useNavigation } from 'react-router';
 import type { Route } from './+types/join-code';
-import { PayoffTable } from '#app/components/live/payoff-table';
+import { InstructionsBody, InstructionsHeading } from '#app/components/instructions-view';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, FieldError, Notice } from '#app/components/ui';
-import { getSession, participantKeyOf } from '#app/models/live.server';
-import { findByJoinCode, setConsent } from '#app/models/session.server';
-import { type CurrentUser, requireUser } from '#app/utils/auth.server';
-import { roleIn } from '#app/utils/permissions.server';
-import { runner } from '#app/utils/runner.server';
-
-/** Who may join: roster sessions admit course members; open ones anyone (by e-mail domain if set). */
-async function admission(code: string, user: CurrentUser) {
-  const found = await findByJoinCode(code);
-  if (!found) throw new Response('There is no session with this code. Check the code on the big screen.', { status: 404 });
-  const session = (await getSession(found.id))!;
-  if (found.status === 'complete') return { session, refusal: 'This session has ended.' };
-  if (found.admission === 'roster' && !(await roleIn(found.courseId, user.id))) {
-    return { session, refusal: 'This session admits the members of its course only. Ask your instructor for an invitation to the course.' };
-  }
-  if (found.admission === 'open' && found.emailDomain && !user.email.endsWith(`@${found.emailDomain}`)) {
-    return { session, refusal: `This session admits e-mail addresses ending in @${found.emailDomain}. Sign in with that address.` };
-  }
-  return { session, refusal: null };
-}
+import { fillInstructions, instructionSummary, payoffRows } from '#app/lib/instructions';
+import { requireUser } from '#app/utils/auth.server';
+import { admission, carriedConsent, joinNow, nextStep, sendJoinedToPlay, sessionHeading } from '#app/utils/join.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const { session, refusal } = await admission(params.code, user);
-  const state = await runner().state(session.id);
-  if (!refusal && state?.participants[participantKeyOf(user.id)]) throw redirect(`/play/${session.id}`);
+  const state = await sendJoinedToPlay(session, user, refusal);
   const d = session.design;
-  const { R, S, T, P } = d.payoffs;
   return {
     code: params.code.toUpperCase(),
     email: user.email,
     refusal,
+    heading: await sessionHeading(session.id),
     late: state?.status === 'running' || state?.status === 'paused',
-    instructions: d.instructions,
+    summary: instructionSummary(d),
+    instructions: fillInstructions(d),
     consent: d.consent,
+    // Another step follows the instructions: the button says "continue", not "join".
+    stepsBefore: d.comprehension || d.practice,
     labels: d.labels,
-    table: [
-      { own: 'C' as const, partner: 'C' as const, ownPoints: R, partnerPoints: R },
-      { own: 'C' as const, partner: 'D' as const, ownPoints: S, partnerPoints: T },
-      { own: 'D' as const, partner: 'C' as const, ownPoints: T, partnerPoints: S },
-      { own: 'D' as const, partner: 'D' as const, ownPoints: P, partnerPoints: P },
-    ],
+    table: payoffRows(d.payoffs),
   };
 }
 
@@ -54,15 +34,15 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { session, refusal } = await admission(params.code, user);
   if (refusal) return data({ error: refusal, field: null, consent: null }, { status: 403 });
   const form = await request.formData();
-  const consent = form.get('consent');
-  if (session.design.consent && consent !== 'yes' && consent !== 'no') {
+  const consent = carriedConsent(session.design, form.get('consent'));
+  if (consent === 'missing') {
     return data({ error: 'Choose whether your choices may be used for research.', field: 'consent', consent: null }, { status: 400 });
   }
-  const res = await runner().dispatch(session.id, { type: 'join', participantId: participantKeyOf(user.id) });
+  const next = await nextStep(params.code.toUpperCase(), session, user.id, consent, 'instructions');
+  if (next) throw redirect(next);
+  const { error } = await joinNow(session, user.id, consent);
   // Keep the answer ticked on the page that says why joining failed.
-  if (res.error) return data({ error: res.error.message, field: null, consent: typeof consent === 'string' ? consent : null }, { status: 409 });
-  if (session.design.consent) await setConsent(session.id, user.id, consent === 'yes');
-  throw redirect(`/play/${session.id}`);
+  return data({ error, field: null, consent }, { status: 409 });
 }
 
 /*
@@ -91,24 +71,18 @@ function useRememberedConsent() {
 
 export default function JoinSession({ loaderData, actionData }: Route.ComponentProps) {
   const busy = useNavigation().state === 'submitting';
-  const { refusal, instructions, labels, table, consent, late } = loaderData;
+  const { refusal, instructions, labels, table, consent, late, heading, summary, stepsBefore } = loaderData;
   const form = useRememberedConsent();
   const answered = actionData?.consent ?? null;
   return (
     <ParticipantShell email={loaderData.email}>
-      <h1 className="text-3xl font-semibold">Session {loaderData.code}</h1>
+      <InstructionsHeading heading={heading} code={loaderData.code} />
       {refusal ? (
         <Notice tone="error">{refusal}</Notice>
       ) : (
         <>
           {late ? <Notice>The session is already running: you will be paired from the next supergame on.</Notice> : null}
-          <section aria-labelledby="how" className="flex flex-col gap-3">
-            <h2 id="how" className="text-xl font-semibold">
-              How it works
-            </h2>
-            <PayoffTable table={table} labels={labels} />
-            <div className="flex flex-col gap-3 text-base leading-relaxed whitespace-pre-line text-slate-800">{instructions}</div>
-          </section>
+          <InstructionsBody summary={summary} table={table} labels={labels} instructions={instructions} />
           {/* public/remember-consent.js: a file of ours, so the Content-Security-Policy lets it run */}
           {consent ? <script src="/remember-consent.js" /> : null}
           <Form method="post" className="flex flex-col gap-4" ref={form}>
@@ -130,7 +104,7 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
             ) : null}
             {actionData?.error && actionData.field === null ? <Notice tone="error">{actionData.error}</Notice> : null}
             <Button type="submit" disabled={busy} className="min-h-16 text-xl">
-              {busy ? 'Joining…' : 'I have read this — join'}
+              {busy ? (stepsBefore ? 'One moment…' : 'Joining…') : stepsBefore ? 'I have read this — continue' : 'I have read this — join'}
             </Button>
           </Form>
         </>
@@ -139,4 +113,4 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
   );
 }
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `Session ${data?.code ?? ''} · Parley` }];
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.heading.course ? `${data.heading.course} · ` : ''}Before you play · Parley` }];

@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { Link } from 'react-router';
 import type { Route } from './+types/conductor';
 import { MATCHING_RULE } from '#app/lib/matching-rule';
+import { ComprehensionStatus } from '#app/components/comprehension-status';
 import { useSessionView } from '#app/components/live/use-session';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, ButtonLink, Notice } from '#app/components/ui';
@@ -21,7 +22,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     role,
     session: { id: session.id, treatment: session.treatment, joinCode: session.joinCode, seed: session.seed, simulated: session.simulated, status: session.status },
     joinUrl: session.joinCode ? new URL(`/join/${session.joinCode}`, env().APP_URL).toString() : null,
-    design: { delta: d.delta, supergames: d.supergames, roundSeconds: d.roundSeconds, payoffs: d.payoffs, labels: d.labels },
+    design: { delta: d.delta, supergames: d.supergames, roundSeconds: d.roundSeconds, payoffs: d.payoffs, labels: d.labels, comprehension: d.comprehension },
   };
 }
 
@@ -147,6 +148,9 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
               </p>
               <p className="mt-2 text-sm break-all text-slate-600">{joinUrl}</p>
             </section>
+          ) : null}
+          {design.comprehension && canSeeFloor ? (
+            <ComprehensionStatus courseId={course.id} sessionId={session.id} live={status === 'open' || status === 'running' || status === 'paused'} />
           ) : null}
           <section aria-labelledby="frozen-title" className="rounded-lg border border-slate-200 bg-white p-4 text-sm">
             <h2 id="frozen-title" className="mb-2 text-lg font-semibold">

@@ -8,7 +8,8 @@ import { TheoryPanel, type TheoryDraft } from '#app/components/theory-panel';
 import { Button, FieldError, Notice, SelectField, TextField } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
 import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
-import { generateInstructions } from '#app/lib/instructions';
+import { fillInstructions, generateInstructions, instructionContradictions, instructionsTemplate, PLACEHOLDER_HELP, PLACEHOLDERS, placeholderProblems, placeholderValues } from '#app/lib/instructions';
+import { PhonePreview } from '#app/components/phone-preview';
 import { treatmentOf } from '#app/lib/treatment';
 import { createDesign, getDesign, laterVersions, listCourseStrategies, newDesignVersion, previousVersion, updateDesign } from '#app/models/design.server';
 import { designInputFromForm } from '#app/utils/design-form';
@@ -81,7 +82,11 @@ export async function action({ request, params }: Route.ActionArgs) {
     const errors = { ...(parsed.success ? {} : fieldErrors(parsed.error)), ...(name.success ? {} : { name: name.error.issues[0].message }) };
     return data({ ok: false as const, errors, values, message: 'Some fields need attention; nothing was saved.' }, { status: 400 });
   }
-  const params_ = parsed.data.instructions.trim() ? parsed.data : { ...parsed.data, instructions: generateInstructions(parsed.data) };
+  // A placeholder the design cannot fill would reach the phones as "{name}": refused beside the text.
+  const unknown = placeholderProblems(parsed.data, parsed.data.instructions);
+  if (unknown.length) return data({ ok: false as const, errors: { instructions: unknown.join(' ') }, values, message: 'Some fields need attention; nothing was saved.' }, { status: 400 });
+  // Stored as a template, so the numbers follow the parameters when they change later.
+  const params_ = parsed.data.instructions.trim() ? parsed.data : { ...parsed.data, instructions: instructionsTemplate(parsed.data) };
   if (!params.designId) {
     const id = await createDesign(course.id, user.id, name.data, params_);
     throw redirect(`/courses/${course.id}/designs/${id}?saved=1`);
@@ -128,6 +133,8 @@ function formValues(name: string, d: Design): Record<string, string> {
     timeout: d.timeout,
     'credit.kind': d.credit.kind,
     consent: d.consent ? 'on' : '',
+    comprehension: d.comprehension ? 'on' : '',
+    practice: d.practice ? 'on' : '',
     instructions: d.instructions,
   };
   if (d.credit.kind === 'participation') {
@@ -151,10 +158,12 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   const errors: Record<string, string> = actionData?.errors ?? {};
   const formRef = useRef<HTMLFormElement>(null);
   const [input, setInput] = useState<DesignInput>(() => designInputFromForm(new Map(Object.entries(values))));
-  // Stored instructions that equal what the parameters generate keep following the parameters.
-  const [instructionsEdited, setInstructionsEdited] = useState(
-    () => values.instructions.trim() !== '' && values.instructions.trim() !== generateInstructions(loaderData.params).trim(),
-  );
+  // Stored instructions that equal what the parameters generate (as text, from before templates,
+  // or as the template) keep following the parameters.
+  const [instructionsEdited, setInstructionsEdited] = useState(() => {
+    const stored = values.instructions.trim();
+    return stored !== '' && stored !== generateInstructions(loaderData.params).trim() && stored !== instructionsTemplate(loaderData.params).trim();
+  });
   const [instructions, setInstructions] = useState(values.instructions);
   const [creditKind, setCreditKind] = useState(values['credit.kind'] ?? 'participation');
   const [oddKind, setOddKind] = useState(values['oddCount.kind'] ?? 'computer');
@@ -162,9 +171,11 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   const busy = useNavigation().state === 'submitting';
 
   const parsed = designSchema.safeParse(input);
-  const generated = parsed.success ? generateInstructions(parsed.data) : '';
+  const generated = parsed.success ? instructionsTemplate(parsed.data) : '';
   const shownInstructions = instructionsEdited ? instructions : generated;
   const draft = draftFrom(input);
+  const filled = parsed.success ? placeholderValues(parsed.data) : null;
+  const contradictions = parsed.success ? [...placeholderProblems(parsed.data, shownInstructions), ...instructionContradictions(parsed.data, fillInstructions(parsed.data, shownInstructions))] : [];
   const game = parsed.success ? parsed.data.payoffs : null;
   const saved = loaderData.saved && !actionData;
   const madeVersion = loaderData.madeVersion && !actionData && design;
@@ -399,6 +410,17 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               <p className="text-sm text-slate-600">
                 Research use of classroom data needs your institution’s ethics-board approval and the participants’ informed consent; grades must not depend on it.
               </p>
+              <fieldset className="flex flex-col gap-1">
+                <legend className="font-semibold">Before play</legend>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="checkbox" name="comprehension" defaultChecked={values.comprehension === 'on'} /> Comprehension check: three questions on the points table and the draw rule,
+                  answered correctly before the lobby
+                </label>
+                <label className="flex min-h-11 items-center gap-2">
+                  <input type="checkbox" name="practice" defaultChecked={values.practice === 'on'} /> Practice supergame against the computer, on the phone, not recorded
+                </label>
+                <p className="text-sm text-slate-600">Neither changes the treatment: sessions with and without them are pooled in the Debrief.</p>
+              </fieldset>
             </section>
 
             <section aria-labelledby="instructions-title" className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4">
@@ -413,7 +435,9 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 ) : null}
               </div>
               <p className="text-sm text-slate-600">
-                {instructionsEdited ? 'Edited by hand: they no longer follow the parameters.' : 'Written from the parameters above; edit to change them.'}
+                {instructionsEdited
+                  ? 'Edited by hand. Numbers written as {placeholders} still follow the parameters; numbers typed in do not.'
+                  : 'Written from the parameters above; edit the words freely — the {placeholders} are filled with the parameters when a phone shows them.'}
               </p>
               <label htmlFor="instructions" className="sr-only">
                 Instructions participants read
@@ -430,7 +454,43 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 className="rounded-lg border border-slate-300 bg-white p-3 text-sm leading-relaxed"
               />
               {errors.instructions ? <FieldError>{errors.instructions}</FieldError> : null}
+              {contradictions.length ? (
+                <div role="alert" className="rounded-md border border-red-300 bg-red-50 p-3 text-sm text-red-900" data-testid="instruction-contradictions">
+                  <p className="font-semibold">
+                    <span aria-hidden="true">✕ </span>These instructions contradict the design; a session cannot be opened from it until they agree.
+                  </p>
+                  <ul className="mt-1 list-disc pl-5">
+                    {contradictions.map((c) => (
+                      <li key={c}>{c}</li>
+                    ))}
+                  </ul>
+                </div>
+              ) : null}
+              <details className="text-sm">
+                <summary className="min-h-11 cursor-pointer content-center font-semibold text-accent-700">Placeholders: write a name in curly braces, e.g. {'{delta%}'}</summary>
+                <table className="mt-1 w-full text-left">
+                  <caption className="sr-only">Placeholders and what they are filled with</caption>
+                  <thead className="text-slate-600">
+                    <tr>
+                      <th scope="col" className="py-1 pr-3 font-semibold">Write</th>
+                      <th scope="col" className="py-1 pr-3 font-semibold">Filled with</th>
+                      <th scope="col" className="py-1 font-semibold">Now</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {PLACEHOLDERS.map((k) => (
+                      <tr key={k} className="border-t border-slate-100">
+                        <td className="py-1 pr-3 font-mono">{`{${k}}`}</td>
+                        <td className="py-1 pr-3">{PLACEHOLDER_HELP[k]}</td>
+                        <td className="num py-1">{filled?.[k] ?? '—'}</td>
+                      </tr>
+                    ))}
+                  </tbody>
+                </table>
+              </details>
             </section>
+
+            <PhonePreview design={parsed.success ? parsed.data : null} text={shownInstructions} course={course.title} />
 
             {canEdit ? (
               <div className="flex gap-3">
