@@ -82,12 +82,12 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
       ) : null}
       <div className="flex flex-1 flex-col gap-[0.8em] px-[1em] py-[0.8em]">
         {lobby ? (
-          <>
+          <div className="flex flex-1 flex-col justify-center gap-[1em]">
             {code ? <JoinHero code={code} host={joinHost} qr={qr} /> : null}
             <div className="flex justify-center">
               <Stat label="Joined" value={screen?.joined ?? 0} testId="big-joined" />
             </div>
-          </>
+          </div>
         ) : null}
         {live && screen ? (
           <div className="grid flex-1 gap-[0.8em] lg:grid-cols-[minmax(0,1fr)_auto]">

@@ -260,7 +260,9 @@ function latestDraw(s: EngineState, shown: number): BigScreenView['latestDraw'] 
  */
 export function bigScreenView(s: EngineState): BigScreenView {
   const ids = s.supergame?.pairIds ?? [];
-  const byRound = new Map<number, { choices: number; cooperate: number }>();
+  // counts by round number (index); a round appears once any pair has resolved it
+  const choicesBy: number[] = [];
+  const cooperateBy: number[] = [];
   let shown = ids.length ? Number.POSITIVE_INFINITY : 0;
   let pairsDone = 0;
   for (const id of ids) {
@@ -268,15 +270,22 @@ export function bigScreenView(s: EngineState): BigScreenView {
     shown = Math.min(shown, revealedRounds(pair));
     if (pair.done) pairsDone++;
     for (const r of pair.rounds) {
-      const cell = byRound.get(r.round) ?? { choices: 0, cooperate: 0 };
-      r.sources.forEach((src, i) => {
-        if (src !== 'player') return;
-        cell.choices++;
-        if (r.actions[i] === 'C') cell.cooperate++;
-      });
-      byRound.set(r.round, cell);
+      const k = r.round;
+      if (choicesBy[k] === undefined) {
+        choicesBy[k] = 0;
+        cooperateBy[k] = 0;
+      }
+      for (let i = 0; i < 2; i++) {
+        if (r.sources[i] !== 'player') continue;
+        choicesBy[k]++;
+        if (r.actions[i] === 'C') cooperateBy[k]++;
+      }
     }
   }
+  const cooperationByRound: BigScreenView['cooperationByRound'] = [];
+  choicesBy.forEach((choices, round) => {
+    cooperationByRound.push({ round, choices, cooperate: cooperateBy[round], rate: choices > 0 ? cooperateBy[round] / choices : null });
+  });
   const draws = s.supergame?.draws.draws ?? [];
   const rate = (c: number, n: number): number | null => (n > 0 ? c / n : null);
   const rule = drawRule(s.design.delta);
@@ -292,9 +301,7 @@ export function bigScreenView(s: EngineState): BigScreenView {
     lateEntry: lateEntry(s),
     drawRule: { max: rule.max, cutoff: rule.cutoff },
     latestDraw: latestDraw(s, shown),
-    cooperationByRound: [...byRound.entries()]
-      .sort((a, b) => a[0] - b[0])
-      .map(([round, c]) => ({ round, ...c, rate: rate(c.cooperate, c.choices) })),
+    cooperationByRound,
     bySupergame: s.summaries.map((x) => ({
       supergame: x.supergame,
       length: x.length,

@@ -3,12 +3,15 @@
 // pause as a banner, the round's draw shown large, a placeholder before the chart has data, a
 // closing slide, a cancelled slide. Players act over real sockets; the screen is real Chromium.
 import path from 'node:path';
+import { and, eq } from 'drizzle-orm';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { supergameDraws } from '#app/lib/draws';
+import { designSchema } from '#app/lib/design';
+import { sessions } from '#drizzle/schema';
 import type { ParticipantView } from '#realtime/engine/types';
 import { launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
-import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
+import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, openSession, type TestSocket } from '#tests/helpers/live';
 
@@ -122,6 +125,7 @@ describe('the big screen on a 1920×1080 projector', () => {
     expect(await page.getByTestId('big-join-code').textContent()).toBe(code);
     await shot(page, 'big-screen-open-1920');
     await shot(phone, 'big-screen-open-phone');
+    expect(await overflows(phone)).toMatchObject({ x: false });
 
     await control('start');
     await expect.poll(() => page.getByTestId('big-status').textContent()).toContain('Running');
@@ -208,6 +212,32 @@ describe('the big screen on a 1920×1080 projector', () => {
     const phone = await screenPage(instructor, sessionId, PHONE);
     await phone.getByRole('heading', { name: 'This session was cancelled' }).waitFor();
     await shot(phone, 'big-screen-cancelled-phone');
+    expect(pageErrors).toEqual([]);
+  });
+
+  it("the demo's completed session: a closing slide with all 20 supergames that fits the screen", async () => {
+    const demo = (await testDb().select().from(sessions).where(and(eq(sessions.simulated, 1), eq(sessions.status, 'complete')))).find(
+      (x) => designSchema.parse(x.params).supergames === 20,
+    )!;
+    const design = designSchema.parse(demo.params);
+    const page = await screenPage(await signIn('r.okafor@halvorsen.example'), demo.id, PROJECTOR);
+    await page.getByRole('heading', { name: /Thank you/ }).waitFor();
+    const rows = page.getByTestId('closing-supergame');
+    expect(await rows.count()).toBe(20);
+    // Each supergame's length is the one its draws gave. Source: common practice (the first draw above 100·δ ends it).
+    for (let sg = 1; sg <= 20; sg++) {
+      const length = supergameDraws(Number(demo.seed), design.delta, sg, design.termination).length;
+      expect(await rows.nth(sg - 1).textContent()).toMatch(new RegExp(`^Supergame ${sg}: \\d+ % chose ${design.labels.C}, ${length} rounds?\\.`));
+    }
+    expect(await page.getByTestId('big-join-code').count()).toBe(0);
+    const small = await smallestText(page);
+    expect(small.size, `"${small.text}" is ${small.size} px`).toBeGreaterThanOrEqual(28);
+    expect(await overflows(page)).toEqual({ x: false, y: false });
+    await shot(page, 'big-screen-demo-complete-1920');
+    const phone = await screenPage(await signIn('r.okafor@halvorsen.example'), demo.id, PHONE);
+    await phone.getByRole('heading', { name: /Thank you/ }).waitFor();
+    expect(await overflows(phone)).toMatchObject({ x: false });
+    await shot(phone, 'big-screen-demo-complete-phone');
     expect(pageErrors).toEqual([]);
   });
 });

@@ -25,9 +25,12 @@ export function ColumnChart({ columns, rows, testId }: { columns: Column[]; rows
   return (
     <div className="flex min-h-[7em] flex-1 gap-[0.4em]">
       <div aria-hidden="true" className="flex flex-col text-right text-[0.95em] text-slate-300">
-        <span className="flex flex-1 flex-col justify-between pt-[1.4em]">
-          <span>100 %</span>
-          <span>0 %</span>
+        {/* 100 % centred on the top line of the bars, 0 % just above the axis */}
+        <span className="flex-1 pt-[1.4em]">
+          <span className="relative block h-full">
+            <span className="absolute top-0 right-0 -translate-y-1/2 whitespace-nowrap">100 %</span>
+            <span className="absolute right-0 bottom-0 leading-none whitespace-nowrap">0 %</span>
+          </span>
         </span>
         {rows.map((r) => (
           <span key={r} className="h-[1.5em] leading-[1.5em]">
@@ -40,7 +43,7 @@ export function ColumnChart({ columns, rows, testId }: { columns: Column[]; rows
           const pct = Math.round((c.rate ?? 0) * 100);
           const showLabel = labelled || i % step === 0 || i === columns.length - 1;
           return (
-            <li key={c.key} data-testid={testId} className="flex min-w-0 flex-1 flex-col items-stretch">
+            <li key={c.key} data-testid={testId} className="flex max-w-[5em] min-w-0 flex-1 flex-col items-stretch">
               <span className="sr-only">{c.text}</span>
               <span aria-hidden="true" className="relative flex-1 pt-[1.4em]">
                 <span className="relative block h-full">

@@ -24,14 +24,14 @@ export function JoinHero({ code, host, qr }: JoinProps) {
   return (
     <section data-testid="big-join" aria-label="How to join" className="flex flex-wrap items-center justify-center gap-x-[2em] gap-y-[1em]">
       <div className="flex min-w-0 flex-col gap-[0.4em]">
-        <p className="text-[1.3em]">On your phone, open</p>
-        <p className="text-[2em] font-semibold break-all text-accent-200">{host}/join</p>
-        <p className="text-[1.3em]">and type the code</p>
-        <p className="font-mono text-[3.6em] leading-none font-bold tracking-[0.2em]" data-testid="big-join-code">
+        <p className="text-[1.5em]">On your phone, open</p>
+        <p className="text-[2.4em] leading-tight font-semibold break-all text-accent-200">{host}/join</p>
+        <p className="text-[1.5em]">and type the code</p>
+        <p className="font-mono text-[min(5em,14vw)] leading-none font-bold tracking-[0.2em]" data-testid="big-join-code">
           {code}
         </p>
       </div>
-      {qr ? <Qr qr={qr} className="w-[13em] max-w-full" /> : null}
+      {qr ? <Qr qr={qr} className="w-[min(18em,60vh)] max-w-full" /> : null}
     </section>
   );
 }
