@@ -81,6 +81,8 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
         </div>
       ) : null}
       <div className="flex flex-1 flex-col gap-[0.8em] px-[1em] py-[0.8em]">
+        {/* the closing and cancelled slides have their own visible heading */}
+        {lobby || live ? <h1 className="sr-only">Big screen of session #{session.id}</h1> : null}
         {lobby ? (
           <div className="flex flex-1 flex-col justify-center gap-[1em]">
             {code ? <JoinHero code={code} host={joinHost} qr={qr} /> : null}
