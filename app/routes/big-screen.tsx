@@ -1,110 +1,138 @@
 import QRCode from 'qrcode';
 import type { Route } from './+types/big-screen';
+import { ColumnChart, percent } from '#app/components/big-screen/column-chart';
+import { DrawPanel } from '#app/components/big-screen/draw-panel';
+import { JoinHero, JoinSide } from '#app/components/big-screen/join-panel';
+import { CancelledSlide, ClosingSlide } from '#app/components/big-screen/slides';
 import { useSessionView } from '#app/components/live/use-session';
-import { formatCutoff } from '#app/lib/draws';
 import { getSession } from '#app/models/live.server';
 import { env } from '#app/utils/env.server';
 import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { runner } from '#app/utils/runner.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
+import { bigScreenView } from '#realtime/engine/views';
 
-// The projector page: join code, QR code and head-count while open; progress and the room's
-// cooperation while running. Aggregates only: no pseudonym, no individual choice.
+// The projector page, for the back row of a lecture hall: the join code and QR code while people
+// may still join and play; progress, the round's draw and the room's cooperation while running; a
+// closing slide at the end. Aggregates only: no pseudonym, no individual choice.
 export async function loader({ request, params }: Route.LoaderArgs) {
   const session = await getSession(parseId(params.sessionId));
   if (!session) throw new Response('No such session.', { status: 404 });
   await requireCourseRole(request, String(session.courseId), STAFF_ROLES);
   const joinUrl = session.joinCode ? new URL(`/join/${session.joinCode}`, env().APP_URL).toString() : null;
   const qr = joinUrl ? await QRCode.toString(joinUrl, { type: 'svg', margin: 1, color: { dark: '#0f172a', light: '#ffffff' } }) : null;
+  // The first paint already shows the right screen (a closing slide, not a join code), before the
+  // socket connects.
+  const state = await runner().state(session.id);
   return {
-    session: { id: session.id, treatment: session.treatment, joinCode: session.joinCode, simulated: session.simulated },
-    joinUrl,
+    session: { id: session.id, status: session.status, joinCode: session.joinCode, simulated: session.simulated },
     joinHost: new URL(env().APP_URL).host,
     qr,
     labelC: session.design.labels.C,
-    cutoff: formatCutoff(session.design.delta),
+    initial: state ? bigScreenView(state) : null,
   };
 }
 
-export default function BigScreen({ loaderData }: Route.ComponentProps) {
-  const { session, qr, joinHost, labelC, cutoff } = loaderData;
-  const { view, connected } = useSessionView(session.id, 'big-screen', null);
-  const screen = view && 'cooperationByRound' in view ? view : null;
-  const status = screen?.status ?? 'open';
-  const lobby = status === 'open' || status === 'draft';
+/**
+ * Sizes are in em of a base that follows the screen: ≈ 30 px on a 1920×1080 projector (readable
+ * from the back of a lecture hall; key numbers ≥ 2 em), 16 px on a phone.
+ */
+const BASE_FONT = 'clamp(16px, min(1.55vw, 2.8vh), 40px)';
+
+function Stat({ label, value, of, testId }: { label: string; value: number; of?: number; testId?: string }) {
   return (
-    <div className="min-h-dvh bg-slate-950 p-8 text-slate-50">
-      <div className="mx-auto flex max-w-6xl flex-col gap-8">
-        <header className="flex flex-wrap items-baseline justify-between gap-4">
-          <p className="text-2xl font-semibold text-accent-200">Parley</p>
-          <p className="text-xl text-slate-300">
-            <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
-            {STATUS_WORDS[status].word}
-            {connected ? '' : ' · reconnecting…'}
-          </p>
-        </header>
-        {session.simulated ? <p className="text-xl text-slate-300">Simulated demo session</p> : null}
-        {lobby && session.joinCode ? (
-          <section className="grid items-center gap-10 md:grid-cols-[1fr_auto]" aria-label="How to join">
-            <div className="flex flex-col gap-6">
-              <p className="text-3xl">On your phone, open</p>
-              <p className="text-5xl font-semibold text-accent-200">{joinHost}/join</p>
-              <p className="text-3xl">and type the code</p>
-              <p className="font-mono text-8xl font-bold tracking-[0.25em]" data-testid="big-join-code">
-                {session.joinCode}
-              </p>
-            </div>
-            {qr ? <div className="w-72 rounded-xl bg-white p-3" role="img" aria-label="QR code of the join link" dangerouslySetInnerHTML={{ __html: qr }} /> : null}
-          </section>
-        ) : null}
-        <section className="grid gap-6 md:grid-cols-3" aria-label="Progress">
-          <div className="rounded-xl border border-slate-700 p-6">
-            <p className="text-xl text-slate-300">Joined</p>
-            <p className="num text-7xl font-bold" data-testid="big-joined">
-              {screen?.joined ?? 0}
-            </p>
-          </div>
-          {!lobby && screen ? (
-            <>
-              <div className="rounded-xl border border-slate-700 p-6">
-                <p className="text-xl text-slate-300">Supergame</p>
-                <p className="num text-7xl font-bold">
-                  {screen.supergame} <span className="text-3xl text-slate-400">of {screen.supergames}</span>
-                </p>
-              </div>
-              <div className="rounded-xl border border-slate-700 p-6">
-                <p className="text-xl text-slate-300">Pairs done</p>
-                <p className="num text-7xl font-bold">
-                  {screen.pairsDone} <span className="text-3xl text-slate-400">of {screen.pairs}</span>
-                </p>
-              </div>
-            </>
-          ) : null}
-        </section>
-        {!lobby && screen ? (
-          <section aria-labelledby="coop" className="flex flex-col gap-4">
-            <h2 id="coop" className="text-3xl font-semibold">
-              Share choosing {labelC}, by round of this supergame
-            </h2>
-            <ol className="flex flex-col gap-2">
-              {screen.cooperationByRound.map((r) => (
-                <li key={r.round} className="grid grid-cols-[8rem_1fr_6rem] items-center gap-4 text-2xl">
-                  <span>Round {r.round}</span>
-                  <span className="h-8 rounded bg-slate-800" aria-hidden="true">
-                    <span className="block h-8 rounded bg-accent-300" style={{ width: `${Math.round((r.rate ?? 0) * 100)}%` }} />
-                  </span>
-                  <span className="num text-right">{r.rate === null ? '—' : `${Math.round(r.rate * 100)} %`}</span>
-                </li>
-              ))}
-            </ol>
-            {screen.drawsShown.length ? (
-              <p className="text-2xl text-slate-300">
-                Draws so far: <span className="num font-semibold text-slate-50">{screen.drawsShown.join(' · ')}</span> (another round while ≤ {cutoff})
-              </p>
-            ) : null}
-          </section>
-        ) : null}
-      </div>
+    <div className="flex flex-col rounded-xl border border-slate-700 px-[0.8em] py-[0.4em]">
+      <p className="text-slate-300">{label}</p>
+      <p className="num text-[2.2em] leading-tight font-bold">
+        <span data-testid={testId}>{value}</span>
+        {of !== undefined ? <span className="text-[0.5em] font-semibold text-slate-300"> of {of}</span> : null}
+      </p>
     </div>
+  );
+}
+
+export default function BigScreen({ loaderData }: Route.ComponentProps) {
+  const { session, qr, joinHost, labelC, initial } = loaderData;
+  const { view, connected } = useSessionView(session.id, 'big-screen', initial);
+  const screen = view && 'cooperationByRound' in view ? view : null;
+  const status = screen?.status ?? session.status;
+  const lobby = status === 'open' || status === 'draft';
+  const live = status === 'running' || status === 'paused';
+  const over = status === 'complete' || status === 'archived';
+  // the view knows whether a joiner would still play; before it arrives, the stored status does
+  const entersAt = screen ? screen.lateEntry : lobby ? 1 : null;
+  const code = entersAt !== null ? session.joinCode : null;
+  return (
+    <main data-testid="big-screen" className="flex min-h-dvh w-full flex-col bg-slate-950 text-slate-50" style={{ fontSize: BASE_FONT }}>
+      <header className="flex flex-wrap items-baseline justify-between gap-x-[1em] border-b border-slate-800 px-[1em] py-[0.4em]">
+        <p className="font-semibold text-accent-200">Parley{session.simulated ? <span className="font-normal text-slate-300"> · simulated demo session</span> : null}</p>
+        <p data-testid="big-status">
+          <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
+          {STATUS_WORDS[status].word}
+          {connected ? '' : ' · reconnecting…'}
+        </p>
+      </header>
+      {status === 'paused' ? (
+        <div data-testid="pause-banner" role="status" className="flex w-full flex-wrap items-baseline gap-x-[1em] bg-accent-200 px-[1em] py-[0.3em] text-slate-950">
+          <p className="text-[2.4em] leading-tight font-bold">
+            <span aria-hidden="true">❚❚ </span>Paused
+          </p>
+          <p className="font-semibold">Round timers are stopped until the session resumes.</p>
+        </div>
+      ) : null}
+      <div className="flex flex-1 flex-col gap-[0.8em] px-[1em] py-[0.8em]">
+        {/* the closing and cancelled slides have their own visible heading */}
+        {lobby || live ? <h1 className="sr-only">Big screen of session #{session.id}</h1> : null}
+        {lobby ? (
+          <div className="flex flex-1 flex-col justify-center gap-[1em]">
+            {code ? <JoinHero code={code} host={joinHost} qr={qr} /> : null}
+            <div className="flex justify-center">
+              <Stat label="Joined" value={screen?.joined ?? 0} testId="big-joined" />
+            </div>
+          </div>
+        ) : null}
+        {live && screen ? (
+          <div className="grid flex-1 gap-[0.8em] lg:grid-cols-[minmax(0,1fr)_auto]">
+            <div className="flex min-w-0 flex-col gap-[0.6em]">
+              <div className="grid grid-cols-3 gap-[0.6em]">
+                <Stat label="Supergame" value={screen.supergame} of={screen.supergames} />
+                <Stat label="Pairs done" value={screen.pairsDone} of={screen.pairs} />
+                <Stat label="Joined" value={screen.joined} testId="big-joined" />
+              </div>
+              <DrawPanel draw={screen.latestDraw} rule={screen.drawRule} currentSupergame={screen.supergame} />
+              <section aria-labelledby="coop" className="flex min-h-[10em] flex-1 flex-col gap-[0.3em]">
+                <h2 id="coop" className="font-semibold">
+                  Share choosing {labelC}, by round of supergame {screen.supergame}
+                </h2>
+                {screen.cooperationByRound.length ? (
+                  <ColumnChart
+                    testId="chart-round"
+                    rows={['Round']}
+                    columns={screen.cooperationByRound.map((r) => ({
+                      key: r.round,
+                      rate: r.rate,
+                      text: `Round ${r.round}: ${r.rate === null ? 'no own choices' : `${percent(r.rate)} chose ${labelC}`}.`,
+                      below: [String(r.round)],
+                    }))}
+                  />
+                ) : (
+                  <p data-testid="chart-placeholder" className="flex flex-1 items-center justify-center rounded-xl border border-dashed border-slate-600 px-[1em] text-center text-slate-300">
+                    Round 1 of supergame {screen.supergame} is being played. The chart fills in as pairs finish their rounds.
+                  </p>
+                )}
+              </section>
+            </div>
+            {code && entersAt !== null ? (
+              <aside className="lg:w-[12em]">
+                <JoinSide code={code} host={joinHost} qr={qr} entersAt={entersAt} />
+              </aside>
+            ) : null}
+          </div>
+        ) : null}
+        {over && screen ? <ClosingSlide view={screen} labelC={labelC} /> : null}
+        {status === 'cancelled' ? <CancelledSlide /> : null}
+      </div>
+    </main>
   );
 }
 

@@ -348,8 +348,37 @@ export interface BigScreenView {
   pairsDone: number;
   /** draws every pair has seen so far in this supergame */
   drawsShown: number[];
+  /**
+   * The supergame a participant who joins now plays first (the engine admits joins while open,
+   * running and paused); null when joining is closed or no supergame is left to enter.
+   */
+  lateEntry: number | null;
+  /** the draw: a whole number from 1 to `max`; another round while it is ≤ `cutoff` */
+  drawRule: { max: number; cutoff: number };
+  /**
+   * The latest draw every pair has seen: one round's under standard termination, a whole block's
+   * under block termination. Between supergames (no pair of the new one has finished round 1),
+   * the last draw of the supergame just ended. Null before the first draw.
+   */
+  latestDraw: {
+    supergame: number;
+    fromRound: number;
+    toRound: number;
+    draws: number[];
+    /** whether the supergame goes on after these draws */
+    continues: boolean;
+    /** block termination: the end-of-block announcement the phones show; null otherwise */
+    sentence: string | null;
+  } | null;
   cooperationByRound: { round: number; choices: number; cooperate: number; rate: number | null }[];
-  bySupergame: { supergame: number; length: number; cooperation: number | null; round1Cooperation: number | null }[];
+  bySupergame: {
+    supergame: number;
+    length: number;
+    cooperation: number | null;
+    round1Cooperation: number | null;
+    /** cut short by "end now" */
+    truncated: boolean;
+  }[];
 }
 
 export type BroadcastPayload =

@@ -3,7 +3,7 @@
  * Participants never see their partner's pseudonym; the big screen shows aggregates only.
  */
 import type { Action } from '../../app/lib/automata';
-import { describeBlock, describeDraw, formatCutoff } from '../../app/lib/draws';
+import { describeBlock, describeDraw, drawRule, formatCutoff, supergameDraws } from '../../app/lib/draws';
 import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
 
 const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);
@@ -206,25 +206,89 @@ export function floorView(s: EngineState, now: number): FloorView {
   };
 }
 
+/** Rounds of a pair whose draws have been shown. Rounds are revealed in order (a block at a
+ * time under block termination), so the revealed ones are a prefix: counting from the end costs
+ * O(1) per pair under standard termination, at most O(block) under block termination. */
+function revealedRounds(pair: PairState): number {
+  for (let i = pair.rounds.length - 1; i >= 0; i--) if (pair.rounds[i].revealed) return i + 1;
+  return 0;
+}
+
+/** Who may still join and play: the engine admits joins while open, running and paused. */
+function lateEntry(s: EngineState): number | null {
+  if (s.status === 'open') return 1;
+  if (s.status !== 'running' && s.status !== 'paused') return null;
+  // a late joiner enters at the next supergame; with none left, joining now only means waiting
+  const next = (s.supergame?.number ?? 0) + 1;
+  return next <= s.design.supergames && !s.endAfterSupergame ? next : null;
+}
+
+/** The latest draw every pair has seen (`shown`: the fewest revealed rounds of any pair now). */
+function latestDraw(s: EngineState, shown: number): BigScreenView['latestDraw'] {
+  const sg = s.supergame;
+  if (!sg) return null;
+  const t = s.design.termination;
+  let number = sg.number;
+  let draws = sg.draws;
+  let to = shown;
+  if (shown === 0) {
+    if (sg.number === 1) return null;
+    // Between supergames the draw that ended the last one stays on the screen. The state keeps
+    // only the current supergame's draws; the previous ones come again from the seed, exactly as
+    // the engine drew them: O(its rounds), about 1/(1 − δ) numbers.
+    number = sg.number - 1;
+    draws = supergameDraws(s.seed, s.design.delta, number, t);
+    to = draws.roundsPlayed;
+  }
+  const k = t.kind === 'block' ? t.k : 1;
+  const from = to - ((to - 1) % k);
+  const list = draws.draws.slice(from - 1, to);
+  return {
+    supergame: number,
+    fromRound: from,
+    toRound: to,
+    draws: list,
+    continues: to < draws.length,
+    sentence: t.kind === 'block' ? describeBlock(list, from, draws.length, s.design.delta) : null,
+  };
+}
+
+/**
+ * The projector's aggregates. Rebuilt up to a few times a second in a large session, so it reads
+ * each pair once: O(pairs) for the draw and progress, plus O(rounds resolved in this supergame)
+ * for the cooperation by round (about pairs / (1 − δ) round records).
+ */
 export function bigScreenView(s: EngineState): BigScreenView {
   const ids = s.supergame?.pairIds ?? [];
-  const byRound = new Map<number, { choices: number; cooperate: number }>();
-  let shown = Number.POSITIVE_INFINITY;
+  // counts by round number (index); a round appears once any pair has resolved it
+  const choicesBy: number[] = [];
+  const cooperateBy: number[] = [];
+  let shown = ids.length ? Number.POSITIVE_INFINITY : 0;
+  let pairsDone = 0;
   for (const id of ids) {
     const pair = s.pairs[id];
-    shown = Math.min(shown, pair.rounds.filter((r) => r.revealed).length);
+    shown = Math.min(shown, revealedRounds(pair));
+    if (pair.done) pairsDone++;
     for (const r of pair.rounds) {
-      const cell = byRound.get(r.round) ?? { choices: 0, cooperate: 0 };
-      r.sources.forEach((src, i) => {
-        if (src !== 'player') return;
-        cell.choices++;
-        if (r.actions[i] === 'C') cell.cooperate++;
-      });
-      byRound.set(r.round, cell);
+      const k = r.round;
+      if (choicesBy[k] === undefined) {
+        choicesBy[k] = 0;
+        cooperateBy[k] = 0;
+      }
+      for (let i = 0; i < 2; i++) {
+        if (r.sources[i] !== 'player') continue;
+        choicesBy[k]++;
+        if (r.actions[i] === 'C') cooperateBy[k]++;
+      }
     }
   }
+  const cooperationByRound: BigScreenView['cooperationByRound'] = [];
+  choicesBy.forEach((choices, round) => {
+    cooperationByRound.push({ round, choices, cooperate: cooperateBy[round], rate: choices > 0 ? cooperateBy[round] / choices : null });
+  });
   const draws = s.supergame?.draws.draws ?? [];
   const rate = (c: number, n: number): number | null => (n > 0 ? c / n : null);
+  const rule = drawRule(s.design.delta);
   return {
     sessionId: s.sessionId,
     status: s.status,
@@ -232,16 +296,18 @@ export function bigScreenView(s: EngineState): BigScreenView {
     supergame: s.supergame?.number ?? 0,
     supergames: s.design.supergames,
     pairs: ids.length,
-    pairsDone: ids.filter((id) => s.pairs[id].done).length,
-    drawsShown: Number.isFinite(shown) ? draws.slice(0, shown) : [],
-    cooperationByRound: [...byRound.entries()]
-      .sort((a, b) => a[0] - b[0])
-      .map(([round, c]) => ({ round, ...c, rate: rate(c.cooperate, c.choices) })),
+    pairsDone,
+    drawsShown: draws.slice(0, shown),
+    lateEntry: lateEntry(s),
+    drawRule: { max: rule.max, cutoff: rule.cutoff },
+    latestDraw: latestDraw(s, shown),
+    cooperationByRound,
     bySupergame: s.summaries.map((x) => ({
       supergame: x.supergame,
       length: x.length,
       cooperation: rate(x.cooperate, x.playerChoices),
       round1Cooperation: rate(x.round1Cooperate, x.round1Choices),
+      truncated: x.truncated,
     })),
   };
 }
