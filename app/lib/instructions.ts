@@ -4,34 +4,13 @@
  * points turn into credit, and the no-deception statement. Neutral words only: the actions are
  * the design's labels, never "cooperate" or "defect" (common practice: neutral framing).
  */
-import { libraryStrategy } from './automata';
 import type { Design } from './design';
 import { drawRule } from './draws';
+import { strategyInWords } from './strategy-words';
 
 const num = (x: number) => String(Number(x.toFixed(2)));
 /** "an 87.5%", "an 11%", "a 75%": the article as the number is spoken. */
 const aPercent = (p: string) => (/^(8|1[18](\D|$))/.test(p) ? `an ${p}%` : `a ${p}%`);
-
-function strategyWords(id: string, labels: Design['labels']): string {
-  const x = labels.C;
-  const y = labels.D;
-  const words: Record<string, string> = {
-    ALLC: `always chooses ${x}`,
-    ALLD: `always chooses ${y}`,
-    Grim: `chooses ${x} until either player has chosen ${y}, then chooses ${y} for the rest of the supergame`,
-    TFT: `chooses ${x} in the first round, then whatever its partner chose in the round before`,
-    STFT: `chooses ${y} in the first round, then whatever its partner chose in the round before`,
-    WSLS: `chooses ${x} in the first round, then repeats its choice after both players chose the same, and switches otherwise`,
-    T2: `chooses ${x} until a round in which not both chose ${x}, then ${y} for two rounds, then ${x} again`,
-    TF2T: `chooses ${x} unless its partner chose ${y} in each of the two rounds before`,
-    TF3T: `chooses ${x} unless its partner chose ${y} in each of the three rounds before`,
-    '2TFT': `chooses ${x} until its partner chooses ${y}, then ${y} for two rounds`,
-    Grim2: `chooses ${x} until two rounds in a row in which not both chose ${x}, then ${y} for the rest of the supergame`,
-    Grim3: `chooses ${x} until three rounds in a row in which not both chose ${x}, then ${y} for the rest of the supergame`,
-    CtoD: `chooses ${x} in the first round and ${y} afterwards`,
-  };
-  return words[id] ?? `follows the fixed rule “${libraryStrategy(id).name}”`;
-}
 
 export function generateInstructions(d: Design): string {
   const { R, S, T, P } = d.payoffs;
@@ -67,7 +46,7 @@ export function generateInstructions(d: Design): string {
   if (d.oddCount.kind === 'computer') {
     lines.push(
       '',
-      `If the number of participants is odd, one participant in a supergame is paired with a computer partner instead, in turn. The computer partner ${strategyWords(d.oddCount.strategy, d.labels)}. You are always told when your partner is a computer.`,
+      `If the number of participants is odd, one participant in a supergame is paired with a computer partner instead, in turn. The computer partner ${strategyInWords(d.oddCount.strategy, d.labels)}. You are always told when your partner is a computer.`,
     );
   } else {
     lines.push('', 'If the number of participants is odd, one participant sits out each supergame, in turn, and waits for the next one.');
