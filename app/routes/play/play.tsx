@@ -11,6 +11,7 @@ import { requireUser } from '#app/utils/auth.server';
 import { parseId, roleIn, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import type { Action } from '#app/lib/automata';
+import { strategyInWords } from '#app/lib/strategy-words';
 import { participantView } from '#realtime/engine/views';
 import type { ParticipantView } from '#realtime/engine/types';
 
@@ -125,7 +126,11 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           </div>
           {view.partner?.kind === 'computer' ? (
             <Notice title="Your partner is a computer">
-              In this supergame your partner is a computer that follows a fixed rule ({view.partner.strategy}){view.partner.reason === 'hand-over' ? ', because the participant in this seat left' : ''}.
+              <span data-testid="computer-partner">
+                {view.partner.reason === 'hand-over'
+                  ? `The participant you were paired with left${view.partner.fromRound > 1 ? ` after round ${view.partner.fromRound - 1}` : ''}, so for the rest of this supergame your partner is a computer that ${strategyInWords(view.partner.strategy, labels)}.`
+                  : `In this supergame your partner is a computer that ${strategyInWords(view.partner.strategy, labels)}.`}
+              </span>
             </Notice>
           ) : null}
           {view.lastResult && (view.lastResult.supergame === view.supergame || view.history.length === 0) ? <ResultLine r={view.lastResult} labels={labels} /> : null}
@@ -172,13 +177,24 @@ export default function Play({ loaderData }: Route.ComponentProps) {
 
       {view.status === 'between-supergames' ? (
         <section className="flex flex-col gap-4" aria-live="polite">
-          <h1 className="text-2xl font-semibold">{view.notice === 'sitting-out' ? 'You sit out this supergame' : `Supergame ${view.supergame} is over`}</h1>
+          <h1 className="text-2xl font-semibold">
+            {view.notice === 'sitting-out'
+              ? 'You sit out this supergame'
+              : view.notice === 'handed-to-computer'
+                ? view.pairId
+                  ? 'A computer plays for you in this supergame'
+                  : 'You are not paired in this supergame'
+                : `Supergame ${view.supergame} is over`}
+          </h1>
           {view.lastResult ? <ResultLine r={view.lastResult} labels={labels} /> : null}
-          {view.notice === 'handed-to-computer' ? <Notice>A computer partner took your seat for the rest of this supergame. You are back from the next one.</Notice> : null}
           <p className="text-lg text-slate-700">
             {view.notice === 'sitting-out'
               ? 'The head-count is odd, so one participant sits out each supergame, in turn. You play again in the next one.'
-              : 'Waiting for the other pairs to finish. You will get a new partner.'}
+              : view.notice === 'handed-to-computer'
+                ? view.pairId
+                  ? `You were away, so a computer took your seat for the rest of supergame ${view.supergame}, and your partner was told. The supergame goes on without you.`
+                  : 'A computer took your seat in an earlier supergame while you were away, so you are not in the pairs of this one.'
+                : 'Waiting for the other pairs to finish. You will get a new partner.'}
           </p>
           <p className="num text-xl">
             Your points so far: <strong>{view.totalPoints}</strong>

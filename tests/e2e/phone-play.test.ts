@@ -101,4 +101,45 @@ describe('the phone during play', () => {
     expect(await text(page)).not.toMatch(/back online|Not recorded/);
     expect(pageErrors.splice(0).filter((e) => !/ERR_INTERNET_DISCONNECTED|WebSocket/.test(e))).toEqual([]);
   });
+
+  it('tells a partner in plain words what the computer that took the other seat does, and the handed-over participant that the supergame goes on', async () => {
+    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 2, delta: 0.9, labels: { C: 'Cooperate', D: 'Defect' } });
+    const phones = await Promise.all(players.map((p) => phoneOf(p)));
+    for (const { page } of phones) {
+      await page.goto(`/play/${sessionId}`);
+      await page.getByRole('heading', { name: 'You are in' }).waitFor();
+      await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);
+    }
+    const staff = await connect(instructor.cookieHeader());
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
+    const [stays, leaves] = phones.map((p) => p.page);
+    await stays.getByTestId('round-title').waitFor();
+
+    // The second participant is away; the assistant hands the seat to tit-for-tat.
+    const key = await participantKey(sessionId, playerIds[1]);
+    const handed = await staff.timeout(8000).emitWithAck('participant:act', { sessionId, participantId: key!, action: 'hand-to-computer', strategy: 'TFT' });
+    expect(handed.ok).toBe(true);
+
+    // Before the fix: "a computer that follows a fixed rule (TFT)".
+    await stays.getByText('Your partner is a computer', { exact: true }).waitFor();
+    expect.soft(await text(stays)).toContain(
+      'The participant you were paired with left, so for the rest of this supergame your partner is a computer that starts with Cooperate and then copies what you did last round.',
+    );
+    expect.soft(await text(stays)).not.toMatch(/TFT|fixed rule|Tit-for-tat/);
+    await stays.screenshot({ path: '/tmp/parley-phone-computer-partner.png' });
+
+    // The supergame goes on for the pair: the handed-over participant is not told it is over.
+    // Before the fix: "Supergame 1 is over" while the computer played on in the seat.
+    await expect.poll(() => leaves.locator('h1').textContent()).not.toContain('Round 1');
+    expect(await leaves.locator('h1').textContent()).toBe('A computer plays for you in this supergame');
+    const told = await text(leaves);
+    expect(told).not.toMatch(/Supergame 1 is over/);
+    expect(told).toMatch(/a computer took your seat for the rest of supergame 1/);
+    await leaves.screenshot({ path: '/tmp/parley-phone-handed-over.png' });
+
+    // The pair plays on against the computer: a tap is recorded and answered by tit-for-tat.
+    await stays.getByRole('button', { name: 'Defect' }).click();
+    await expect.poll(() => stays.getByTestId('last-result').textContent()).toMatch(/Round 1: you ● ?Defect, partner ◆ ?Cooperate/);
+    expect(pageErrors.splice(0)).toEqual([]);
+  });
 });
