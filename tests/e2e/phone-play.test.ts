@@ -20,7 +20,7 @@ afterAll(async () => {
 });
 
 /** A course with an instructor and `n` participants, all signed in over HTTP and joined. */
-async function classOf(n: number, design: Parameters<typeof createDesign>[2]) {
+async function classOf(n: number, design: Parameters<typeof createDesign>[2], open: Record<string, string> = {}) {
   const emails = { instructor: uniqueEmail('ob-inst'), players: Array.from({ length: n }, (_, i) => uniqueEmail(`ob-p${i}`)) };
   const instructorId = await createUser(emails.instructor, 'Instructor');
   const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));
@@ -28,7 +28,7 @@ async function classOf(n: number, design: Parameters<typeof createDesign>[2]) {
   const designId = await createDesign(courseId, instructorId, design);
   const instructor = await signIn(emails.instructor);
   const players = await Promise.all(emails.players.map((e) => signIn(e)));
-  const { sessionId, code } = await openSession(instructor, courseId, designId);
+  const { sessionId, code } = await openSession(instructor, courseId, designId, open);
   for (const p of players) await join(p, code);
   return { sessionId, instructor, players, playerIds };
 }
@@ -140,6 +140,129 @@ describe('the phone during play', () => {
     // The pair plays on against the computer: a tap is recorded and answered by tit-for-tat.
     await stays.getByRole('button', { name: 'Defect' }).click();
     await expect.poll(() => stays.getByTestId('last-result').textContent()).toMatch(/Round 1: you ● ?Defect, partner ◆ ?Cooperate/);
+    expect(pageErrors.splice(0)).toEqual([]);
+  });
+
+  it('holds a tap while the server has lost its database, and sends it again after an "unavailable" answer', async () => {
+    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } });
+    const { page } = await phoneOf(players[0]);
+    // Between the phone and the server: inject the server's 'storage:status' events, and answer
+    // the first choice as a server with a stalled database does ('unavailable', outcome unknown).
+    const sent: string[] = [];
+    let toPage: ((frame: string) => void) | null = null;
+    let stallNext = true;
+    await page.routeWebSocket(/\/socket\.io\//, (ws) => {
+      const server = ws.connectToServer();
+      toPage = (frame) => ws.send(frame);
+      ws.onMessage((frame) => {
+        const m = /^42(\d+)\["choice:submit",(.*)\]$/.exec(String(frame));
+        if (m) sent.push(m[2]);
+        if (m && stallNext) {
+          stallNext = false;
+          ws.send(`43${m[1]}[${JSON.stringify({ ok: false, code: 'unavailable', message: 'The database did not answer in time.' })}]`);
+          return;
+        }
+        server.send(frame);
+      });
+      server.onMessage((frame) => ws.send(frame));
+    });
+    await page.goto(`/play/${sessionId}`);
+    await page.getByRole('heading', { name: 'You are in' }).waitFor();
+    await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);
+    const staff = await connect(instructor.cookieHeader());
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
+    await page.getByTestId('round-title').waitFor();
+
+    toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
+    await page.getByText('Reconnecting…', { exact: true }).waitFor();
+    await page.getByRole('button', { name: 'Defect' }).click();
+    await expect.poll(() => text(page)).toMatch(/Your choice \(● ?Defect\) will be sent when you are back online/);
+    await new Promise((r) => setTimeout(r, 1000));
+    expect(sent).toEqual([]);
+
+    toPage!(`42${JSON.stringify(['storage:status', { ok: true }])}`);
+    const key = await participantKey(sessionId, playerIds[0]);
+    await expect
+      .poll(async () => (await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))).map((r) => `${r.action} ${r.source}`))
+      .toEqual(['D player']);
+    // Sent twice, the second time with the same client choice id, so it could only be stored once.
+    expect(sent).toHaveLength(2);
+    const [first, second] = sent.map((p) => JSON.parse(p) as { clientChoiceId: string; action: string });
+    expect(second).toEqual(first);
+    await expect.poll(() => text(page)).toMatch(/You chose ● ?Defect/);
+    expect(await text(page)).not.toMatch(/Reconnecting|back online/);
+    expect(pageErrors.splice(0)).toEqual([]);
+  });
+
+  it('keeps a tap that could not be sent across a reload of the page, and sends it after', async () => {
+    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } });
+    const { page } = await phoneOf(players[0]);
+    let toPage: ((frame: string) => void) | null = null;
+    await page.routeWebSocket(/\/socket\.io\//, (ws) => {
+      ws.connectToServer();
+      toPage = (frame) => ws.send(frame);
+    });
+    await page.goto(`/play/${sessionId}`);
+    await page.getByRole('heading', { name: 'You are in' }).waitFor();
+    await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);
+    const staff = await connect(instructor.cookieHeader());
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
+    await page.getByTestId('round-title').waitFor();
+    toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
+    await page.getByText('Reconnecting…', { exact: true }).waitFor();
+    await page.getByRole('button', { name: 'Cooperate' }).click();
+    await expect.poll(() => text(page)).toMatch(/Your choice \(◆ ?Cooperate\) will be sent when you are back online/);
+
+    // The student reloads the page; the new connection finds the server well again.
+    await page.reload();
+    const key = await participantKey(sessionId, playerIds[0]);
+    await expect
+      .poll(async () => (await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))).map((r) => `${r.action} ${r.source}`))
+      .toEqual(['C player']);
+    await expect.poll(() => text(page)).toMatch(/You chose ◆ ?Cooperate/);
+    expect(pageErrors.splice(0)).toEqual([]);
+  });
+
+  it('says plainly when the round closed before a kept tap could be sent, and what the timeout rule chose', async () => {
+    // Seed 2 draws 14 after round 1 (≤ 50): the supergame goes on, round 1 stays in the history.
+    const design = { roundSeconds: 8, supergames: 1, delta: 0.5, timeout: 'defect' as const, labels: { C: 'Cooperate', D: 'Defect' } };
+    const { sessionId, instructor, players, playerIds } = await classOf(2, design, { seed: '2' });
+    const { page } = await phoneOf(players[0]);
+    const sent: string[] = [];
+    let toPage: ((frame: string) => void) | null = null;
+    await page.routeWebSocket(/\/socket\.io\//, (ws) => {
+      const server = ws.connectToServer();
+      toPage = (frame) => ws.send(frame);
+      ws.onMessage((frame) => {
+        if (String(frame).includes('"choice:submit"')) sent.push(String(frame));
+        server.send(frame);
+      });
+    });
+    await page.goto(`/play/${sessionId}`);
+    await page.getByRole('heading', { name: 'You are in' }).waitFor();
+    await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);
+    const partner = await connect(players[1].cookieHeader());
+    expect((await partner.timeout(8000).emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);
+    const staff = await connect(instructor.cookieHeader());
+    expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
+    await page.getByTestId('round-title').waitFor();
+    toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
+    await page.getByRole('button', { name: 'Cooperate' }).click();
+    expect((await partner.timeout(8000).emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'partner-1-1-abc' })).ok).toBe(true);
+
+    await expect
+      .poll(() => text(page), { timeout: 20_000 })
+      .toMatch('Round 1 closed before your choice Cooperate reached the server, so it was not recorded. The timeout rule chose Defect for you.');
+    await expect.poll(() => page.getByTestId('round-title').textContent()).toContain('Round 2');
+    toPage!(`42${JSON.stringify(['storage:status', { ok: true }])}`);
+    await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);
+    await new Promise((r) => setTimeout(r, 1000));
+    // The dropped tap is not sent into the next round, and round 1 holds the timeout rule's choice.
+    expect(sent).toEqual([]);
+    const key = await participantKey(sessionId, playerIds[0]);
+    const rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)));
+    expect(rows.map((r) => `${r.round} ${r.action} ${r.source}`)).toEqual(['1 D timeout']);
+    expect(await page.getByRole('button', { name: 'Cooperate' }).isEnabled()).toBe(true);
     expect(pageErrors.splice(0)).toEqual([]);
   });
 });
