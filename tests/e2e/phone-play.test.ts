@@ -1,5 +1,7 @@
 // The phone during play (issue 12, bug 1 and "Phones"): a tap made while the network is off is
 // kept and sent when the phone is back online, and the screen says so instead of "Not recorded".
+import fs from 'node:fs';
+import path from 'node:path';
 import { and, eq } from 'drizzle-orm';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -9,8 +11,12 @@ import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, nextView, openSession } from '#tests/helpers/live';
 
+// Screenshots to look at after a run (not compared by the test).
+const SHOTS = path.resolve('.data/test/screenshots');
+
 let browser: Browser;
 beforeAll(async () => {
+  fs.mkdirSync(SHOTS, { recursive: true });
   browser = await launch();
 });
 afterAll(async () => {
@@ -52,7 +58,8 @@ async function participantKey(sessionId: number, userId: number) {
 
 describe('the phone during play', () => {
   it('keeps a tap made offline and sends it when the network is back; the round resolves with it', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 40, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } });
+    // Seed 2 draws 14 after round 1 (≤ 50): the supergame goes on, so the phone shows round 1's result.
+    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 40, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } }, { seed: '2' });
     const { ctx, page } = await phoneOf(players[0]);
     await page.goto(`/play/${sessionId}`);
     await page.getByRole('heading', { name: 'You are in' }).waitFor();
@@ -78,7 +85,7 @@ describe('the phone during play', () => {
     expect(await page.getByRole('button', { name: 'Defect' }).isDisabled()).toBe(true);
     expect(await page.getByRole('button', { name: 'Defect' }).getAttribute('aria-pressed')).toBe('true');
     expect(await page.getByRole('button', { name: 'Cooperate' }).isDisabled()).toBe(true);
-    await page.screenshot({ path: '/tmp/parley-phone-offline-choice.png' });
+    await page.screenshot({ path: path.join(SHOTS, 'phone-offline-choice.png') });
 
     // A few seconds later the network comes back, with most of the round left.
     await new Promise((r) => setTimeout(r, 3000));
@@ -126,7 +133,7 @@ describe('the phone during play', () => {
       'The participant you were paired with left, so for the rest of this supergame your partner is a computer that starts with Cooperate and then copies what you did last round.',
     );
     expect.soft(await text(stays)).not.toMatch(/TFT|fixed rule|Tit-for-tat/);
-    await stays.screenshot({ path: '/tmp/parley-phone-computer-partner.png' });
+    await stays.screenshot({ path: path.join(SHOTS, 'phone-computer-partner.png') });
 
     // The supergame goes on for the pair: the handed-over participant is not told it is over.
     // Before the fix: "Supergame 1 is over" while the computer played on in the seat.
@@ -135,7 +142,7 @@ describe('the phone during play', () => {
     const told = await text(leaves);
     expect(told).not.toMatch(/Supergame 1 is over/);
     expect(told).toMatch(/a computer took your seat for the rest of supergame 1/);
-    await leaves.screenshot({ path: '/tmp/parley-phone-handed-over.png' });
+    await leaves.screenshot({ path: path.join(SHOTS, 'phone-handed-over.png') });
 
     // The pair plays on against the computer: a tap is recorded and answered by tit-for-tat.
     await stays.getByRole('button', { name: 'Defect' }).click();
@@ -176,7 +183,8 @@ describe('the phone during play', () => {
     toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
     await page.getByText('Reconnecting…', { exact: true }).waitFor();
     await page.getByRole('button', { name: 'Defect' }).click();
-    await expect.poll(() => text(page)).toMatch(/Your choice \(● ?Defect\) will be sent when you are back online/);
+    await expect.poll(() => text(page)).toMatch(/Your choice \(● ?Defect\) will be sent when the connection is back/);
+    await page.screenshot({ path: path.join(SHOTS, 'phone-storage-lost-choice.png') });
     await new Promise((r) => setTimeout(r, 1000));
     expect(sent).toEqual([]);
 
@@ -190,7 +198,7 @@ describe('the phone during play', () => {
     const [first, second] = sent.map((p) => JSON.parse(p) as { clientChoiceId: string; action: string });
     expect(second).toEqual(first);
     await expect.poll(() => text(page)).toMatch(/You chose ● ?Defect/);
-    expect(await text(page)).not.toMatch(/Reconnecting|back online/);
+    expect(await text(page)).not.toMatch(/Reconnecting|will be sent/);
     expect(pageErrors.splice(0)).toEqual([]);
   });
 
@@ -211,7 +219,7 @@ describe('the phone during play', () => {
     toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
     await page.getByText('Reconnecting…', { exact: true }).waitFor();
     await page.getByRole('button', { name: 'Cooperate' }).click();
-    await expect.poll(() => text(page)).toMatch(/Your choice \(◆ ?Cooperate\) will be sent when you are back online/);
+    await expect.poll(() => text(page)).toMatch(/Your choice \(◆ ?Cooperate\) will be sent when the connection is back/);
 
     // The student reloads the page; the new connection finds the server well again.
     await page.reload();
@@ -253,6 +261,7 @@ describe('the phone during play', () => {
     await expect
       .poll(() => text(page), { timeout: 20_000 })
       .toMatch('Round 1 closed before your choice Cooperate reached the server, so it was not recorded. The timeout rule chose Defect for you.');
+    await page.screenshot({ path: path.join(SHOTS, 'phone-round-closed-first.png') });
     await expect.poll(() => page.getByTestId('round-title').textContent()).toContain('Round 2');
     toPage!(`42${JSON.stringify(['storage:status', { ok: true }])}`);
     await expect.poll(async () => /\bconnected\b/.test(await text(page))).toBe(true);

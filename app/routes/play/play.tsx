@@ -95,7 +95,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           {link === 'connecting' ? 'connecting…' : link === 'reconnecting' ? 'reconnecting…' : link}
         </span>
       </div>
-      {linkDown && view.status !== 'finished' ? <LinkBanner link={link} storageOk={storageOk} /> : null}
+      {linkDown && view.status !== 'finished' ? <LinkBanner link={link} storageOk={storageOk} choosing={view.status === 'choosing' || view.status === 'waiting-partner'} /> : null}
       {view.paused ? <Notice tone="warn" title="Paused">The instructor paused the session. Your timer is stopped.</Notice> : null}
       {nudge ? <Notice tone="warn">{nudge}</Notice> : null}
       {outbox.note ? <Notice tone={outbox.note.tone}>{outbox.note.text}</Notice> : null}
@@ -141,7 +141,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
             {waiting ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="outbox">
                 Your choice (<strong>{SHAPES[waiting.action]} {labels[waiting.action]}</strong>){' '}
-                {linkDown ? 'will be sent when you are back online.' : 'is being sent…'}
+                {link === 'offline' ? 'will be sent when you are back online.' : linkDown ? 'will be sent when the connection is back.' : 'is being sent…'}
               </p>
             ) : chosen ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="waiting">
@@ -149,7 +149,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
               </p>
             ) : linkDown ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="choose-offline">
-                Choose: your tap is kept on this phone and sent when you are back online.
+                Choose: your tap is kept on this phone and sent {link === 'offline' ? 'when you are back online' : 'when the connection is back'}.
               </p>
             ) : (
               <p className="text-center text-lg">Choose:</p>
@@ -227,18 +227,19 @@ export default function Play({ loaderData }: Route.ComponentProps) {
 }
 
 /** Says what is wrong with the link and what happens to a tap meanwhile, in words, not only a dot. */
-function LinkBanner({ link, storageOk }: { link: 'offline' | 'reconnecting' | 'connecting' | 'connected'; storageOk: boolean }) {
+function LinkBanner({ link, storageOk, choosing }: { link: 'offline' | 'reconnecting' | 'connecting' | 'connected'; storageOk: boolean; choosing: boolean }) {
   if (link === 'offline') {
     return (
       <Notice tone="warn" title="You are offline">
-        This phone has no network. Keep this page open: it reconnects by itself. A choice you tap now is kept on this phone and sent as soon as you are back online.
+        This phone has no network. Keep this page open: it reconnects by itself.
+        {choosing ? ' A choice you tap now is kept on this phone and sent as soon as you are back online.' : ''}
       </Notice>
     );
   }
   return (
     <Notice tone="warn" title="Reconnecting…">
-      {storageOk ? 'The connection to the game was lost.' : 'The game’s server is catching up.'} Keep this page open: it reconnects by itself. A choice you tap now is kept on this
-      phone and sent as soon as the connection is back.
+      {storageOk ? 'The connection to the game was lost.' : 'The game’s server is catching up.'} Keep this page open: it reconnects by itself.
+      {choosing ? ' A choice you tap now is kept on this phone and sent as soon as the connection is back.' : ''}
     </Notice>
   );
 }
