@@ -18,7 +18,6 @@ export interface OutboxNote {
  */
 export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { sessionId: number; view: ParticipantView; ready: boolean; storageOk: boolean; emit: Emit }) {
   const [entry, setEntry] = useState<OutboxEntry | null>(null);
-  const [sending, setSending] = useState(false);
   const [confirmed, setConfirmed] = useState<Pick<OutboxEntry, 'supergame' | 'round' | 'action'> | null>(null);
   const [note, setNote] = useState<OutboxNote | null>(null);
   // A kept choice whose round closed first: what to say about it depends on the newest view.
@@ -65,10 +64,7 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
 
   // A dropped connection leaves its answer unknown: forget the send in flight, send again when back.
   useEffect(() => {
-    if (!ready) {
-      inflight.current = null;
-      setSending(false);
-    }
+    if (!ready) inflight.current = null;
   }, [ready]);
 
   useEffect(() => {
@@ -77,14 +73,10 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
     if (!sameRound(e, view.supergame, view.round) || view.ownChoice !== null) return;
     const attempt = Date.now() + Math.random();
     inflight.current = attempt;
-    setSending(true);
     void emit('choice:submit', e).then((raw) => {
       const res = raw as Ack<ChoiceRow>;
       const current = inflight.current === attempt;
-      if (current) {
-        inflight.current = null;
-        setSending(false);
-      }
+      if (current) inflight.current = null;
       if (entryRef.current?.clientChoiceId !== e.clientChoiceId) return;
       const outcome = outcomeOf(res);
       // A late "stored" still counts; a late "try again" was overtaken by a newer send.
@@ -133,7 +125,7 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
 
   const waiting = entry && sameRound(entry, view.supergame, view.round) ? entry : null;
   const done = confirmed && sameRound(confirmed, view.supergame, view.round) ? confirmed.action : null;
-  return { waiting, sending, chosen: view.ownChoice ?? done ?? waiting?.action ?? null, note: closed ? closedNote(closed, view) : note, choose };
+  return { waiting, chosen: view.ownChoice ?? done ?? waiting?.action ?? null, note: closed ? closedNote(closed, view) : note, choose };
 
   /** What the phone can say about a kept choice whose round closed before the server had it. */
   function closedNote(e: OutboxEntry, v: ParticipantView): OutboxNote | null {
