@@ -25,7 +25,8 @@ describe('instructions generated from a design', () => {
 
   it('disclose the computer partner and its rule, in the design’s neutral labels', () => {
     const text = generateInstructions(designSchema.parse({ ...base, labels: { C: 'Blue', D: 'Green' }, oddCount: { kind: 'computer', strategy: 'TFT' } }));
-    expect(text).toContain('The computer partner chooses Blue in the first round, then whatever its partner chose in the round before.');
+    expect(text).toContain('The computer partner starts with Blue and then copies what you did last round.');
+    expect(text).not.toMatch(/TFT|fixed rule/);
     expect(text).toContain('You are always told when your partner is a computer.');
     expect(text).not.toMatch(/cooperat|defect/i);
   });

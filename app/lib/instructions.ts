@@ -4,9 +4,9 @@
  * points turn into credit, and the no-deception statement. Neutral words only: the actions are
  * the design's labels, never "cooperate" or "defect" (common practice: neutral framing).
  */
-import { libraryStrategy } from './automata';
 import type { Design } from './design';
 import { drawRule } from './draws';
+import { strategyInWords } from './strategy-words';
 
 const num = (x: number) => String(Number(x.toFixed(2)));
 /** δ as people read a chance: 0.875 → "87.5%" (δ has at most four decimals, so this is exact). */
@@ -111,32 +111,6 @@ export function placeholderProblems(d: Design, text: string): string[] {
   return [...out];
 }
 
-function strategyWords(id: string, labels: { C: string; D: string }): string {
-  const x = labels.C;
-  const y = labels.D;
-  const words: Record<string, string> = {
-    ALLC: `always chooses ${x}`,
-    ALLD: `always chooses ${y}`,
-    Grim: `chooses ${x} until either player has chosen ${y}, then chooses ${y} for the rest of the supergame`,
-    TFT: `chooses ${x} in the first round, then whatever its partner chose in the round before`,
-    STFT: `chooses ${y} in the first round, then whatever its partner chose in the round before`,
-    WSLS: `chooses ${x} in the first round, then repeats its choice after both players chose the same, and switches otherwise`,
-    T2: `chooses ${x} until a round in which not both chose ${x}, then ${y} for two rounds, then ${x} again`,
-    TF2T: `chooses ${x} unless its partner chose ${y} in each of the two rounds before`,
-    TF3T: `chooses ${x} unless its partner chose ${y} in each of the three rounds before`,
-    '2TFT': `chooses ${x} until its partner chooses ${y}, then ${y} for two rounds`,
-    Grim2: `chooses ${x} until two rounds in a row in which not both chose ${x}, then ${y} for the rest of the supergame`,
-    Grim3: `chooses ${x} until three rounds in a row in which not both chose ${x}, then ${y} for the rest of the supergame`,
-    CtoD: `chooses ${x} in the first round and ${y} afterwards`,
-  };
-  return words[id] ?? `follows the fixed rule “${libraryStrategy(id).name}”`;
-}
-
-/** The computer partner's rule in plain words, in the design's labels. */
-export function computerPartnerWords(id: string, labels: { C: string; D: string }): string {
-  return strategyWords(id, labels);
-}
-
 /**
  * The instructions as a template: the generated text with every number and label written as its
  * placeholder, so an instructor who edits the words keeps numbers that follow the parameters.
@@ -182,7 +156,7 @@ function compose(d: Design, v: (k: Placeholder) => string): string {
   if (d.oddCount.kind === 'computer') {
     lines.push(
       '',
-      `If the number of participants is odd, one participant in a supergame is paired with a computer partner instead, in turn. The computer partner ${strategyWords(d.oddCount.strategy, { C: x, D: y })}. You are always told when your partner is a computer.`,
+      `If the number of participants is odd, one participant in a supergame is paired with a computer partner instead, in turn. The computer partner ${strategyInWords(d.oddCount.strategy, { C: x, D: y })}. You are always told when your partner is a computer.`,
     );
   } else {
     lines.push('', 'If the number of participants is odd, one participant sits out each supergame, in turn, and waits for the next one.');

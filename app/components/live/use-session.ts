@@ -10,10 +10,19 @@ export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
  * The live view of a session over socket.io: connects with the sign-in cookie, watches the
  * session as participant, floor or big screen, and watches again after every reconnect (a phone
  * that slept gets its full current view back).
+ *
+ * `ready` is true once this connection's watch was answered: the hub takes a participant's
+ * choice only on a socket it admitted that way. `online` is the browser's own network switch
+ * (it flips at once, while a dead socket can take seconds to notice), and `storageOk` is false
+ * while the server has lost its database ('storage:status'): the phone treats both like a lost
+ * connection.
  */
 export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K, initial: ViewOf[K] | null) {
   const [view, setView] = useState<ViewOf[K] | null>(initial);
   const [connected, setConnected] = useState(false);
+  const [ready, setReady] = useState(false);
+  const [online, setOnline] = useState(true);
+  const [storageOk, setStorageOk] = useState(true);
   const [error, setError] = useState<string | null>(null);
   const socketRef = useRef<LiveSocket | null>(null);
 
@@ -25,19 +34,38 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
         if (res.ok) {
           setView(res.data as ViewOf[K]);
           setError(null);
+          setReady(socket.connected);
         } else setError(res.message);
       });
+    };
+    const down = () => {
+      setConnected(false);
+      setReady(false);
     };
     socket.on('connect', () => {
       setConnected(true);
       watch();
     });
-    socket.on('disconnect', () => setConnected(false));
-    socket.on('connect_error', () => setConnected(false));
+    socket.on('disconnect', down);
+    socket.on('connect_error', down);
+    socket.on('storage:status', ({ ok }) => setStorageOk(ok));
     const eventName = as === 'participant' ? 'view:participant' : as === 'floor' ? 'view:floor' : 'view:big-screen';
     const onView = (v: ViewOf[K]) => setView(v);
     socket.on(eventName as 'view:participant', onView as (v: ParticipantView) => void);
+
+    const onOnline = () => {
+      setOnline(true);
+      // Back on the network: try now rather than at the next back-off step (up to 4 s away);
+      // disconnect() cancels the scheduled attempt, connect() starts a fresh one.
+      if (!socket.connected) socket.disconnect().connect();
+    };
+    const onOffline = () => setOnline(false);
+    setOnline(navigator.onLine);
+    window.addEventListener('online', onOnline);
+    window.addEventListener('offline', onOffline);
     return () => {
+      window.removeEventListener('online', onOnline);
+      window.removeEventListener('offline', onOffline);
       socket.close();
       socketRef.current = null;
     };
@@ -58,7 +86,7 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
     [],
   );
 
-  return { view, connected, error, emit, socket: socketRef };
+  return { view, connected, ready, online, storageOk, error, emit, socket: socketRef };
 }
 
 /**

@@ -9,7 +9,8 @@ import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice } from '#app/components/ui';
 import { type Action, libraryStrategy } from '#app/lib/automata';
 import { drawRule } from '#app/lib/draws';
-import { computerPartnerWords, payoffRows } from '#app/lib/instructions';
+import { payoffRows } from '#app/lib/instructions';
+import { strategyInWords } from '#app/lib/strategy-words';
 import { playPracticeRound, PRACTICE_MAX_ROUNDS, type PracticeRound } from '#app/lib/practice';
 import { hasPassed } from '#app/models/comprehension.server';
 import { requireUser } from '#app/utils/auth.server';
@@ -37,7 +38,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     email: user.email,
     consent,
     strategy,
-    computerWords: computerPartnerWords(strategy, d.labels),
+    computerWords: strategyInWords(strategy, d.labels),
     game: { payoffs: d.payoffs, delta: d.delta },
     drawMax: drawRule(d.delta).max,
     cutoff: drawRule(d.delta).cutoff,

@@ -2,6 +2,7 @@ import { useEffect, useRef, useState } from 'react';
 import { Link, redirect } from 'react-router';
 import type { Route } from './+types/play';
 import { PayoffTable } from '#app/components/live/payoff-table';
+import { useChoiceOutbox } from '#app/components/live/use-choice-outbox';
 import { useCountdown, useSessionView } from '#app/components/live/use-session';
 import { ParticipantShell } from '#app/components/shells';
 import { Notice } from '#app/components/ui';
@@ -10,6 +11,7 @@ import { requireUser } from '#app/utils/auth.server';
 import { parseId, roleIn, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import type { Action } from '#app/lib/automata';
+import { strategyInWords } from '#app/lib/strategy-words';
 import { participantView } from '#realtime/engine/views';
 import type { ParticipantView } from '#realtime/engine/types';
 
@@ -43,20 +45,26 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 /** The two actions: label plus a distinct shape, equal neutral colours (never colour alone). */
 const SHAPES: Record<Action, string> = { C: '◆', D: '●' };
 
-function newChoiceId() {
-  return `${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 10)}`;
-}
-
 export default function Play({ loaderData }: Route.ComponentProps) {
-  const { view: live, connected, emit, socket } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
+  const { view: live, connected, ready, online, storageOk, emit, socket } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
   const view = (live ?? loaderData.view) as ParticipantView;
   const offset = useRef(loaderData.serverNow - Date.now()).current;
   const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset, loaderData.roundMs);
-  const [pending, setPending] = useState<Action | null>(null);
-  const [problem, setProblem] = useState<string | null>(null);
   const [nudge, setNudge] = useState<string | null>(null);
-  // One id per round: a retry (double tap, resend after reconnect) carries the same id.
-  const choiceIds = useRef(new Map<string, string>());
+  const outbox = useChoiceOutbox({ sessionId: loaderData.sessionId, view, ready, storageOk, emit });
+  // The first connection takes a moment after the page loads: no alarm until there was one.
+  const [everConnected, setEverConnected] = useState(false);
+  useEffect(() => {
+    if (connected) setEverConnected(true);
+  }, [connected]);
+  const link: 'offline' | 'reconnecting' | 'connecting' | 'connected' = !online
+    ? 'offline'
+    : connected && storageOk
+      ? 'connected'
+      : everConnected || !storageOk
+        ? 'reconnecting'
+        : 'connecting';
+  const linkDown = link === 'offline' || link === 'reconnecting';
 
   useEffect(() => {
     const s = socket.current;
@@ -68,26 +76,12 @@ export default function Play({ loaderData }: Route.ComponentProps) {
     };
   }, [socket, connected]);
   useEffect(() => {
-    setPending(null);
     setNudge(null);
   }, [view.supergame, view.round]);
 
-  const choose = async (action: Action) => {
-    if (view.round === null || pending) return;
-    const key = `${view.supergame}-${view.round}`;
-    const clientChoiceId = choiceIds.current.get(key) ?? newChoiceId();
-    choiceIds.current.set(key, clientChoiceId);
-    setPending(action);
-    setProblem(null);
-    const res = await emit('choice:submit', { sessionId: loaderData.sessionId, supergame: view.supergame, round: view.round, action, clientChoiceId });
-    if (!res.ok) {
-      setPending(null);
-      setProblem(res.code === 'round-closed' ? 'That round is already over.' : `Not recorded: ${res.message}`);
-    }
-  };
-
   const labels = view.labels;
-  const chosen = view.ownChoice ?? pending;
+  const chosen = outbox.chosen;
+  const waiting = outbox.waiting;
   const seconds = left === null ? null : Math.ceil(left / 1000);
 
   return (
@@ -96,14 +90,15 @@ export default function Play({ loaderData }: Route.ComponentProps) {
         <span>
           You are <strong className="text-slate-900">{view.pseudonym}</strong>
         </span>
-        <span>
-          <span aria-hidden="true">{connected ? '●' : '○'} </span>
-          {connected ? 'connected' : 'reconnecting…'}
+        <span data-testid="link-state">
+          <span aria-hidden="true">{link === 'connected' ? '●' : '○'} </span>
+          {link === 'connecting' ? 'connecting…' : link === 'reconnecting' ? 'reconnecting…' : link}
         </span>
       </div>
+      {linkDown && view.status !== 'finished' ? <LinkBanner link={link} storageOk={storageOk} choosing={view.status === 'choosing' || view.status === 'waiting-partner'} /> : null}
       {view.paused ? <Notice tone="warn" title="Paused">The instructor paused the session. Your timer is stopped.</Notice> : null}
       {nudge ? <Notice tone="warn">{nudge}</Notice> : null}
-      {problem ? <Notice tone="error">{problem}</Notice> : null}
+      {outbox.note ? <Notice tone={outbox.note.tone}>{outbox.note.text}</Notice> : null}
 
       {view.status === 'lobby' ? (
         <section className="flex flex-col gap-4" aria-live="polite">
@@ -131,7 +126,11 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           </div>
           {view.partner?.kind === 'computer' ? (
             <Notice title="Your partner is a computer">
-              In this supergame your partner is a computer that follows a fixed rule ({view.partner.strategy}){view.partner.reason === 'hand-over' ? ', because the participant in this seat left' : ''}.
+              <span data-testid="computer-partner">
+                {view.partner.reason === 'hand-over'
+                  ? `The participant you were paired with left${view.partner.fromRound > 1 ? ` after round ${view.partner.fromRound - 1}` : ''}, so for the rest of this supergame your partner is a computer that ${strategyInWords(view.partner.strategy, labels)}.`
+                  : `In this supergame your partner is a computer that ${strategyInWords(view.partner.strategy, labels)}.`}
+              </span>
             </Notice>
           ) : null}
           {view.lastResult && (view.lastResult.supergame === view.supergame || view.history.length === 0) ? <ResultLine r={view.lastResult} labels={labels} /> : null}
@@ -139,9 +138,18 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           <PayoffTable table={view.payoffTable} labels={labels} />
           <History view={view} />
           <div className="mt-auto flex flex-col gap-3 pt-2">
-            {chosen ? (
+            {waiting ? (
+              <p className="text-center text-lg" aria-live="polite" data-testid="outbox">
+                Your choice (<strong>{SHAPES[waiting.action]} {labels[waiting.action]}</strong>){' '}
+                {link === 'offline' ? 'will be sent when you are back online.' : linkDown ? 'will be sent when the connection is back.' : 'is being sent…'}
+              </p>
+            ) : chosen ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="waiting">
                 You chose <strong>{SHAPES[chosen]} {labels[chosen]}</strong>. {view.partnerHasChosen ? 'Your partner has chosen too.' : 'Waiting for your partner…'}
+              </p>
+            ) : linkDown ? (
+              <p className="text-center text-lg" aria-live="polite" data-testid="choose-offline">
+                Choose: your tap is kept on this phone and sent {link === 'offline' ? 'when you are back online' : 'when the connection is back'}.
               </p>
             ) : (
               <p className="text-center text-lg">Choose:</p>
@@ -151,7 +159,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
                 <button
                   key={a}
                   type="button"
-                  onClick={() => choose(a)}
+                  onClick={() => outbox.choose(a)}
                   disabled={Boolean(chosen) || view.paused}
                   aria-pressed={chosen === a}
                   className="flex min-h-32 flex-col items-center justify-center gap-1 rounded-2xl border-2 border-slate-400 bg-slate-100 text-3xl font-bold text-slate-900 active:bg-slate-200 disabled:opacity-60 aria-pressed:border-accent-700 aria-pressed:bg-accent-50 aria-pressed:opacity-100"
@@ -169,13 +177,24 @@ export default function Play({ loaderData }: Route.ComponentProps) {
 
       {view.status === 'between-supergames' ? (
         <section className="flex flex-col gap-4" aria-live="polite">
-          <h1 className="text-2xl font-semibold">{view.notice === 'sitting-out' ? 'You sit out this supergame' : `Supergame ${view.supergame} is over`}</h1>
+          <h1 className="text-2xl font-semibold">
+            {view.notice === 'sitting-out'
+              ? 'You sit out this supergame'
+              : view.notice === 'handed-to-computer'
+                ? view.pairId
+                  ? 'A computer plays for you in this supergame'
+                  : 'You are not paired in this supergame'
+                : `Supergame ${view.supergame} is over`}
+          </h1>
           {view.lastResult ? <ResultLine r={view.lastResult} labels={labels} /> : null}
-          {view.notice === 'handed-to-computer' ? <Notice>A computer partner took your seat for the rest of this supergame. You are back from the next one.</Notice> : null}
           <p className="text-lg text-slate-700">
             {view.notice === 'sitting-out'
               ? 'The head-count is odd, so one participant sits out each supergame, in turn. You play again in the next one.'
-              : 'Waiting for the other pairs to finish. You will get a new partner.'}
+              : view.notice === 'handed-to-computer'
+                ? view.pairId
+                  ? `You were away, so a computer took your seat for the rest of supergame ${view.supergame}, and your partner was told. The supergame goes on without you.`
+                  : 'A computer took your seat in an earlier supergame while you were away, so you are not in the pairs of this one.'
+                : 'Waiting for the other pairs to finish. You will get a new partner.'}
           </p>
           <p className="num text-xl">
             Your points so far: <strong>{view.totalPoints}</strong>
@@ -204,6 +223,24 @@ export default function Play({ loaderData }: Route.ComponentProps) {
         </section>
       ) : null}
     </ParticipantShell>
+  );
+}
+
+/** Says what is wrong with the link and what happens to a tap meanwhile, in words, not only a dot. */
+function LinkBanner({ link, storageOk, choosing }: { link: 'offline' | 'reconnecting' | 'connecting' | 'connected'; storageOk: boolean; choosing: boolean }) {
+  if (link === 'offline') {
+    return (
+      <Notice tone="warn" title="You are offline">
+        This phone has no network. Keep this page open: it reconnects by itself.
+        {choosing ? ' A choice you tap now is kept on this phone and sent as soon as you are back online.' : ''}
+      </Notice>
+    );
+  }
+  return (
+    <Notice tone="warn" title="Reconnecting…">
+      {storageOk ? 'The connection to the game was lost.' : 'The game’s server is catching up.'} Keep this page open: it reconnects by itself.
+      {choosing ? ' A choice you tap now is kept on this phone and sent as soon as the connection is back.' : ''}
+    </Notice>
   );
 }
 
