@@ -35,7 +35,7 @@ describe('Debrief, in Chromium', () => {
     const table = page.getByRole('table', { name: 'Cooperation and strategy shares per treatment' });
     await expect.poll(() => table.getByRole('row').count()).toBe(3);
     const coop = page.locator('figure[data-chart="cooperation-by-supergame"]');
-    await expect.poll(() => coop.locator('.recharts-legend-item').count()).toBe(4);
+    await expect.poll(() => coop.locator('.recharts-legend-wrapper li').count()).toBe(4);
     expect(await coop.textContent()).toContain('Short horizon');
     expect(await coop.textContent()).toContain('Long horizon');
     expect(await page.getByRole('link', { name: /download data \(CSV\)/ }).count()).toBe(6);

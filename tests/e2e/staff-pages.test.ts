@@ -4,10 +4,10 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser, Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
+import { DESKTOP, launch, pageAs as pageOf, pageErrors, PHONE } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, nextView, openSession } from '#tests/helpers/live';
+import { classOf, closeSockets, connect, nextView } from '#tests/helpers/live';
 
 const SHOTS = path.resolve('.data/test/screenshots');
 
@@ -22,14 +22,7 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-async function pageAs(client: Client, url: string, size: typeof DESKTOP | typeof PHONE = DESKTOP): Promise<Page> {
-  const ctx = await newContext(browser, size);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
-  const page = await ctx.newPage();
-  page.on('dialog', (d) => void d.accept());
-  await page.goto(url);
-  return page;
-}
+const pageAs = (client: Client, url: string, size: typeof DESKTOP | typeof PHONE = DESKTOP) => pageOf(browser, client, url, size);
 
 const centreY = async (l: Locator) => {
   const b = (await l.boundingBox())!;
@@ -91,18 +84,9 @@ describe('the Debrief', () => {
 
 describe('the Floor', () => {
   it('says "Pair 1", puts each seat’s buttons on its own row, and counts "Waiting" from the pair’s first choice', async () => {
-    const instructorEmail = uniqueEmail('floor-inst');
-    const instructorId = await createUser(instructorEmail);
-    const emails = [uniqueEmail('floor-p0'), uniqueEmail('floor-p1')];
-    const ids = await Promise.all(emails.map((e) => createUser(e)));
-    const courseId = await createCourse('Floor rows', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
-    const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.9, roundSeconds: 120 });
-    const instructor = await signIn(instructorEmail);
-    const { sessionId, code } = await openSession(instructor, courseId, designId);
-    const players = await Promise.all(emails.map((e) => signIn(e)));
+    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'floor');
     const sockets = [];
     for (const p of players) {
-      await join(p, code);
       const s = await connect(p.cookieHeader());
       expect((await s.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);
       sockets.push(s);
