@@ -1,8 +1,8 @@
 // First: configures zod before any schema is made (see the module).
 import './utils/zod-jitless';
-import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration, useRouteError } from 'react-router';
+import { Links, Meta, Outlet, Scripts, ScrollRestoration } from 'react-router';
 import type { Route } from './+types/root';
-import { ErrorPage } from './components/error-page';
+import { RouteErrorPage } from './components/error-page';
 import './app.css';
 
 export const links: Route.LinksFunction = () => [{ rel: 'icon', href: '/favicon.svg', type: 'image/svg+xml' }];
@@ -34,10 +34,5 @@ export default function App() {
 }
 
 export function ErrorBoundary() {
-  const error = useRouteError();
-  if (isRouteErrorResponse(error)) {
-    return <ErrorPage status={error.status} message={typeof error.data === 'string' ? error.data : undefined} />;
-  }
-  const detail = import.meta.env.DEV && error instanceof Error ? error.stack : undefined;
-  return <ErrorPage status={500} detail={detail} />;
+  return <RouteErrorPage />;
 }

@@ -36,6 +36,8 @@ export default [
     route('courses/:courseId/debrief', 'routes/staff/debrief.tsx'),
     route('courses/:courseId/debrief/compare', 'routes/staff/debrief-compare.tsx'),
     route('courses/:courseId/debrief/:sessionId', 'routes/staff/debrief-session.tsx'),
+    // How the Debrief's figures are computed; every chart caption links to its section.
+    route('methods', 'routes/staff/methods.tsx'),
   ]),
   route('courses/:courseId/data/panel', 'routes/data/panel.ts'),
   route('courses/:courseId/data/codebook.csv', 'routes/data/codebook.ts'),

@@ -3,6 +3,7 @@
 // told apart by marker shape, dash pattern and legend label, never by colour alone. `theme="dark"`
 // is the projector's high-contrast look.
 import type { ReactNode } from 'react';
+import { Link } from 'react-router';
 import {
   Bar,
   BarChart,
@@ -38,22 +39,24 @@ export const pct = (x: number | null | undefined, d = 0) => (x === null || x ===
 const PCT_TICKS = [0, 0.25, 0.5, 0.75, 1];
 const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
 
+/** The outline of a marker shape centred on (x, y), half-size s. */
+function shapePath(shape: (typeof SHAPES)[number], x: number, y: number, s: number) {
+  return shape === 'circle'
+    ? `M ${x - s} ${y} a ${s} ${s} 0 1 0 ${2 * s} 0 a ${s} ${s} 0 1 0 ${-2 * s} 0`
+    : shape === 'square'
+      ? `M ${x - s} ${y - s} h ${2 * s} v ${2 * s} h ${-2 * s} z`
+      : shape === 'triangle'
+        ? `M ${x} ${y - s * 1.2} L ${x + s * 1.1} ${y + s} L ${x - s * 1.1} ${y + s} z`
+        : `M ${x} ${y - s * 1.3} L ${x + s * 1.3} ${y} L ${x} ${y + s * 1.3} L ${x - s * 1.3} ${y} z`;
+}
+
 /** The marker of series i, drawn by recharts at each point. */
 function marker(i: number, color: string, size: number) {
   const shape = SHAPES[i % SHAPES.length];
   return function Marker(props: { cx?: number; cy?: number; index?: number }) {
     const { cx: x, cy: y, index } = props;
     if (x === undefined || y === undefined || Number.isNaN(x) || Number.isNaN(y)) return <g key={`m${i}-${index}`} />;
-    const s = size;
-    const d =
-      shape === 'circle'
-        ? `M ${x - s} ${y} a ${s} ${s} 0 1 0 ${2 * s} 0 a ${s} ${s} 0 1 0 ${-2 * s} 0`
-        : shape === 'square'
-          ? `M ${x - s} ${y - s} h ${2 * s} v ${2 * s} h ${-2 * s} z`
-          : shape === 'triangle'
-            ? `M ${x} ${y - s * 1.2} L ${x + s * 1.1} ${y + s} L ${x - s * 1.1} ${y + s} z`
-            : `M ${x} ${y - s * 1.3} L ${x + s * 1.3} ${y} L ${x} ${y + s * 1.3} L ${x - s * 1.3} ${y} z`;
-    return <path key={`m${i}-${index}`} d={d} fill={color} stroke={color} />;
+    return <path key={`m${i}-${index}`} d={shapePath(shape, x, y, size)} fill={color} stroke={color} />;
   };
 }
 
@@ -81,6 +84,62 @@ function tooltipProps(theme: Theme) {
   return { contentStyle: { background: p.tooltipBg, color: p.text, borderColor: p.grid }, labelStyle: { color: p.text } };
 }
 const legendProps = (theme: Theme, big: boolean) => ({ wrapperStyle: { fontSize: big ? 20 : 13, color: PALETTE[theme].text } });
+
+/**
+ * One legend entry: a session (or group) in its colour, marker shape, dash or hatch, or, when
+ * `neutral`, what a line style or bar means for every session (drawn in the reference grey).
+ */
+interface KeyEntry {
+  label: string;
+  /** series index: colour, marker shape and hatch */
+  i: number;
+  kind: 'line' | 'bar' | 'marker' | 'bar+line';
+  dash?: string;
+  neutral?: boolean;
+}
+
+function Swatch({ entry, theme, big }: { entry: KeyEntry; theme: Theme; big: boolean }) {
+  const p = PALETTE[theme];
+  const color = entry.neutral ? p.ref : p.series[entry.i % p.series.length];
+  const h = big ? 20 : 12;
+  const bar = <rect x={1} y={1} width={h - 2} height={h - 2} fill={entry.neutral ? 'none' : fillOf(theme, entry.i)} stroke={color} strokeWidth={entry.neutral ? 1.5 : 1} />;
+  const lineX = entry.kind === 'bar+line' ? h + 2 : 0;
+  const line = (
+    <>
+      <line x1={lineX} x2={lineX + 2.4 * h} y1={h / 2} y2={h / 2} stroke={color} strokeWidth={big ? 3 : 2} strokeDasharray={entry.dash || undefined} />
+      {entry.neutral ? null : <path d={shapePath(SHAPES[entry.i % SHAPES.length], lineX + 1.2 * h, h / 2, h / 3)} fill={color} stroke={color} />}
+    </>
+  );
+  const width = entry.kind === 'bar' || entry.kind === 'marker' ? h : entry.kind === 'line' ? 2.4 * h : 3.4 * h + 2;
+  return (
+    <svg aria-hidden="true" width={width} height={h} className="shrink-0 overflow-visible">
+      {entry.kind === 'bar' || entry.kind === 'bar+line' ? bar : null}
+      {entry.kind === 'line' || entry.kind === 'bar+line' ? line : null}
+      {entry.kind === 'marker' ? <path d={shapePath(SHAPES[entry.i % SHAPES.length], h / 2, h / 2, h / 3)} fill={color} stroke={color} /> : null}
+    </svg>
+  );
+}
+
+/** The chart's key, rendered by recharts' Legend so it takes its own room above the plot. */
+function keyLegend(entries: KeyEntry[], theme: Theme, big: boolean) {
+  return {
+    ...legendProps(theme, big),
+    content: () => (
+      <ul className="flex flex-wrap justify-center gap-x-5 gap-y-1 px-2 leading-tight">
+        {entries.map((e) => (
+          <li key={`${e.label}-${e.i}-${e.kind}`} className="inline-flex min-w-0 items-center gap-1.5">
+            <Swatch entry={e} theme={theme} big={big} />
+            <span>{e.label}</span>
+          </li>
+        ))}
+      </ul>
+    ),
+  };
+}
+
+const sessionLabel = (s: TableSession) => `#${s.id} ${s.treatment}`;
+const sessionKeys = (sessions: TableSession[], kind: KeyEntry['kind'], dash?: (i: number) => string) =>
+  sessions.map((s, i): KeyEntry => ({ label: sessionLabel(s), i, kind, dash: dash?.(i) }));
 
 export interface ChartProps {
   sessions: TableSession[];
@@ -114,7 +173,14 @@ export function CoopBySupergameChart({ sessions, theme = 'light', big = false }:
         <XAxis dataKey="x" type="number" domain={['dataMin', 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend
+          verticalAlign="top"
+          {...keyLegend(
+            [...sessionKeys(sessions, 'line'), { label: 'all rounds', i: 0, kind: 'line', neutral: true }, { label: 'round 1', i: 0, kind: 'line', dash: '6 4', neutral: true }],
+            theme,
+            big,
+          )}
+        />
         {sessions.flatMap((s, i) => [
           <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i, 'all rounds')} stroke={p.series[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />,
           <Line key={key(s, 'r1')} dataKey={key(s, 'r1')} name={seriesName(s, i, 'round 1')} stroke={p.series[i % 4]} strokeDasharray="6 4" strokeWidth={big ? 3 : 1.5} dot={false} isAnimationActive={false} connectNulls />,
@@ -134,7 +200,7 @@ export function CoopByRoundChart({ sessions, theme = 'light', big = false }: Cha
         <XAxis dataKey="x" type="number" domain={[1, 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))} labelFormatter={(l) => `round ${l}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'line', (i) => DASHES[i % 4]), theme, big)} />
         {sessions.map((s, i) => (
           <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i)} stroke={p.series[i % 4]} strokeDasharray={DASHES[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />
         ))}
@@ -162,7 +228,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
           <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
           <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
           <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
-          <Legend verticalAlign="top" {...legendProps(theme, big)} />
+          <Legend verticalAlign="top" {...keyLegend(OUTCOMES.map((o, i) => ({ label: o.label, i, kind: 'bar' })), theme, big)} />
           {OUTCOMES.map((o, i) => (
             <Bar key={o.key} dataKey={o.key} name={o.label} stackId="o" fill={fillOf(theme, i)} stroke={p.series[i]} isAnimationActive={false} />
           ))}
@@ -186,7 +252,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
         <XAxis dataKey="x" {...axisProps(theme, big)} />
         <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'bar'), theme, big)} />
         {sessions.map((s, i) => (
           <Bar key={s.id} dataKey={key(s, 'share')} name={seriesName(s, i)} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
         ))}
@@ -212,7 +278,18 @@ export function LengthsChart({ sessions, theme = 'light', big = false }: ChartPr
         <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'rounds in the supergame (L)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `L = ${l}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend
+          verticalAlign="top"
+          {...keyLegend(
+            [
+              ...sessions.map((s, i): KeyEntry => ({ label: `${sessionLabel(s)}, δ = ${fmt(s.delta)}`, i, kind: 'bar+line', dash: DASHES[(i + 1) % 4] })),
+              { label: 'bars: observed', i: 0, kind: 'bar', neutral: true },
+              { label: 'lines: geometric law', i: 0, kind: 'line', neutral: true },
+            ],
+            theme,
+            big,
+          )}
+        />
         {sessions.map((s, i) => (
           <Bar key={key(s, 'o')} dataKey={key(s, 'observed')} name={seriesName(s, i, 'observed')} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
         ))}
@@ -235,7 +312,7 @@ export function PointsChart({ sessions, theme = 'light', big = false }: ChartPro
         <XAxis dataKey="bin" {...axisProps(theme, big)} label={{ value: 'points in the session', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis allowDecimals={false} width={big ? 64 : 40} {...axisProps(theme, big)} />
         <Tooltip labelFormatter={(l) => `${l} points`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'bar'), theme, big)} />
         {sessions.map((s, i) => (
           <Bar key={s.id} dataKey={`s${s.id}`} name={`${seriesName(s, i)} — participants`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
         ))}
@@ -282,7 +359,18 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
         <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} {...axisProps(theme, big)} label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
         <YAxis domain={[0, 1]} ticks={[0, 0.25, 0.5, 0.75, 1]} tickFormatter={(v) => fmt(v, 2)} width={big ? 64 : 44} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => fmt(Number(v))} labelFormatter={(l) => `δ = ${fmt(Number(l), 3)}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="bottom" {...legendProps(theme, big)} wrapperStyle={{ ...legendProps(theme, big).wrapperStyle, paddingTop: big ? 40 : 24 }} />
+        <Legend
+          verticalAlign="bottom"
+          {...keyLegend(
+            [
+              ...sets.map((set, k): KeyEntry => ({ label: many ? `sizeBAD at ${set.label} (${set.sessions})` : 'sizeBAD', i: k, kind: 'line', dash: DASHES[k % DASHES.length], neutral: true })),
+              ...sessionKeys(sessions, 'marker'),
+            ],
+            theme,
+            big,
+          )}
+          wrapperStyle={{ ...legendProps(theme, big).wrapperStyle, paddingTop: big ? 40 : 24 }}
+        />
         <ReferenceLine y={0.5} stroke={p.grid} strokeDasharray="3 3" />
         {lines.map((l, i) => (
           <ReferenceLine key={l.label} x={l.x} stroke={p.ref} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }} />
@@ -345,7 +433,7 @@ export function StrategiesChart({ groups, theme = 'light', big = false }: { grou
         <XAxis dataKey="x" {...axisProps(theme, big)} />
         <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...legendProps(theme, big)} />
+        <Legend verticalAlign="top" {...keyLegend(groups.map((g, i) => ({ label: g.group, i, kind: 'bar' })), theme, big)} />
         {groups.map((g, i) => (
           <Bar key={g.group} dataKey={`g${i}`} name={`${SHAPE_WORDS[SHAPES[i % 4]]} ${g.group}`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false}>
             {g.se ? <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} isAnimationActive={false} /> : null}
@@ -390,7 +478,12 @@ export function ChartFrame({
       <div className={cx('w-full', height)} role="img" aria-label={summary}>
         {children}
       </div>
-      {notes ? <figcaption className={cx(dark ? 'text-2xl text-slate-200' : 'text-sm text-slate-600')}>{notes}</figcaption> : null}
+      <figcaption className={cx(dark ? 'text-2xl text-slate-200' : 'text-sm text-slate-600')}>
+        {notes}{' '}
+        <Link to={`/methods#${id}`} className={cx('font-semibold underline underline-offset-4', dark ? 'text-accent-200' : 'text-accent-700')}>
+          How this is computed<span className="sr-only">: {title}</span>
+        </Link>
+      </figcaption>
     </figure>
   );
 }

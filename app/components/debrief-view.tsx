@@ -125,9 +125,9 @@ function IncludeSwitch({ include, basePath }: { include: Include; basePath: stri
         onChange={(e) => navigate(`${basePath}${e.target.checked ? 'include=all' : ''}`.replace(/[?&]$/, ''), { preventScrollReset: true })}
       />
       <span>
-        <span className="font-semibold">Include timeout-filled, computer-seat and unpaid rounds</span>
+        <span className="font-semibold">Include timeout-filled and computer-seat choices, and rounds after a supergame’s end</span>
         <span className="block text-sm text-slate-600">
-          {include === 'all' ? 'On: every choice counts, whoever or whatever made it.' : 'Off: the participants’ own choices in paid rounds only.'}
+          {include === 'all' ? 'On: every choice counts, whoever or whatever made it.' : 'Off: the participants’ own choices in the rounds that count.'}
         </span>
       </span>
     </label>

@@ -128,7 +128,7 @@ export function debriefCharts(
         const pts = s.debrief.points.map((p) => p.points).sort((a, b) => a - b);
         return `Session ${s.id}: ${pts.length} participants, points from ${pts[0] ?? 0} to ${pts[pts.length - 1] ?? 0}, median ${pts[Math.floor(pts.length / 2)] ?? 0}.`;
       }),
-      notes: 'Points of each participant over the session: the payoffs of every paid round, whoever chose (what each participant is credited; pseudonyms in the CSV).',
+      notes: 'Points of each participant over the session: the payoffs of every round that counts, whoever chose (what each participant is credited; pseudonyms in the CSV).',
       render: (theme, big) => <PointsChart sessions={sessions} theme={theme} big={big} />,
     },
     {

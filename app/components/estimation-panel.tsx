@@ -111,8 +111,8 @@ export function EstimationForm({
           <input type="hidden" name="include" value={include} />
           <p className="text-sm text-slate-700" data-testid="estimate-include">
             {include === 'all'
-              ? 'Uses every choice, including those filled by the timeout rule, made by a computer in a participant’s seat, or made in unpaid rounds (the switch above).'
-              : 'Uses the participants’ own choices in paid rounds: each supergame up to its first choice that is not (the switch above includes the others).'}{' '}
+              ? 'Uses every choice, including those filled by the timeout rule, made by a computer in a participant’s seat, or made after a supergame had ended (the switch above).'
+              : 'Uses the participants’ own choices in the rounds that count: each supergame up to its first choice that is not (the switch above includes the others).'}{' '}
             Participants who declined research use are left out.
           </p>
         </>
@@ -254,11 +254,11 @@ export function estimateIncludedWords(result: Pick<EstimateResult, 'include' | '
   const parts = [
     l.timeout ? `${n(l.timeout)} filled by the timeout rule` : '',
     l.computer_seat ? `${n(l.computer_seat)} made by a computer in a participant’s seat` : '',
-    l.unpaid_round ? `${n(l.unpaid_round)} in unpaid rounds` : '',
+    l.unpaid_round ? `${n(l.unpaid_round)} in rounds after the supergame had ended` : '',
     l.afterLeftOut ? `${n(l.afterLeftOut)} own choices after one of those in the same supergame` : '',
     l.unfinished ? `${n(l.unfinished)} in half-finished rounds` : '',
   ].filter(Boolean);
-  const used = result.include === 'all' ? `Choices used: ${n(l.used)}, every origin.` : `Choices used: ${n(l.used)} own choices in paid rounds.`;
+  const used = result.include === 'all' ? `Choices used: ${n(l.used)}, every origin.` : `Choices used: ${n(l.used)} own choices in rounds that count.`;
   const left = parts.length ? ` Left out: ${parts.join(', ')}.` : '';
   const declined = l.declined ? ` ${n(l.declined)} participant${l.declined === 1 ? '' : 's'} who declined research use left out.` : '';
   return used + left + declined;
@@ -267,7 +267,7 @@ export function estimateIncludedWords(result: Pick<EstimateResult, 'include' | '
 function includeWords(r: EstimateStatus['request']): string {
   if (r.source.kind !== 'sessions') return '';
   if (r.include === 'all') return 'every origin; ';
-  if (r.include === 'own') return 'own, paid choices; ';
+  if (r.include === 'own') return 'own choices in rounds that count; ';
   return 'own and timeout-filled choices (run before origins were kept); ';
 }
 

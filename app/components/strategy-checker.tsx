@@ -107,83 +107,67 @@ export function StrategyChecker({
             </label>
           </div>
           {fetcher.data?.errors?.id ? <FieldError id="checker-id-error">{fetcher.data.errors.id}</FieldError> : null}
-          <div className="overflow-x-auto">
-            <table className="text-sm" aria-label="State table: the action of each state and the next state after each observed profile (own, partner)">
-              <thead>
-                <tr className="text-left text-slate-600">
-                  <th scope="col" className="px-2 py-1">
-                    State
-                  </th>
-                  <th scope="col" className="px-2 py-1">
-                    Plays
-                  </th>
+          {/* One card per state, its four transitions two by two: the builder fits the editor's
+              side panel (30rem at 1440 px) and a phone without a sideways scroll. */}
+          <ol className="flex flex-col gap-2 text-sm" aria-label="States: the action of each state and the next state after each observed profile (own, partner)">
+            {draft.states.map((s, i) => (
+              <li key={i} className="rounded-md border border-slate-200 px-3 py-2">
+                <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                  <span className="font-semibold">
+                    State {i + 1}
+                    {i === 0 ? <span className="font-normal text-slate-600"> (start)</span> : null}
+                  </span>
+                  <label className="flex items-center gap-2">
+                    <span className="text-slate-600">plays</span>
+                    <select
+                      aria-label={`State ${i + 1} plays`}
+                      value={s.action}
+                      onChange={(e) => setState(i, (st) => ({ ...st, action: e.target.value as Action }))}
+                      className="min-h-9 rounded border border-slate-300 bg-white px-2"
+                    >
+                      <option value="C">C</option>
+                      <option value="D">D</option>
+                    </select>
+                  </label>
+                  {i > 0 ? (
+                    <button
+                      type="button"
+                      onClick={() =>
+                        setDraft((d) => ({
+                          ...d,
+                          states: d.states
+                            .filter((_, j) => j !== i)
+                            .map((st) => ({ ...st, next: Object.fromEntries(PROFILES.map((p) => [p, st.next[p] === i ? 0 : st.next[p] > i ? st.next[p] - 1 : st.next[p]])) as Record<Profile, number> })),
+                        }))
+                      }
+                      className="ml-auto min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
+                    >
+                      Remove<span className="sr-only"> state {i + 1}</span>
+                    </button>
+                  ) : null}
+                </div>
+                <div className="mt-2 grid grid-cols-2 gap-x-3 gap-y-2">
                   {PROFILES.map((p) => (
-                    <th key={p} scope="col" className="px-2 py-1 whitespace-nowrap">
-                      Next {PROFILE_WORDS[p]}
-                    </th>
-                  ))}
-                  <th scope="col">
-                    <span className="sr-only">Remove</span>
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {draft.states.map((s, i) => (
-                  <tr key={i} className="border-t border-slate-100">
-                    <th scope="row" className="px-2 py-1 text-left font-semibold">
-                      {i + 1}
-                      {i === 0 ? <span className="font-normal text-slate-500"> (start)</span> : null}
-                    </th>
-                    <td className="px-2 py-1">
+                    <label key={p} className="flex items-center justify-between gap-2">
+                      <span className="text-slate-600">Next {PROFILE_WORDS[p]}</span>
                       <select
-                        aria-label={`State ${i + 1} plays`}
-                        value={s.action}
-                        onChange={(e) => setState(i, (st) => ({ ...st, action: e.target.value as Action }))}
+                        aria-label={`State ${i + 1}, next ${PROFILE_WORDS[p]}`}
+                        value={s.next[p]}
+                        onChange={(e) => setState(i, (st) => ({ ...st, next: { ...st.next, [p]: Number(e.target.value) } }))}
                         className="min-h-9 rounded border border-slate-300 bg-white px-2"
                       >
-                        <option value="C">C</option>
-                        <option value="D">D</option>
+                        {draft.states.map((_, j) => (
+                          <option key={j} value={j}>
+                            {j + 1}
+                          </option>
+                        ))}
                       </select>
-                    </td>
-                    {PROFILES.map((p) => (
-                      <td key={p} className="px-2 py-1">
-                        <select
-                          aria-label={`State ${i + 1}, next ${PROFILE_WORDS[p]}`}
-                          value={s.next[p]}
-                          onChange={(e) => setState(i, (st) => ({ ...st, next: { ...st.next, [p]: Number(e.target.value) } }))}
-                          className="min-h-9 rounded border border-slate-300 bg-white px-2"
-                        >
-                          {draft.states.map((_, j) => (
-                            <option key={j} value={j}>
-                              {j + 1}
-                            </option>
-                          ))}
-                        </select>
-                      </td>
-                    ))}
-                    <td className="px-2 py-1">
-                      {i > 0 ? (
-                        <button
-                          type="button"
-                          onClick={() =>
-                            setDraft((d) => ({
-                              ...d,
-                              states: d.states
-                                .filter((_, j) => j !== i)
-                                .map((st) => ({ ...st, next: Object.fromEntries(PROFILES.map((p) => [p, st.next[p] === i ? 0 : st.next[p] > i ? st.next[p] - 1 : st.next[p]])) as Record<Profile, number> })),
-                            }))
-                          }
-                          className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
-                        >
-                          Remove<span className="sr-only"> state {i + 1}</span>
-                        </button>
-                      ) : null}
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+                    </label>
+                  ))}
+                </div>
+              </li>
+            ))}
+          </ol>
           <div className="flex flex-wrap gap-2">
             <Button type="button" variant="secondary" disabled={draft.states.length >= 12} onClick={() => setDraft((d) => ({ ...d, states: [...d.states, { action: 'D', next: { cc: d.states.length, cd: d.states.length, dc: d.states.length, dd: d.states.length } }] }))}>
               Add a state

@@ -1,4 +1,4 @@
-import { type ComponentProps, type ReactNode, useId } from 'react';
+import { type ComponentProps, Fragment, type ReactNode, useId } from 'react';
 import { Form, Link } from 'react-router';
 
 export function cx(...parts: (string | false | null | undefined)[]) {
@@ -172,5 +172,22 @@ export function RowAction({
         <span className="sr-only"> {target}</span>
       </button>
     </Form>
+  );
+}
+
+/**
+ * An e-mail address that wraps only before "@" or ".", never inside a word: each piece keeps
+ * together and a <wbr> offers the break (CSS break-all split addresses anywhere).
+ */
+export function EmailAddress({ email, className }: { email: string; className?: string }) {
+  return (
+    <span className={className}>
+      {email.split(/(?=[@.])/).map((piece, i) => (
+        <Fragment key={i}>
+          {i ? <wbr /> : null}
+          <span className="whitespace-nowrap">{piece}</span>
+        </Fragment>
+      ))}
+    </span>
   );
 }

@@ -168,7 +168,7 @@ const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString
 
 /**
  * What a session's cooperation figures include and leave out, in words for every chart caption
- * and beside every figure: "Own choices in paid rounds: 232. Left out: 10 filled by the timeout
+ * and beside every figure: "Own choices in rounds that count: 232. Left out: 10 filled by the timeout
  * rule, …; 1 half-finished round."
  */
 export function originWords(s: { debrief: Pick<SessionDebrief, 'include' | 'counts' | 'againstComputer'>; unfinished?: number }): string {
@@ -176,7 +176,7 @@ export function originWords(s: { debrief: Pick<SessionDebrief, 'include' | 'coun
   const parts = [
     counts.timeout ? `${counts.timeout.toLocaleString('en-US')} filled by the timeout rule` : '',
     counts.computer_seat ? `${counts.computer_seat.toLocaleString('en-US')} made by a computer in a participant’s seat` : '',
-    counts.unpaid_round ? `${counts.unpaid_round.toLocaleString('en-US')} in unpaid rounds after the supergame ended` : '',
+    counts.unpaid_round ? `${counts.unpaid_round.toLocaleString('en-US')} in rounds played after the supergame had ended` : '',
   ].filter(Boolean);
   const vsComputer = againstComputer ? ` (${againstComputer.toLocaleString('en-US')} of them against a disclosed computer partner)` : '';
   const half = s.unfinished ? `${plural(s.unfinished, 'half-finished round')} (only one of the pair had chosen) left out.` : '';
@@ -184,7 +184,7 @@ export function originWords(s: { debrief: Pick<SessionDebrief, 'include' | 'coun
     const all = `All choices: ${counts.used.toLocaleString('en-US')}${vsComputer}${parts.length ? `, including ${parts.join(', ')}` : ''}.`;
     return [all, half].filter(Boolean).join(' ');
   }
-  const own = `Own choices in paid rounds: ${counts.used.toLocaleString('en-US')}${vsComputer}.`;
+  const own = `Own choices in rounds that count: ${counts.used.toLocaleString('en-US')}${vsComputer}.`;
   const left = parts.length ? `Left out: ${parts.join(', ')}.` : 'No other choices to leave out.';
   return [own, left, half].filter(Boolean).join(' ');
 }

@@ -1,7 +1,7 @@
 import { Form } from 'react-router';
 import type { Route } from './+types/account';
 import { ParticipantShell } from '#app/components/shells';
-import { Button } from '#app/components/ui';
+import { Button, EmailAddress } from '#app/components/ui';
 import { listSignIns, requireUser, signedInFromCookie } from '#app/utils/auth.server';
 
 // Where an account sees the devices it is signed in on and can end them all (a lost phone, a
@@ -37,7 +37,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
       <div className="flex flex-col gap-2">
         <h1 className="text-3xl font-semibold">Your sign-ins</h1>
         <p className="text-lg text-slate-700">
-          Signed in as <strong className="break-all">{email}</strong>. These devices are signed in to your account.
+          Signed in as <strong><EmailAddress email={email} /></strong>. These devices are signed in to your account.
         </p>
       </div>
       <ul className="flex flex-col gap-3" aria-label="Devices signed in">

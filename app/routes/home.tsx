@@ -1,7 +1,7 @@
 import { Link, redirect } from 'react-router';
 import type { Route } from './+types/home';
 import { ParticipantShell, Wordmark } from '#app/components/shells';
-import { DemoBadge } from '#app/components/ui';
+import { DemoBadge, EmailAddress } from '#app/components/ui';
 import { listCoursesForUser } from '#app/models/course.server';
 import { sessionsOfParticipant } from '#app/models/session.server';
 import { getUser } from '#app/utils/auth.server';
@@ -24,7 +24,7 @@ export default function Home({ loaderData }: Route.ComponentProps) {
     <ParticipantShell email={loaderData.user.email}>
       <h1 className="text-3xl font-semibold">Hello</h1>
       <p className="text-lg text-slate-700">
-        You are signed in as <strong className="break-all">{loaderData.user.email}</strong>. When your instructor opens a
+        You are signed in as <strong><EmailAddress email={loaderData.user.email} /></strong>. When your instructor opens a
         session, follow the join code or QR code on the big screen.
       </p>
       <Link to="/join" className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800">

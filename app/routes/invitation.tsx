@@ -1,7 +1,7 @@
 import { data, Form, Link, redirect } from 'react-router';
 import type { Route } from './+types/invitation';
 import { ParticipantShell } from '#app/components/shells';
-import { Button, Notice } from '#app/components/ui';
+import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { acceptInvitation, findInvitation } from '#app/models/course.server';
 import { getUser, requireUser } from '#app/utils/auth.server';
 import { ROLE_WORDS } from '#app/utils/format';
@@ -48,7 +48,7 @@ export default function Invitation({ loaderData, actionData }: Route.ComponentPr
       {!problem && !signedIn ? (
         <>
           <p className="text-slate-700">
-            Sign in with <strong className="break-all">{invitation.email}</strong> to accept. We e-mail you a code; no password.
+            Sign in with <strong><EmailAddress email={invitation.email} /></strong> to accept. We e-mail you a code; no password.
           </p>
           <Link to={loaderData.signInHref} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800">
             Sign in to accept

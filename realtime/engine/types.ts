@@ -324,9 +324,12 @@ export interface FloorView {
   counts: { joined: number; present: number; connected: number; pairs: number; pairsDone: number };
   pairs: {
     pairId: string;
+    /** the pair's number in its supergame, for people ("Pair 3") */
+    number: number;
     round: number;
     done: boolean;
     seats: [FloorSeatView, FloorSeatView];
+    /** when the first of the pair chose in the open round; null while neither has */
     waitingSince: number | null;
     deadline: number | null;
     remainingMs: number | null;

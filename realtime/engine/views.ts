@@ -141,12 +141,15 @@ export function floorView(s: EngineState, now: number): FloorView {
         timeouts: pid ? s.participants[pid].timeouts : 0,
       };
     };
+    // The pair waits for its slower member from the moment the first of the two chose.
+    const chosen = pair.pending.filter((r): r is NonNullable<typeof r> => r !== null).map((r) => r.at);
     return {
       pairId: id,
+      number: pair.index,
       round: pair.round,
       done: pair.done,
       seats: [seatView(0), seatView(1)],
-      waitingSince: pair.done ? null : pair.openedAt,
+      waitingSince: pair.done || chosen.length === 0 ? null : Math.min(...chosen),
       deadline: pair.done ? null : pair.deadline,
       remainingMs: pair.done ? null : pair.remainingMs,
     };

@@ -35,7 +35,7 @@ describe('Debrief, in Chromium', () => {
     const table = page.getByRole('table', { name: 'Cooperation and strategy shares per treatment' });
     await expect.poll(() => table.getByRole('row').count()).toBe(3);
     const coop = page.locator('figure[data-chart="cooperation-by-supergame"]');
-    await expect.poll(() => coop.locator('.recharts-legend-item').count()).toBe(4);
+    await expect.poll(() => coop.locator('.recharts-legend-wrapper li').count()).toBe(4);
     expect(await coop.textContent()).toContain('Short horizon');
     expect(await coop.textContent()).toContain('Long horizon');
     expect(await page.getByRole('link', { name: /download data \(CSV\)/ }).count()).toBe(6);
@@ -80,10 +80,10 @@ describe('Debrief, in Chromium', () => {
       await expect.poll(() => page.getByRole('heading', { name: /^Debrief: .*Short horizon/ }).isVisible()).toBe(true);
 
       // Off by default: every cooperation caption says which choices it counts and what it left out.
-      const sw = page.getByRole('checkbox', { name: /Include timeout-filled, computer-seat and unpaid rounds/ });
+      const sw = page.getByRole('checkbox', { name: /Include timeout-filled and computer-seat choices, and rounds after a supergame’s end/ });
       expect(await sw.isChecked()).toBe(false);
       const caption = (chart: string) => page.locator(`figure[data-chart="${chart}"] figcaption`).textContent();
-      for (const chart of ['cooperation-by-supergame', 'cooperation-by-round', 'outcomes', 'theory']) expect(await caption(chart)).toMatch(/Own choices in paid rounds: [\d,]+\./);
+      for (const chart of ['cooperation-by-supergame', 'cooperation-by-round', 'outcomes', 'theory']) expect(await caption(chart)).toMatch(/Own choices in rounds that count: [\d,]+\./);
       expect(await caption('lengths')).not.toMatch(/methods\.md|§/);
       expect(await caption('points')).toContain('whoever chose');
       const csv = page.locator('figure[data-chart="cooperation-by-supergame"]').getByRole('link', { name: /download data \(CSV\)/ });
@@ -104,7 +104,7 @@ describe('Debrief, in Chromium', () => {
       // Off again: back to own, paid choices.
       await sw.uncheck();
       await expect.poll(() => page.url()).not.toContain('include=all');
-      await expect.poll(() => caption('cooperation-by-supergame')).toMatch(/Own choices in paid rounds/);
+      await expect.poll(() => caption('cooperation-by-supergame')).toMatch(/Own choices in rounds that count/);
     }
     expect(pageErrors).toEqual([]);
   });

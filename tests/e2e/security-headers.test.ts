@@ -39,7 +39,7 @@ describe('Content-Security-Policy, in Chromium', () => {
     await page.getByRole('button', { name: 'Compare the ticked sessions' }).click();
     const coop = page.locator('figure[data-chart="cooperation-by-supergame"]');
     // recharts has drawn (it draws after hydration, with inline style attributes).
-    await expect.poll(() => coop.locator('.recharts-legend-item').count()).toBe(4);
+    await expect.poll(() => coop.locator('.recharts-legend-wrapper li').count()).toBe(4);
     await expect.poll(() => coop.locator('svg path').count()).toBeGreaterThan(0);
     expect(await violations()).toEqual([]);
     await page.getByRole('link', { name: 'Projector mode' }).click();

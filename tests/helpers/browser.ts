@@ -1,6 +1,7 @@
 // Debian's chromium driven by playwright-core (never a downloaded browser).
-import { type Browser, type BrowserContext, chromium, type Page } from 'playwright-core';
+import { type Browser, type BrowserContext, type BrowserContextOptions, chromium, type Page } from 'playwright-core';
 import { expect } from 'vitest';
+import type { Client } from './http';
 import { latestSignInCode, mailTo } from './mail';
 
 export const CHROMIUM_ARGS = [
@@ -21,8 +22,8 @@ export const PHONE = { viewport: { width: 390, height: 844 }, deviceScaleFactor:
 export const DESKTOP = { viewport: { width: 1440, height: 900 } };
 
 /** A context that fails the test on any page error or console error. */
-export async function newContext(browser: Browser, opts: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<BrowserContext> {
-  const ctx = await browser.newContext({ ...opts, baseURL: process.env.PARLEY_TEST_URL });
+export async function newContext(browser: Browser, opts: typeof PHONE | typeof DESKTOP = DESKTOP, extra: BrowserContextOptions = {}): Promise<BrowserContext> {
+  const ctx = await browser.newContext({ ...opts, ...extra, baseURL: process.env.PARLEY_TEST_URL });
   ctx.on('page', watch);
   return ctx;
 }
@@ -61,4 +62,14 @@ export async function signInInBrowser(page: Page, email: string) {
   await page.getByLabel('Sign-in code').fill(code);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await expect.poll(() => page.url()).not.toContain('/sign-in');
+}
+
+/** A new page at this size carrying a test client's sign-in cookies, opened at `url`. Dialogs are accepted. */
+export async function pageAs(browser: Browser, client: Client, url: string, size: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<Page> {
+  const ctx = await newContext(browser, size);
+  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  const page = await ctx.newPage();
+  page.on('dialog', (d) => void d.accept());
+  await page.goto(url);
+  return page;
 }

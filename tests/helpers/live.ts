@@ -5,8 +5,8 @@ import { designSchema, type DesignInput } from '#app/lib/design';
 import { designs } from '#drizzle/schema';
 import type { ClientToServerEvents, ServerToClientEvents } from '#realtime/protocol';
 import type { ParticipantView } from '#realtime/engine/types';
-import { testDb } from './db';
-import { baseUrl, type Client } from './http';
+import { createCourse, createUser, testDb } from './db';
+import { baseUrl, type Client, signIn, uniqueEmail } from './http';
 
 export type TestSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
 
@@ -87,4 +87,19 @@ export function nextView(s: TestSocket, test: (v: ParticipantView) => boolean, m
     };
     s.on('view:participant', on);
   });
+}
+
+/** A course with an instructor and `n` participants, a design and a session opened and joined by all. */
+export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 'class') {
+  const instructorEmail = uniqueEmail(`${tag}-inst`);
+  const instructorId = await createUser(instructorEmail, 'Instructor');
+  const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`${tag}-p${i}`));
+  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
+  const courseId = await createCourse(`Class ${tag}`, [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.9, roundSeconds: 120, ...over });
+  const instructor = await signIn(instructorEmail);
+  const { sessionId, code } = await openSession(instructor, courseId, designId);
+  const players = await Promise.all(playerEmails.map((e) => signIn(e)));
+  for (const p of players) await join(p, code);
+  return { courseId, designId, sessionId, code, instructor, players };
 }

@@ -37,7 +37,7 @@ describe('sessionDebrief', () => {
     expect([own.overall.cooperate, own.overall.n]).toEqual([4, 8]);
     expect(own.bySupergame[0].all).toEqual({ n: 5, cooperate: 2, rate: 2 / 5 });
     expect(originWords({ debrief: own, unfinished: 1 })).toBe(
-      'Own choices in paid rounds: 8. Left out: 1 filled by the timeout rule. 1 half-finished round (only one of the pair had chosen) left out.',
+      'Own choices in rounds that count: 8. Left out: 1 filled by the timeout rule. 1 half-finished round (only one of the pair had chosen) left out.',
     );
     // points are what each participant is credited, whoever chose
     expect(own.points).toEqual(d.points);

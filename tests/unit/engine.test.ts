@@ -552,13 +552,19 @@ describe('views', () => {
     expect(ids.map((id) => hub.state.participants[id].pseudonym)).toEqual(['P-001', 'P-002', 'P-003', 'P-004']);
     const [a] = hub.state.pairs['s1-p1'].seats.map((x) => x.participantId!);
     hub.ok({ type: 'reconnect', participantId: a }, hub.now + SEC);
-    hub.ok({ type: 'choose', participantId: a, supergame: 1, round: 1, action: 'C', clientChoiceId: 'a' }, hub.now + SEC);
+    const choseAt = hub.now + SEC;
+    hub.ok({ type: 'choose', participantId: a, supergame: 1, round: 1, action: 'C', clientChoiceId: 'a' }, choseAt);
     hub.ok({ type: 'disconnect', participantId: ids[3] }, hub.now + SEC);
     const opened = hub.state.pairs['s1-p1'].openedAt;
     const f = floorView(hub.state, opened + 11 * SEC);
     const seat = f.pairs[0].seats.find((x) => x.participantId === a)!;
     expect(seat).toMatchObject({ hasChosen: true, source: 'player', connected: true, pseudonym: hub.state.participants[a].pseudonym });
-    expect(f.pairs[0].waitingSince).toBe(opened);
+    // The pair waits from its first choice (issue 12), not from the round's opening; a pair where
+    // nobody has chosen waits for no one yet.
+    expect(choseAt).toBeGreaterThan(opened);
+    expect(f.pairs[0].waitingSince).toBe(choseAt);
+    expect(f.pairs[1].waitingSince).toBeNull();
+    expect(f.pairs.map((p) => p.number)).toEqual([1, 2]);
     expect(f.alerts).toContainEqual({ participantId: ids[3], pseudonym: 'P-004', kind: 'disconnected' });
     expect(f.alerts.filter((x) => x.kind === 'slow')).toHaveLength(3); // 11 s of a 20 s timer, not chosen
     expect(f.counts).toMatchObject({ joined: 4, present: 4, connected: 1, pairs: 2, pairsDone: 0 });

@@ -2,7 +2,7 @@ import { data, Form, Link, redirect, useNavigation } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/sign-in-code';
 import { ParticipantShell } from '#app/components/shells';
-import { Button, Notice, TextField } from '#app/components/ui';
+import { Button, Notice, TextField, EmailAddress } from '#app/components/ui';
 import { clientIp, getUser } from '#app/utils/auth.server';
 import { formatWait } from '#app/utils/format';
 import { strategyRequest } from '#app/utils/http.server';
@@ -77,7 +77,7 @@ export default function SignInCode({ loaderData, actionData }: Route.ComponentPr
         <h1 className="text-3xl font-semibold">Check your e-mail</h1>
         {loaderData.email ? (
           <p className="text-lg text-slate-700">
-            We sent a six-digit code to <strong className="break-all">{loaderData.email}</strong>. It works for {loaderData.minutes}{' '}
+            We sent a six-digit code to <strong><EmailAddress email={loaderData.email} /></strong>. It works for {loaderData.minutes}{' '}
             minutes. You can also open the link in the e-mail on this device.
           </p>
         ) : null}

@@ -113,13 +113,13 @@ export default function Play({ loaderData }: Route.ComponentProps) {
       ) : null}
 
       {view.status === 'choosing' || view.status === 'waiting-partner' ? (
-        <section className="flex flex-1 flex-col gap-4">
+        <section className="flex flex-1 flex-col gap-4" aria-live="polite">
           <div className="flex items-baseline justify-between">
             <h1 className="text-2xl font-semibold" data-testid="round-title">
               Supergame {view.supergame} of {view.supergames} · Round {view.round}
             </h1>
             {seconds !== null && !view.paused ? (
-              <span className="num text-xl font-semibold" aria-label={`${seconds} seconds left`} data-testid="countdown">
+              <span className="num text-xl font-semibold" aria-label={`${seconds} seconds left`} aria-live="off" data-testid="countdown">
                 {seconds} s
               </span>
             ) : null}
@@ -260,7 +260,7 @@ function ResultLine({ r, labels }: { r: NonNullable<ParticipantView['lastResult'
 function History({ view }: { view: ParticipantView }) {
   if (!view.history.length) return null;
   return (
-    <details className="rounded-lg border border-slate-200 bg-white p-3" open={view.history.length <= 4}>
+    <details className="rounded-lg border border-slate-200 bg-white p-3" open={view.history.length <= 4} aria-live="off">
       <summary className="cursor-pointer font-semibold">This supergame so far</summary>
       <table className="mt-2 w-full text-sm">
         <thead className="text-left text-slate-600">

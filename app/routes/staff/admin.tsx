@@ -4,7 +4,7 @@ import { z } from 'zod';
 import type { Route } from './+types/admin';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { PageHeader } from '#app/components/shells';
-import { Button, DemoBadge, Notice, RowAction, TextField } from '#app/components/ui';
+import { Button, DemoBadge, Notice, RowAction, TextField, EmailAddress } from '#app/components/ui';
 import { grantCourseCreation, listCourseCreators, listCoursesForUser, revokeCourseCreation } from '#app/models/course.server';
 import { users } from '#drizzle/schema';
 import { requireAdmin } from '#app/utils/auth.server';
@@ -99,8 +99,8 @@ export default function Admin({ loaderData, actionData }: Route.ComponentProps) 
           <ul className="flex flex-col divide-y divide-slate-100 rounded-lg border border-slate-200">
             {creators.map((c) => (
               <li key={c.id} className="flex flex-wrap items-center justify-between gap-2 px-4 py-2">
-                <span className="break-all">
-                  {c.email}
+                <span>
+                  <EmailAddress email={c.email} />
                   {c.name ? <span className="text-slate-600"> · {c.name}</span> : null}
                 </span>
                 <RowAction fields={{ intent: 'revoke', userId: c.id }} label="Take away" target={`the right to create courses from ${c.email}`} />

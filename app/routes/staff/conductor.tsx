@@ -87,7 +87,7 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
               {connected ? 'Live' : 'Connecting…'}
             </p>
           </div>
-          <p className="text-2xl font-semibold" data-testid="session-status">
+          <p className="text-2xl font-semibold" data-testid="session-status" role="status">
             <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
             {STATUS_WORDS[status].word}
           </p>

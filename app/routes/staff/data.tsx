@@ -205,7 +205,8 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
             <li key={n}>{n}</li>
           ))}
         </ul>
-        <div className="overflow-x-auto rounded-lg border border-slate-200 bg-white">
+        {/* Scrolls sideways on a phone: focusable, so a keyboard can scroll it too. */}
+        <div tabIndex={0} role="region" aria-label="Codebook of the choice panel" className="overflow-x-auto rounded-lg border border-slate-200 bg-white">
           <table className="w-full text-left text-sm">
             <caption className="sr-only">Codebook of the choice panel</caption>
             <thead className="border-b border-slate-200 bg-slate-50">

@@ -25,7 +25,7 @@ export default function DebriefSession({ loaderData }: Route.ComponentProps) {
           ['Supergames', String(s.debrief.bySupergame.length)],
           ['δ', String(Number(s.delta.toFixed(4)))],
           ['Cooperation', s.debrief.overall.rate === null ? '–' : `${(s.debrief.overall.rate * 100).toFixed(1)} %`],
-          [include === 'all' ? 'Choices (every origin)' : 'Own, paid choices', s.debrief.counts.used.toLocaleString('en-US')],
+          [include === 'all' ? 'Choices (every origin)' : 'Own choices counted', s.debrief.counts.used.toLocaleString('en-US')],
           ['Left out', (s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished).toLocaleString('en-US')],
         ].map(([k, v]) => (
           <div key={k} className="rounded-lg border border-slate-200 bg-white p-3">

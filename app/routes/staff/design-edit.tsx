@@ -1,4 +1,4 @@
-import { useMemo, useRef, useState } from 'react';
+import { useEffect, useMemo, useRef, useState } from 'react';
 import { data, Form, Link, redirect, useNavigation } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/design-edit';
@@ -181,6 +181,21 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   const madeVersion = loaderData.madeVersion && !actionData && design;
   const used = design !== null && design.sessionCount > 0;
 
+  // δ is checked as it is typed (the same rule as the save), so 1.2 is refused beside the field
+  // at once; an empty field waits for the save, which says "δ must be a number".
+  const deltaCheck = input.delta === undefined ? null : designSchema.shape.delta.safeParse(input.delta);
+  const deltaError = deltaCheck ? (deltaCheck.success ? undefined : deltaCheck.error.issues[0].message) : errors.delta;
+
+  // After a refused save the page would stay where the button was, the errors out of sight and
+  // the theory panel stuck halfway down: bring the first field in error to the middle and focus it.
+  useEffect(() => {
+    if (!actionData || actionData.ok) return;
+    const first = formRef.current?.querySelector<HTMLElement>('[aria-invalid="true"]');
+    if (!first) return;
+    first.scrollIntoView({ block: 'center' });
+    first.focus({ preventScroll: true });
+  }, [actionData]);
+
   const onChange = () => {
     if (formRef.current) setInput(designInputFromForm(new FormData(formRef.current)));
   };
@@ -301,7 +316,7 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 Continuation and time
               </h2>
               <div className="grid gap-3 sm:grid-cols-3">
-                <TextField label="δ (chance of another round)" name="delta" inputMode="decimal" defaultValue={values.delta} error={errors.delta} hint="Between 0 and 1, e.g. 0.75." />
+                <TextField label="δ (chance of another round)" name="delta" inputMode="decimal" defaultValue={values.delta} error={deltaError} hint="Between 0 and 1, e.g. 0.75." />
                 <TextField label="Supergames" name="supergames" inputMode="numeric" defaultValue={values.supergames} error={errors.supergames} />
                 <TextField label="Round timer (seconds)" name="roundSeconds" inputMode="numeric" defaultValue={values.roundSeconds} error={errors.roundSeconds} />
               </div>

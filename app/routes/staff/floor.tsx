@@ -108,7 +108,7 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
       {floor ? (
         <div className="relative overflow-x-auto rounded-lg border border-slate-200 bg-white">
           <table className="w-full text-left text-sm">
-            <caption className="sr-only">Pairs of the current supergame</caption>
+            <caption className="sr-only">Pairs of the current supergame, one row per seat</caption>
             <thead className="border-b border-slate-200 bg-slate-50 text-slate-700">
               <tr>
                 <th scope="col" className="px-3 py-2">
@@ -118,7 +118,10 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                   Round
                 </th>
                 <th scope="col" className="px-3 py-2">
-                  Seats (chosen · connection)
+                  Seat
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Chosen · connection
                 </th>
                 <th scope="col" className="px-3 py-2 text-right">
                   Waiting
@@ -128,48 +131,59 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                 </th>
               </tr>
             </thead>
-            <tbody>
-              {floor.pairs.map((p) => (
-                <tr key={p.pairId} className="border-b border-slate-100 align-top" data-testid="floor-pair">
-                  <td className="px-3 py-2 font-mono">{p.pairId}</td>
-                  <td className="num px-3 py-2 text-right">{p.done ? 'done' : p.round}</td>
-                  <td className="px-3 py-2">
-                    <ul className="flex flex-col gap-1">
-                      {p.seats.map((s, i) => (
-                        <li key={i} className="flex flex-wrap items-center gap-2">
-                          <span className="font-semibold">{who(s)}</span>
-                          <span>{s.hasChosen ? '✓ chosen' : p.done ? '' : '… choosing'}</span>
-                          {s.connected === false ? <span className="font-semibold text-danger-600">✕ disconnected</span> : null}
-                          {s.timeouts ? <span className="text-slate-600">{s.timeouts} timeout{s.timeouts > 1 ? 's' : ''}</span> : null}
-                        </li>
-                      ))}
-                    </ul>
-                  </td>
-                  <td className="num px-3 py-2 text-right">{p.waitingSince && !p.done ? `${Math.max(0, Math.round((now - p.waitingSince) / 1000))} s` : '—'}</td>
-                  <td className="px-3 py-2">
-                    <div className="flex flex-col gap-1">
-                      {p.seats
-                        .filter((s) => live && s.participantId && !s.computer)
-                        .map((s) => (
-                          <div key={s.participantId} className="flex flex-wrap gap-1">
-                            <button className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50" onClick={() => act(s.participantId!, 'nudge', `Nudge ${s.pseudonym}`)}>
-                              Nudge<span className="sr-only"> {s.pseudonym}</span>
+            {/* One row per seat, so each seat's buttons sit on its own line; the pair's cells span both. */}
+            {floor.pairs.map((p) => (
+              <tbody key={p.pairId} className="border-b border-slate-200" data-testid="floor-pair">
+                {p.seats.map((s, i) => (
+                  <tr key={i} className={i === 0 ? 'align-middle' : 'border-t border-slate-100 align-middle'}>
+                    {i === 0 ? (
+                      <>
+                        <th scope="rowgroup" rowSpan={2} className="px-3 py-2 align-top font-semibold whitespace-nowrap">
+                          Pair {p.number}
+                        </th>
+                        <td rowSpan={2} className="num px-3 py-2 text-right align-top">
+                          {p.done ? 'done' : p.round}
+                        </td>
+                      </>
+                    ) : null}
+                    <td className="px-3 py-2">
+                      <span className="font-semibold" data-testid="seat-name">
+                        {who(s)}
+                      </span>
+                    </td>
+                    <td className="px-3 py-2">
+                      <span className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                        <span>{s.hasChosen ? '✓ chosen' : p.done ? '' : '… choosing'}</span>
+                        {s.connected === false ? <span className="font-semibold text-danger-600">✕ disconnected</span> : null}
+                        {s.timeouts ? <span className="text-slate-600">{s.timeouts} timeout{s.timeouts > 1 ? 's' : ''}</span> : null}
+                      </span>
+                    </td>
+                    {i === 0 ? (
+                      <td rowSpan={2} className="num px-3 py-2 text-right align-top" title="Since the first of the pair chose">
+                        {p.waitingSince && !p.done ? `${Math.max(0, Math.round((now - p.waitingSince) / 1000))} s` : '—'}
+                      </td>
+                    ) : null}
+                    <td className="px-3 py-1">
+                      {live && s.participantId && !s.computer ? (
+                        <div className="flex flex-wrap gap-1">
+                          <button className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50" onClick={() => act(s.participantId!, 'nudge', `Nudge ${s.pseudonym}`)}>
+                            Nudge<span className="sr-only"> {s.pseudonym}</span>
+                          </button>
+                          <button className="min-h-9 rounded px-2 font-semibold text-slate-700 hover:bg-slate-100" onClick={() => act(s.participantId!, 'hand-to-computer', `Hand ${s.pseudonym} to a computer partner (${strategy})`)}>
+                            Hand to computer<span className="sr-only"> {s.pseudonym}</span>
+                          </button>
+                          {role === 'instructor' ? (
+                            <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(s.participantId!, 'remove', `Remove ${s.pseudonym}`)}>
+                              Remove<span className="sr-only"> {s.pseudonym}</span>
                             </button>
-                            <button className="min-h-9 rounded px-2 font-semibold text-slate-700 hover:bg-slate-100" onClick={() => act(s.participantId!, 'hand-to-computer', `Hand ${s.pseudonym} to a computer partner (${strategy})`)}>
-                              Hand to computer<span className="sr-only"> {s.pseudonym}</span>
-                            </button>
-                            {role === 'instructor' ? (
-                              <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(s.participantId!, 'remove', `Remove ${s.pseudonym}`)}>
-                                Remove<span className="sr-only"> {s.pseudonym}</span>
-                              </button>
-                            ) : null}
-                          </div>
-                        ))}
-                    </div>
-                  </td>
-                </tr>
-              ))}
-            </tbody>
+                          ) : null}
+                        </div>
+                      ) : null}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            ))}
           </table>
           {floor.pairs.length === 0 ? <p className="p-4 text-slate-600">No pairs yet: the session has not started.</p> : null}
         </div>

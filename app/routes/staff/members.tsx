@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Route } from './+types/members';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { Button, Notice, RowAction, SelectField, TextField } from '#app/components/ui';
+import { Button, Notice, RowAction, SelectField, TextField, EmailAddress } from '#app/components/ui';
 import {
   changeMemberRole,
   createInvitation,
@@ -137,7 +137,7 @@ type MemberRow = Route.ComponentProps['loaderData']['members'][number];
 function columnsFor(canManage: boolean, me: number) {
   const col = staffColumnHelper<MemberRow>();
   return col.columns([
-    col.accessor('email', { header: 'E-mail', cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span> }),
+    col.accessor('email', { header: 'E-mail', cell: (i) => <EmailAddress email={i.getValue()} /> }),
     col.accessor('name', { header: 'Name', cell: (i) => i.getValue() ?? '—' }),
     col.accessor('studentId', { header: 'Student id', cell: (i) => i.getValue() ?? '—' }),
     col.accessor('role', {
@@ -236,7 +236,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
             {invitations.map((inv) => (
               <li key={inv.id} className="flex flex-wrap items-center justify-between gap-2 px-4 py-2">
                 <span>
-                  <span className="break-all">{inv.email}</span> · {ROLE_WORDS[inv.role]} ·{' '}
+                  <EmailAddress email={inv.email} /> · {ROLE_WORDS[inv.role]} ·{' '}
                   {inv.sentAt ? (
                     `until ${formatDate(inv.expiresAt)}`
                   ) : (

@@ -4,7 +4,7 @@ import type { Route } from './+types/roster';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { CsvFileField, LineIssues } from '#app/components/upload';
-import { Button, Notice } from '#app/components/ui';
+import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { parseRoster, ROSTER_LIMITS, type RosterIssue } from '#app/lib/roster-csv';
 import { releaseCourseMail, reserveCourseMails } from '#app/models/course.server';
 import { importRoster, type PlannedRow, planRoster, rosterMail } from '#app/models/roster.server';
@@ -102,7 +102,7 @@ const STATUS = {
 const col = staffColumnHelper<PlannedRow>();
 const columns = col.columns([
   col.accessor('line', { header: 'Line', meta: { align: 'right' }, sortFn: 'basic' }),
-  col.accessor('email', { header: 'E-mail', cell: (i) => <span className="break-all">{i.getValue()}</span> }),
+  col.accessor('email', { header: 'E-mail', cell: (i) => <EmailAddress email={i.getValue()} /> }),
   col.accessor('name', {
     header: 'Name',
     cell: (i) => (

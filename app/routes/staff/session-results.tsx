@@ -3,7 +3,7 @@ import { useFetcher } from 'react-router';
 import type { Route } from './+types/session-results';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { Button, Notice } from '#app/components/ui';
+import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { describeCreditRule, formatCredit } from '#app/lib/credit';
 import { creditSheet } from '#app/models/exports.server';
 import { requirePanelSession } from '#app/models/panel-export.server';
@@ -32,7 +32,7 @@ const creditColumns = (paid: boolean) =>
   creditCol.columns([
     creditCol.accessor('pseudonym', { header: 'Pseudonym' }),
     creditCol.accessor('name', { header: 'Name', cell: (i) => i.getValue() || '—' }),
-    creditCol.accessor('email', { header: 'E-mail' }),
+    creditCol.accessor('email', { header: 'E-mail', cell: (i) => <EmailAddress email={i.getValue()} /> }),
     creditCol.accessor('studentId', { header: 'Student id', cell: (i) => i.getValue() || '—' }),
     creditCol.accessor('points', { header: 'Points', meta: { align: 'right' }, sortFn: 'basic', cell: (i) => `${i.getValue()} pts` }),
     creditCol.accessor('credit', { header: paid ? 'Payout' : 'Credit', meta: { align: 'right' } }),
@@ -48,7 +48,7 @@ const STATUS_WORDS = {
 const mailCol = staffColumnHelper<MailRow>();
 const mailColumns = mailCol.columns([
   mailCol.accessor('pseudonym', { header: 'Pseudonym', cell: (i) => i.getValue() ?? '—' }),
-  mailCol.accessor('email', { header: 'E-mail' }),
+  mailCol.accessor('email', { header: 'E-mail', cell: (i) => <EmailAddress email={i.getValue()} /> }),
   mailCol.accessor('status', {
     header: 'Status',
     cell: (i) => {

@@ -151,7 +151,8 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
         <h2 id="try" className="mb-2 text-lg font-semibold">
           Try it
         </h2>
-        <pre className="overflow-x-auto rounded-lg bg-slate-900 p-4 text-sm text-slate-100">
+        {/* Long lines scroll sideways: focusable, so a keyboard can scroll them too. */}
+        <pre tabIndex={0} role="region" aria-label="Example requests" className="overflow-x-auto rounded-lg bg-slate-900 p-4 text-sm text-slate-100">
           {[
             `curl -H "Authorization: Bearer ${example}" ${apiBase}/courses`,
             `curl -H "Authorization: Bearer ${example}" ${apiBase}/courses/${firstCourse}/sessions`,

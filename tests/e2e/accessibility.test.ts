@@ -1,0 +1,155 @@
+// Every page through axe-core (WCAG 2.1 A and AA rules), at desktop and phone sizes, as each role
+// sees it: signed out, participant, assistant, instructor (and the site admin's one page). Any
+// violation fails the test, listed with its page, size and the elements axe points at.
+import { createRequire } from 'node:module';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DESKTOP, launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
+import { closeTestDb, createCourse, createCourseCreator, createUser } from '#tests/helpers/db';
+import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { closeSockets, createDesign, join, openSession } from '#tests/helpers/live';
+
+const AXE = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
+const TAGS = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'];
+const SIZES = [
+  [DESKTOP, 'desktop'],
+  [PHONE, 'phone'],
+] as const;
+
+let browser: Browser;
+const world = {} as {
+  courseId: number;
+  designId: number;
+  sessionId: number;
+  code: string;
+  instructor: Client;
+  assistant: Client;
+  participant: Client;
+  newcomer: Client;
+};
+
+beforeAll(async () => {
+  browser = await launch();
+  const [inst, asst, part, newcomer] = [uniqueEmail('a11y-inst'), uniqueEmail('a11y-asst'), uniqueEmail('a11y-part'), uniqueEmail('a11y-new')];
+  // the instructor may create courses, so /courses/new is the form (not a 403)
+  const [instId, asstId, partId, newId] = await Promise.all([createCourseCreator(inst), createUser(asst, 'Assia Assistant'), createUser(part), createUser(newcomer)]);
+  world.courseId = await createCourse('Accessible course', [
+    { userId: instId, role: 'instructor' },
+    { userId: asstId, role: 'assistant' },
+    { userId: partId, role: 'participant' },
+    { userId: newId, role: 'participant' },
+  ]);
+  world.designId = await createDesign(world.courseId, instId, { supergames: 2, delta: 0.75, roundSeconds: 60, consent: true });
+  [world.instructor, world.assistant, world.participant, world.newcomer] = await Promise.all([signIn(inst), signIn(asst), signIn(part), signIn(newcomer)]);
+  const opened = await openSession(world.instructor, world.courseId, world.designId);
+  world.sessionId = opened.sessionId;
+  world.code = opened.code;
+  await join(world.participant, world.code, { consent: 'yes' });
+}, 120_000);
+afterAll(async () => {
+  closeSockets();
+  await browser?.close();
+  await closeTestDb();
+});
+
+/** Waits for what each kind of page draws after hydration, so axe sees the page people see. */
+async function settle(page: Page) {
+  await page.waitForLoadState('load');
+  if (await page.locator('figure[data-chart]').count()) await page.locator('figure[data-chart] .recharts-surface').first().waitFor();
+  if (/\/(floor|sessions\/\d+|screen\/|play\/)/.test(page.url())) await page.waitForFunction(() => !/Connecting/.test(document.body.innerText), undefined, { timeout: 15_000 });
+  await page.waitForTimeout(200);
+}
+
+interface Violation {
+  page: string;
+  size: string;
+  rule: string;
+  targets: string;
+}
+
+async function audit(client: Client | null, paths: string[]): Promise<Violation[]> {
+  const found: Violation[] = [];
+  for (const [size, sizeName] of SIZES) {
+    // axe is injected as a script tag: the pages' CSP (nonces) would refuse it.
+    const ctx = await newContext(browser, size, { bypassCSP: true });
+    if (client) await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+    const page = await ctx.newPage();
+    for (const path of paths) {
+      await page.goto(path);
+      await settle(page);
+      await page.addScriptTag({ path: AXE });
+      const violations = await page.evaluate(async (tags) => {
+        const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: { id: string; nodes: { target: string[] }[] }[] }> } }).axe;
+        const r = await axe.run(document, { runOnly: { type: 'tag', values: tags }, resultTypes: ['violations'] });
+        return r.violations.map((v) => ({ rule: v.id, targets: v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(' | ') }));
+      }, TAGS);
+      for (const v of violations) found.push({ page: path, size: sizeName, ...v });
+      // every page has a title (axe's document-title rule checks it too; error pages had none)
+      if (!(await page.title())) found.push({ page: path, size: sizeName, rule: 'no <title>', targets: 'head' });
+    }
+    await ctx.close();
+  }
+  return found;
+}
+
+describe('axe-core, WCAG 2.1 AA, every page at desktop and phone sizes', () => {
+  it('signed out', async () => {
+    expect(await audit(null, ['/', '/sign-in', '/join', `/join/${world.code}`, '/no-such-page'])).toEqual([]);
+  }, 180_000);
+
+  it('a participant', async () => {
+    const participant = await audit(world.participant, ['/', '/account', `/play/${world.sessionId}`]);
+    // the instructions and consent page of someone who has not joined yet
+    const newcomer = await audit(world.newcomer, [`/join/${world.code}`]);
+    // a participant of the demo's completed session reads their own summary
+    const demo = await audit(await signIn('student01@halvorsen.example'), ['/courses/1/debrief/1/mine']);
+    expect([...participant, ...newcomer, ...demo]).toEqual([]);
+  }, 240_000);
+
+  it('an assistant', async () => {
+    const c = world.courseId;
+    const own = await audit(world.assistant, [`/courses/${c}`, `/courses/${c}/sessions`, `/courses/${c}/sessions/${world.sessionId}`, `/courses/${c}/sessions/${world.sessionId}/floor`, `/courses/${c}/designs/${world.designId}`]);
+    const demo = await audit(await signIn('j.lindqvist@halvorsen.example'), ['/courses/1/debrief', '/courses/1/debrief/2', '/methods']);
+    expect([...own, ...demo]).toEqual([]);
+  }, 240_000);
+
+  it('an instructor (and the site admin)', async () => {
+    const c = world.courseId;
+    const s = world.sessionId;
+    const own = await audit(world.instructor, [
+      '/courses',
+      '/courses/new',
+      `/courses/${c}`,
+      `/courses/${c}/members`,
+      `/courses/${c}/designs`,
+      `/courses/${c}/designs/new`,
+      `/courses/${c}/designs/${world.designId}`,
+      `/courses/${c}/sessions`,
+      `/courses/${c}/sessions/${s}`,
+      `/courses/${c}/sessions/${s}/floor`,
+      `/screen/${s}`,
+      `/courses/${c}/data`,
+      `/courses/${c}/roster`,
+      `/courses/${c}/datasets`,
+      '/settings/tokens',
+      '/account',
+      // not found inside the staff shell: a course that does not exist
+      '/courses/999999999',
+      // not for this role: the site admin's page (403), inside the staff shell
+      '/admin',
+    ]);
+    const demo = await audit(await signIn('r.okafor@halvorsen.example'), [
+      '/courses/1/debrief/1',
+      '/courses/1/debrief/compare?sessions=1,2',
+      '/courses/1/debrief/projector?sessions=1,2',
+      '/courses/1/sessions/1/results',
+      '/methods',
+    ]);
+    const admin = await audit(await signIn('admin@halvorsen.example'), ['/admin']);
+    expect([...own, ...demo, ...admin]).toEqual([]);
+  }, 420_000);
+
+  it('left no page error behind', () => {
+    expect(pageErrors).toEqual([]);
+  });
+});
