@@ -130,7 +130,12 @@ export function attachHub(httpServer: HttpServer) {
           }
           await socket.join(roomOf('participant', String(sessionId), me));
           playing.add(sessionId);
-          const res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
+          let res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
+          // Handed to a computer while away, now back: plays again from the next supergame.
+          if (res.state.participants[me]?.status === 'handed' && (res.state.status === 'running' || res.state.status === 'paused')) {
+            const back = await runner.dispatch(sessionId, { type: 'join', participantId: me });
+            if (!back.error) res = back;
+          }
           return participantView(res.state, me);
         }
         const { role } = await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);

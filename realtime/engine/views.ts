@@ -58,8 +58,11 @@ export function participantView(s: EngineState, participantId: string): Particip
       status = 'between-supergames';
       notice = p.sittingOut ? 'sitting-out' : p.status === 'handed' ? 'handed-to-computer' : null;
     }
-  } else if (pair.done) status = 'between-supergames';
-  else if (pair.seats[seat].computer) {
+  } else if (pair.done) {
+    status = 'between-supergames';
+    // handed over: the computer finished this supergame; the phone must not promise a new partner
+    if (p.status === 'handed') notice = 'handed-to-computer';
+  } else if (pair.seats[seat].computer) {
     status = 'between-supergames';
     notice = 'handed-to-computer';
   } else status = pair.pending[seat] ? 'waiting-partner' : 'choosing';

@@ -34,10 +34,14 @@ export function tempDir(prefix = 'parley-db-'): string {
   return fs.mkdtempSync(path.join(os.tmpdir(), prefix));
 }
 
-/** The pid of the MariaDB running from a data folder (0 when there is none). */
+/**
+ * The pid of the MariaDB running from a data folder (0 when there is none). Never pass 0 to
+ * process.kill: it signals the caller's whole process group.
+ */
 export function mariadbPid(dir: string): number {
   const pidFile = path.join(dir, 'mariadb', 'mariadb.pid');
-  return fs.existsSync(pidFile) ? Number(fs.readFileSync(pidFile, 'utf8').trim()) : 0;
+  const pid = fs.existsSync(pidFile) ? Number(fs.readFileSync(pidFile, 'utf8').trim()) : 0;
+  return Number.isInteger(pid) && pid > 0 ? pid : 0;
 }
 
 /** Stops the MariaDB of each folder (SIGCONT first, in case a test left it stopped) and removes the folders. */

@@ -1,6 +1,6 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { choices, courseMembers } from '#drizzle/schema';
+import { choices, courseMembers, sessionLog } from '#drizzle/schema';
 import type { ParticipantView } from '#realtime/engine/types';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
@@ -201,6 +201,13 @@ describe('a live session over real sockets', () => {
       .from(choices)
       .where(and(eq(choices.sessionId, sessionId), eq(choices.pairId, v.pairId!)));
     expect(rows.some((r) => r.source === 'computer' && r.strategy === 'TFT')).toBe(true);
+    // The handed participant opens the phone again: back in play from the next supergame (a
+    // logged re-join), told meanwhile that a computer plays this supergame for them.
+    const views = await Promise.all(seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })));
+    const back = views.map((r) => (r.ok ? (r.data as ParticipantView) : null)).find((x) => x?.pseudonym === partnerSeat.pseudonym);
+    expect(back?.notice).toBe('handed-to-computer');
+    const log = await testDb().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId));
+    expect(log.map((l) => l.event)).toContainEqual({ type: 'join', participantId: partnerSeat.participantId });
   });
 
   it('a late joiner enters at the next supergame', async () => {

@@ -131,26 +131,31 @@ describe('MariaDB stalled, then killed, during play', () => {
       okIds.add(id);
     }
 
-    // --- then killed: SIGKILL while the room plays on, started again 4 s later ---
+    // --- then killed: SIGKILL as the room plays on, started again 4 s later ---
+    let restarted: Promise<void> = Promise.resolve();
     const result = await playCrowd(
       phones.map((socket) => ({ socket, sessionId })),
       {
         timeoutMs: 120_000,
-        thinkMs: () => Math.floor(Math.random() * 200),
+        thinkMs: () => 300 + Math.floor(Math.random() * 300),
         idPrefix: 'after-stall',
         start: async () => {
-          void (async () => {
-            await sleep(800);
-            process.kill(mariadbPid(dir), 'SIGKILL');
-            await sleep(1500);
+          // every phone watches again and is about to choose (after its think time): kill now
+          // (a pid of 0 would signal this test's own process group)
+          const running = mariadbPid(dir);
+          expect(running).toBeGreaterThan(0);
+          process.kill(running, 'SIGKILL');
+          restarted = (async () => {
+            await sleep(2000);
             expect((await health()).status).toBe(503);
-            await sleep(2500);
+            await sleep(2000);
             const again = startMariadbIn(dir, dbPort, { databases: ['parley_outage'], user: 'parley', password: 'parley' });
             expect(again.status, again.stderr).toBe(0);
           })();
         },
       },
     );
+    await restarted;
     expect(result.complete).toBe(true);
     expect(result.refused).toEqual({});
     expect(result.acked.size).toBe(result.emitted);
@@ -168,5 +173,6 @@ describe('MariaDB stalled, then killed, during play', () => {
     const log = await db.select().from(schema.sessionLog).where(eq(schema.sessionLog.sessionId, sessionId));
     expect(log.some((l) => (l.event as { type: string }).type === 'grace')).toBe(true);
     expect(storage[0].filter((ok) => !ok).length).toBeGreaterThanOrEqual(2); // told of both outages
+    expect(result.retried.unavailable).toBeGreaterThan(0); // choices made while MariaDB was down were refused, then sent again
   });
 });
