@@ -120,7 +120,8 @@ describe('before play, on a phone', () => {
     await page.getByRole('button', { name: 'I have read this — continue' }).click();
     await page.getByTestId('practice-label').waitFor();
     expect(await page.getByTestId('practice-label').textContent()).toBe('Practice — not recorded');
-    expect(await bodyText(page)).toContain('a computer that chooses X in the first round, then whatever its partner chose in the round before');
+    // the practice partner is described in the same plain words as a real computer partner (app/lib/strategy-words.ts)
+    expect(await bodyText(page)).toContain('a computer that starts with X and then copies what you did last round');
     // From here until the join button, the phone sends nothing.
     const sent: string[] = [];
     page.on('request', (r) => sent.push(`${r.method()} ${r.url()}`));

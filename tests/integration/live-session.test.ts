@@ -192,6 +192,13 @@ describe('a live session over real sockets', () => {
     expect(handed).toEqual({ ok: true, data: { done: true } });
     const view = await told;
     expect(view.partner).toMatchObject({ kind: 'computer', strategy: 'TFT', reason: 'hand-over' });
+    // The handed participant opens the phone again while the supergame runs: back in play from the
+    // next supergame (a logged re-join), told meanwhile that a computer plays this one for them.
+    const views = await Promise.all(seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })));
+    const back = views.map((r) => (r.ok ? (r.data as ParticipantView) : null)).find((x) => x?.pseudonym === partnerSeat.pseudonym);
+    expect(back?.notice).toBe('handed-to-computer');
+    const log = await testDb().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId));
+    expect(log.map((l) => l.event)).toContainEqual({ type: 'join', participantId: partnerSeat.participantId });
     // (views are broadcast before the acknowledgement returns: listen first)
     const resolved = nextView(me.socket!, (x) => x.history.length >= 1);
     await me.socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: view.round!, action: 'C', clientChoiceId: 'vs-computer-001' });
@@ -201,13 +208,6 @@ describe('a live session over real sockets', () => {
       .from(choices)
       .where(and(eq(choices.sessionId, sessionId), eq(choices.pairId, v.pairId!)));
     expect(rows.some((r) => r.source === 'computer' && r.strategy === 'TFT')).toBe(true);
-    // The handed participant opens the phone again: back in play from the next supergame (a
-    // logged re-join), told meanwhile that a computer plays this supergame for them.
-    const views = await Promise.all(seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })));
-    const back = views.map((r) => (r.ok ? (r.data as ParticipantView) : null)).find((x) => x?.pseudonym === partnerSeat.pseudonym);
-    expect(back?.notice).toBe('handed-to-computer');
-    const log = await testDb().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId));
-    expect(log.map((l) => l.event)).toContainEqual({ type: 'join', participantId: partnerSeat.participantId });
   });
 
   it('a late joiner enters at the next supergame', async () => {

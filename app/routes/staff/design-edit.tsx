@@ -505,16 +505,16 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               </details>
             </section>
 
-            <PhonePreview design={parsed.success ? parsed.data : null} text={shownInstructions} course={course.title} />
-
-            {canEdit ? (
-              <div className="flex gap-3">
-                <Button type="submit" disabled={busy}>
-                  {busy ? 'Saving…' : design ? 'Save design' : 'Create design'}
-                </Button>
-              </div>
-            ) : null}
           </fieldset>
+          {/* Outside the fieldset: someone who may only look at the design still switches the preview's tabs and scrolls it. */}
+          <PhonePreview design={parsed.success ? parsed.data : null} text={shownInstructions} course={course.title} />
+          {canEdit ? (
+            <div className="flex gap-3">
+              <Button type="submit" disabled={busy}>
+                {busy ? 'Saving…' : design ? 'Save design' : 'Create design'}
+              </Button>
+            </div>
+          ) : null}
         </Form>
         <div className="flex min-w-0 flex-col gap-6 lg:sticky lg:top-4 lg:self-start">
           <TheoryPanel draft={draft} />
