@@ -77,7 +77,8 @@ export interface CreditLine {
 
 /**
  * Points and credit of every participant of a session (consent plays no part: grades must not
- * depend on it, methods.md §8). Points are the payoffs of the rounds that count (round ≤ L).
+ * depend on it, methods.md §8). Points are the payoffs of the rounds that count (round ≤ L) and
+ * that the participant played (a computer's rounds after a hand-over are not theirs).
  */
 export async function creditSheet(session: PanelSession): Promise<CreditLine[]> {
   const rule = session.credit;
@@ -87,6 +88,8 @@ export async function creditSheet(session: PanelSession): Promise<CreditLine[]> 
   for await (const page of panelPages([session], { identified: true })) {
     for (const r of page.rows) {
       if (r.supergame_length !== null && r.round > r.supergame_length) continue;
+      // a computer's rounds in the seat after a hand-over earn the participant nothing (decision 030)
+      if (r.origin === 'computer_seat') continue;
       const key = keyOf.get(r.pseudonym)!;
       points.set(key, (points.get(key) ?? 0) + r.payoff);
     }

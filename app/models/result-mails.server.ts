@@ -16,9 +16,11 @@ import { type PanelSession, type PanelRow, panelPages, panelSessions } from './p
 export interface SupergameLine {
   supergame: number;
   partners: string[];
-  /** rounds that count (L) */
+  /** rounds that count (L) and that the participant played */
   rounds: number;
   points: number;
+  /** rounds that count that a computer played in the seat after a hand-over */
+  byComputer: number;
 }
 
 /** One participant's supergames from their panel rows (rounds after L under block termination do not count). */
@@ -26,9 +28,16 @@ export function summarise(rows: readonly PanelRow[]): { supergames: SupergameLin
   const bySupergame = new Map<number, SupergameLine>();
   for (const r of rows) {
     let line = bySupergame.get(r.supergame);
-    if (!line) bySupergame.set(r.supergame, (line = { supergame: r.supergame, partners: [], rounds: 0, points: 0 }));
-    if (!line.partners.includes(r.partner)) line.partners.push(r.partner);
+    if (!line) bySupergame.set(r.supergame, (line = { supergame: r.supergame, partners: [], rounds: 0, points: 0, byComputer: 0 }));
+    // partners stay anonymous: another participant, or a disclosed computer partner
+    const partner = r.partner.startsWith('computer:') ? r.partner : 'participant';
+    if (!line.partners.includes(partner)) line.partners.push(partner);
     if (r.supergame_length !== null && r.round > r.supergame_length) continue;
+    // after a hand-over the computer's rounds are not the participant's (decision 030)
+    if (r.origin === 'computer_seat') {
+      line.byComputer += 1;
+      continue;
+    }
     line.rounds += 1;
     line.points += r.payoff;
   }
@@ -37,7 +46,9 @@ export function summarise(rows: readonly PanelRow[]): { supergames: SupergameLin
   return { supergames, points };
 }
 
-const partnerWords = (p: string) => (p.startsWith('computer:') ? `a computer partner (${p.slice('computer:'.length)})` : p);
+const partnerWords = (p: string) => (p.startsWith('computer:') ? `a computer partner (${p.slice('computer:'.length)})` : 'another participant');
+const computerWords = (s: SupergameLine) =>
+  s.byComputer ? ` (then a computer played ${s.byComputer} round${s.byComputer === 1 ? '' : 's'} in your seat; they earn you no points)` : '';
 
 export function resultMail(opts: { to: string; name: string | null; course: string; session: PanelSession; pseudonym: string; rows: PanelRow[] }): Mail {
   const { supergames, points } = summarise(opts.rows);
@@ -45,7 +56,7 @@ export function resultMail(opts: { to: string; name: string | null; course: stri
   const rule = describeCreditRule(opts.session.credit);
   const hello = opts.name ? `Hello ${opts.name},` : 'Hello,';
   const lines = supergames.map(
-    (s) => `Supergame ${s.supergame}: with ${s.partners.map(partnerWords).join(', then ')}, ${s.rounds} round${s.rounds === 1 ? '' : 's'}, ${s.points} points`,
+    (s) => `Supergame ${s.supergame}: with ${s.partners.map(partnerWords).join(', then ')}, ${s.rounds} round${s.rounds === 1 ? '' : 's'}, ${s.points} points${computerWords(s)}`,
   );
   const title = `Your results: ${opts.course}`;
   return {
@@ -70,7 +81,7 @@ export function resultMail(opts: { to: string; name: string | null; course: stri
 ${supergames
   .map(
     (s) =>
-      `<tr><td style="padding:4px">${s.supergame}</td><td style="padding:4px">${escapeHtml(s.partners.map(partnerWords).join(', then '))}</td><td style="text-align:right;padding:4px">${s.rounds}</td><td style="text-align:right;padding:4px">${s.points}</td></tr>`,
+      `<tr><td style="padding:4px">${s.supergame}</td><td style="padding:4px">${escapeHtml(s.partners.map(partnerWords).join(', then '))}</td><td style="text-align:right;padding:4px">${s.rounds}${s.byComputer ? escapeHtml(computerWords(s)) : ''}</td><td style="text-align:right;padding:4px">${s.points}</td></tr>`,
   )
   .join('\n')}
 </tbody></table>

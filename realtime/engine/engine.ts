@@ -299,7 +299,9 @@ function reveal(d: Draft, pair: PairState, fromRound: number, toRound: number): 
     rec.revealed = true;
     if (!rec.paid) continue;
     pair.seats.forEach((seat, i) => {
-      if (seat.participantId) d.p(seat.participantId).points += rec.payoffs[i];
+      // Rounds a computer played in a participant's seat after a hand-over are not that
+      // participant's: they earn them nothing (docs/decisions/030). Timeouts still count.
+      if (seat.participantId && rec.sources[i] !== 'computer') d.p(seat.participantId).points += rec.payoffs[i];
     });
   }
 }

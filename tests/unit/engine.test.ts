@@ -31,8 +31,9 @@ function pointsFromRows(hub: TestHub): Record<string, number> {
     if (rows.length !== 2) continue; // a round cut short by "end now"
     const [a, b] = rows.sort((x, y) => x.seat - y.seat);
     if (a.round > draws[a.supergame - 1].length) continue; // played, not paid (block termination)
-    if (a.participantId) out[a.participantId] += payoff(hub.design, a.action, b.action);
-    if (b.participantId) out[b.participantId] += payoff(hub.design, b.action, a.action);
+    // a computer's rounds in a participant's seat (after a hand-over) are not theirs: decision 030
+    if (a.participantId && a.source !== 'computer') out[a.participantId] += payoff(hub.design, a.action, b.action);
+    if (b.participantId && b.source !== 'computer') out[b.participantId] += payoff(hub.design, b.action, a.action);
   }
   return out;
 }
@@ -649,6 +650,27 @@ describe('a batch of steps (the runner\'s group commit)', () => {
     expect(batched.rows).toEqual(single.rows);
     expect(logical(batched.state)).toEqual(logical(single.state));
     expect(start).toEqual(frozen);
+  });
+});
+
+describe('points after a hand-over', () => {
+  it('credits a handed-over participant with the rounds they played, not the computer’s; the partner gets every round', () => {
+    const { hub, ids } = startSession(2, { supergames: 1, delta: 0.95 }, 'handed-pay');
+    const [a, b] = ids;
+    hub.ok({ type: 'choose', participantId: a, supergame: 1, round: 1, action: 'C', clientChoiceId: 'a1' }, hub.now + SEC);
+    hub.ok({ type: 'choose', participantId: b, supergame: 1, round: 1, action: 'C', clientChoiceId: 'b1' }, hub.now + SEC);
+    hub.ok({ type: 'handToComputer', participantId: b, strategy: 'ALLD' }, hub.now + SEC);
+    for (let k = 2; k <= 4 && hub.state.status === 'running'; k++) {
+      hub.ok({ type: 'choose', participantId: a, supergame: 1, round: k, action: 'C', clientChoiceId: `a${k}` }, hub.now + SEC);
+    }
+    const rows = hub.choices.filter((r) => r.pairId === 's1-p1');
+    // resolved rounds the computer played (it chooses at once in an open round a has not answered yet)
+    const computerRounds = rows.filter((r) => r.source === 'computer' && rows.filter((x) => x.round === r.round).length === 2);
+    expect(computerRounds.length).toBeGreaterThan(0);
+    // Source: the payoff table of the design (R = 48, S = 12); b played round 1 only
+    expect(hub.state.participants[b].points).toBe(48);
+    expect(hub.state.participants[a].points).toBe(48 + 12 * computerRounds.length);
+    expect(pointsFromRows(hub)).toMatchObject({ [a]: hub.state.participants[a].points, [b]: 48 });
   });
 });
 

@@ -192,7 +192,7 @@ export default function Play({ loaderData }: Route.ComponentProps) {
               ? 'The head-count is odd, so one participant sits out each supergame, in turn. You play again in the next one.'
               : view.notice === 'handed-to-computer'
                 ? view.pairId
-                  ? `You were away, so a computer took your seat for the rest of supergame ${view.supergame}, and your partner was told. The supergame goes on without you.`
+                  ? `You were away, so a computer took your seat for the rest of supergame ${view.supergame}, and your partner was told. The supergame goes on without you; the rounds the computer plays are not yours and earn you no points.`
                   : 'A computer took your seat in an earlier supergame while you were away, so you are not in the pairs of this one.'
                 : 'Waiting for the other pairs to finish. You will get a new partner.'}
           </p>
