@@ -11,7 +11,7 @@
  */
 import type { Design } from '../../app/lib/design';
 import type { Seed } from '../../app/lib/rng';
-import { createSession, step } from './engine';
+import { createSession, newBatchScope, step } from './engine';
 import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow } from './types';
 
 export class RebuildError extends Error {
@@ -58,8 +58,11 @@ export function rebuild(
 
   let state = createSession({ sessionId: opts.sessionId, design, seed });
   const produced = new Map<number, Effect>();
+  // One batch scope for the whole replay: only the final state is used (a failed step throws), so
+  // the big records are copied once, not once per row — and no views are built.
+  const scope = newBatchScope();
   const apply = (event: EngineEvent, at: number, seq: number): void => {
-    const res = step(state, event, at, { views: 'none' });
+    const res = step(state, event, at, { views: 'none', batch: scope });
     if (res.error) throw new RebuildError(`Replaying ${event.type} at #${seq} failed: ${res.error.code} (${res.error.message})`, seq);
     state = res.state;
     for (const e of res.effects) {
