@@ -43,7 +43,9 @@ const liveness = (l: Locator) =>
 
 describe('keyboard and screen readers', () => {
   it('the Conductor starts the session from the keyboard and its status is announced; the phone chooses from the keyboard and hears the round', async () => {
-    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'kb');
+    // Seed 2: the first draw is 14, so supergame 1 has a round 2 (with a random seed it ends after
+    // round 1 one time in ten at δ = 0.9, and round 2 never comes)
+    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'kb', { seed: '2' });
     const [me, other] = players;
     const otherSocket = await connect(other.cookieHeader());
     expect((await otherSocket.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);

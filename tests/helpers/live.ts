@@ -90,7 +90,7 @@ export function nextView(s: TestSocket, test: (v: ParticipantView) => boolean, m
 }
 
 /** A course with an instructor and `n` participants, a design and a session opened and joined by all. */
-export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 'class') {
+export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 'class', sessionFields: Record<string, string> = {}) {
   const instructorEmail = uniqueEmail(`${tag}-inst`);
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`${tag}-p${i}`));
@@ -98,7 +98,7 @@ export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 
   const courseId = await createCourse(`Class ${tag}`, [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
   const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.9, roundSeconds: 120, ...over });
   const instructor = await signIn(instructorEmail);
-  const { sessionId, code } = await openSession(instructor, courseId, designId);
+  const { sessionId, code } = await openSession(instructor, courseId, designId, sessionFields);
   const players = await Promise.all(playerEmails.map((e) => signIn(e)));
   for (const p of players) await join(p, code);
   return { courseId, designId, sessionId, code, instructor, players };
