@@ -1,15 +1,7 @@
 import { useEffect } from 'react';
 import { useFetcher } from 'react-router';
+import type { CheckRow as Row } from '#app/models/comprehension.server';
 
-interface Row {
-  userId: number;
-  name: string;
-  attempts: number;
-  lastWrong: string[];
-  passed: boolean;
-  joined: boolean;
-  updatedAt: number;
-}
 
 const POLL_MS = 5000;
 

@@ -216,7 +216,11 @@ interface Runner {
   admitting: Map<number, number>;
 }
 
-const g = globalThis as unknown as { __parleyEstimatesFair?: Runner };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyEstimatesFair: Runner | undefined;
+}
+const g = globalThis;
 function jobs(): Runner {
   g.__parleyEstimatesFair ??= { known: new Map(), queue: new FairQueue(), running: false, admitting: new Map() };
   return g.__parleyEstimatesFair;

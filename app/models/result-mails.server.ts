@@ -189,7 +189,11 @@ export async function drainResultMails(session: PanelSession, opts: DrainOptions
 interface Loop {
   again: boolean;
 }
-const g = globalThis as unknown as { __parleyResultMailLoops?: Map<number, Loop> };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyResultMailLoops: Map<number, Loop> | undefined;
+}
+const g = globalThis;
 
 export function startResultMailLoop(session: PanelSession): void {
   const loops = (g.__parleyResultMailLoops ??= new Map());

@@ -22,7 +22,11 @@ export interface AuthCookieData {
   redirectTo: string;
 }
 
-const g = globalThis as unknown as { __parleyAuthStorage?: ReturnType<typeof makeStorage> };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyAuthStorage: ReturnType<typeof makeStorage> | undefined;
+}
+const g = globalThis;
 
 function makeStorage() {
   return createCookieSessionStorage<AuthCookieData>({

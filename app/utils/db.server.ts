@@ -6,7 +6,12 @@ import { env } from './env.server';
 export type Db = MySql2Database<typeof schema>;
 
 // One pool per process, kept across Vite's reloads of this module in development.
-const g = globalThis as unknown as { __parleyPool?: mysql.Pool; __parleyDb?: Db };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyPool: mysql.Pool | undefined;
+  var __parleyDb: Db | undefined;
+}
+const g = globalThis;
 
 export function pool(): mysql.Pool {
   g.__parleyPool ??= mysql.createPool({

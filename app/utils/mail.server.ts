@@ -31,7 +31,11 @@ export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: num
   return nodemailer.createTransport({ url, pool: true, maxConnections: 5, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
 }
 
-const g = globalThis as unknown as { __parleyMailer?: Transporter };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyMailer: Transporter | undefined;
+}
+const g = globalThis;
 
 function transport() {
   g.__parleyMailer ??= createMailTransport();

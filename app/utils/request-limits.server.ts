@@ -94,7 +94,9 @@ export function capBodies(isSignedIn: (cookieHeader: string | undefined) => Prom
 /**
  * The request as React Router's Express adapter reads it, with the body capBodies already read
  * (the original stream is consumed). The adapter (@react-router/express, pinned) reads exactly
- * these fields and the stream; integration tests of every form go through here.
+ * these fields and the stream; integration tests of every form go through here. The one cast
+ * left in app/: a replayed stream is not an Express request, and the adapter only takes one; the
+ * alternative is to drop the adapter and build the fetch Request ourselves.
  */
 export function withReadBody(req: ExpressRequest): ExpressRequest {
   const body = (req as WithBody)[BODY];

@@ -2,7 +2,11 @@ import type { SessionRunner } from '#realtime/runner';
 
 // server.ts creates the one SessionRunner of this process and leaves it here; route modules come
 // from the build bundle, which holds its own copies of modules, so they reach it through globalThis.
-const g = globalThis as unknown as { __parleyRunner?: SessionRunner };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyRunner: SessionRunner | undefined;
+}
+const g = globalThis;
 
 export function setRunner(r: SessionRunner | undefined) {
   g.__parleyRunner = r;

@@ -201,7 +201,11 @@ export async function pruneSignInCodes() {
 
 // ── The strategy ─────────────────────────────────────────────────────────────────────────────────
 
-const g = globalThis as unknown as { __parleyAuthenticator?: Authenticator<number> };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleyAuthenticator: Authenticator<number> | undefined;
+}
+const g = globalThis;
 
 export function authenticator() {
   if (g.__parleyAuthenticator) return g.__parleyAuthenticator;

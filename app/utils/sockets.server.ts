@@ -8,7 +8,11 @@ export interface SocketControl {
   dropUser(userId: number): void;
 }
 
-const g = globalThis as unknown as { __parleySockets?: SocketControl };
+declare global {
+  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
+  var __parleySockets: SocketControl | undefined;
+}
+const g = globalThis;
 
 export function setSocketControl(control: SocketControl | undefined) {
   g.__parleySockets = control;
