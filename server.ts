@@ -47,9 +47,7 @@ if (production) {
   const handler = createRequestHandler({ build, mode: 'production' });
   app.use(noStore, (req, res, next) => handler(withReadBody(req), res, next));
 } else {
-  const vite = await import('vite').then((v) =>
-    v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }),
-  );
+  const vite = await import('vite').then((v) => v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }));
   app.use(vite.middlewares);
   app.use(noStore, async (req, res, next) => {
     try {

@@ -9,7 +9,19 @@ export default defineConfig({
     watch: { ignored: ['**/.data/**', '**/build/**', '**/test-results/**'] },
   },
   optimizeDeps: {
-    include: ['react', 'react-dom', 'react-dom/client', 'react-router', 'react-router/dom', '@tanstack/react-table', 'socket.io-client', 'zod', 'recharts', 'papaparse', 'pure-rand'],
+    include: [
+      'react',
+      'react-dom',
+      'react-dom/client',
+      'react-router',
+      'react-router/dom',
+      '@tanstack/react-table',
+      'socket.io-client',
+      'zod',
+      'recharts',
+      'papaparse',
+      'pure-rand',
+    ],
     exclude: ['mysql2', 'drizzle-orm', 'nodemailer', 'remix-auth', 'remix-auth-totp'],
   },
 });

@@ -24,7 +24,8 @@ export default function handleRequest(request: Request, responseStatusCode: numb
     let shellRendered = false;
     const userAgent = request.headers.get('user-agent');
     // Bots and SPA mode wait for all content.
-    const readyOption: keyof RenderToPipeableStreamOptions = (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? 'onAllReady' : 'onShellReady';
+    const readyOption: keyof RenderToPipeableStreamOptions =
+      (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? 'onAllReady' : 'onShellReady';
     // Abort after streamTimeout, leaving time to flush the rejected boundaries.
     let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000);
 

@@ -14,9 +14,9 @@ import {
   varchar,
 } from 'drizzle-orm/mysql-core';
 
-import { COURSE_ROLES } from '../app/utils/roles';
+import { COURSE_ROLES } from '#app/utils/roles';
 
-export { COURSE_ROLES, type CourseRole } from '../app/utils/roles';
+export { COURSE_ROLES, type CourseRole } from '#app/utils/roles';
 
 const createdAt = () =>
   datetime('created_at', { mode: 'date', fsp: 3 })

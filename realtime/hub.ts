@@ -138,7 +138,11 @@ export function attachHub(httpServer: HttpServer) {
           }
           return participantView(res.state, me);
         }
-        const { role } = await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);
+        const { role } = await requireStaff(
+          userId,
+          sessionId,
+          as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher'],
+        );
         const state = (await runner.state(sessionId))!;
         if (as === 'floor') {
           await socket.join(roomOf('staff', String(sessionId)));
@@ -179,7 +183,11 @@ export function attachHub(httpServer: HttpServer) {
         const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
         await requireStaff(userId, sessionId, roles);
         const event: EngineEvent =
-          command === 'end-after-supergame' ? { type: 'endAfterSupergame' } : command === 'end-now' ? { type: 'endNow' } : { type: command };
+          command === 'end-after-supergame'
+            ? { type: 'endAfterSupergame' }
+            : command === 'end-now'
+              ? { type: 'endNow' }
+              : { type: command };
         const res = await runner.dispatch(sessionId, event, { userId });
         if (res.error) throw new Refusal(res.error.code, res.error.message);
         return { status: res.state.status };
@@ -193,10 +201,15 @@ export function attachHub(httpServer: HttpServer) {
         if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
         // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
         if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
-          throw new Refusal('session-not-running', `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`);
+          throw new Refusal(
+            'session-not-running',
+            `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`,
+          );
         }
         if (action === 'nudge') {
-          io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', { message: 'Your partner is waiting: please choose.' });
+          io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', {
+            message: 'Your partner is waiting: please choose.',
+          });
           return { done: true as const };
         }
         const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
@@ -226,7 +239,11 @@ function rateLimit(limiter: EventLimiter) {
     if (limiter.allow(String(event))) return next();
     const ack = args.at(-1);
     if (typeof ack === 'function') {
-      (ack as (res: Ack<never>) => void)({ ok: false, code: 'rate-limited', message: 'Too many requests at once: wait a moment and try again.' });
+      (ack as (res: Ack<never>) => void)({
+        ok: false,
+        code: 'rate-limited',
+        message: 'Too many requests at once: wait a moment and try again.',
+      });
     }
   };
 }
@@ -237,7 +254,11 @@ async function handle<S extends z.ZodType, T>(schema: S, payload: unknown, ack: 
   const reply = ack as (res: Ack<T>) => void;
   const parsed = schema.safeParse(payload ?? {});
   if (!parsed.success) {
-    reply({ ok: false, code: 'bad-payload', message: parsed.error.issues.map((i) => `${i.path.join('.') || 'payload'}: ${i.message}`).join('; ') });
+    reply({
+      ok: false,
+      code: 'bad-payload',
+      message: parsed.error.issues.map((i) => `${i.path.join('.') || 'payload'}: ${i.message}`).join('; '),
+    });
     return;
   }
   try {

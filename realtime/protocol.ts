@@ -9,7 +9,15 @@ import type { BigScreenView, ChoiceRow, ErrorCode, FloorView, ParticipantView } 
  * choice may or may not be stored: the phone keeps it and sends it again with the same client
  * choice id, which returns the stored row if it was.
  */
-export const ACK_ERROR_CODES = ['bad-payload', 'unauthorized', 'forbidden', 'not-found', 'server-error', 'rate-limited', 'unavailable'] as const;
+export const ACK_ERROR_CODES = [
+  'bad-payload',
+  'unauthorized',
+  'forbidden',
+  'not-found',
+  'server-error',
+  'rate-limited',
+  'unavailable',
+] as const;
 export type AckErrorCode = (typeof ACK_ERROR_CODES)[number] | ErrorCode;
 
 export type Ack<T> = { ok: true; data: T } | { ok: false; code: AckErrorCode; message: string };
@@ -57,10 +65,7 @@ export const ParticipantAction = z
 
 export interface ClientToServerEvents {
   'me:get': (payload: z.input<typeof MeGet>, ack: (res: Ack<{ userId: number }>) => void) => void;
-  'session:watch': (
-    payload: z.input<typeof SessionWatch>,
-    ack: (res: Ack<ParticipantView | FloorView | BigScreenView>) => void,
-  ) => void;
+  'session:watch': (payload: z.input<typeof SessionWatch>, ack: (res: Ack<ParticipantView | FloorView | BigScreenView>) => void) => void;
   'choice:submit': (payload: z.input<typeof ChoiceSubmit>, ack: (res: Ack<ChoiceRow>) => void) => void;
   'session:control': (payload: z.input<typeof SessionControl>, ack: (res: Ack<{ status: string }>) => void) => void;
   'participant:act': (payload: z.input<typeof ParticipantAction>, ack: (res: Ack<{ done: true }>) => void) => void;

@@ -175,7 +175,11 @@ export class SessionRunner {
    * client choice id resolves). Recovered: every waiting round gets its full time again.
    */
   private onStorage(ok: boolean) {
-    console.warn(ok ? '[parley] database answers again: every waiting round gets its full time' : '[parley] database not answering: choices are refused until it does');
+    console.warn(
+      ok
+        ? '[parley] database answers again: every waiting round gets its full time'
+        : '[parley] database not answering: choices are refused until it does',
+    );
     this.out?.send(null, 'storage:status', { ok });
     if (ok) {
       void this.graceAll();
@@ -247,7 +251,12 @@ export class SessionRunner {
         }
         live.state = state;
         batch.forEach((w, i) => w.settle(results[i]));
-        this.after(live, timers, touched, results.some((r) => !r.error));
+        this.after(
+          live,
+          timers,
+          touched,
+          results.some((r) => !r.error),
+        );
         return;
       }
     } catch (error) {

@@ -30,10 +30,14 @@ describe('StorageHealth', () => {
   it('a refused probe is retried; fresh() is false once nothing answered within the bound', async () => {
     let up = false;
     const changes: boolean[] = [];
-    const h = new StorageHealth(() => (up ? Promise.resolve() : Promise.reject(Object.assign(new Error('refused'), { code: 'ECONNREFUSED' }))), (ok) => changes.push(ok), {
-      everyMs: 10,
-      staleMs: 40,
-    });
+    const h = new StorageHealth(
+      () => (up ? Promise.resolve() : Promise.reject(Object.assign(new Error('refused'), { code: 'ECONNREFUSED' }))),
+      (ok) => changes.push(ok),
+      {
+        everyMs: 10,
+        staleMs: 40,
+      },
+    );
     expect(h.fresh()).toBe(true);
     await sleep(60);
     expect(h.fresh()).toBe(false); // silent too long: treated as lost, probing starts

@@ -7,10 +7,10 @@
  * above the level before it) < 64 MB — flat, since rows are read in pages and written as read.
  */
 import { eq } from 'drizzle-orm';
-import { panelCsvStream, panelSessions, panelZipStream } from '../app/models/panel-export.server';
-import { closeDb, db } from '../app/utils/db.server';
-import { courses, users } from '../drizzle/schema';
-import { insertSyntheticSession } from '../tests/helpers/synthetic-session';
+import { panelCsvStream, panelSessions, panelZipStream } from '#app/models/panel-export.server';
+import { closeDb, db } from '#app/utils/db.server';
+import { courses, users } from '#drizzle/schema';
+import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
 
 const MB = 1024 * 1024;
 const gc = (globalThis as { gc?: () => void }).gc ?? (() => undefined);
@@ -50,7 +50,9 @@ async function measure(label: string, body: ReadableStream<Uint8Array>, countLin
   return { ms, rows: lines - 1, extraRss: peakRss - before.rss };
 }
 
-const [u] = await db().insert(users).values({ email: `bench-${process.pid}@bench.parley.test`, name: 'Bench (synthetic)' });
+const [u] = await db()
+  .insert(users)
+  .values({ email: `bench-${process.pid}@bench.parley.test`, name: 'Bench (synthetic)' });
 const [c] = await db().insert(courses).values({ title: 'Export benchmark (synthetic)', isDemo: 1, createdBy: u.insertId });
 let removeSession: (() => Promise<void>) | null = null;
 try {
@@ -70,7 +72,9 @@ try {
   const csv = await measure('CSV ', panelCsvStream(list), true);
   await measure('zip ', panelZipStream('Export benchmark', list), false);
   const ok = csv.rows === 100_000 && csv.ms < 10_000 && csv.extraRss < 64 * MB;
-  console.log(`targets: 100,000 rows ${csv.rows === 100_000 ? '✓' : '✗'} · CSV < 10 s ${csv.ms < 10_000 ? '✓' : '✗'} · export's own memory < 64 MB ${csv.extraRss < 64 * MB ? '✓' : '✗'}`);
+  console.log(
+    `targets: 100,000 rows ${csv.rows === 100_000 ? '✓' : '✗'} · CSV < 10 s ${csv.ms < 10_000 ? '✓' : '✗'} · export's own memory < 64 MB ${csv.extraRss < 64 * MB ? '✓' : '✗'}`,
+  );
   if (!ok) process.exitCode = 1;
 } finally {
   await removeSession?.();

@@ -42,7 +42,14 @@ stopOnSignals();
 ensureNodeModules();
 ensureDebian([MARIADB_PACKAGES]);
 fs.mkdirSync(logDir, { recursive: true });
-await startMariadb({ dir: dataDir, port: dbPort, databases: ['parley_bench_live'], fresh: ['parley_bench_live'], user: 'parley', password: 'parley' });
+await startMariadb({
+  dir: dataDir,
+  port: dbPort,
+  databases: ['parley_bench_live'],
+  fresh: ['parley_bench_live'],
+  user: 'parley',
+  password: 'parley',
+});
 const env = {
   NODE_ENV: 'production',
   PORT: String(port),
@@ -68,14 +75,24 @@ const serverLog = fs.createWriteStream(path.join(logDir, 'server.log'));
 // PARLEY_BENCH_PROFILE=<folder>: the server writes a V8 CPU profile there when it stops (open it in
 // Chromium's DevTools, Performance tab) — where a slow run spends its time.
 const profile = process.env.PARLEY_BENCH_PROFILE ? ['--cpu-prof', '--cpu-prof-dir', path.resolve(process.env.PARLEY_BENCH_PROFILE)] : [];
-const server = keep('Parley (bench)', spawn(process.execPath, [...profile, '--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] }));
+const server = keep(
+  'Parley (bench)',
+  spawn(process.execPath, [...profile, '--import', 'tsx', 'server.ts'], {
+    cwd: root,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  }),
+);
 server.stdout.pipe(serverLog);
 server.stderr.pipe(serverLog);
 if (!(await waitForHttp(`http://127.0.0.1:${port}/healthz`, 60_000, server))) {
   fail(`the benchmark server did not answer on port ${port}`, `Its log: ${path.relative(root, path.join(logDir, 'server.log'))}`);
 }
 
-const echo = keep('socket.io echo', spawn(process.execPath, [path.join(root, 'scripts/bench-echo.mjs')], { cwd: root, stdio: ['ignore', 'pipe', 'inherit'] }));
+const echo = keep(
+  'socket.io echo',
+  spawn(process.execPath, [path.join(root, 'scripts/bench-echo.mjs')], { cwd: root, stdio: ['ignore', 'pipe', 'inherit'] }),
+);
 const echoPort = await new Promise((resolve) => {
   const t = setTimeout(() => resolve(null), 15_000);
   readline.createInterface({ input: echo.stdout }).on('line', (l) => {
@@ -105,4 +122,8 @@ const code = await new Promise((resolve) => gen.on('exit', (c, sig) => resolve(c
 const died = server.exitCode !== null || server.signalCode !== null;
 await stopAll();
 if (died) fail('the Parley server died during the benchmark', `Its log: ${path.relative(root, path.join(logDir, 'server.log'))}`);
-if (code !== 0) fail('the live benchmark did not complete', `See the output above; the server's log is ${path.relative(root, path.join(logDir, 'server.log'))}`);
+if (code !== 0)
+  fail(
+    'the live benchmark did not complete',
+    `See the output above; the server's log is ${path.relative(root, path.join(logDir, 'server.log'))}`,
+  );

@@ -16,9 +16,9 @@ import fs from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import mysql from 'mysql2/promise';
 import { io, type Socket } from 'socket.io-client';
-import { Client } from '../tests/helpers/http';
-import { connectPhone, type CrowdResult, type Phone, playCrowd, quantile } from '../tests/helpers/crowd';
-import type { TestSocket } from '../tests/helpers/live';
+import { Client } from '#tests/helpers/http';
+import { connectPhone, type CrowdResult, type Phone, playCrowd, quantile } from '#tests/helpers/crowd';
+import type { TestSocket } from '#tests/helpers/live';
 
 const HELP = `npm run bench:live -- [--n 50] [--supergames 2] [--sessions 1] [--delta 0.75] [--seed 118] [--json out.json] [--timeout 300]
   --n           participants in all (even; split evenly over the sessions)
@@ -50,7 +50,8 @@ function flags() {
   if (!Number.isInteger(perSession) || perSession < 2 || perSession % 2 !== 0 || f.n > 2000) {
     throw new Error(`--n ${f.n} must split into ${f.sessions} equal even groups (at most 2000 phones)`);
   }
-  if (!(f.supergames >= 1 && f.supergames <= 50) || !(f.delta > 0 && f.delta < 1) || !(f.timeoutS > 0)) throw new Error('bad --supergames, --delta or --timeout');
+  if (!(f.supergames >= 1 && f.supergames <= 50) || !(f.delta > 0 && f.delta < 1) || !(f.timeoutS > 0))
+    throw new Error('bad --supergames, --delta or --timeout');
   return f;
 }
 
@@ -64,11 +65,18 @@ const MAIL_API = need('BENCH_MAIL_API');
 const ECHO_URL = need('BENCH_ECHO_URL');
 const SERVER_PID = Number(need('BENCH_SERVER_PID'));
 const DATABASE_URL = need('DATABASE_URL');
-for (const u of [URL_, MAIL_API, ECHO_URL]) if (!u.startsWith('http://127.0.0.1:')) throw new Error(`${u}: the benchmark talks to 127.0.0.1 only`);
+for (const u of [URL_, MAIL_API, ECHO_URL])
+  if (!u.startsWith('http://127.0.0.1:')) throw new Error(`${u}: the benchmark talks to 127.0.0.1 only`);
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const ms = (x: number) => (Number.isFinite(x) ? (x >= 10_000 ? `${(x / 1000).toFixed(1)} s` : `${x.toFixed(x < 10 ? 1 : 0)} ms`) : '—');
-const stats = (xs: number[]) => ({ n: xs.length, p50: quantile(xs, 0.5), p95: quantile(xs, 0.95), p99: quantile(xs, 0.99), max: xs.length ? Math.max(...xs) : Number.NaN });
+const stats = (xs: number[]) => ({
+  n: xs.length,
+  p50: quantile(xs, 0.5),
+  p95: quantile(xs, 0.95),
+  p99: quantile(xs, 0.99),
+  max: xs.length ? Math.max(...xs) : Number.NaN,
+});
 const say = (line: string) => process.stdout.write(`[bench:live] ${line}\n`);
 
 /** Runs `work` over items, at most `width` at a time, in order. */
@@ -110,7 +118,9 @@ async function echoFloor(n: number, bursts: number) {
     const times = await Promise.all(
       clients.map(async (s, i) => {
         const t0 = performance.now();
-        await s.timeout(60_000).emitWithAck('echo', { sessionId: 1, supergame: 1, round: b + 1, action: 'C', clientChoiceId: `echo-${i}-${b}-xxxxxxxx` });
+        await s
+          .timeout(60_000)
+          .emitWithAck('echo', { sessionId: 1, supergame: 1, round: b + 1, action: 'C', clientChoiceId: `echo-${i}-${b}-xxxxxxxx` });
         return performance.now() - t0;
       }),
     );
@@ -132,7 +142,12 @@ async function mariadbFloor(commits: number) {
     for (let i = 0; i < commits; i++) {
       const t0 = performance.now();
       await conn.beginTransaction();
-      await conn.execute('INSERT INTO bench_floor (session_id, seq, action, at, client_choice_id) VALUES (?, ?, ?, NOW(3), ?)', [1, i + 1, 'C', `floor-${i}-xxxxxxxx`]);
+      await conn.execute('INSERT INTO bench_floor (session_id, seq, action, at, client_choice_id) VALUES (?, ?, ?, NOW(3), ?)', [
+        1,
+        i + 1,
+        'C',
+        `floor-${i}-xxxxxxxx`,
+      ]);
       await conn.commit();
       times.push(performance.now() - t0);
     }
@@ -162,7 +177,8 @@ async function signInBatch(emails: string[]): Promise<Client[]> {
   await Promise.all(
     clients.map(async (c, i) => {
       const r = await c.post('/sign-in', { email: emails[i] });
-      if (r.status !== 302 || r.headers.get('location') !== '/sign-in/code') throw new Error(`sign-in of ${emails[i]} answered ${r.status}`);
+      if (r.status !== 302 || r.headers.get('location') !== '/sign-in/code')
+        throw new Error(`sign-in of ${emails[i]} answered ${r.status}`);
     }),
   );
   const codes = new Map<string, string>();
@@ -179,7 +195,8 @@ async function signInBatch(emails: string[]): Promise<Client[]> {
   await Promise.all(
     clients.map(async (c, i) => {
       const r = await c.post('/sign-in/code', { intent: 'verify', code: codes.get(emails[i].toLowerCase())! });
-      if (r.status !== 302 || !c.cookies.has('__parley_auth')) throw new Error(`the code of ${emails[i]} was refused (${r.status} → ${r.headers.get('location')})`);
+      if (r.status !== 302 || !c.cookies.has('__parley_auth'))
+        throw new Error(`the code of ${emails[i]} was refused (${r.status} → ${r.headers.get('location')})`);
     }),
   );
   return clients;
@@ -195,7 +212,11 @@ async function setUp(f: ReturnType<typeof flags>) {
   const run = `${Date.now().toString(36)}${process.pid}`;
   await clearMail();
   const [instructor] = await signInBatch([`bench-inst-${run}@bench.parley.test`]);
-  const courseId = located(await instructor.post('/courses/new', { title: `Live benchmark ${run}` }), /^\/courses\/(\d+)$/, 'creating the course');
+  const courseId = located(
+    await instructor.post('/courses/new', { title: `Live benchmark ${run}` }),
+    /^\/courses\/(\d+)$/,
+    'creating the course',
+  );
   const designId = located(
     await instructor.post(`/courses/${courseId}/designs/new`, {
       name: `Benchmark δ=${f.delta}`,
@@ -314,7 +335,13 @@ async function main() {
   const conn = await mysql.createConnection({ uri: DATABASE_URL });
   const ids = sessions.map((s) => s.sessionId);
   type Stored = { id: string | null; source: string; n: number };
-  const storedRows = async () => ((await conn.query(`SELECT client_choice_id AS id, source, COUNT(*) AS n FROM choices WHERE session_id IN (?) GROUP BY client_choice_id, source`, [ids])) as unknown as [Stored[]])[0];
+  const storedRows = async () =>
+    (
+      (await conn.query(
+        `SELECT client_choice_id AS id, source, COUNT(*) AS n FROM choices WHERE session_id IN (?) GROUP BY client_choice_id, source`,
+        [ids],
+      )) as unknown as [Stored[]]
+    )[0];
   let stored = await storedRows();
   for (let i = 0; i < 60 && !result.complete; i++) {
     await sleep(2000);
@@ -322,9 +349,10 @@ async function main() {
     if (again.length === stored.length) break;
     stored = again;
   }
-  const [draws] = (await conn.query(`SELECT supergame, rounds_played AS rounds FROM supergame_draws WHERE session_id = ? ORDER BY supergame`, [ids[0]])) as unknown as [
-    { supergame: number; rounds: number }[],
-  ];
+  const [draws] = (await conn.query(
+    `SELECT supergame, rounds_played AS rounds FROM supergame_draws WHERE session_id = ? ORDER BY supergame`,
+    [ids[0]],
+  )) as unknown as [{ supergame: number; rounds: number }[]];
   await conn.end();
   const roundsPlayed = draws.map((d) => Number(d.rounds));
   const bySource: Record<string, number> = {};

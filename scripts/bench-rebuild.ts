@@ -6,9 +6,9 @@
  * the rows from MariaDB is not included (one indexed SELECT per table).
  * Run: npm run bench:rebuild   (exit code 1 when the target is missed)
  */
-import { designSchema } from '../app/lib/design';
-import { rebuild } from '../realtime/engine/rebuild';
-import type { ChoiceRow, LogRow, ParticipantRow } from '../realtime/engine/types';
+import { designSchema } from '#app/lib/design';
+import { rebuild } from '#realtime/engine/rebuild';
+import type { ChoiceRow, LogRow, ParticipantRow } from '#realtime/engine/types';
 import { simulateSession } from '../seeds/simulate';
 
 const N = Number(process.env.PARLEY_BENCH_REBUILD_N ?? 1000);
@@ -42,5 +42,7 @@ const best = Math.min(...times);
 const median = [...times].sort((a, b) => a - b)[2];
 const per10k = (median / rows) * 10_000;
 const target = 1000;
-console.log(`rebuild of ${N} participants, ${rows.toLocaleString('en-US')} stored rows: median ${median.toFixed(0)} ms (best ${best.toFixed(0)} ms) = ${per10k.toFixed(0)} ms per 10,000 rows; target < ${target} ms per 10,000 rows ${per10k < target ? '✓' : '✗'}`);
+console.log(
+  `rebuild of ${N} participants, ${rows.toLocaleString('en-US')} stored rows: median ${median.toFixed(0)} ms (best ${best.toFixed(0)} ms) = ${per10k.toFixed(0)} ms per 10,000 rows; target < ${target} ms per 10,000 rows ${per10k < target ? '✓' : '✗'}`,
+);
 process.exit(per10k < target ? 0 : 1);

@@ -5,11 +5,11 @@
  * Nelder–Mead over softmax shares and logit β) with the ratio of times.
  */
 import fmin from 'fmin';
-import { libraryStrategy } from '../app/lib/automata';
-import { buildPanel, countChoices } from '../app/lib/panel';
-import { countsTable, estimate, logLikelihood } from '../app/lib/sfem';
-import { bootstrapOnWorkers } from '../app/lib/sfem-workers.server';
-import { simulatePanel } from '../app/lib/simulate-panel';
+import { libraryStrategy } from '#app/lib/automata';
+import { buildPanel, countChoices } from '#app/lib/panel';
+import { countsTable, estimate, logLikelihood } from '#app/lib/sfem';
+import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
+import { simulatePanel } from '#app/lib/simulate-panel';
 
 // The library has 13 strategies; Fudenberg, Rand & Dreber (2012) use 11, one of them (2TF2T) not
 // in our library. We take the 11 that remain after dropping T2 and CtoD.
@@ -29,7 +29,9 @@ const tCounts = performance.now() - t0;
 t0 = performance.now();
 const est = estimate(table);
 const tEm = performance.now() - t0;
-console.log(`counts table ${tCounts.toFixed(0)} ms; EM (6 starts) ${tEm.toFixed(0)} ms; total ${(tCounts + tEm).toFixed(0)} ms (target < 1000)`);
+console.log(
+  `counts table ${tCounts.toFixed(0)} ms; EM (6 starts) ${tEm.toFixed(0)} ms; total ${(tCounts + tEm).toFixed(0)} ms (target < 1000)`,
+);
 console.log(`ln L ${est.logLik.toFixed(6)}, β ${est.beta.toFixed(4)}, γ ${est.gamma.toFixed(4)}, ${est.iterations} iterations`);
 console.log(ids.map((id, k) => `${id} ${est.shares[k].toFixed(4)} (true ${shares[k]})`).join(' · '));
 

@@ -3,11 +3,11 @@
  * Run: npx tsx scripts/bench-theory.ts   (exit code 1 when a target is missed)
  * Each figure is the median over repeated runs after a warm-up.
  */
-import { LIBRARY } from '../app/lib/automata';
-import { checkStrategy } from '../app/lib/equilibrium';
-import type { StageGame } from '../app/lib/stage-game';
-import { classTimePlanner, expectedLength, lengthTable, medianLength } from '../app/lib/termination';
-import { theoryAt } from '../app/lib/thresholds';
+import { LIBRARY } from '#app/lib/automata';
+import { checkStrategy } from '#app/lib/equilibrium';
+import type { StageGame } from '#app/lib/stage-game';
+import { classTimePlanner, expectedLength, lengthTable, medianLength } from '#app/lib/termination';
+import { theoryAt } from '#app/lib/thresholds';
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -28,8 +28,9 @@ function bench(label: string, targetMs: number, runs: number, fn: () => unknown)
   const med = median(times);
   const ok = med < targetMs;
   console.log(
-    `${label.padEnd(58)} median ${med.toFixed(3).padStart(8)} ms  max ${Math.max(...times).toFixed(3).padStart(8)} ms  ` +
-      `(${runs} runs, target < ${targetMs} ms) ${ok ? 'ok' : 'MISSED'}`,
+    `${label.padEnd(58)} median ${med.toFixed(3).padStart(8)} ms  max ${Math.max(...times)
+      .toFixed(3)
+      .padStart(8)} ms  ` + `(${runs} runs, target < ${targetMs} ms) ${ok ? 'ok' : 'MISSED'}`,
   );
   return ok;
 }

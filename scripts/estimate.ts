@@ -8,10 +8,10 @@
  */
 import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { estimateFromCsv } from '../app/lib/panel-csv';
-import type { GroupBy } from '../app/lib/panel';
-import type { BootstrapSummary } from '../app/lib/sfem';
-import { bootstrapOnWorkers } from '../app/lib/sfem-workers.server';
+import { estimateFromCsv } from '#app/lib/panel-csv';
+import type { GroupBy } from '#app/lib/panel';
+import type { BootstrapSummary } from '#app/lib/sfem';
+import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 
 const USAGE = `Strategy-frequency estimation (SFEM) on a choice-panel CSV.
 
@@ -137,7 +137,9 @@ if (values.json) {
   result.groups.forEach(({ group, estimate: e }, i) => {
     const boot = boots[i];
     const se = (x: number | undefined) => (x === undefined ? '' : `(${x.toFixed(4)})`.padStart(10));
-    console.log(`\n${group}: N = ${e.subjects} subjects, ${e.choices} choices, ln L = ${e.logLik.toFixed(4)}, AIC ${e.aic.toFixed(2)}, BIC ${e.bic.toFixed(2)}`);
+    console.log(
+      `\n${group}: N = ${e.subjects} subjects, ${e.choices} choices, ln L = ${e.logLik.toFixed(4)}, AIC ${e.aic.toFixed(2)}, BIC ${e.bic.toFixed(2)}`,
+    );
     e.strategies.forEach((id, k) => console.log(`  ${id.padEnd(8)}${e.shares[k].toFixed(4).padStart(8)}${se(boot?.sdShares[k])}`));
     console.log(`  ${'β'.padEnd(8)}${e.beta.toFixed(4).padStart(8)}${se(boot?.sdBeta)}`);
     console.log(`  ${'1 − β'.padEnd(8)}${e.errorProbability.toFixed(4).padStart(8)}`);

@@ -16,6 +16,7 @@ import {
   keep,
   localSecrets,
   root,
+  runChecks,
   runTs,
   say,
   startMaildev,
@@ -38,6 +39,15 @@ const dataDir = path.join(root, '.data/test');
 stopOnSignals();
 const t0 = Date.now();
 ensureNodeModules();
+// The whole suite starts with the static checks CI enforces: types, lint, format. A run of one file
+// or filter skips them (`npm run check` runs them alone).
+if (passThrough.length === 0 && !only) {
+  say('static checks: typecheck, ESLint, Prettier…');
+  if (!runChecks()) {
+    process.stderr.write('\n[parley] ✗ the static checks failed (see above); `npm run check` runs them alone\n');
+    process.exit(1);
+  }
+}
 ensureDebian([MARIADB_PACKAGES, CHROMIUM_PACKAGES, IPROUTE_PACKAGES]);
 await startMariadb({ dir: dataDir, port: dbPort, databases: ['parley_test'], fresh: ['parley_test'], user: 'parley', password: 'parley' });
 const env = {
@@ -64,7 +74,14 @@ await startMaildev({ smtp: smtpPort, web: mailWebPort });
 ensureBuild(env);
 
 const serverLog = fs.createWriteStream(path.join(dataDir, 'server.log'));
-const server = keep('Parley (test)', spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] }));
+const server = keep(
+  'Parley (test)',
+  spawn(process.execPath, ['--import', 'tsx', 'server.ts'], {
+    cwd: root,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  }),
+);
 server.stdout.pipe(serverLog);
 server.stderr.pipe(serverLog);
 if (!(await waitForHttp(`${env.PARLEY_TEST_URL}/healthz`, 60_000, server))) {
@@ -74,9 +91,20 @@ say(`set-up done in ${((Date.now() - t0) / 1000).toFixed(1)} s; running the suit
 
 const report = path.join(dataDir, 'vitest.json');
 fs.rmSync(report, { force: true });
-const vitestArgs = ['run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...(only ? ['--project', only] : []), ...passThrough];
+const vitestArgs = [
+  'run',
+  '--reporter=default',
+  '--reporter=json',
+  `--outputFile.json=${report}`,
+  ...(only ? ['--project', only] : []),
+  ...passThrough,
+];
 const code = await new Promise((resolve) => {
-  const child = spawn(path.join(root, 'node_modules/.bin/vitest'), vitestArgs, { cwd: root, env: { ...process.env, ...env }, stdio: 'inherit' });
+  const child = spawn(path.join(root, 'node_modules/.bin/vitest'), vitestArgs, {
+    cwd: root,
+    env: { ...process.env, ...env },
+    stdio: 'inherit',
+  });
   child.on('exit', (c, sig) => resolve(c ?? (sig ? 1 : 0)));
 });
 await stopAll();

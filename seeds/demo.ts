@@ -24,7 +24,28 @@ export const DEMO_STAFF = [
 
 export const DEMO_ADMIN = { email: 'admin@halvorsen.example', name: 'Site admin (demo)' };
 
-const FIRST = ['Ada', 'Bram', 'Cleo', 'Dario', 'Elif', 'Farid', 'Greta', 'Hugo', 'Ines', 'Jalen', 'Kaia', 'Luca', 'Maren', 'Nika', 'Otto', 'Priya', 'Quinn', 'Rafa', 'Sina', 'Tomas'];
+const FIRST = [
+  'Ada',
+  'Bram',
+  'Cleo',
+  'Dario',
+  'Elif',
+  'Farid',
+  'Greta',
+  'Hugo',
+  'Ines',
+  'Jalen',
+  'Kaia',
+  'Luca',
+  'Maren',
+  'Nika',
+  'Otto',
+  'Priya',
+  'Quinn',
+  'Rafa',
+  'Sina',
+  'Tomas',
+];
 const LAST = ['Arden', 'Brisk', 'Calloway', 'Dunmore', 'Eskel', 'Fairholm', 'Grove', 'Hollis', 'Ivers', 'Jessup'];
 
 /** 40 invented participants: student01@… to student40@…, names drawn from invented lists. */
@@ -76,7 +97,12 @@ export async function seedDemo(db: Db) {
       .where(and(eq(designs.courseId, course.id), eq(designs.name, d.name)));
     if (exists) continue;
     const params = designSchema.parse(d.params);
-    await db.insert(designs).values({ courseId: course.id, name: d.name, params: { ...params, instructions: generateInstructions(params) }, createdBy: instructorId });
+    await db.insert(designs).values({
+      courseId: course.id,
+      name: d.name,
+      params: { ...params, instructions: generateInstructions(params) },
+      createdBy: instructorId,
+    });
   }
   await seedDemoSessions(db, course.id, instructorId);
   return { courseId: course.id };
@@ -141,14 +167,35 @@ const DEMO_PAYOFFS = { R: 40, S: 12, T: 50, P: 25 };
 export const DEMO_DESIGNS: { name: string; params: DesignInput }[] = [
   {
     name: 'Short horizon (δ = 1/2) — demo',
-    params: { payoffs: DEMO_PAYOFFS, delta: 0.5, supergames: 20, roundSeconds: 15, oddCount: { kind: 'computer', strategy: 'TFT' }, consent: true },
+    params: {
+      payoffs: DEMO_PAYOFFS,
+      delta: 0.5,
+      supergames: 20,
+      roundSeconds: 15,
+      oddCount: { kind: 'computer', strategy: 'TFT' },
+      consent: true,
+    },
   },
   {
     name: 'Long horizon (δ = 7/8) — demo',
-    params: { payoffs: DEMO_PAYOFFS, delta: 0.875, supergames: 8, roundSeconds: 15, oddCount: { kind: 'computer', strategy: 'TFT' }, consent: true },
+    params: {
+      payoffs: DEMO_PAYOFFS,
+      delta: 0.875,
+      supergames: 8,
+      roundSeconds: 15,
+      oddCount: { kind: 'computer', strategy: 'TFT' },
+      consent: true,
+    },
   },
   {
     name: 'Week 9 class run (δ = 3/4) — demo',
-    params: { payoffs: DEMO_PAYOFFS, delta: 0.75, supergames: 12, roundSeconds: 20, oddCount: { kind: 'sit-out' }, credit: { kind: 'participation', credit: 2, pointsScaleMax: 2000 } },
+    params: {
+      payoffs: DEMO_PAYOFFS,
+      delta: 0.75,
+      supergames: 12,
+      roundSeconds: 20,
+      oddCount: { kind: 'sit-out' },
+      credit: { kind: 'participation', credit: 2, pointsScaleMax: 2000 },
+    },
   },
 ];

@@ -76,7 +76,14 @@ export function simulateSession(opts: {
       const action: Action = rand() < DEMO_TREMBLE ? (intended === 'C' ? 'D' : 'C') : intended;
       // the class chooses in parallel: a few hundred ms between consecutive choices in the room
       now += 100 + Math.floor(rand() * 400);
-      apply({ type: 'choose', participantId: p, supergame: v.supergame, round: v.round, action, clientChoiceId: `sim-${p}-${v.supergame}-${v.round}` });
+      apply({
+        type: 'choose',
+        participantId: p,
+        supergame: v.supergame,
+        round: v.round,
+        action,
+        clientChoiceId: `sim-${p}-${v.supergame}-${v.round}`,
+      });
       moved = true;
     }
     if (!moved) {

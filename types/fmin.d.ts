@@ -7,11 +7,7 @@ declare module 'fmin' {
     minErrorDelta?: number;
     minTolerance?: number;
   }
-  export function nelderMead(
-    f: (x: number[]) => number,
-    x0: number[],
-    parameters?: NelderMeadParameters,
-  ): { fx: number; x: number[] };
+  export function nelderMead(f: (x: number[]) => number, x0: number[], parameters?: NelderMeadParameters): { fx: number; x: number[] };
   const fmin: { nelderMead: typeof nelderMead };
   export default fmin;
 }

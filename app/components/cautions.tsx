@@ -1,9 +1,18 @@
 /** The cautions Parley shows staff (product.md "Cautions the product shows"). */
 export function Cautions({ compact = false }: { compact?: boolean }) {
   const items = [
-    ['Research use', 'Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed consent. Parley offers a consent page and records consent; the decision is your institution’s.'],
-    ['Personal data', 'Exports are de-identified by default. Identified exports carry personal data under your institution’s privacy rules.'],
-    ['No deception', 'Computer partners are always disclosed to the participant who plays them, and the announced δ is the true continuation probability.'],
+    [
+      'Research use',
+      'Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed consent. Parley offers a consent page and records consent; the decision is your institution’s.',
+    ],
+    [
+      'Personal data',
+      'Exports are de-identified by default. Identified exports carry personal data under your institution’s privacy rules.',
+    ],
+    [
+      'No deception',
+      'Computer partners are always disclosed to the participant who plays them, and the announced δ is the true continuation probability.',
+    ],
     ['Payments', 'Paid sessions follow your institution’s payment rules.'],
   ];
   return (

@@ -2,7 +2,6 @@ import { useEffect } from 'react';
 import { useFetcher } from 'react-router';
 import type { CheckRow as Row } from '#app/models/comprehension.server';
 
-
 const POLL_MS = 5000;
 
 const since = (ms: number) => {

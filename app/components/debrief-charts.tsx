@@ -35,7 +35,8 @@ const SHAPES = ['circle', 'square', 'triangle', 'diamond'] as const;
 const SHAPE_WORDS = { circle: '●', square: '■', triangle: '▲', diamond: '◆' } as const;
 const DASHES = ['', '8 4', '3 3', '12 4 3 4'];
 
-export const pct = (x: number | null | undefined, d = 0) => (x === null || x === undefined ? '–' : `${(x * 100).toFixed(d).replace(/^-(0(\.0+)?)$/, '$1')} %`);
+export const pct = (x: number | null | undefined, d = 0) =>
+  x === null || x === undefined ? '–' : `${(x * 100).toFixed(d).replace(/^-(0(\.0+)?)$/, '$1')} %`;
 const PCT_TICKS = [0, 0.25, 0.5, 0.75, 1];
 const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
 
@@ -66,7 +67,14 @@ function Patterns({ theme, count }: { theme: Theme; count: number }) {
   return (
     <defs>
       {Array.from({ length: count }, (_, i) => (
-        <pattern key={i} id={`fill-${theme}-${i}`} patternUnits="userSpaceOnUse" width="8" height="8" patternTransform={`rotate(${i === 1 ? 45 : i === 2 ? -45 : 0})`}>
+        <pattern
+          key={i}
+          id={`fill-${theme}-${i}`}
+          patternUnits="userSpaceOnUse"
+          width="8"
+          height="8"
+          patternTransform={`rotate(${i === 1 ? 45 : i === 2 ? -45 : 0})`}
+        >
           <rect width="8" height="8" fill={p.series[i % p.series.length]} opacity={i === 0 ? 1 : 0.35} />
           {i > 0 ? <line x1="0" y1="0" x2="0" y2="8" stroke={p.series[i % p.series.length]} strokeWidth="4" /> : null}
         </pattern>
@@ -102,12 +110,32 @@ function Swatch({ entry, theme, big }: { entry: KeyEntry; theme: Theme; big: boo
   const p = PALETTE[theme];
   const color = entry.neutral ? p.ref : p.series[entry.i % p.series.length];
   const h = big ? 20 : 12;
-  const bar = <rect x={1} y={1} width={h - 2} height={h - 2} fill={entry.neutral ? 'none' : fillOf(theme, entry.i)} stroke={color} strokeWidth={entry.neutral ? 1.5 : 1} />;
+  const bar = (
+    <rect
+      x={1}
+      y={1}
+      width={h - 2}
+      height={h - 2}
+      fill={entry.neutral ? 'none' : fillOf(theme, entry.i)}
+      stroke={color}
+      strokeWidth={entry.neutral ? 1.5 : 1}
+    />
+  );
   const lineX = entry.kind === 'bar+line' ? h + 2 : 0;
   const line = (
     <>
-      <line x1={lineX} x2={lineX + 2.4 * h} y1={h / 2} y2={h / 2} stroke={color} strokeWidth={big ? 3 : 2} strokeDasharray={entry.dash || undefined} />
-      {entry.neutral ? null : <path d={shapePath(SHAPES[entry.i % SHAPES.length], lineX + 1.2 * h, h / 2, h / 3)} fill={color} stroke={color} />}
+      <line
+        x1={lineX}
+        x2={lineX + 2.4 * h}
+        y1={h / 2}
+        y2={h / 2}
+        stroke={color}
+        strokeWidth={big ? 3 : 2}
+        strokeDasharray={entry.dash || undefined}
+      />
+      {entry.neutral ? null : (
+        <path d={shapePath(SHAPES[entry.i % SHAPES.length], lineX + 1.2 * h, h / 2, h / 3)} fill={color} stroke={color} />
+      )}
     </>
   );
   const width = entry.kind === 'bar' || entry.kind === 'marker' ? h : entry.kind === 'line' ? 2.4 * h : 3.4 * h + 2;
@@ -115,7 +143,9 @@ function Swatch({ entry, theme, big }: { entry: KeyEntry; theme: Theme; big: boo
     <svg aria-hidden="true" width={width} height={h} className="shrink-0 overflow-visible">
       {entry.kind === 'bar' || entry.kind === 'bar+line' ? bar : null}
       {entry.kind === 'line' || entry.kind === 'bar+line' ? line : null}
-      {entry.kind === 'marker' ? <path d={shapePath(SHAPES[entry.i % SHAPES.length], h / 2, h / 2, h / 3)} fill={color} stroke={color} /> : null}
+      {entry.kind === 'marker' ? (
+        <path d={shapePath(SHAPES[entry.i % SHAPES.length], h / 2, h / 2, h / 3)} fill={color} stroke={color} />
+      ) : null}
     </svg>
   );
 }
@@ -149,10 +179,16 @@ export interface ChartProps {
 }
 
 const key = (s: { id: number }, what: string) => `s${s.id}_${what}`;
-const seriesName = (s: TableSession, i: number, what?: string) => `${SHAPE_WORDS[SHAPES[i % SHAPES.length]]} #${s.id} ${s.treatment}${what ? ` — ${what}` : ''}`;
+const seriesName = (s: TableSession, i: number, what?: string) =>
+  `${SHAPE_WORDS[SHAPES[i % SHAPES.length]]} #${s.id} ${s.treatment}${what ? ` — ${what}` : ''}`;
 
 /** Rows keyed by x, one column per session and measure, for overlaid lines. */
-function mergeBy<T>(sessions: TableSession[], rowsOf: (s: TableSession) => T[], x: (r: T) => number, cols: (r: T) => Record<string, number | null>) {
+function mergeBy<T>(
+  sessions: TableSession[],
+  rowsOf: (s: TableSession) => T[],
+  x: (r: T) => number,
+  cols: (r: T) => Record<string, number | null>,
+) {
   const byX = new Map<number, Record<string, number | null>>();
   for (const s of sessions)
     for (const r of rowsOf(s)) {
@@ -165,25 +201,67 @@ function mergeBy<T>(sessions: TableSession[], rowsOf: (s: TableSession) => T[], 
 
 export function CoopBySupergameChart({ sessions, theme = 'light', big = false }: ChartProps) {
   const p = PALETTE[theme];
-  const data = mergeBy(sessions, (s) => s.debrief.bySupergame, (g) => g.supergame, (g) => ({ all: g.all.rate, r1: g.round1.rate }));
+  const data = mergeBy(
+    sessions,
+    (s) => s.debrief.bySupergame,
+    (g) => g.supergame,
+    (g) => ({ all: g.all.rate, r1: g.round1.rate }),
+  );
   return (
     <ResponsiveContainer width="100%" height="100%">
       <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
-        <XAxis dataKey="x" type="number" domain={['dataMin', 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <XAxis
+          dataKey="x"
+          type="number"
+          domain={['dataMin', 'dataMax']}
+          allowDecimals={false}
+          {...axisProps(theme, big)}
+          label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+        />
+        <YAxis
+          domain={[0, 1]}
+          ticks={PCT_TICKS}
+          allowDataOverflow
+          tickFormatter={(v) => pct(v)}
+          width={big ? 80 : 52}
+          {...axisProps(theme, big)}
+        />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
         <Legend
           verticalAlign="top"
           {...keyLegend(
-            [...sessionKeys(sessions, 'line'), { label: 'all rounds', i: 0, kind: 'line', neutral: true }, { label: 'round 1', i: 0, kind: 'line', dash: '6 4', neutral: true }],
+            [
+              ...sessionKeys(sessions, 'line'),
+              { label: 'all rounds', i: 0, kind: 'line', neutral: true },
+              { label: 'round 1', i: 0, kind: 'line', dash: '6 4', neutral: true },
+            ],
             theme,
             big,
           )}
         />
         {sessions.flatMap((s, i) => [
-          <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i, 'all rounds')} stroke={p.series[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />,
-          <Line key={key(s, 'r1')} dataKey={key(s, 'r1')} name={seriesName(s, i, 'round 1')} stroke={p.series[i % 4]} strokeDasharray="6 4" strokeWidth={big ? 3 : 1.5} dot={false} isAnimationActive={false} connectNulls />,
+          <Line
+            key={key(s, 'all')}
+            dataKey={key(s, 'all')}
+            name={seriesName(s, i, 'all rounds')}
+            stroke={p.series[i % 4]}
+            strokeWidth={big ? 4 : 2}
+            dot={marker(i, p.series[i % 4], big ? 6 : 4)}
+            isAnimationActive={false}
+            connectNulls
+          />,
+          <Line
+            key={key(s, 'r1')}
+            dataKey={key(s, 'r1')}
+            name={seriesName(s, i, 'round 1')}
+            stroke={p.series[i % 4]}
+            strokeDasharray="6 4"
+            strokeWidth={big ? 3 : 1.5}
+            dot={false}
+            isAnimationActive={false}
+            connectNulls
+          />,
         ])}
       </LineChart>
     </ResponsiveContainer>
@@ -192,17 +270,57 @@ export function CoopBySupergameChart({ sessions, theme = 'light', big = false }:
 
 export function CoopByRoundChart({ sessions, theme = 'light', big = false }: ChartProps) {
   const p = PALETTE[theme];
-  const data = mergeBy(sessions, (s) => s.debrief.byRound, (r) => r.round, (r) => ({ all: r.all.rate, n: r.supergames }));
+  const data = mergeBy(
+    sessions,
+    (s) => s.debrief.byRound,
+    (r) => r.round,
+    (r) => ({ all: r.all.rate, n: r.supergames }),
+  );
   return (
     <ResponsiveContainer width="100%" height="100%">
       <LineChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
-        <XAxis dataKey="x" type="number" domain={[1, 'dataMax']} allowDecimals={false} {...axisProps(theme, big)} label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
-        <Tooltip formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))} labelFormatter={(l) => `round ${l}`} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'line', (i) => DASHES[i % 4]), theme, big)} />
+        <XAxis
+          dataKey="x"
+          type="number"
+          domain={[1, 'dataMax']}
+          allowDecimals={false}
+          {...axisProps(theme, big)}
+          label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+        />
+        <YAxis
+          domain={[0, 1]}
+          ticks={PCT_TICKS}
+          allowDataOverflow
+          tickFormatter={(v) => pct(v)}
+          width={big ? 80 : 52}
+          {...axisProps(theme, big)}
+        />
+        <Tooltip
+          formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))}
+          labelFormatter={(l) => `round ${l}`}
+          {...tooltipProps(theme)}
+        />
+        <Legend
+          verticalAlign="top"
+          {...keyLegend(
+            sessionKeys(sessions, 'line', (i) => DASHES[i % 4]),
+            theme,
+            big,
+          )}
+        />
         {sessions.map((s, i) => (
-          <Line key={key(s, 'all')} dataKey={key(s, 'all')} name={seriesName(s, i)} stroke={p.series[i % 4]} strokeDasharray={DASHES[i % 4]} strokeWidth={big ? 4 : 2} dot={marker(i, p.series[i % 4], big ? 6 : 4)} isAnimationActive={false} connectNulls />
+          <Line
+            key={key(s, 'all')}
+            dataKey={key(s, 'all')}
+            name={seriesName(s, i)}
+            stroke={p.series[i % 4]}
+            strokeDasharray={DASHES[i % 4]}
+            strokeWidth={big ? 4 : 2}
+            dot={marker(i, p.series[i % 4], big ? 6 : 4)}
+            isAnimationActive={false}
+            connectNulls
+          />
         ))}
       </LineChart>
     </ResponsiveContainer>
@@ -225,12 +343,38 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
         <BarChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
           <Patterns theme={theme} count={3} />
           <CartesianGrid stroke={p.grid} vertical={false} />
-          <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-          <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+          <XAxis
+            dataKey="x"
+            {...axisProps(theme, big)}
+            label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+          />
+          <YAxis
+            domain={[0, 1]}
+            ticks={PCT_TICKS}
+            allowDataOverflow
+            tickFormatter={(v) => pct(v)}
+            width={big ? 80 : 52}
+            {...axisProps(theme, big)}
+          />
           <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
-          <Legend verticalAlign="top" {...keyLegend(OUTCOMES.map((o, i) => ({ label: o.label, i, kind: 'bar' })), theme, big)} />
+          <Legend
+            verticalAlign="top"
+            {...keyLegend(
+              OUTCOMES.map((o, i) => ({ label: o.label, i, kind: 'bar' })),
+              theme,
+              big,
+            )}
+          />
           {OUTCOMES.map((o, i) => (
-            <Bar key={o.key} dataKey={o.key} name={o.label} stackId="o" fill={fillOf(theme, i)} stroke={p.series[i]} isAnimationActive={false} />
+            <Bar
+              key={o.key}
+              dataKey={o.key}
+              name={o.label}
+              stackId="o"
+              fill={fillOf(theme, i)}
+              stroke={p.series[i]}
+              isAnimationActive={false}
+            />
           ))}
         </BarChart>
       </ResponsiveContainer>
@@ -250,11 +394,25 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
         <Patterns theme={theme} count={sessions.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis
+          domain={[0, 1]}
+          ticks={PCT_TICKS}
+          allowDataOverflow
+          tickFormatter={(v) => pct(v)}
+          width={big ? 80 : 52}
+          {...axisProps(theme, big)}
+        />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'bar'), theme, big)} />
         {sessions.map((s, i) => (
-          <Bar key={s.id} dataKey={key(s, 'share')} name={seriesName(s, i)} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+          <Bar
+            key={s.id}
+            dataKey={key(s, 'share')}
+            name={seriesName(s, i)}
+            fill={fillOf(theme, i)}
+            stroke={p.series[i % 4]}
+            isAnimationActive={false}
+          />
         ))}
       </BarChart>
     </ResponsiveContainer>
@@ -275,14 +433,23 @@ export function LengthsChart({ sessions, theme = 'light', big = false }: ChartPr
       <ComposedChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <Patterns theme={theme} count={sessions.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
-        <XAxis dataKey="x" {...axisProps(theme, big)} label={{ value: 'rounds in the supergame (L)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <XAxis
+          dataKey="x"
+          {...axisProps(theme, big)}
+          label={{ value: 'rounds in the supergame (L)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+        />
         <YAxis tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `L = ${l}`} {...tooltipProps(theme)} />
         <Legend
           verticalAlign="top"
           {...keyLegend(
             [
-              ...sessions.map((s, i): KeyEntry => ({ label: `${sessionLabel(s)}, δ = ${fmt(s.delta)}`, i, kind: 'bar+line', dash: DASHES[(i + 1) % 4] })),
+              ...sessions.map((s, i): KeyEntry => ({
+                label: `${sessionLabel(s)}, δ = ${fmt(s.delta)}`,
+                i,
+                kind: 'bar+line',
+                dash: DASHES[(i + 1) % 4],
+              })),
               { label: 'bars: observed', i: 0, kind: 'bar', neutral: true },
               { label: 'lines: geometric law', i: 0, kind: 'line', neutral: true },
             ],
@@ -291,10 +458,27 @@ export function LengthsChart({ sessions, theme = 'light', big = false }: ChartPr
           )}
         />
         {sessions.map((s, i) => (
-          <Bar key={key(s, 'o')} dataKey={key(s, 'observed')} name={seriesName(s, i, 'observed')} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+          <Bar
+            key={key(s, 'o')}
+            dataKey={key(s, 'observed')}
+            name={seriesName(s, i, 'observed')}
+            fill={fillOf(theme, i)}
+            stroke={p.series[i % 4]}
+            isAnimationActive={false}
+          />
         ))}
         {sessions.map((s, i) => (
-          <Line key={key(s, 'e')} dataKey={key(s, 'expected')} name={`${seriesName(s, i)} — geometric law at δ = ${fmt(s.delta)}`} stroke={p.series[i % 4]} strokeDasharray={DASHES[(i + 1) % 4]} strokeWidth={big ? 3 : 2} dot={marker(i, p.series[i % 4], big ? 5 : 3)} isAnimationActive={false} connectNulls />
+          <Line
+            key={key(s, 'e')}
+            dataKey={key(s, 'expected')}
+            name={`${seriesName(s, i)} — geometric law at δ = ${fmt(s.delta)}`}
+            stroke={p.series[i % 4]}
+            strokeDasharray={DASHES[(i + 1) % 4]}
+            strokeWidth={big ? 3 : 2}
+            dot={marker(i, p.series[i % 4], big ? 5 : 3)}
+            isAnimationActive={false}
+            connectNulls
+          />
         ))}
       </ComposedChart>
     </ResponsiveContainer>
@@ -309,12 +493,23 @@ export function PointsChart({ sessions, theme = 'light', big = false }: ChartPro
       <BarChart data={data} margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>
         <Patterns theme={theme} count={sessions.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
-        <XAxis dataKey="bin" {...axisProps(theme, big)} label={{ value: 'points in the session', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
+        <XAxis
+          dataKey="bin"
+          {...axisProps(theme, big)}
+          label={{ value: 'points in the session', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+        />
         <YAxis allowDecimals={false} width={big ? 64 : 40} {...axisProps(theme, big)} />
         <Tooltip labelFormatter={(l) => `${l} points`} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'bar'), theme, big)} />
         {sessions.map((s, i) => (
-          <Bar key={s.id} dataKey={`s${s.id}`} name={`${seriesName(s, i)} — participants`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false} />
+          <Bar
+            key={s.id}
+            dataKey={`s${s.id}`}
+            name={`${seriesName(s, i)} — participants`}
+            fill={fillOf(theme, i)}
+            stroke={p.series[i % 4]}
+            isAnimationActive={false}
+          />
         ))}
       </BarChart>
     </ResponsiveContainer>
@@ -330,7 +525,11 @@ export function payoffSets(sessions: readonly TableSession[]) {
     set.ids.push(s.id);
     sets.set(k, set);
   }
-  return [...sets.values()].map((set) => ({ ...set, label: `R${fmt(set.payoffs.R)} S${fmt(set.payoffs.S)} T${fmt(set.payoffs.T)} P${fmt(set.payoffs.P)}`, sessions: set.ids.map((id) => `#${id}`).join(', ') }));
+  return [...sets.values()].map((set) => ({
+    ...set,
+    label: `R${fmt(set.payoffs.R)} S${fmt(set.payoffs.S)} T${fmt(set.payoffs.T)} P${fmt(set.payoffs.P)}`,
+    sessions: set.ids.map((id) => `#${id}`).join(', '),
+  }));
 }
 
 /**
@@ -356,14 +555,33 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
     <ResponsiveContainer width="100%" height="100%">
       <ComposedChart data={data} margin={{ top: 32, right: 24, bottom: 24, left: 8 }}>
         <CartesianGrid stroke={p.grid} />
-        <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} {...axisProps(theme, big)} label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }} />
-        <YAxis domain={[0, 1]} ticks={[0, 0.25, 0.5, 0.75, 1]} tickFormatter={(v) => fmt(v, 2)} width={big ? 64 : 44} {...axisProps(theme, big)} />
+        <XAxis
+          dataKey="delta"
+          type="number"
+          domain={[0, 1]}
+          ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]}
+          {...axisProps(theme, big)}
+          label={{ value: 'δ (chance of another round)', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
+        />
+        <YAxis
+          domain={[0, 1]}
+          ticks={[0, 0.25, 0.5, 0.75, 1]}
+          tickFormatter={(v) => fmt(v, 2)}
+          width={big ? 64 : 44}
+          {...axisProps(theme, big)}
+        />
         <Tooltip formatter={(v) => fmt(Number(v))} labelFormatter={(l) => `δ = ${fmt(Number(l), 3)}`} {...tooltipProps(theme)} />
         <Legend
           verticalAlign="bottom"
           {...keyLegend(
             [
-              ...sets.map((set, k): KeyEntry => ({ label: many ? `sizeBAD at ${set.label} (${set.sessions})` : 'sizeBAD', i: k, kind: 'line', dash: DASHES[k % DASHES.length], neutral: true })),
+              ...sets.map((set, k): KeyEntry => ({
+                label: many ? `sizeBAD at ${set.label} (${set.sessions})` : 'sizeBAD',
+                i: k,
+                kind: 'line',
+                dash: DASHES[k % DASHES.length],
+                neutral: true,
+              })),
               ...sessionKeys(sessions, 'marker'),
             ],
             theme,
@@ -373,7 +591,13 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
         />
         <ReferenceLine y={0.5} stroke={p.grid} strokeDasharray="3 3" />
         {lines.map((l, i) => (
-          <ReferenceLine key={l.label} x={l.x} stroke={p.ref} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }} />
+          <ReferenceLine
+            key={l.label}
+            x={l.x}
+            stroke={p.ref}
+            strokeDasharray={l.dash}
+            label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: big ? 18 : 11, fill: p.ref }}
+          />
         ))}
         {sets.map((set, k) => (
           <Line
@@ -397,7 +621,15 @@ export function TheoryChart({ sessions, theme = 'light', big = false }: ChartPro
             ]}
             dataKey="coop"
             fill={p.series[i % 4]}
-            shape={SHAPES[i % SHAPES.length] === 'square' ? 'square' : SHAPES[i % SHAPES.length] === 'triangle' ? 'triangle' : SHAPES[i % SHAPES.length] === 'diamond' ? 'diamond' : 'circle'}
+            shape={
+              SHAPES[i % SHAPES.length] === 'square'
+                ? 'square'
+                : SHAPES[i % SHAPES.length] === 'triangle'
+                  ? 'triangle'
+                  : SHAPES[i % SHAPES.length] === 'diamond'
+                    ? 'diamond'
+                    : 'circle'
+            }
             isAnimationActive={false}
           />
         ))}
@@ -431,12 +663,35 @@ export function StrategiesChart({ groups, theme = 'light', big = false }: { grou
         <Patterns theme={theme} count={groups.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis domain={[0, 1]} ticks={PCT_TICKS} allowDataOverflow tickFormatter={(v) => pct(v)} width={big ? 80 : 52} {...axisProps(theme, big)} />
+        <YAxis
+          domain={[0, 1]}
+          ticks={PCT_TICKS}
+          allowDataOverflow
+          tickFormatter={(v) => pct(v)}
+          width={big ? 80 : 52}
+          {...axisProps(theme, big)}
+        />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
-        <Legend verticalAlign="top" {...keyLegend(groups.map((g, i) => ({ label: g.group, i, kind: 'bar' })), theme, big)} />
+        <Legend
+          verticalAlign="top"
+          {...keyLegend(
+            groups.map((g, i) => ({ label: g.group, i, kind: 'bar' })),
+            theme,
+            big,
+          )}
+        />
         {groups.map((g, i) => (
-          <Bar key={g.group} dataKey={`g${i}`} name={`${SHAPE_WORDS[SHAPES[i % 4]]} ${g.group}`} fill={fillOf(theme, i)} stroke={p.series[i % 4]} isAnimationActive={false}>
-            {g.se ? <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} isAnimationActive={false} /> : null}
+          <Bar
+            key={g.group}
+            dataKey={`g${i}`}
+            name={`${SHAPE_WORDS[SHAPES[i % 4]]} ${g.group}`}
+            fill={fillOf(theme, i)}
+            stroke={p.series[i % 4]}
+            isAnimationActive={false}
+          >
+            {g.se ? (
+              <ErrorBar dataKey={`g${i}_se`} width={big ? 10 : 6} strokeWidth={big ? 3 : 2} stroke={p.text} isAnimationActive={false} />
+            ) : null}
           </Bar>
         ))}
       </BarChart>
@@ -466,12 +721,23 @@ export function ChartFrame({
 }) {
   const dark = theme === 'dark';
   return (
-    <figure data-chart={id} aria-labelledby={`chart-${id}`} className={cx('flex flex-col gap-2 rounded-lg border p-4', dark ? 'border-slate-700 bg-slate-950' : 'border-slate-200 bg-white')}>
+    <figure
+      data-chart={id}
+      aria-labelledby={`chart-${id}`}
+      className={cx('flex flex-col gap-2 rounded-lg border p-4', dark ? 'border-slate-700 bg-slate-950' : 'border-slate-200 bg-white')}
+    >
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h2 id={`chart-${id}`} className={cx('font-semibold', dark ? 'text-4xl text-white' : 'text-lg text-slate-900')}>
           {title}
         </h2>
-        <a href={csvHref} download className={cx('inline-flex min-h-11 items-center gap-1 rounded-md px-2 font-semibold underline-offset-4 hover:underline', dark ? 'text-accent-200' : 'text-accent-700')}>
+        <a
+          href={csvHref}
+          download
+          className={cx(
+            'inline-flex min-h-11 items-center gap-1 rounded-md px-2 font-semibold underline-offset-4 hover:underline',
+            dark ? 'text-accent-200' : 'text-accent-700',
+          )}
+        >
           <span aria-hidden="true">⤓</span> download data (CSV)<span className="sr-only"> of “{title}”</span>
         </a>
       </div>
@@ -480,7 +746,10 @@ export function ChartFrame({
       </div>
       <figcaption className={cx(dark ? 'text-2xl text-slate-200' : 'text-sm text-slate-600')}>
         {notes}{' '}
-        <Link to={`/methods#${id}`} className={cx('font-semibold underline underline-offset-4', dark ? 'text-accent-200' : 'text-accent-700')}>
+        <Link
+          to={`/methods#${id}`}
+          className={cx('font-semibold underline underline-offset-4', dark ? 'text-accent-200' : 'text-accent-700')}
+        >
           How this is computed<span className="sr-only">: {title}</span>
         </Link>
       </figcaption>

@@ -47,8 +47,12 @@ export function DebriefView({
     <div className="flex flex-col gap-8">
       {sessions.some((s) => s.simulated) ? (
         <Notice title="Simulated data">
-          {sessions.filter((s) => s.simulated).map((s) => `#${s.id}`).join(', ')}: demo session{sessions.filter((s) => s.simulated).length > 1 ? 's' : ''} whose choices were simulated from a
-          stated strategy mixture with a seeded generator; the participants are invented.
+          {sessions
+            .filter((s) => s.simulated)
+            .map((s) => `#${s.id}`)
+            .join(', ')}
+          : demo session{sessions.filter((s) => s.simulated).length > 1 ? 's' : ''} whose choices were simulated from a stated strategy
+          mixture with a seeded generator; the participants are invented.
         </Notice>
       ) : null}
       {sessions.some((s) => s.status !== 'complete' && s.status !== 'archived') ? (
@@ -58,14 +62,14 @@ export function DebriefView({
       ) : null}
       {unfinished ? (
         <Notice title="Half-finished rounds left out">
-          {unfinished === 1 ? '1 half-finished round' : `${unfinished} half-finished rounds`}: only one of the pair had chosen when the session was stopped or looked at. Such a
-          round has no outcome, so it is in no figure, download or estimation.
+          {unfinished === 1 ? '1 half-finished round' : `${unfinished} half-finished rounds`}: only one of the pair had chosen when the
+          session was stopped or looked at. Such a round has no outcome, so it is in no figure, download or estimation.
         </Notice>
       ) : null}
       {declined ? (
         <Notice title="Declined research use">
-          {declined === 1 ? '1 participant' : `${declined} participants`} declined research use of their choices. The class sees its own play here, theirs included; chart
-          downloads, panel downloads and estimations leave them out.
+          {declined === 1 ? '1 participant' : `${declined} participants`} declined research use of their choices. The class sees its own
+          play here, theirs included; chart downloads, panel downloads and estimations leave them out.
         </Notice>
       ) : null}
       <div className="flex flex-wrap items-center gap-x-6 gap-y-2">
@@ -87,9 +91,9 @@ export function DebriefView({
           Which strategies did the class use?
         </h2>
         <p className="max-w-3xl text-slate-700">
-          Strategy-frequency estimation (Dal Bó & Fréchette 2011): each participant is taken to follow one strategy of the set for the chosen supergames, with occasional
-          slips; shares are estimated per treatment. Standard errors come from a bootstrap over participants, run on worker threads. The result is stored: the same
-          request later opens at once.
+          Strategy-frequency estimation (Dal Bó & Fréchette 2011): each participant is taken to follow one strategy of the set for the
+          chosen supergames, with occasional slips; shares are estimated per treatment. Standard errors come from a bootstrap over
+          participants, run on worker threads. The result is stored: the same request later opens at once.
         </p>
         <EstimationForm courseId={courseId} sessionIds={ids} separate={separate} start={run.start} include={include} />
         {estimate ? (
@@ -98,7 +102,9 @@ export function DebriefView({
               {`Estimation #${estimate.id}: ${estimate.request.strategies.join(', ')}; B = ${estimate.request.bootstrap}, seed ${estimate.request.seed}`}
             </h3>
             <EstimateProgress estimate={estimate} />
-            {estimate.status === 'done' ? <EstimateResults estimate={estimate} csvHref={csvHref(courseId, 'strategies', ids, estimate.id)} /> : null}
+            {estimate.status === 'done' ? (
+              <EstimateResults estimate={estimate} csvHref={csvHref(courseId, 'strategies', ids, estimate.id)} />
+            ) : null}
           </div>
         ) : null}
         <StoredEstimates estimates={estimates} currentId={estimate?.id ?? null} basePath={withInclude} />
@@ -127,7 +133,9 @@ function IncludeSwitch({ include, basePath }: { include: Include; basePath: stri
       <span>
         <span className="font-semibold">Include timeout-filled and computer-seat choices, and rounds after a supergame’s end</span>
         <span className="block text-sm text-slate-600">
-          {include === 'all' ? 'On: every choice counts, whoever or whatever made it.' : 'Off: the participants’ own choices in the rounds that count.'}
+          {include === 'all'
+            ? 'On: every choice counts, whoever or whatever made it.'
+            : 'Off: the participants’ own choices in the rounds that count.'}
         </span>
       </span>
     </label>
@@ -154,7 +162,10 @@ interface TreatmentRow {
  * same-named sessions of different treatments before this renders, unless asked to show them apart.
  */
 function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; estimate: EstimateStatus | null }) {
-  const grouping = groupByTreatment(sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })), { separate: true });
+  const grouping = groupByTreatment(
+    sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })),
+    { separate: true },
+  );
   const byId = new Map(sessions.map((s) => [s.id, s]));
   const strategies = estimate?.result?.strategies ?? [];
   const groups = grouping.ok ? grouping.groups : [];
@@ -177,7 +188,10 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
       delta: group.design.delta,
       participants: ss.reduce((t, s) => t + s.debrief.participants, 0),
       choices: n,
-      leftOut: ss.reduce((t, s) => t + s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished, 0),
+      leftOut: ss.reduce(
+        (t, s) => t + s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished,
+        0,
+      ),
       cooperation: n ? c / n : null,
       round1: n1 ? c1 / n1 : null,
       sizeBAD: sizeBAD(group.design.payoffs, group.design.delta),
@@ -196,7 +210,14 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
     col.accessor('leftOut', { header: 'Left out', meta: { align: 'right' } }),
     col.accessor('cooperation', { header: 'Cooperation', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
     col.accessor('round1', { header: 'Round 1', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
-    ...strategies.map((id) => col.accessor((r) => r.shares[id], { id: `share-${id}`, header: id, cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span>, meta: { align: 'right' } })),
+    ...strategies.map((id) =>
+      col.accessor((r) => r.shares[id], {
+        id: `share-${id}`,
+        header: id,
+        cell: (i) => <span className="whitespace-nowrap">{i.getValue()}</span>,
+        meta: { align: 'right' },
+      }),
+    ),
   ]);
   return (
     <section aria-labelledby="treatments" className="flex flex-col gap-2">
@@ -205,7 +226,9 @@ function TreatmentTable({ sessions, estimate }: { sessions: DebriefSession[]; es
       </h2>
       <DataTable columns={columns} data={rows} caption="Cooperation and strategy shares per treatment" filterLabel="Filter treatments" />
       <p className="text-sm text-slate-600">
-        {strategies.length ? `Shares ± 1 bootstrap standard error from estimation #${estimate!.id}. ` : 'Run an estimation below to add strategy shares. '}
+        {strategies.length
+          ? `Shares ± 1 bootstrap standard error from estimation #${estimate!.id}. `
+          : 'Run an estimation below to add strategy shares. '}
         Cooperation: share of the choices counted that were cooperate. {sessions.map((s) => `#${s.id}: ${originWords(s)}`).join(' ')}
         {estimate?.result ? ` Estimation #${estimate.id}: ${estimateIncludedWords(estimate.result)}` : ''}
       </p>

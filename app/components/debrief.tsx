@@ -90,7 +90,9 @@ export function debriefCharts(
       id: 'cooperation-by-round',
       title: CHARTS['cooperation-by-round'],
       csvHref: csv('cooperation-by-round'),
-      summary: each((s) => `Session ${s.id}: round 1 ${pct(s.debrief.byRound[0]?.all.rate)}, round 2 ${pct(s.debrief.byRound[1]?.all.rate)}.`),
+      summary: each(
+        (s) => `Session ${s.id}: round 1 ${pct(s.debrief.byRound[0]?.all.rate)}, round 2 ${pct(s.debrief.byRound[1]?.all.rate)}.`,
+      ),
       notes: `Pooled over the supergames that reached each round; late rounds rest on few supergames (see the CSV for counts). ${included}`,
       render: (theme, big) => <CoopByRoundChart sessions={sessions} theme={theme} big={big} />,
     },
@@ -100,7 +102,8 @@ export function debriefCharts(
       csvHref: csv('outcomes'),
       summary: each((s) => {
         const n = s.debrief.bySupergame.reduce((t, g) => t + g.outcomes.n, 0);
-        const share = (k: 'both' | 'one' | 'none') => (n ? s.debrief.bySupergame.reduce((t, g) => t + g.outcomes[k] * g.outcomes.n, 0) / n : 0);
+        const share = (k: 'both' | 'one' | 'none') =>
+          n ? s.debrief.bySupergame.reduce((t, g) => t + g.outcomes[k] * g.outcomes.n, 0) / n : 0;
         return `Session ${s.id}: both cooperate ${pct(share('both'))}, one ${pct(share('one'))}, neither ${pct(share('none'))}.`;
       }),
       notes: `${sessions.length === 1 ? 'Share of participant-rounds by what the pair chose, per supergame.' : 'Share of participant-rounds by what the pair chose, over the whole session.'} ${included}`,
@@ -113,9 +116,9 @@ export function debriefCharts(
       summary: each(lengthTestWords),
       notes: (
         <>
-          Bars: share of supergames that lasted L rounds (one draw sequence per session, common to all pairs; the lengths come from the draws, whoever chose). Lines:
-          the geometric law P(L = k) = (1−δ)δ^(k−1) of random termination. Pearson’s χ² goodness-of-fit test with tail bins pooled to expected counts ≥ 5, δ known.{' '}
-          {each(lengthTestWords)}
+          Bars: share of supergames that lasted L rounds (one draw sequence per session, common to all pairs; the lengths come from the
+          draws, whoever chose). Lines: the geometric law P(L = k) = (1−δ)δ^(k−1) of random termination. Pearson’s χ² goodness-of-fit test
+          with tail bins pooled to expected counts ≥ 5, δ known. {each(lengthTestWords)}
         </>
       ),
       render: (theme, big) => <LengthsChart sessions={sessions} theme={theme} big={big} />,
@@ -128,7 +131,8 @@ export function debriefCharts(
         const pts = s.debrief.points.map((p) => p.points).sort((a, b) => a - b);
         return `Session ${s.id}: ${pts.length} participants, points from ${pts[0] ?? 0} to ${pts[pts.length - 1] ?? 0}, median ${pts[Math.floor(pts.length / 2)] ?? 0}.`;
       }),
-      notes: 'Points of each participant over the session: the payoffs of every round that counts, whoever chose (what each participant is credited; pseudonyms in the CSV).',
+      notes:
+        'Points of each participant over the session: the payoffs of every round that counts, whoever chose (what each participant is credited; pseudonyms in the CSV).',
       render: (theme, big) => <PointsChart sessions={sessions} theme={theme} big={big} />,
     },
     {
@@ -149,7 +153,10 @@ export function debriefCharts(
       title: CHARTS.strategies,
       csvHref: csvHref(courseId, 'strategies', ids, estimate.id),
       summary: estimate.groups
-        .map((g) => `${g.group}: ${g.strategies.map((id, k) => `${id} ${pct(g.shares[k])}${g.se ? ` (SE ${pct(g.se[k], 1)})` : ''}`).join(', ')}.`)
+        .map(
+          (g) =>
+            `${g.group}: ${g.strategies.map((id, k) => `${id} ${pct(g.shares[k])}${g.se ? ` (SE ${pct(g.se[k], 1)})` : ''}`).join(', ')}.`,
+        )
         .join(' '),
       notes: `Strategy-frequency estimation (Dal Bó & Fréchette 2011) per treatment; ${estimate.B > 0 ? `bars: ± 1 bootstrap standard error over participants (B = ${estimate.B}, seed ${estimate.seed})` : 'no bootstrap'}; window: ${estimate.window}.${estimate.included ? ` ${estimate.included}` : ''}`,
       render: (theme, big) => <StrategiesChart groups={estimate.groups} theme={theme} big={big} />,

@@ -11,12 +11,24 @@ const WORDS: Record<number, { title: string; text: string }> = {
   500: { title: 'Something went wrong on our side', text: 'The error has been logged. Try again in a moment.' },
 };
 
-export function ErrorPage({ status, message, detail, inShell = false }: { status: number; message?: string; detail?: string; inShell?: boolean }) {
+export function ErrorPage({
+  status,
+  message,
+  detail,
+  inShell = false,
+}: {
+  status: number;
+  message?: string;
+  detail?: string;
+  inShell?: boolean;
+}) {
   const words = WORDS[status] ?? WORDS[500];
   // Inside the staff shell the page already has its <main>; a bare error page is its own.
   const Wrapper = inShell ? 'div' : 'main';
   return (
-    <Wrapper className={inShell ? 'flex max-w-xl flex-col gap-4 py-6' : 'mx-auto flex min-h-dvh max-w-xl flex-col justify-center gap-4 px-6 py-12'}>
+    <Wrapper
+      className={inShell ? 'flex max-w-xl flex-col gap-4 py-6' : 'mx-auto flex min-h-dvh max-w-xl flex-col justify-center gap-4 px-6 py-12'}
+    >
       {/* No route's meta runs for an error page: React puts this title in the head. */}
       <title>{`${words.title} · Parley`}</title>
       <p className="text-sm font-semibold tracking-wide text-accent-700 uppercase">Error {status}</p>

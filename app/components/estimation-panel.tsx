@@ -10,28 +10,36 @@ import { DataTable, staffColumnHelper } from './data-table';
 import { ChartFrame, pct, StrategiesChart } from './debrief-charts';
 import { Button, cx, FieldError, Notice, SelectField, TextField } from './ui';
 
-type StartAnswer = { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; errors?: Record<string, string>; message?: string };
+type StartAnswer =
+  { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; errors?: Record<string, string>; message?: string };
 
 /** The estimate shown on the page: the stored one at first, then whatever the form started, kept fresh by polling. */
 export function useEstimateRun(courseId: number, initial: EstimateStatus | null) {
   const start = useFetcher<StartAnswer>();
   const poll = useFetcher<EstimateStatus>();
   const [current, setCurrent] = useState<EstimateStatus | null>(initial);
-  useEffect(() => setCurrent(initial), [initial?.id]);
+  // Another stored estimate from the loader replaces the shown one (React's "adjusting state when a
+  // prop changes"); a revalidated copy of the same one does not overwrite fresher polled status.
+  const [initialId, setInitialId] = useState(initial?.id);
+  if (initial?.id !== initialId) {
+    setInitialId(initial?.id);
+    setCurrent(initial);
+  }
   useEffect(() => {
     if (start.data?.ok) setCurrent(start.data.estimate);
   }, [start.data]);
   useEffect(() => {
     if (poll.data && poll.data.id === current?.id) setCurrent(poll.data);
-  }, [poll.data]);
-  const active = current && (current.status === 'queued' || current.status === 'running');
+  }, [poll.data, current?.id]);
+  const activeId = current && (current.status === 'queued' || current.status === 'running') ? current.id : null;
+  const { load, state: pollState } = poll;
   useEffect(() => {
-    if (!active) return;
+    if (activeId === null) return;
     const t = setInterval(() => {
-      if (poll.state === 'idle') poll.load(`/courses/${courseId}/estimates/${current.id}`);
+      if (pollState === 'idle') void load(`/courses/${courseId}/estimates/${activeId}`);
     }, 400);
     return () => clearInterval(t);
-  }, [active, current?.id, poll.state]);
+  }, [activeId, pollState, load, courseId]);
   return { current, start };
 }
 
@@ -102,7 +110,12 @@ export function EstimationForm({
   const message = start.data && !start.data.ok ? start.data.message : undefined;
   const groupId = useId();
   return (
-    <start.Form method="post" action={`/courses/${courseId}/estimates`} className="flex flex-col gap-4" aria-label="Estimate strategy shares">
+    <start.Form
+      method="post"
+      action={`/courses/${courseId}/estimates`}
+      className="flex flex-col gap-4"
+      aria-label="Estimate strategy shares"
+    >
       {datasetId !== undefined ? (
         <input type="hidden" name="dataset" value={datasetId} />
       ) : (
@@ -138,9 +151,18 @@ export function EstimationForm({
             <TextField label="To supergame" name="to" inputMode="numeric" defaultValue="10" error={errors.to} />
           </>
         ) : null}
-        {windowKind === 'last' ? <TextField label="Last n supergames" name="last" inputMode="numeric" defaultValue="5" error={errors.last} /> : null}
+        {windowKind === 'last' ? (
+          <TextField label="Last n supergames" name="last" inputMode="numeric" defaultValue="5" error={errors.last} />
+        ) : null}
         {windowKind === 'after-rounds' ? (
-          <TextField label="Start after r rounds" name="afterRounds" inputMode="numeric" defaultValue="20" error={errors.afterRounds} hint="Dal Bó & Fréchette (2011) use 110 rounds." />
+          <TextField
+            label="Start after r rounds"
+            name="afterRounds"
+            inputMode="numeric"
+            defaultValue="20"
+            error={errors.afterRounds}
+            hint="Dal Bó & Fréchette (2011) use 110 rounds."
+          />
         ) : null}
       </div>
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
@@ -155,8 +177,22 @@ export function EstimationForm({
             { value: 'custom', label: 'Choose from the library' },
           ]}
         />
-        <TextField label="Bootstrap replicates (B)" name="bootstrap" inputMode="numeric" defaultValue={String(defaults?.bootstrap ?? 200)} error={errors.bootstrap} hint={`0 for none; at most ${MAX_BOOTSTRAP}.`} />
-        <TextField label="Seed" name="seed" inputMode="numeric" defaultValue={String(defaults?.seed ?? 1)} error={errors.seed} hint="The same seed gives the same standard errors." />
+        <TextField
+          label="Bootstrap replicates (B)"
+          name="bootstrap"
+          inputMode="numeric"
+          defaultValue={String(defaults?.bootstrap ?? 200)}
+          error={errors.bootstrap}
+          hint={`0 for none; at most ${MAX_BOOTSTRAP}.`}
+        />
+        <TextField
+          label="Seed"
+          name="seed"
+          inputMode="numeric"
+          defaultValue={String(defaults?.seed ?? 1)}
+          error={errors.seed}
+          hint="The same seed gives the same standard errors."
+        />
       </div>
       {preset === 'custom' ? (
         <fieldset aria-describedby={errors.strategy ? `${groupId}-err` : undefined} className="flex flex-col gap-2">
@@ -164,7 +200,13 @@ export function EstimationForm({
           <div className="flex flex-wrap gap-x-5 gap-y-2">
             {STRATEGY_ORDER.map((id) => (
               <label key={id} className="inline-flex min-h-11 items-center gap-2">
-                <input type="checkbox" name="strategy" value={id} defaultChecked={(STRATEGY_PRESETS.dbf2011.ids as readonly string[]).includes(id)} className="size-5" />
+                <input
+                  type="checkbox"
+                  name="strategy"
+                  value={id}
+                  defaultChecked={(STRATEGY_PRESETS.dbf2011.ids as readonly string[]).includes(id)}
+                  className="size-5"
+                />
                 <span>
                   <strong>{id}</strong> <span className="text-sm text-slate-600">{LIBRARY.find((a) => a.id === id)?.name}</span>
                 </span>
@@ -200,7 +242,11 @@ const shareColumns = col.columns([
   col.accessor('group', { header: 'Treatment' }),
   col.accessor('strategy', { header: 'Strategy' }),
   col.accessor('share', { header: 'Share', cell: (i) => pct(i.getValue(), 1), meta: { align: 'right' } }),
-  col.accessor('se', { header: 'Bootstrap SE', cell: (i) => (i.getValue() === null ? '–' : pct(i.getValue(), 1)), meta: { align: 'right' } }),
+  col.accessor('se', {
+    header: 'Bootstrap SE',
+    cell: (i) => (i.getValue() === null ? '–' : pct(i.getValue(), 1)),
+    meta: { align: 'right' },
+  }),
   col.accessor('assigned', { header: 'Participants assigned', cell: (i) => `${i.getValue()}`, meta: { align: 'right' } }),
   col.accessor('expected', { header: 'Expected participants', cell: (i) => i.getValue().toFixed(1), meta: { align: 'right' } }),
 ]);
@@ -209,7 +255,14 @@ export function EstimateResults({ estimate, csvHref }: { estimate: EstimateStatu
   const result = estimate.result;
   if (!result) return null;
   const rows: ShareRow[] = result.groups.flatMap((g: GroupResult) =>
-    g.strategies.map((s, k) => ({ group: g.group, strategy: s, share: g.shares[k], se: g.se ? g.se[k] : null, assigned: g.assigned[k], expected: g.expected[k] })),
+    g.strategies.map((s, k) => ({
+      group: g.group,
+      strategy: s,
+      share: g.shares[k],
+      se: g.se ? g.se[k] : null,
+      assigned: g.assigned[k],
+      expected: g.expected[k],
+    })),
   );
   return (
     <div className="flex flex-col gap-4" data-testid="estimate-results">
@@ -237,10 +290,15 @@ export function EstimateResults({ estimate, csvHref }: { estimate: EstimateStatu
         ))}
       </dl>
       {result.warnings.length ? <Notice tone="warn">{result.warnings.slice(0, 3).join(' ')}</Notice> : null}
-      <DataTable columns={shareColumns} data={rows} caption="Estimated strategy shares and posterior assignments" filterLabel="Filter strategies" />
+      <DataTable
+        columns={shareColumns}
+        data={rows}
+        caption="Estimated strategy shares and posterior assignments"
+        filterLabel="Filter strategies"
+      />
       <p className="text-sm text-slate-600">
-        “Participants assigned”: how many participants’ highest posterior probability is on the strategy; “expected”: the sum of their posterior probabilities. With no
-        defections, Grim, TFT, WSLS, T2 and ALLC prescribe the same choices: read their shares together.
+        “Participants assigned”: how many participants’ highest posterior probability is on the strategy; “expected”: the sum of their
+        posterior probabilities. With no defections, Grim, TFT, WSLS, T2 and ALLC prescribe the same choices: read their shares together.
       </p>
     </div>
   );
@@ -258,7 +316,8 @@ export function estimateIncludedWords(result: Pick<EstimateResult, 'include' | '
     l.afterLeftOut ? `${n(l.afterLeftOut)} own choices after one of those in the same supergame` : '',
     l.unfinished ? `${n(l.unfinished)} in half-finished rounds` : '',
   ].filter(Boolean);
-  const used = result.include === 'all' ? `Choices used: ${n(l.used)}, every origin.` : `Choices used: ${n(l.used)} own choices in rounds that count.`;
+  const used =
+    result.include === 'all' ? `Choices used: ${n(l.used)}, every origin.` : `Choices used: ${n(l.used)} own choices in rounds that count.`;
   const left = parts.length ? ` Left out: ${parts.join(', ')}.` : '';
   const declined = l.declined ? ` ${n(l.declined)} participant${l.declined === 1 ? '' : 's'} who declined research use left out.` : '';
   return used + left + declined;
@@ -271,16 +330,30 @@ function includeWords(r: EstimateStatus['request']): string {
   return 'own and timeout-filled choices (run before origins were kept); ';
 }
 
-export function StoredEstimates({ estimates, currentId, basePath }: { estimates: EstimateStatus[]; currentId: number | null; basePath: string }) {
+export function StoredEstimates({
+  estimates,
+  currentId,
+  basePath,
+}: {
+  estimates: EstimateStatus[];
+  currentId: number | null;
+  basePath: string;
+}) {
   if (estimates.length < 2) return null;
   return (
     <details className="text-sm">
-      <summary className="min-h-11 cursor-pointer py-2 font-semibold text-accent-700">Earlier estimations on these sessions ({estimates.length})</summary>
+      <summary className="min-h-11 cursor-pointer py-2 font-semibold text-accent-700">
+        Earlier estimations on these sessions ({estimates.length})
+      </summary>
       <ul className="flex flex-col gap-1">
         {estimates.map((e) => (
           <li key={e.id}>
-            <a href={`${basePath}estimate=${e.id}`} className={cx('underline-offset-4 hover:underline', e.id === currentId ? 'font-semibold' : 'text-accent-700')}>
-              #{e.id}: {windowWords(e.request.window)}; {includeWords(e.request)}{e.request.strategies.join(', ')}; B = {e.request.bootstrap}, seed {e.request.seed} — {STATUS[e.status][1].toLowerCase()}
+            <a
+              href={`${basePath}estimate=${e.id}`}
+              className={cx('underline-offset-4 hover:underline', e.id === currentId ? 'font-semibold' : 'text-accent-700')}
+            >
+              #{e.id}: {windowWords(e.request.window)}; {includeWords(e.request)}
+              {e.request.strategies.join(', ')}; B = {e.request.bootstrap}, seed {e.request.seed} — {STATUS[e.status][1].toLowerCase()}
             </a>
           </li>
         ))}

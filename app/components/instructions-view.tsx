@@ -12,7 +12,11 @@ export interface InstructionsViewProps {
 }
 
 /** The course and the instructor first: a student in a lecture hall checks they are in the right room. */
-export function InstructionsHeading({ heading, code, preview = false }: Pick<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
+export function InstructionsHeading({
+  heading,
+  code,
+  preview = false,
+}: Pick<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
   // Inside the design editor's preview the page's own headings come first: one level down.
   const Title = preview ? 'h3' : 'h1';
   return (
@@ -32,7 +36,13 @@ export function InstructionsHeading({ heading, code, preview = false }: Pick<Ins
  * What a phone reads before play, above the consent question: a short summary, the payoff table,
  * and the full rules one tap away. Shared by the instructions page and the design editor's preview.
  */
-export function InstructionsBody({ summary, table, labels, instructions, preview = false }: Omit<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
+export function InstructionsBody({
+  summary,
+  table,
+  labels,
+  instructions,
+  preview = false,
+}: Omit<InstructionsViewProps, 'heading' | 'code'> & { preview?: boolean }) {
   const Title = preview ? 'h4' : 'h2';
   const id = preview ? 'preview-how' : 'how';
   return (
@@ -48,7 +58,10 @@ export function InstructionsBody({ summary, table, labels, instructions, preview
       <PayoffTable table={table} labels={labels} />
       <details className="rounded-lg border border-slate-200 bg-white">
         <summary className="min-h-12 cursor-pointer content-center px-4 font-semibold text-accent-700">All the rules, in full</summary>
-        <div className="flex flex-col gap-3 px-4 pb-4 text-base leading-relaxed whitespace-pre-line text-slate-800" data-testid="instructions">
+        <div
+          className="flex flex-col gap-3 px-4 pb-4 text-base leading-relaxed whitespace-pre-line text-slate-800"
+          data-testid="instructions"
+        >
           {instructions}
         </div>
       </details>

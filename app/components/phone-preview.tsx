@@ -26,7 +26,11 @@ export function PhonePreview({ design, text, course }: { design: Design | null; 
     </button>
   );
   return (
-    <section aria-labelledby="preview-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4" data-testid="phone-preview">
+    <section
+      aria-labelledby="preview-title"
+      className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4"
+      data-testid="phone-preview"
+    >
       <div className="flex flex-wrap items-center justify-between gap-2">
         <h2 id="preview-title" className="text-lg font-semibold">
           Phone preview
@@ -86,7 +90,10 @@ function PlayScreen({ design }: { design: Design }) {
       <p className="text-center text-lg">Choose:</p>
       <div className="grid grid-cols-2 gap-3">
         {(['C', 'D'] as const).map((a) => (
-          <span key={a} className="flex min-h-32 flex-col items-center justify-center gap-1 rounded-2xl border-2 border-slate-400 bg-slate-100 text-3xl font-bold text-slate-900">
+          <span
+            key={a}
+            className="flex min-h-32 flex-col items-center justify-center gap-1 rounded-2xl border-2 border-slate-400 bg-slate-100 text-3xl font-bold text-slate-900"
+          >
             <span aria-hidden="true" className="text-4xl">
               {shapes[a]}
             </span>

@@ -23,7 +23,10 @@ export function ParticipantShell({ children, email }: { children: ReactNode; ema
         <Wordmark />
         {email ? (
           <div className="flex items-center gap-1">
-            <Link to="/account" className="min-h-11 content-center px-2 text-sm font-semibold text-accent-700 underline-offset-4 hover:underline">
+            <Link
+              to="/account"
+              className="min-h-11 content-center px-2 text-sm font-semibold text-accent-700 underline-offset-4 hover:underline"
+            >
               Sign-ins
             </Link>
             <Form method="post" action="/sign-out">
@@ -97,7 +100,13 @@ export function PageHeader({ title, children, eyebrow }: { title: string; childr
 }
 
 /** The breadcrumb above a course page's title: the course, further steps, the demo badge. */
-export function CourseCrumbs({ course, trail = [] }: { course: { id: number; title: string; isDemo: boolean }; trail?: { to: string; label: string }[] }) {
+export function CourseCrumbs({
+  course,
+  trail = [],
+}: {
+  course: { id: number; title: string; isDemo: boolean };
+  trail?: { to: string; label: string }[];
+}) {
   const link = 'text-accent-700 underline-offset-4 hover:underline';
   return (
     <span className="flex flex-wrap items-center gap-2">

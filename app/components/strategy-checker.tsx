@@ -37,7 +37,7 @@ export function StrategyChecker({
   const [selected, setSelected] = useState<string>('TFT');
   const [draft, setDraft] = useState<Automaton>(blank);
   const fetcher = useFetcher<{ ok: boolean; errors?: Record<string, string>; message?: string }>();
-  const strategy = selected === NEW ? draft : all.find((a) => a.id === selected) ?? LIBRARY[0];
+  const strategy = selected === NEW ? draft : (all.find((a) => a.id === selected) ?? LIBRARY[0]);
   const issues = selected === NEW ? validateAutomaton(draft) : [];
 
   const result = useMemo(() => {
@@ -66,7 +66,12 @@ export function StrategyChecker({
         <label htmlFor="checker-strategy" className="font-semibold">
           Strategy
         </label>
-        <select id="checker-strategy" value={selected} onChange={(e) => setSelected(e.target.value)} className="min-h-11 rounded-lg border border-slate-300 bg-white px-3">
+        <select
+          id="checker-strategy"
+          value={selected}
+          onChange={(e) => setSelected(e.target.value)}
+          className="min-h-11 rounded-lg border border-slate-300 bg-white px-3"
+        >
           <optgroup label="Library">
             {LIBRARY.map((a) => (
               <option key={a.id} value={a.id}>
@@ -103,13 +108,21 @@ export function StrategyChecker({
             </label>
             <label className="flex flex-1 flex-col gap-1">
               <span className="font-semibold">Description</span>
-              <input value={draft.name} onChange={(e) => setDraft({ ...draft, name: e.target.value })} maxLength={120} className="min-h-11 rounded-lg border border-slate-300 px-3" />
+              <input
+                value={draft.name}
+                onChange={(e) => setDraft({ ...draft, name: e.target.value })}
+                maxLength={120}
+                className="min-h-11 rounded-lg border border-slate-300 px-3"
+              />
             </label>
           </div>
           {fetcher.data?.errors?.id ? <FieldError id="checker-id-error">{fetcher.data.errors.id}</FieldError> : null}
           {/* One card per state, its four transitions two by two: the builder fits the editor's
               side panel (30rem at 1440 px) and a phone without a sideways scroll. */}
-          <ol className="flex flex-col gap-2 text-sm" aria-label="States: the action of each state and the next state after each observed profile (own, partner)">
+          <ol
+            className="flex flex-col gap-2 text-sm"
+            aria-label="States: the action of each state and the next state after each observed profile (own, partner)"
+          >
             {draft.states.map((s, i) => (
               <li key={i} className="rounded-md border border-slate-200 px-3 py-2">
                 <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
@@ -137,7 +150,12 @@ export function StrategyChecker({
                           ...d,
                           states: d.states
                             .filter((_, j) => j !== i)
-                            .map((st) => ({ ...st, next: Object.fromEntries(PROFILES.map((p) => [p, st.next[p] === i ? 0 : st.next[p] > i ? st.next[p] - 1 : st.next[p]])) as Record<Profile, number> })),
+                            .map((st) => ({
+                              ...st,
+                              next: Object.fromEntries(
+                                PROFILES.map((p) => [p, st.next[p] === i ? 0 : st.next[p] > i ? st.next[p] - 1 : st.next[p]]),
+                              ) as Record<Profile, number>,
+                            })),
                         }))
                       }
                       className="ml-auto min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
@@ -169,7 +187,20 @@ export function StrategyChecker({
             ))}
           </ol>
           <div className="flex flex-wrap gap-2">
-            <Button type="button" variant="secondary" disabled={draft.states.length >= 12} onClick={() => setDraft((d) => ({ ...d, states: [...d.states, { action: 'D', next: { cc: d.states.length, cd: d.states.length, dc: d.states.length, dd: d.states.length } }] }))}>
+            <Button
+              type="button"
+              variant="secondary"
+              disabled={draft.states.length >= 12}
+              onClick={() =>
+                setDraft((d) => ({
+                  ...d,
+                  states: [
+                    ...d.states,
+                    { action: 'D', next: { cc: d.states.length, cd: d.states.length, dc: d.states.length, dd: d.states.length } },
+                  ],
+                }))
+              }
+            >
               Add a state
             </Button>
             {canSave ? (
@@ -196,15 +227,24 @@ export function StrategyChecker({
         <div className="flex flex-col gap-3" aria-live="polite" data-testid="checker-result">
           <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
             <dt className="font-semibold">Nash equilibrium for δ in</dt>
-            <dd className="num" data-testid="nash-intervals">{formatIntervals(result.intervals.nash, 4) || 'no δ'}</dd>
+            <dd className="num" data-testid="nash-intervals">
+              {formatIntervals(result.intervals.nash, 4) || 'no δ'}
+            </dd>
             <dt className="font-semibold">Subgame perfect for δ in</dt>
-            <dd className="num" data-testid="spe-intervals">{formatIntervals(result.intervals.spe, 4) || 'no δ'}</dd>
+            <dd className="num" data-testid="spe-intervals">
+              {formatIntervals(result.intervals.spe, 4) || 'no δ'}
+            </dd>
           </dl>
           {result.atDelta ? (
             <>
               <p className="text-sm">
-                At δ = {fmt(delta!, 4)}: {result.atDelta.spe ? 'subgame perfect' : result.atDelta.nash ? 'a Nash equilibrium, not subgame perfect' : 'not a Nash equilibrium'}.{' '}
-                <span className="text-slate-700">{result.atDelta.deviation.text}.</span>
+                At δ = {fmt(delta!, 4)}:{' '}
+                {result.atDelta.spe
+                  ? 'subgame perfect'
+                  : result.atDelta.nash
+                    ? 'a Nash equilibrium, not subgame perfect'
+                    : 'not a Nash equilibrium'}
+                . <span className="text-slate-700">{result.atDelta.deviation.text}.</span>
               </p>
               <details>
                 <summary className="cursor-pointer font-semibold text-accent-700">Expected points against each strategy at this δ</summary>

@@ -32,14 +32,32 @@ export function ThresholdChart({ game, theory }: { game: StageGame; theory: Theo
         <ResponsiveContainer width="100%" height="100%">
           <LineChart data={points} margin={{ top: 24, right: 16, bottom: 8, left: 0 }}>
             <CartesianGrid stroke="#e2e8f0" />
-            <XAxis dataKey="delta" type="number" domain={[0, 1]} ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]} tick={{ fontSize: 12 }} label={{ value: 'δ', position: 'insideBottomRight', offset: -4 }} />
+            <XAxis
+              dataKey="delta"
+              type="number"
+              domain={[0, 1]}
+              ticks={[0, 0.2, 0.4, 0.6, 0.8, 1]}
+              tick={{ fontSize: 12 }}
+              label={{ value: 'δ', position: 'insideBottomRight', offset: -4 }}
+            />
             <YAxis domain={[0, 1]} ticks={[0, 0.5, 1]} tick={{ fontSize: 12 }} width={36} />
             <Tooltip formatter={(v) => fmt(Number(v))} labelFormatter={(l) => `δ = ${fmt(Number(l), 2)}`} />
             <ReferenceLine y={0.5} stroke="#94a3b8" strokeDasharray="3 3" />
             {lines.map((l, i) => (
-              <ReferenceLine key={l.label} x={l.x} stroke={GREY} strokeDasharray={l.dash} label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: 11, fill: GREY }} />
+              <ReferenceLine
+                key={l.label}
+                x={l.x}
+                stroke={GREY}
+                strokeDasharray={l.dash}
+                label={{ value: l.label, position: i % 2 ? 'insideTopLeft' : 'top', fontSize: 11, fill: GREY }}
+              />
             ))}
-            <ReferenceLine x={theory.delta} stroke={ACCENT} strokeWidth={3} label={{ value: `δ = ${fmt(theory.delta)}`, position: 'insideBottomLeft', fontSize: 12, fill: ACCENT, fontWeight: 700 }} />
+            <ReferenceLine
+              x={theory.delta}
+              stroke={ACCENT}
+              strokeWidth={3}
+              label={{ value: `δ = ${fmt(theory.delta)}`, position: 'insideBottomLeft', fontSize: 12, fill: ACCENT, fontWeight: 700 }}
+            />
             <Line type="monotone" dataKey="sizeBAD" name="sizeBAD" stroke={ACCENT} dot={false} strokeWidth={2} isAnimationActive={false} />
           </LineChart>
         </ResponsiveContainer>
@@ -58,7 +76,14 @@ export function LengthChart({ delta }: { delta: number }) {
   while (kMax < 30 && Math.pow(delta, kMax) > 0.01) kMax++;
   const rows = lengthTable(delta, kMax).map((r) => ({ k: r.k, p: r.exactly }));
   return (
-    <div className="h-40 w-full" role="img" aria-label={`Chance that a supergame lasts exactly k rounds, k = 1 to ${kMax}: ${rows.slice(0, 5).map((r) => `${r.k}: ${fmt(r.p)}`).join(', ')} …`}>
+    <div
+      className="h-40 w-full"
+      role="img"
+      aria-label={`Chance that a supergame lasts exactly k rounds, k = 1 to ${kMax}: ${rows
+        .slice(0, 5)
+        .map((r) => `${r.k}: ${fmt(r.p)}`)
+        .join(', ')} …`}
+    >
       <ResponsiveContainer width="100%" height="100%">
         <BarChart data={rows} margin={{ top: 8, right: 8, bottom: 8, left: 0 }}>
           <CartesianGrid stroke="#e2e8f0" vertical={false} />

@@ -45,7 +45,11 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
   const check = complete(game) ? checkStageGame(game, deltaOk ? delta : undefined) : null;
   if (!complete(game) || !check || check.errors.length > 0 || !deltaOk) {
     return (
-      <section aria-labelledby="theory-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4" aria-live="polite">
+      <section
+        aria-labelledby="theory-title"
+        className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4"
+        aria-live="polite"
+      >
         <h2 id="theory-title" className="text-lg font-semibold">
           Theory
         </h2>
@@ -80,12 +84,20 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
       yes: t.verdicts.wslsSPE,
       source: 'one-shot deviation',
     },
-    { name: 'Grim risk-dominates always-defect', condition: `δ ≥ ${fmt(t.riskDominance)}`, yes: t.verdicts.basin === 'tie' ? 'tie' : t.verdicts.riskDominant, source: 'Blonski, Ockenfels & Spagnolo (2011)' },
+    {
+      name: 'Grim risk-dominates always-defect',
+      condition: `δ ≥ ${fmt(t.riskDominance)}`,
+      yes: t.verdicts.basin === 'tie' ? 'tie' : t.verdicts.riskDominant,
+      source: 'Blonski, Ockenfels & Spagnolo (2011)',
+    },
   ];
   const supergames = draft.supergames && draft.supergames > 0 ? draft.supergames : null;
   const seconds = draft.roundSeconds && draft.roundSeconds > 0 ? draft.roundSeconds : null;
   const plan = supergames && seconds ? classTimePlanner({ supergames, delta, secondsPerRound: seconds }) : null;
-  const block = draft.termination.kind === 'block' && draft.termination.k && draft.termination.k >= 1 ? blockTermination(delta, draft.termination.k) : null;
+  const block =
+    draft.termination.kind === 'block' && draft.termination.k && draft.termination.k >= 1
+      ? blockTermination(delta, draft.termination.k)
+      : null;
   return (
     <section aria-labelledby="theory-title" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
       <h2 id="theory-title" className="text-lg font-semibold">
@@ -144,14 +156,14 @@ export function TheoryPanel({ draft }: { draft: TheoryDraft }) {
       <div className="flex flex-col gap-2">
         <h3 className="font-semibold">Supergame length</h3>
         <p className="num text-sm text-slate-700">
-          Expected {fmt(expectedLength(delta), 2)} rounds · median {medianLength(delta)} · P(≥ 5 rounds) = {fmt(pLengthAtLeast(delta, 5))} · P(≥ 10 rounds) ={' '}
-          {fmt(pLengthAtLeast(delta, 10))}
+          Expected {fmt(expectedLength(delta), 2)} rounds · median {medianLength(delta)} · P(≥ 5 rounds) = {fmt(pLengthAtLeast(delta, 5))} ·
+          P(≥ 10 rounds) = {fmt(pLengthAtLeast(delta, 10))}
         </p>
         <LengthChart delta={delta} />
         {block ? (
           <p className="num text-sm text-slate-700">
-            Blocks of {draft.termination.kind === 'block' ? draft.termination.k : ''}: on average {fmt(block.expectedRoundsPlayed, 2)} rounds played and {fmt(block.expectedPaidRounds, 2)} paid per
-            supergame.
+            Blocks of {draft.termination.kind === 'block' ? draft.termination.k : ''}: on average {fmt(block.expectedRoundsPlayed, 2)}{' '}
+            rounds played and {fmt(block.expectedPaidRounds, 2)} paid per supergame.
           </p>
         ) : null}
       </div>

@@ -13,8 +13,21 @@ const buttonStyles = {
 };
 
 /** A link that looks like a button (for navigation; actions use Button in a form). */
-export function ButtonLink({ variant = 'primary', className, ...props }: ComponentProps<typeof Link> & { variant?: keyof typeof buttonStyles }) {
-  return <Link {...props} className={cx('inline-flex min-h-11 items-center justify-center gap-2 rounded-lg px-4 py-2 font-semibold', buttonStyles[variant], className)} />;
+export function ButtonLink({
+  variant = 'primary',
+  className,
+  ...props
+}: ComponentProps<typeof Link> & { variant?: keyof typeof buttonStyles }) {
+  return (
+    <Link
+      {...props}
+      className={cx(
+        'inline-flex min-h-11 items-center justify-center gap-2 rounded-lg px-4 py-2 font-semibold',
+        buttonStyles[variant],
+        className,
+      )}
+    />
+  );
 }
 
 export function Button({ variant = 'primary', className, ...props }: ComponentProps<'button'> & { variant?: keyof typeof buttonStyles }) {
@@ -107,7 +120,15 @@ export function FieldError({ id, children }: { id?: string; children: ReactNode 
 }
 
 /** A notice box; the icon and the heading carry the meaning, never colour alone. */
-export function Notice({ tone = 'info', title, children }: { tone?: 'info' | 'warn' | 'error' | 'ok'; title?: string; children: ReactNode }) {
+export function Notice({
+  tone = 'info',
+  title,
+  children,
+}: {
+  tone?: 'info' | 'warn' | 'error' | 'ok';
+  title?: string;
+  children: ReactNode;
+}) {
   const styles = {
     info: ['border-accent-200 bg-accent-50 text-slate-800', 'ℹ'],
     warn: ['border-amber-300 bg-warn-50 text-slate-900', '⚠'],
@@ -130,7 +151,10 @@ export function Notice({ tone = 'info', title, children }: { tone?: 'info' | 'wa
 
 export function DemoBadge() {
   return (
-    <span className="inline-flex items-center gap-1 rounded-full border border-slate-300 bg-white px-2 py-0.5 text-xs font-semibold text-slate-700" title="Invented demo data">
+    <span
+      className="inline-flex items-center gap-1 rounded-full border border-slate-300 bg-white px-2 py-0.5 text-xs font-semibold text-slate-700"
+      title="Invented demo data"
+    >
       <span aria-hidden="true">◇</span> Demo · invented data
     </span>
   );
@@ -166,7 +190,10 @@ export function RowAction({
       ))}
       <button
         type="submit"
-        className={cx('min-h-9 rounded px-2 font-semibold', tone === 'danger' ? 'text-danger-600 hover:bg-danger-50' : 'text-accent-700 hover:bg-accent-50')}
+        className={cx(
+          'min-h-9 rounded px-2 font-semibold',
+          tone === 'danger' ? 'text-danger-600 hover:bg-danger-50' : 'text-accent-700 hover:bg-accent-50',
+        )}
       >
         {label}
         <span className="sr-only"> {target}</span>

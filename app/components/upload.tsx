@@ -10,7 +10,14 @@ export function CsvFileField({ label }: { label: string }) {
       <label htmlFor={id} className="font-semibold text-slate-800">
         {label}
       </label>
-      <input id={id} name="file" type="file" accept=".csv,text/csv" required className="min-h-11 max-w-full rounded-lg border border-slate-300 bg-white p-2" />
+      <input
+        id={id}
+        name="file"
+        type="file"
+        accept=".csv,text/csv"
+        required
+        className="min-h-11 max-w-full rounded-lg border border-slate-300 bg-white p-2"
+      />
     </div>
   );
 }
@@ -21,7 +28,19 @@ export interface LineIssue {
 }
 
 /** "N problems in file.csv: nothing was written", then each problem with its line. */
-export function LineIssues({ issues, total = issues.length, fileName, verb, children }: { issues: LineIssue[]; total?: number; fileName: string; verb: string; children?: ReactNode }) {
+export function LineIssues({
+  issues,
+  total = issues.length,
+  fileName,
+  verb,
+  children,
+}: {
+  issues: LineIssue[];
+  total?: number;
+  fileName: string;
+  verb: string;
+  children?: ReactNode;
+}) {
   return (
     <Notice tone="error" title={`${total} problem${total === 1 ? '' : 's'} in ${fileName || 'the file'}: nothing was ${verb}`}>
       {children}

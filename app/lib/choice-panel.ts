@@ -107,7 +107,12 @@ export const inAnalysis = (row: Pick<PanelRow, 'origin'>, include: Include) => i
  * The pure step: one participant's stored choice and the partner seat's choice of the same round
  * (null when the partner never chose) → a panel row, or null for a half-finished round.
  */
-export function panelRowOf(ctx: PanelContext, pseudonym: string, own: StoredChoice, partner: Pick<StoredChoice, 'participantKey' | 'action' | 'source' | 'strategy'> | null): PanelRow | null {
+export function panelRowOf(
+  ctx: PanelContext,
+  pseudonym: string,
+  own: StoredChoice,
+  partner: Pick<StoredChoice, 'participantKey' | 'action' | 'source' | 'strategy'> | null,
+): PanelRow | null {
   if (!partner) return null;
   const { session } = ctx;
   const d = ctx.draws.get(own.supergame);
@@ -177,7 +182,10 @@ export interface StoredSession {
  * numeric pseudonym order, then supergame and round; participants who declined research consent
  * (consent = 0) left out unless `keepDeclined`.
  */
-export function sessionPanel(stored: StoredSession, opts: { keepDeclined?: boolean } = {}): { rows: PanelRow[]; unfinished: UnfinishedRound[] } {
+export function sessionPanel(
+  stored: StoredSession,
+  opts: { keepDeclined?: boolean } = {},
+): { rows: PanelRow[]; unfinished: UnfinishedRound[] } {
   const ctx: PanelContext = {
     session: stored.session,
     pseudonyms: new Map(stored.participants.map((p) => [p.participantKey, p.pseudonym])),
@@ -185,11 +193,15 @@ export function sessionPanel(stored: StoredSession, opts: { keepDeclined?: boole
     computerSeats: computerSeatsOf(stored.choices),
   };
   const bySeat = new Map(stored.choices.map((c) => [seatKey(c.supergame, c.pairId, c.seat) + '/' + c.round, c]));
-  const people = stored.participants.filter((p) => opts.keepDeclined || p.consent !== 0).sort((a, b) => comparePseudonyms(a.pseudonym, b.pseudonym));
+  const people = stored.participants
+    .filter((p) => opts.keepDeclined || p.consent !== 0)
+    .sort((a, b) => comparePseudonyms(a.pseudonym, b.pseudonym));
   const rows: PanelRow[] = [];
   const unfinished: UnfinishedRound[] = [];
   for (const p of people) {
-    const mine = stored.choices.filter((c) => c.participantKey === p.participantKey).sort((a, b) => a.supergame - b.supergame || a.round - b.round);
+    const mine = stored.choices
+      .filter((c) => c.participantKey === p.participantKey)
+      .sort((a, b) => a.supergame - b.supergame || a.round - b.round);
     for (const c of mine) {
       const partner = bySeat.get(seatKey(c.supergame, c.pairId, 1 - c.seat) + '/' + c.round) ?? null;
       const row = panelRowOf(ctx, p.pseudonym, c, partner);
@@ -248,7 +260,16 @@ export function estimationRows(panel: readonly PanelRow[], include: Include): Es
       cut = at;
       continue;
     }
-    rows.push({ session: String(r.session), treatment: r.treatment, subject: r.pseudonym, partner: r.partner, supergame: r.supergame, round: r.round, action: r.action, partnerAction: r.partner_action });
+    rows.push({
+      session: String(r.session),
+      treatment: r.treatment,
+      subject: r.pseudonym,
+      partner: r.partner,
+      supergame: r.supergame,
+      round: r.round,
+      action: r.action,
+      partnerAction: r.partner_action,
+    });
   }
   counts.used -= afterLeftOut;
   return { rows, counts, afterLeftOut };

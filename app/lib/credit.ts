@@ -11,9 +11,7 @@
  */
 import type { CreditRule } from './design';
 
-export type Credit =
-  | { kind: 'participation'; credit: number }
-  | { kind: 'paid'; payout: number; currency: string; decimals: number };
+export type Credit = { kind: 'participation'; credit: number } | { kind: 'paid'; payout: number; currency: string; decimals: number };
 
 const SCALE = 10n ** 10n;
 
@@ -47,7 +45,8 @@ export function participationCredit(credit: number, points: number, pointsScaleM
 }
 
 export function creditFor(rule: CreditRule, points: number): Credit {
-  if (rule.kind === 'participation') return { kind: 'participation', credit: participationCredit(rule.credit, points, rule.pointsScaleMax) };
+  if (rule.kind === 'participation')
+    return { kind: 'participation', credit: participationCredit(rule.credit, points, rule.pointsScaleMax) };
   return {
     kind: 'paid',
     payout: paidAmount(rule.showUpFee, rule.ratePerPoint, points, rule.rounding),

@@ -7,7 +7,7 @@ import { type CsvColumn, csvLines, neutraliseCell } from './csv';
 const FORMULAS = [
   '=HYPERLINK("http://evil.example","x")',
   '+1+1',
-  '-2+3+cmd|\' /C calc\'!A0',
+  "-2+3+cmd|' /C calc'!A0",
   '@SUM(1,1)',
   '\t=1+1',
   '\r=1+1',

@@ -61,10 +61,7 @@ export function csvLines(rows: readonly object[], columns: readonly CsvColumn[],
   if (rows.length === 0) return header ? Papa.unparse([fields], { newline: '\n' }) + '\n' : '';
   // any row shape (a codebook entry, a panel row): columns name the keys that are read
   const data = rows.map((row) => columns.map((c) => cellOf(Reflect.get(row, c.key) as Value, c.type)));
-  const body = Papa.unparse(
-    { fields, data },
-    { header, newline: '\n', escapeFormulae: false },
-  );
+  const body = Papa.unparse({ fields, data }, { header, newline: '\n', escapeFormulae: false });
   return body === '' ? '' : body + '\n';
 }
 

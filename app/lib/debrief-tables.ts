@@ -65,7 +65,15 @@ export function chartTable(chart: Exclude<ChartId, 'strategies'>, sessions: read
     case 'cooperation-by-round':
       for (const s of sessions)
         for (const r of s.debrief.byRound)
-          rows.push({ session: s.id, treatment: s.treatment, round: r.round, supergames: r.supergames, choices: r.all.n, cooperation: r4(r.all.rate), include: s.debrief.include });
+          rows.push({
+            session: s.id,
+            treatment: s.treatment,
+            round: r.round,
+            supergames: r.supergames,
+            choices: r.all.n,
+            cooperation: r4(r.all.rate),
+            include: s.debrief.include,
+          });
       return rows;
     case 'outcomes':
       for (const s of sessions)
@@ -85,11 +93,21 @@ export function chartTable(chart: Exclude<ChartId, 'strategies'>, sessions: read
       for (const s of sessions) {
         const n = s.debrief.lengths.lengths.length;
         for (const h of s.debrief.lengths.histogram)
-          rows.push({ session: s.id, treatment: s.treatment, delta: s.delta, length: h.k, observed: h.observed, expected: r4(h.expected), observed_share: r4(h.observed / n), geometric_probability: r4(h.expected / n) });
+          rows.push({
+            session: s.id,
+            treatment: s.treatment,
+            delta: s.delta,
+            length: h.k,
+            observed: h.observed,
+            expected: r4(h.expected),
+            observed_share: r4(h.observed / n),
+            geometric_probability: r4(h.expected / n),
+          });
       }
       return rows;
     case 'points': {
-      for (const s of sessions) for (const p of s.debrief.points) rows.push({ session: s.id, treatment: s.treatment, pseudonym: p.subject, points: p.points });
+      for (const s of sessions)
+        for (const p of s.debrief.points) rows.push({ session: s.id, treatment: s.treatment, pseudonym: p.subject, points: p.points });
       return rows;
     }
     case 'theory':

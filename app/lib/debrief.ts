@@ -9,7 +9,10 @@ import type { StageGame } from './stage-game';
 import { theoryAt } from './thresholds';
 
 /** The columns of a choice-panel row the Debrief reads (app/lib/choice-panel.ts makes them). */
-export type DebriefRow = Pick<PanelRow, 'pseudonym' | 'supergame' | 'round' | 'action' | 'partner_action' | 'payoff' | 'paid' | 'origin' | 'computer_partner' | 'supergame_length'>;
+export type DebriefRow = Pick<
+  PanelRow,
+  'pseudonym' | 'supergame' | 'round' | 'action' | 'partner_action' | 'payoff' | 'paid' | 'origin' | 'computer_partner' | 'supergame_length'
+>;
 
 export interface RateCell {
   /** choices counted (a participant's choice in a round) */
@@ -76,7 +79,11 @@ export interface SessionDebrief {
  * unpaid) are left out and counted (app/lib/choice-panel.ts). Points are the paid payoffs of
  * every row of the seat, whoever chose (what the participant is credited).
  */
-export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: StageGame; delta: number }, include: Include = 'own'): SessionDebrief {
+export function sessionDebrief(
+  rows: readonly DebriefRow[],
+  design: { payoffs: StageGame; delta: number },
+  include: Include = 'own',
+): SessionDebrief {
   const own = rows.filter((r) => inAnalysis(r, include));
   const supergames = [...new Set(rows.map((r) => r.supergame))].sort((a, b) => a - b);
   const lengthOf = new Map<number, number>();
@@ -108,7 +115,11 @@ export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: S
   const byRound: RoundRow[] = [];
   for (let t = 1; t <= maxRound; t++) {
     const at = own.filter((r) => r.round === t);
-    byRound.push({ round: t, supergames: new Set(at.map((r) => r.supergame)).size, all: cell(at.length, at.filter((r) => r.action === 'C').length) });
+    byRound.push({
+      round: t,
+      supergames: new Set(at.map((r) => r.supergame)).size,
+      all: cell(at.length, at.filter((r) => r.action === 'C').length),
+    });
   }
 
   const pointsBy = new Map<string, number>();
@@ -128,7 +139,10 @@ export function sessionDebrief(rows: readonly DebriefRow[], design: { payoffs: S
     overallRound1: cell(round1.length, round1.filter((r) => r.action === 'C').length),
     bySupergame,
     byRound,
-    lengths: lengthFit(supergames.map((s) => ({ supergame: s, length: lengthOf.get(s)! })), design.delta),
+    lengths: lengthFit(
+      supergames.map((s) => ({ supergame: s, length: lengthOf.get(s)! })),
+      design.delta,
+    ),
     points,
     theory: { grimSPE: theory.grimSPE, riskDominance: theory.riskDominance, sizeBAD: theory.sizeBAD, tftNash: theory.tftNash.threshold },
   };
@@ -145,7 +159,13 @@ export function lengthFit(lengths: { supergame: number; length: number }[], delt
   });
   let test: LengthFit['test'];
   try {
-    test = { ok: true, result: geometricLengthGof(lengths.map((l) => l.length), delta) };
+    test = {
+      ok: true,
+      result: geometricLengthGof(
+        lengths.map((l) => l.length),
+        delta,
+      ),
+    };
   } catch (e) {
     test = { ok: false, message: e instanceof Error ? e.message : String(e) };
   }

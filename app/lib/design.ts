@@ -12,18 +12,15 @@ import { isImplementable } from './draws';
  */
 export const DEFAULT_LABELS = { C: 'X', D: 'Y' } as const;
 
-const strategyId = z
-  .string()
-  .refine((id) => LIBRARY.some((a) => a.id === id), { message: 'Choose a strategy from the library' });
+const strategyId = z.string().refine((id) => LIBRARY.some((a) => a.id === id), { message: 'Choose a strategy from the library' });
 
 const money = (what: string) =>
-  z.number({ error: `${what} must be a number` }).finite().min(0, `${what} cannot be negative`);
+  z
+    .number({ error: `${what} must be a number` })
+    .finite()
+    .min(0, `${what} cannot be negative`);
 
-const label = z
-  .string()
-  .trim()
-  .min(1, 'A label cannot be empty')
-  .max(24, 'Keep labels to 24 characters');
+const label = z.string().trim().min(1, 'A label cannot be empty').max(24, 'Keep labels to 24 characters');
 
 export const payoffsSchema = z
   .object({
@@ -50,7 +47,11 @@ export const terminationSchema = z.discriminatedUnion('kind', [
   // Fréchette & Yuksel (2017), block random termination; k = 1 is the standard scheme
   z.object({
     kind: z.literal('block'),
-    k: z.number().int('The block size is a whole number of rounds').min(1, 'A block has at least 1 round').max(50, 'Keep blocks to 50 rounds or fewer'),
+    k: z
+      .number()
+      .int('The block size is a whole number of rounds')
+      .min(1, 'A block has at least 1 round')
+      .max(50, 'Keep blocks to 50 rounds or fewer'),
   }),
 ]);
 

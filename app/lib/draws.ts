@@ -122,12 +122,7 @@ export function supergameDraws(
 }
 
 /** The whole sequence of a session: supergames 1..n. */
-export function drawSequence(
-  seed: Seed,
-  delta: number,
-  supergames: number,
-  termination: Termination = { kind: 'standard' },
-): DrawSequence {
+export function drawSequence(seed: Seed, delta: number, supergames: number, termination: Termination = { kind: 'standard' }): DrawSequence {
   const out: SupergameDraws[] = [];
   for (let s = 1; s <= supergames; s++) out.push(supergameDraws(seed, delta, s, termination));
   return { seed: normaliseSeed(seed), delta, ...drawRule(delta), termination, supergames: out };

@@ -352,9 +352,7 @@ export function checkStrategy(s: Automaton, game: StageGame): { nash: DeltaInter
 
 /** Whether δ lies in one of the intervals. */
 export function inIntervals(intervals: readonly DeltaInterval[], delta: number): boolean {
-  return intervals.some(
-    (iv) => (iv.loClosed ? delta >= iv.lo : delta > iv.lo) && (iv.hiClosed ? delta <= iv.hi : delta < iv.hi),
-  );
+  return intervals.some((iv) => (iv.loClosed ? delta >= iv.lo : delta > iv.lo) && (iv.hiClosed ? delta <= iv.hi : delta < iv.hi));
 }
 
 /** e.g. "[0.72, 1)" or "{0.333333}" or "never". */
@@ -366,14 +364,7 @@ export function formatIntervals(intervals: readonly DeltaInterval[], digits = 6)
     .join(' ∪ ');
 }
 
-export type DeviationKind =
-  | 'none'
-  | 'always-defect'
-  | 'always-cooperate'
-  | 'alternate'
-  | 'deviate-then-conform'
-  | 'other'
-  | 'one-shot';
+export type DeviationKind = 'none' | 'always-defect' | 'always-cooperate' | 'alternate' | 'deviate-then-conform' | 'other' | 'one-shot';
 
 export interface Deviation {
   kind: DeviationKind;
@@ -421,8 +412,7 @@ function describePolicy(P: Prepared, name: string): { kind: DeviationKind; phras
 
   if (dev.every((x) => x === 1)) return { kind: 'always-defect', phrase: 'always defecting', prefix, cycle };
   if (dev.every((x) => x === 0)) return { kind: 'always-cooperate', phrase: 'always cooperating', prefix, cycle };
-  const alternates =
-    dev.every((x, t) => t === 0 || x !== dev[t - 1]) && (cycle.length % 2 === 0 && dev[c0] !== dev[dev.length - 1]);
+  const alternates = dev.every((x, t) => t === 0 || x !== dev[t - 1]) && cycle.length % 2 === 0 && dev[c0] !== dev[dev.length - 1];
   if (alternates) {
     return { kind: 'alternate', phrase: dev[0] === 1 ? 'alternating' : 'alternating, starting with C', prefix, cycle };
   }
@@ -494,4 +484,3 @@ export function breakingDeviation(s: Automaton, game: StageGame, delta: number):
     gain: devValue - V[w],
   };
 }
-

@@ -45,7 +45,10 @@ describe('geometricLengthGof', () => {
     const statistic = 25 / 50 + 25 / 25 + 6.25 / 12.5 + 6.25 / 12.5;
     expect(r.statistic).toBeCloseTo(statistic, 12);
     // Source: @stdlib/stats-chi2gof 0.2.3 as the independent reference (methods.md §7).
-    const ref = chi2gof(r.bins.map((b) => b.observed), r.bins.map((b) => b.expected / r.n));
+    const ref = chi2gof(
+      r.bins.map((b) => b.observed),
+      r.bins.map((b) => b.expected / r.n),
+    );
     expect(r.statistic).toBeCloseTo(ref.statistic, 10);
     expect(r.pValue).toBeCloseTo(ref.pValue, 10);
   });
@@ -76,7 +79,7 @@ describe('geometricLengthGof', () => {
     // 6…36 holds with probability > 0.999 [calc].
     let small = 0;
     for (let s = 0; s < 400; s++) {
-      const u = (k: number) => ((Math.sin(s * 97.13 + k * 13.7) * 43758.5453) % 1 + 1) % 1 || 0.5;
+      const u = (k: number) => (((Math.sin(s * 97.13 + k * 13.7) * 43758.5453) % 1) + 1) % 1 || 0.5;
       const lengths = Array.from({ length: 20 }, (_, k) => 1 + Math.floor(Math.log(u(k)) / Math.log(0.9)));
       if (geometricLengthGof(lengths, 0.9, { seed: s, replicates: 999 }).pValue <= 0.05) small++;
     }

@@ -8,8 +8,8 @@ import { randomInt, rngFor } from './rng';
 /** ln Γ(x) for x > 0, Lanczos approximation (g = 7, n = 9; Numerical Recipes §6.1 style). */
 function logGamma(x: number): number {
   const c = [
-    0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059,
-    12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
+    0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059, 12.507343278686905,
+    -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
   ];
   if (x < 0.5) return Math.log(Math.PI / Math.sin(Math.PI * x)) - logGamma(1 - x);
   const z = x - 1;
@@ -127,8 +127,7 @@ export function geometricLengthGof(
   options: { minExpected?: number; tailFrom?: number; seed?: number; replicates?: number } = {},
 ): GofResult {
   if (!(delta > 0 && delta < 1)) throw new Error(`δ must lie in (0, 1) (got ${delta})`);
-  for (const L of lengths)
-    if (!Number.isInteger(L) || L < 1) throw new Error(`supergame lengths must be integers ≥ 1 (got ${L})`);
+  for (const L of lengths) if (!Number.isInteger(L) || L < 1) throw new Error(`supergame lengths must be integers ≥ 1 (got ${L})`);
   const n = lengths.length;
   if (n === 0) throw new Error('no supergame lengths to test');
   const minExpected = options.minExpected ?? 5;
@@ -158,7 +157,8 @@ export function geometricLengthGof(
   const bins: GofBin[] = observed.map((o, i) => ({ from: i + 1, to: i + 1 < m ? i + 1 : null, observed: o, expected: expected[i] }));
   const statistic = pearson(observed);
   const df = bins.length - 1;
-  if (method === 'chi-square') return { n, delta, bins, statistic, df, pValue: chiSquareSurvival(statistic, df), method, replicates: null, tailFrom: m };
+  if (method === 'chi-square')
+    return { n, delta, bins, statistic, df, pValue: chiSquareSurvival(statistic, df), method, replicates: null, tailFrom: m };
 
   const B = options.replicates ?? SIMULATED_REPLICATES;
   const rng = rngFor(options.seed ?? 0, 'gof', 0);

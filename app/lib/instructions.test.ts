@@ -1,6 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { designSchema } from './design';
-import { fillInstructions, generateInstructions, instructionContradictions, instructionProblems, instructionsTemplate } from './instructions';
+import {
+  fillInstructions,
+  generateInstructions,
+  instructionContradictions,
+  instructionProblems,
+  instructionsTemplate,
+} from './instructions';
 
 const base = { payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 };
 
@@ -24,7 +30,9 @@ describe('instructions generated from a design', () => {
   });
 
   it('disclose the computer partner and its rule, in the design’s neutral labels', () => {
-    const text = generateInstructions(designSchema.parse({ ...base, labels: { C: 'Blue', D: 'Green' }, oddCount: { kind: 'computer', strategy: 'TFT' } }));
+    const text = generateInstructions(
+      designSchema.parse({ ...base, labels: { C: 'Blue', D: 'Green' }, oddCount: { kind: 'computer', strategy: 'TFT' } }),
+    );
     expect(text).toContain('The computer partner starts with Blue and then copies what you did last round.');
     expect(text).not.toMatch(/TFT|fixed rule/);
     expect(text).toContain('You are always told when your partner is a computer.');
@@ -59,11 +67,16 @@ describe('instruction templates', () => {
   });
 
   it('follow δ and the payoffs when a template is edited by hand and the parameters change afterwards', () => {
-    const text = 'Each round: both {C} gives you {R}. After each round, another round follows with a chance of {delta%} (a draw from 1 to {drawMax}, {drawCutoff} or less continues).';
+    const text =
+      'Each round: both {C} gives you {R}. After each round, another round follows with a chance of {delta%} (a draw from 1 to {drawMax}, {drawCutoff} or less continues).';
     const at75 = designSchema.parse({ ...base, instructions: text });
-    expect(fillInstructions(at75)).toBe('Each round: both X gives you 40. After each round, another round follows with a chance of 75% (a draw from 1 to 100, 75 or less continues).');
+    expect(fillInstructions(at75)).toBe(
+      'Each round: both X gives you 40. After each round, another round follows with a chance of 75% (a draw from 1 to 100, 75 or less continues).',
+    );
     const at50 = designSchema.parse({ ...base, delta: 0.5, payoffs: { R: 30, S: 0, T: 50, P: 10 }, instructions: text });
-    expect(fillInstructions(at50)).toBe('Each round: both X gives you 30. After each round, another round follows with a chance of 50% (a draw from 1 to 100, 50 or less continues).');
+    expect(fillInstructions(at50)).toBe(
+      'Each round: both X gives you 30. After each round, another round follows with a chance of 50% (a draw from 1 to 100, 50 or less continues).',
+    );
     expect(instructionProblems(at50)).toEqual([]);
   });
 
@@ -77,7 +90,14 @@ describe('instruction templates', () => {
 
   it('catch a hand-written 75 % kept after δ changed to 0.5, and every other stale number of the generated text', () => {
     const old = generateInstructions(designSchema.parse({ ...base, delta: 0.75 }));
-    const d = designSchema.parse({ ...base, delta: 0.5, payoffs: { R: 40, S: 12, T: 60, P: 25 }, supergames: 12, roundSeconds: 30, instructions: old });
+    const d = designSchema.parse({
+      ...base,
+      delta: 0.5,
+      payoffs: { R: 40, S: 12, T: 60, P: 25 },
+      supergames: 12,
+      roundSeconds: 30,
+      instructions: old,
+    });
     const problems = instructionProblems(d);
     expect(problems.some((p) => p.includes('“75%”') && p.includes('δ = 0.5'))).toBe(true);
     expect(problems.some((p) => p.includes('“75 or less”'))).toBe(true);

@@ -106,7 +106,8 @@ export function placeholderProblems(d: Design, text: string): string[] {
   const out = new Set<string>();
   for (const [, name] of text.matchAll(PLACEHOLDER_RE)) {
     if (!(name in values)) out.add(`{${name}} is not a placeholder Parley knows; the list is under the text box.`);
-    else if (values[name as Placeholder] === undefined) out.add(`{${name}} has no value in this design (${PLACEHOLDER_HELP[name as Placeholder]}).`);
+    else if (values[name as Placeholder] === undefined)
+      out.add(`{${name}} has no value in this design (${PLACEHOLDER_HELP[name as Placeholder]}).`);
   }
   return [...out];
 }
@@ -161,8 +162,17 @@ function compose(d: Design, v: (k: Placeholder) => string): string {
   } else {
     lines.push('', 'If the number of participants is odd, one participant sits out each supergame, in turn, and waits for the next one.');
   }
-  lines.push('', creditWords(d, v), '', 'Everything described here is exactly how the experiment works: the chance of another round is the one stated, the points are as shown, and nobody is misled.');
-  if (d.consent) lines.push('', 'Before you start you will be asked whether your choices may be used for research. Your answer does not affect your points or your grade.');
+  lines.push(
+    '',
+    creditWords(d, v),
+    '',
+    'Everything described here is exactly how the experiment works: the chance of another round is the one stated, the points are as shown, and nobody is misled.',
+  );
+  if (d.consent)
+    lines.push(
+      '',
+      'Before you start you will be asked whether your choices may be used for research. Your answer does not affect your points or your grade.',
+    );
   return lines.join('\n');
 }
 
@@ -175,7 +185,9 @@ function timeoutWords(d: Design, x: string, y: string): string {
     case 'repeat-last':
       return `your choice of the round before is repeated (${x} in a supergame's first round)`;
     case 'computer-strategy':
-      return d.oddCount.kind === 'computer' ? `the choice is made for you by the rule the computer partner follows` : `${y} is chosen for you`;
+      return d.oddCount.kind === 'computer'
+        ? `the choice is made for you by the rule the computer partner follows`
+        : `${y} is chosen for you`;
   }
 }
 
@@ -210,19 +222,26 @@ export function instructionContradictions(d: Design, text: string = fillInstruct
   for (const m of text.matchAll(/(\d+(?:[.,]\d+)?)\s?(%|per ?cent\b)/gi)) {
     const p = readNumber(m[1]);
     if (!same(p, deltaPct) && !same(p, endPct)) {
-      out.push(`The instructions say “${m[0]}”, but δ = ${d.delta}: the chance of another round is ${v['delta%']} (and of the supergame ending ${v['end%']}). Write {delta%} or {end%} so the number follows δ.`);
+      out.push(
+        `The instructions say “${m[0]}”, but δ = ${d.delta}: the chance of another round is ${v['delta%']} (and of the supergame ending ${v['end%']}). Write {delta%} or {end%} so the number follows δ.`,
+      );
     }
   }
   for (const m of text.matchAll(/(?:δ|delta|probability(?: of| is)?|chance(?: of| is)?)\s*(?:=|is|of)?\s*(0?[.,]\d+)(?!\s?%)/gi)) {
     const p = readNumber(m[1]);
-    if (!same(p, d.delta) && !same(p, 1 - d.delta)) out.push(`The instructions say “${m[0]}”, but δ = ${d.delta}. Write {delta} so the number follows δ.`);
+    if (!same(p, d.delta) && !same(p, 1 - d.delta))
+      out.push(`The instructions say “${m[0]}”, but δ = ${d.delta}. Write {delta} so the number follows δ.`);
   }
   for (const m of text.matchAll(/\bfrom 1 to (\d[\d,]*)/gi)) {
-    if (readNumber(m[1].replace(/,/g, '')) !== max) out.push(`The instructions say the draw runs “${m[0]}”, but with δ = ${d.delta} it runs from 1 to ${max}. Write {drawMax}.`);
+    if (readNumber(m[1].replace(/,/g, '')) !== max)
+      out.push(`The instructions say the draw runs “${m[0]}”, but with δ = ${d.delta} it runs from 1 to ${max}. Write {drawMax}.`);
   }
   for (const m of text.matchAll(/\b(\d+) or less\b|\bdraw (?:is )?above (\d+)|\bif it is above (\d+)/gi)) {
     const n = Number(m[1] ?? m[2] ?? m[3]);
-    if (n !== cutoff) out.push(`The instructions say “${m[0]}”, but with δ = ${d.delta} the supergame goes on while the draw is ${cutoff} or less. Write {drawCutoff}.`);
+    if (n !== cutoff)
+      out.push(
+        `The instructions say “${m[0]}”, but with δ = ${d.delta} the supergame goes on while the draw is ${cutoff} or less. Write {drawCutoff}.`,
+      );
   }
   const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
   const label = `(${escape(d.labels.C)}|${escape(d.labels.D)})`;
@@ -233,14 +252,17 @@ export function instructionContradictions(d: Design, text: string = fillInstruct
   for (const m of text.matchAll(pay)) {
     const [own, partner] = points[`${actionOf(m[1])}${actionOf(m[2])}` as keyof typeof points];
     if (!same(readNumber(m[3]), own) || !same(readNumber(m[4]), partner)) {
-      out.push(`The instructions say “${m[0]}”, but the payoffs give you ${num(own)} and your partner ${num(partner)}. Write the points as {R}, {S}, {T} and {P}.`);
+      out.push(
+        `The instructions say “${m[0]}”, but the payoffs give you ${num(own)} and your partner ${num(partner)}. Write the points as {R}, {S}, {T} and {P}.`,
+      );
     }
   }
   for (const m of text.matchAll(/\bThere (?:are|is) (\d+) supergames?/gi)) {
     if (Number(m[1]) !== d.supergames) out.push(`The instructions say “${m[0]}”, but the design has ${d.supergames}. Write {supergames}.`);
   }
   for (const m of text.matchAll(/\b(\d+) seconds to choose/gi)) {
-    if (Number(m[1]) !== d.roundSeconds) out.push(`The instructions say “${m[0]}”, but the round timer is ${d.roundSeconds} seconds. Write {seconds}.`);
+    if (Number(m[1]) !== d.roundSeconds)
+      out.push(`The instructions say “${m[0]}”, but the round timer is ${d.roundSeconds} seconds. Write {seconds}.`);
   }
   return out;
 }
@@ -270,7 +292,10 @@ export function instructionSummary(d: Design): string[] {
         ? `Your points turn into up to ${num(c.credit)} course credit.`
         : `Taking part earns ${num(c.credit)} course credit.`,
   ];
-  const before = [d.comprehension ? 'three questions check that the rules are clear' : null, d.practice ? 'you can practise against the computer (not recorded)' : null].filter(Boolean);
+  const before = [
+    d.comprehension ? 'three questions check that the rules are clear' : null,
+    d.practice ? 'you can practise against the computer (not recorded)' : null,
+  ].filter(Boolean);
   if (before.length) out.push(`Before the game ${before.join(', then ')}.`);
   return out;
 }

@@ -102,10 +102,14 @@ function prepare(input: MatchingInput): Prepared {
   return { ids, n, met, last, eligible: counts.map((c) => c === fewest) };
 }
 
-function finish(p: Prepared, input: MatchingInput, pairIdx: [number, number][], oddIdx: number | null, method: Matching['method']): Matching {
-  const pairs = pairIdx
-    .map(([a, b]) => (a < b ? [a, b] : [b, a]) as [number, number])
-    .sort((x, y) => x[0] - y[0]);
+function finish(
+  p: Prepared,
+  input: MatchingInput,
+  pairIdx: [number, number][],
+  oddIdx: number | null,
+  method: Matching['method'],
+): Matching {
+  const pairs = pairIdx.map(([a, b]) => (a < b ? [a, b] : [b, a]) as [number, number]).sort((x, y) => x[0] - y[0]);
   return {
     supergame: input.supergame,
     pairs: pairs.map(([a, b]) => [p.ids[a], p.ids[b]]),
@@ -140,8 +144,14 @@ function fromRoundRobin(p: Prepared, input: MatchingInput): Matching | null {
   // One schedule per session seed and head-count, the same in every supergame, so that successive
   // supergames walk through the rounds of one 1-factorisation.
   const rng = rngFor(input.seed, 'schedule', 0);
-  const seatOf = shuffleInPlace(rng, Array.from({ length: m }, (_, i) => i));
-  const rounds = shuffleInPlace(rng, Array.from({ length: m - 1 }, (_, i) => i));
+  const seatOf = shuffleInPlace(
+    rng,
+    Array.from({ length: m }, (_, i) => i),
+  );
+  const rounds = shuffleInPlace(
+    rng,
+    Array.from({ length: m - 1 }, (_, i) => i),
+  );
   const last = m - 1;
   for (const r of rounds) {
     // circle method: position `last` stays, the others rotate; checked pair by pair, as most rounds
@@ -287,13 +297,16 @@ function maximumMatching(V: number, adj: (a: number, b: number) => boolean, orde
 /** Steps 2 and 3 (everything but the round-robin schedule): see the head of this file. */
 export function matchMinimisingRepeats(input: MatchingInput, prepared?: Prepared): Matching {
   const p = prepared ?? prepare(input);
-  const { n, met, eligible } = p;
+  const { n, met } = p;
   const odd = n % 2 === 1;
   // the odd seat is a dummy vertex joined only to those with the fewest odd-count turns
   const V = odd ? n + 1 : n;
   const dummy = odd ? n : -1;
   const rng = rngFor(input.seed, 'matching', input.supergame);
-  const order = shuffleInPlace(rng, Array.from({ length: V }, (_, i) => i));
+  const order = shuffleInPlace(
+    rng,
+    Array.from({ length: V }, (_, i) => i),
+  );
 
   const neverMet = allowing(p, dummy, (a, b) => met[a * n + b] === 0);
   const match = greedyStart(V, neverMet, order, rng);
@@ -316,7 +329,13 @@ function allowing(p: Prepared, dummy: number, ok: Adjacency): Adjacency {
 const isPerfect = (match: Int32Array) => match.every((m) => m !== -1);
 
 /** A random greedy matching: on the dense graphs of a class it leaves very few vertices to augment. */
-function greedyStart(V: number, adj: Adjacency, order: readonly number[], rng: ReturnType<typeof rngFor>, match = new Int32Array(V).fill(-1)) {
+function greedyStart(
+  V: number,
+  adj: Adjacency,
+  order: readonly number[],
+  rng: ReturnType<typeof rngFor>,
+  match = new Int32Array(V).fill(-1),
+) {
   for (const v of order) {
     if (match[v] !== -1) continue;
     const offset = V > 0 ? randomInt(rng, 0, V - 1) : 0;
@@ -382,13 +401,23 @@ function balancedByThreshold(p: Prepared, dummy: number, order: readonly number[
   for (const avoidLast of [true, false]) {
     for (let k = 1; k <= maxMet; k++) {
       const match = Int32Array.from(neverMet);
-      maximumMatching(V, allowing(p, dummy, (a, b) => met[a * n + b] <= k && !(avoidLast && last[a * n + b])), order, match);
+      maximumMatching(
+        V,
+        allowing(p, dummy, (a, b) => met[a * n + b] <= k && !(avoidLast && last[a * n + b])),
+        order,
+        match,
+      );
       if (isPerfect(match)) return match;
     }
   }
   // Unreachable for n ≥ 1: with every pair allowed the graph is complete.
   const match = Int32Array.from(neverMet);
-  maximumMatching(V, allowing(p, dummy, () => true), order, match);
+  maximumMatching(
+    V,
+    allowing(p, dummy, () => true),
+    order,
+    match,
+  );
   return match;
 }
 

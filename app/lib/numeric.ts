@@ -139,15 +139,7 @@ export function pathValues(
  * of them zero). Stops when the bracket is narrower than xtol (absolute, plus a few ulp of the
  * root) or a zero is hit; returns the best estimate.
  */
-export function brentRoot(
-  f: (x: number) => number,
-  a: number,
-  b: number,
-  fa = f(a),
-  fb = f(b),
-  xtol = 1e-15,
-  maxIter = 200,
-): number {
+export function brentRoot(f: (x: number) => number, a: number, b: number, fa = f(a), fb = f(b), xtol = 1e-15, maxIter = 200): number {
   if (fa === 0) return a;
   if (fb === 0) return b;
   if (fa > 0 === fb > 0) throw new Error('brentRoot: the bracket does not change sign');

@@ -26,32 +26,80 @@ export const PANEL_CODEBOOK = [
   { column: 'T', type: 'number', meaning: 'stage payoff for D against C (temptation)', values: 'points' },
   { column: 'P', type: 'number', meaning: 'stage payoff when both choose D (punishment)', values: 'points' },
   { column: 'delta', type: 'number', meaning: 'δ, the probability that a supergame continues after a round', values: '0 < delta < 1' },
-  { column: 'pseudonym', type: 'text', meaning: 'the participant’s code in this session (per session: the same person has another code in another session)', values: 'P-001, P-002, …' },
+  {
+    column: 'pseudonym',
+    type: 'text',
+    meaning: 'the participant’s code in this session (per session: the same person has another code in another session)',
+    values: 'P-001, P-002, …',
+  },
   {
     column: 'partner',
     type: 'text',
-    meaning: 'the partner in this round: a pseudonym, or computer:<strategy> when a disclosed computer chose for the partner’s seat (odd head-count, or a participant handed to a computer)',
+    meaning:
+      'the partner in this round: a pseudonym, or computer:<strategy> when a disclosed computer chose for the partner’s seat (odd head-count, or a participant handed to a computer)',
     values: 'P-… or computer:TFT, computer:Grim, …',
   },
-  { column: 'supergame', type: 'integer', meaning: 'number of the supergame (one repeated game with one partner) in the session', values: '1, 2, …' },
-  { column: 'round', type: 'integer', meaning: 'round within the supergame', values: '1 … supergame_length (block termination: rounds after the end are played, not paid)' },
-  { column: 'action', type: 'text', meaning: 'the participant’s action, whatever the labels shown on the phone', values: 'C (cooperate) or D (defect)' },
+  {
+    column: 'supergame',
+    type: 'integer',
+    meaning: 'number of the supergame (one repeated game with one partner) in the session',
+    values: '1, 2, …',
+  },
+  {
+    column: 'round',
+    type: 'integer',
+    meaning: 'round within the supergame',
+    values: '1 … supergame_length (block termination: rounds after the end are played, not paid)',
+  },
+  {
+    column: 'action',
+    type: 'text',
+    meaning: 'the participant’s action, whatever the labels shown on the phone',
+    values: 'C (cooperate) or D (defect)',
+  },
   { column: 'partner_action', type: 'text', meaning: 'the partner’s action in the same round', values: 'C or D' },
-  { column: 'payoff', type: 'number', meaning: 'the participant’s stage payoff this round, from the frozen design', values: 'one of R, S, T, P; counts toward points only when round ≤ supergame_length' },
+  {
+    column: 'payoff',
+    type: 'number',
+    meaning: 'the participant’s stage payoff this round, from the frozen design',
+    values: 'one of R, S, T, P; counts toward points only when round ≤ supergame_length',
+  },
   {
     column: 'source',
     type: 'text',
-    meaning: 'who chose the action: the participant, the design’s timeout rule when the round timer ran out, or a computer playing the participant’s seat after a hand-over',
+    meaning:
+      'who chose the action: the participant, the design’s timeout rule when the round timer ran out, or a computer playing the participant’s seat after a hand-over',
     values: 'player, timeout, computer',
   },
-  { column: 'decision_ms', type: 'integer', meaning: 'milliseconds from the round opening to this choice, paused time excluded', values: '≥ 0' },
-  { column: 'draw', type: 'integer', meaning: 'the termination draw made after this round (common to all pairs of the session)', values: '1 … 100 (1 … 1000 or 1 … 10000 when 100·δ is not whole); the supergame continues while draw ≤ that maximum × δ' },
-  { column: 'supergame_length', type: 'integer', meaning: 'L, the rounds of this supergame that count (first draw above the cut-off)', values: '≥ 1' },
-  { column: 'timestamp', type: 'timestamp', meaning: 'server time of the choice', values: 'ISO 8601 in UTC, e.g. 2027-03-03T10:21:07.412Z' },
+  {
+    column: 'decision_ms',
+    type: 'integer',
+    meaning: 'milliseconds from the round opening to this choice, paused time excluded',
+    values: '≥ 0',
+  },
+  {
+    column: 'draw',
+    type: 'integer',
+    meaning: 'the termination draw made after this round (common to all pairs of the session)',
+    values: '1 … 100 (1 … 1000 or 1 … 10000 when 100·δ is not whole); the supergame continues while draw ≤ that maximum × δ',
+  },
+  {
+    column: 'supergame_length',
+    type: 'integer',
+    meaning: 'L, the rounds of this supergame that count (first draw above the cut-off)',
+    values: '≥ 1',
+  },
+  {
+    column: 'timestamp',
+    type: 'timestamp',
+    meaning: 'server time of the choice',
+    values: 'ISO 8601 in UTC, e.g. 2027-03-03T10:21:07.412Z',
+  },
   {
     column: 'paid',
     type: 'integer',
-    meaning: 'whether the round counts toward points: round ≤ supergame_length. Under block termination the rounds of the last block after the supergame really ended are played but not paid',
+    meaning:
+      'whether the round counts toward points: round ≤ supergame_length. Under block termination the rounds of the last block after the supergame really ended are played but not paid',
     values: '1 (paid) or 0 (unpaid)',
   },
   {
@@ -61,11 +109,17 @@ export const PANEL_CODEBOOK = [
       'where the choice came from: own = the participant’s own choice in a paid round; timeout = filled by the design’s timeout rule; computer_seat = a computer played the participant’s seat after a hand-over; unpaid_round = a round after the supergame ended (block termination), whoever chose. Parley’s cooperation figures and estimations use origin = own unless the Debrief’s switch includes every origin',
     values: 'own, timeout, computer_seat, unpaid_round',
   },
-  { column: 'partner_source', type: 'text', meaning: 'who chose the partner’s action, as in source (computer also for a disclosed odd-count computer partner)', values: 'player, timeout, computer' },
+  {
+    column: 'partner_source',
+    type: 'text',
+    meaning: 'who chose the partner’s action, as in source (computer also for a disclosed odd-count computer partner)',
+    values: 'player, timeout, computer',
+  },
   {
     column: 'computer_partner',
     type: 'integer',
-    meaning: 'whether a computer chose for the partner’s seat in any round of this supergame (the disclosed odd-count partner, or the partner handed to a computer); the participant’s own choices against it are origin = own',
+    meaning:
+      'whether a computer chose for the partner’s seat in any round of this supergame (the disclosed odd-count partner, or the partner handed to a computer); the participant’s own choices against it are origin = own',
     values: '1 or 0',
   },
 ] as const satisfies readonly CodebookEntry[];
@@ -84,7 +138,12 @@ export const PANEL_NOTES = [
 export const IDENTIFIED_CODEBOOK = [
   { column: 'name', type: 'text', meaning: 'the participant’s name on Parley (personal data)', values: 'free text, empty when unknown' },
   { column: 'email', type: 'text', meaning: 'the participant’s e-mail address (personal data)', values: 'e-mail address' },
-  { column: 'student_id', type: 'text', meaning: 'the student id from the course roster (personal data)', values: 'free text, empty when unknown' },
+  {
+    column: 'student_id',
+    type: 'text',
+    meaning: 'the student id from the course roster (personal data)',
+    values: 'free text, empty when unknown',
+  },
   { column: 'consent', type: 'text', meaning: 'research consent recorded in the session', values: 'yes, no, or not asked' },
 ] as const satisfies readonly CodebookEntry[];
 
@@ -105,7 +164,7 @@ export function panelCsvColumns(identified: boolean): CsvColumn[] {
 
 /** How every CSV Parley writes treats text that a spreadsheet would run (app/lib/csv.ts). */
 export const FORMULA_NOTE =
-  'A text cell that begins with =, +, -, @, a tab or a carriage return is prefixed with a single quote (\'), so that spreadsheets show it as text instead of running it as a formula.';
+  "A text cell that begins with =, +, -, @, a tab or a carriage return is prefixed with a single quote ('), so that spreadsheets show it as text instead of running it as a formula.";
 
 export function codebookCsv(identified = false): string {
   return csvLines(codebookFor(identified), csvColumns(['column', 'type', 'meaning', 'values'], 'text'));
@@ -114,7 +173,13 @@ export function codebookCsv(identified = false): string {
 const cell = (s: string) => s.replace(/\|/g, '\\|');
 
 /** The README placed inside a zip of several files: what is in it, the cautions, the codebook. */
-export function panelReadme(opts: { course: string; sessions: { id: number; treatment: string; simulated: boolean }[]; identified: boolean; files: string[]; createdAt: Date }): string {
+export function panelReadme(opts: {
+  course: string;
+  sessions: { id: number; treatment: string; simulated: boolean }[];
+  identified: boolean;
+  files: string[];
+  createdAt: Date;
+}): string {
   const lines = [
     `# Choice panel — ${opts.course}`,
     '',
@@ -126,7 +191,9 @@ export function panelReadme(opts: { course: string; sessions: { id: number; trea
     '',
     '## Sessions',
     '',
-    ...opts.sessions.map((s) => `- session ${s.id}: ${s.treatment}${s.simulated ? ' (simulated demo data: the choices are invented)' : ''}`),
+    ...opts.sessions.map(
+      (s) => `- session ${s.id}: ${s.treatment}${s.simulated ? ' (simulated demo data: the choices are invented)' : ''}`,
+    ),
     '',
     '## Cautions',
     '',

@@ -9,8 +9,28 @@ describe('parseChoiceCsv', () => {
     const { rows, errors } = parseChoiceCsv(csv);
     expect(errors).toEqual([]);
     expect(rows).toEqual([
-      { session: 'S1', treatment: 'D75R48', subject: 'P-001', partner: 'P-002', supergame: 1, round: 1, action: 'C', partnerAction: 'D', line: 2 },
-      { session: 'S1', treatment: 'D75R48', subject: 'P-002', partner: 'P-001', supergame: 1, round: 1, action: 'D', partnerAction: 'C', line: 3 },
+      {
+        session: 'S1',
+        treatment: 'D75R48',
+        subject: 'P-001',
+        partner: 'P-002',
+        supergame: 1,
+        round: 1,
+        action: 'C',
+        partnerAction: 'D',
+        line: 2,
+      },
+      {
+        session: 'S1',
+        treatment: 'D75R48',
+        subject: 'P-002',
+        partner: 'P-001',
+        supergame: 1,
+        round: 1,
+        action: 'D',
+        partnerAction: 'C',
+        line: 3,
+      },
     ]);
   });
 
@@ -60,7 +80,10 @@ describe('readChoiceCsv and estimateFromCsv', () => {
 
   it('estimates a clean file per treatment', () => {
     const lines = [HEADER];
-    for (const [s, t] of [['S1', 'A'], ['S2', 'B']])
+    for (const [s, t] of [
+      ['S1', 'A'],
+      ['S2', 'B'],
+    ])
       for (let r = 1; r <= 3; r++) lines.push(`${s},${t},0.75,1,${r},P-1,P-2,D,D,25`, `${s},${t},0.75,1,${r},P-2,P-1,D,D,25`);
     const run = estimateFromCsv(lines.join('\n'), { strategies: 'ALLD,ALLC', window: 'all' });
     expect(run.errors).toEqual([]);

@@ -56,9 +56,7 @@ export function parseColumnMap(pairs: readonly string[]): Partial<ColumnMap> {
     const m = /^([A-Za-z_]+)=(.+)$/.exec(pair.trim());
     const field = m ? FIELD_ALIASES[m[1]] : undefined;
     if (!m || !field)
-      throw new Error(
-        `Bad column mapping "${pair}": use field=column with field one of ${Object.keys(FIELD_ALIASES).join(', ')}`,
-      );
+      throw new Error(`Bad column mapping "${pair}": use field=column with field one of ${Object.keys(FIELD_ALIASES).join(', ')}`);
     map[field] = m[2];
   }
   return map;

@@ -61,10 +61,7 @@ describe('buildPanel', () => {
 
 describe('windows', () => {
   // Lengths 4, 3, 5, 2, 6 → starts 0, 4, 7, 12, 14.
-  const two = [
-    ...pairRows('S1', 'A', 'P-1', 'P-2', [4, 3, 5, 2, 6]),
-    ...pairRows('S2', 'B', 'P-1', 'P-2', [1, 1]),
-  ];
+  const two = [...pairRows('S1', 'A', 'P-1', 'P-2', [4, 3, 5, 2, 6]), ...pairRows('S2', 'B', 'P-1', 'P-2', [1, 1])];
   const { panel } = buildPanel(two);
   const numbers = (w: string, session = 'S1') =>
     windowSupergames(panel, parseWindow(w))

@@ -201,8 +201,7 @@ export function parseWindow(text: string): Window {
   m = /^last:(\d+)$/.exec(s);
   if (m && Number(m[1]) >= 1) return { kind: 'last', n: Number(m[1]) };
   m = /^supergames:(\d+)-(\d+)$/.exec(s);
-  if (m && Number(m[1]) >= 1 && Number(m[2]) >= Number(m[1]))
-    return { kind: 'supergames', from: Number(m[1]), to: Number(m[2]) };
+  if (m && Number(m[1]) >= 1 && Number(m[2]) >= Number(m[1])) return { kind: 'supergames', from: Number(m[1]), to: Number(m[2]) };
   throw new Error(`Unknown window "${text}": use all, after-rounds:R, last:N or supergames:FROM-TO`);
 }
 

@@ -31,7 +31,13 @@ export function automatonNext(a: Automaton, own: readonly Action[], partner: rea
 }
 
 /** One practice round: my choice, the computer's by its rule, the points, and the draw (1…max). */
-export function playPracticeRound(d: Pick<Design, 'payoffs' | 'delta'>, computer: Automaton, history: readonly PracticeRound[], own: Action, draw: number): PracticeRound {
+export function playPracticeRound(
+  d: Pick<Design, 'payoffs' | 'delta'>,
+  computer: Automaton,
+  history: readonly PracticeRound[],
+  own: Action,
+  draw: number,
+): PracticeRound {
   const c = automatonNext(
     computer,
     history.map((r) => r.computer),

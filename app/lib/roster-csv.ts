@@ -78,7 +78,8 @@ const rowSchema = z.object({
 
 function issueMessage(issue: z.core.$ZodIssue, raw: Record<RosterField, string>): string {
   const field = issue.path[0] as RosterField;
-  if (field === 'email' && issue.code !== 'too_small' && issue.code !== 'too_big') return `bad e-mail "${raw.email.trim()}": ${issue.message}`;
+  if (field === 'email' && issue.code !== 'too_small' && issue.code !== 'too_big')
+    return `bad e-mail "${raw.email.trim()}": ${issue.message}`;
   return issue.message;
 }
 
@@ -90,7 +91,10 @@ export function parseRoster(text: string): ParsedRoster {
   if (input.trim() === '') return { rows, errors: [{ line: null, message: 'the file is empty' }] };
   // A file saved in another encoding arrives with replacement characters where accents were.
   if (input.includes('\uFFFD')) {
-    return { rows, errors: [{ line: null, message: 'the file is not UTF-8 text: save it from your spreadsheet as “CSV UTF-8” and upload it again' }] };
+    return {
+      rows,
+      errors: [{ line: null, message: 'the file is not UTF-8 text: save it from your spreadsheet as “CSV UTF-8” and upload it again' }],
+    };
   }
 
   // Lines are counted from the parser's cursor, so quoted line breaks keep the numbers right.

@@ -10,12 +10,26 @@ describe('bootstrapOnWorkers', () => {
     // Source: methods.md §5 (bootstrap over subjects, seeded); equality holds because replicate r
     // always draws from substream r of the seed.
     const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
-    const sim = simulatePanel({ strategies, shares: [0.4, 0.1, 0.1, 0.3, 0.05, 0.05], beta: 0.9, subjects: 60, supergames: 6, delta: 0.75, seed: 5 });
+    const sim = simulatePanel({
+      strategies,
+      shares: [0.4, 0.1, 0.1, 0.3, 0.05, 0.05],
+      beta: 0.9,
+      subjects: 60,
+      supergames: 6,
+      delta: 0.75,
+      seed: 5,
+    });
     const table = countsTable(buildPanel(sim.rows).panel.subjects, strategies);
     const point = estimate(table);
     const progress: number[] = [];
     const B = 45;
-    const onWorkers = await bootstrapOnWorkers(table, point, { B, seed: 9, workers: 2, chunk: 7, onProgress: (done, total) => progress.push(done / total) });
+    const onWorkers = await bootstrapOnWorkers(table, point, {
+      B,
+      seed: 9,
+      workers: 2,
+      chunk: 7,
+      onProgress: (done, total) => progress.push(done / total),
+    });
     const inThread = estimateReplicates(table, point, 9, 0, B);
     expect(onWorkers.replicates).toEqual(inThread);
     expect(onWorkers.sdShares).toEqual(summariseReplicates(inThread, 9).sdShares);

@@ -59,10 +59,10 @@ export async function bootstrapOnWorkers(
   const tsxApi = tsEntry ? tsxEsmApiUrl() : '';
   const spawn = () =>
     tsEntry
-      ? new Worker(
-          `import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(url.href)}); });`,
-          { eval: true, workerData: init },
-        )
+      ? new Worker(`import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(url.href)}); });`, {
+          eval: true,
+          workerData: init,
+        })
       : new Worker(url, { workerData: init });
 
   const replicates: Replicate[] = new Array(B);

@@ -55,12 +55,22 @@ function nelderMeadLogLik(table: CountsTable): number {
     const m = Math.max(...z);
     const e = z.map((v) => Math.exp(v - m));
     const s = e.reduce((a, b) => a + b, 0);
-    return -logLikelihood(table, e.map((v) => v / s), 1 / (1 + Math.exp(-x[K - 1])));
+    return -logLikelihood(
+      table,
+      e.map((v) => v / s),
+      1 / (1 + Math.exp(-x[K - 1])),
+    );
   };
   let x = [...Array<number>(K - 1).fill(0), 1];
   let best = Infinity;
   for (let run = 0; run < 100; run++) {
-    const r = fmin.nelderMead(f, x, { maxIterations: 10_000, minErrorDelta: 1e-13, minTolerance: 1e-10, nonZeroDelta: 1.2, zeroDelta: 0.5 });
+    const r = fmin.nelderMead(f, x, {
+      maxIterations: 10_000,
+      minErrorDelta: 1e-13,
+      minTolerance: 1e-10,
+      nonZeroDelta: 1.2,
+      zeroDelta: 0.5,
+    });
     x = r.x;
     const gain = best - r.fx;
     best = Math.min(best, r.fx);
@@ -127,7 +137,15 @@ describe('estimation', () => {
   it('EM never lowers ln L, keeps shares on the simplex and beats random parameter points', () => {
     // Source: monotonicity of EM (Dempster, Laird & Rubin 1977) [mem].
     const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
-    const sim = simulatePanel({ strategies, shares: [0.4, 0.1, 0.1, 0.2, 0.1, 0.1], beta: 0.9, subjects: 30, supergames: 5, delta: 0.75, seed: 11 });
+    const sim = simulatePanel({
+      strategies,
+      shares: [0.4, 0.1, 0.1, 0.2, 0.1, 0.1],
+      beta: 0.9,
+      subjects: 30,
+      supergames: 5,
+      delta: 0.75,
+      seed: 11,
+    });
     const table = countsTable(buildPanel(sim.rows).panel.subjects, strategies);
     const best = estimate(table);
     fc.assert(

@@ -183,19 +183,14 @@ export function posteriors(table: CountsTable, shares: ArrayLike<number>, beta: 
       if (a[k] > max) max = a[k];
     }
     let s = 0;
-    for (let k = 0; k < K; k++) s += (a[k] = Math.exp(a[k] - max));
+    for (let k = 0; k < K; k++) s += a[k] = Math.exp(a[k] - max);
     out.push(a.map((v) => v / s));
   }
   return out;
 }
 
 /** ln L(φ, β) of methods.md §5, in log space; `weights` as in runEm. */
-export function logLikelihood(
-  table: CountsTable,
-  shares: ArrayLike<number>,
-  beta: number,
-  weights: Float64Array | null = null,
-): number {
+export function logLikelihood(table: CountsTable, shares: ArrayLike<number>, beta: number, weights: Float64Array | null = null): number {
   const K = table.matches.length;
   const lb = Math.log(beta);
   const l1b = Math.log1p(-beta);

@@ -54,8 +54,13 @@ export function checkStageGame(g: StageGame, delta?: number): StageGameCheck {
 
   const { T, R, P, S } = g;
   // Source: methods.md §0 — a prisoner's dilemma needs T > R > P > S.
-  if (!(T > R)) errors.push({ field: 'T', message: `T (${T}) must be greater than R (${R}): defecting on a cooperator must pay more than cooperating.` });
-  if (!(R > P)) errors.push({ field: 'R', message: `R (${R}) must be greater than P (${P}): mutual cooperation must beat mutual defection.` });
+  if (!(T > R))
+    errors.push({
+      field: 'T',
+      message: `T (${T}) must be greater than R (${R}): defecting on a cooperator must pay more than cooperating.`,
+    });
+  if (!(R > P))
+    errors.push({ field: 'R', message: `R (${R}) must be greater than P (${P}): mutual cooperation must beat mutual defection.` });
   if (!(P > S)) errors.push({ field: 'P', message: `P (${P}) must be greater than S (${S}): being exploited must be the worst outcome.` });
 
   if (errors.length === 0) {

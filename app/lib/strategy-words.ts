@@ -37,7 +37,8 @@ function generated(a: Automaton, l: Labels): string | null {
   // The automaton's profile is its own action first, then its partner's (the participant's).
   if (PROFILES.every((p) => m[p] === m.cc)) return `chooses ${l[first]} in the first round and ${l[m.cc]} in every round after that`;
   if (PROFILES.every((p) => m[p] === p[1].toUpperCase())) return `starts with ${l[first]} and then copies what you did last round`;
-  if (PROFILES.every((p) => m[p] === flip(p[1].toUpperCase() as Action))) return `starts with ${l[first]} and then does the opposite of what you did last round`;
+  if (PROFILES.every((p) => m[p] === flip(p[1].toUpperCase() as Action)))
+    return `starts with ${l[first]} and then does the opposite of what you did last round`;
   if (m.cc === m.dd && m.cd === m.dc && m.cc !== m.cd) {
     return `starts with ${l[first]}; then it chooses ${l[m.cc]} after a round in which the two of you chose the same, and ${l[m.cd]} after a round in which you chose differently`;
   }

@@ -106,7 +106,11 @@ export function basinAt(game: StageGame, delta: number): Basin {
 
 /** The words beside sizeBAD in the theory panel. */
 export function basinWords(basin: Basin): string {
-  return basin === 'cooperation' ? 'under ½: cooperation favoured' : basin === 'tie' ? 'exactly ½: neither favoured' : 'over ½: defection favoured';
+  return basin === 'cooperation'
+    ? 'under ½: cooperation favoured'
+    : basin === 'tie'
+      ? 'exactly ½: neither favoured'
+      : 'over ½: defection favoured';
 }
 
 export interface TheoryAt {

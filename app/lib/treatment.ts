@@ -61,7 +61,8 @@ export interface TreatmentConflict {
   variants: { label: string; sessionIds: number[] }[];
 }
 
-export type Grouping = { ok: true; groups: TreatmentGroup[]; separated: TreatmentConflict[] } | { ok: false; conflicts: TreatmentConflict[]; message: string };
+export type Grouping =
+  { ok: true; groups: TreatmentGroup[]; separated: TreatmentConflict[] } | { ok: false; conflicts: TreatmentConflict[]; message: string };
 
 const list = (ids: number[]) => ids.map((id) => `#${id}`).join(', ');
 
@@ -93,7 +94,10 @@ export function groupByTreatment(sessions: readonly TreatmentSession[], opts: { 
   }
   if (conflicts.length > 0 && !opts.separate) {
     const message = conflicts
-      .map((c) => `Sessions called “${c.name}” ran different treatments (${c.variants.map((v) => `${list(v.sessionIds)}: ${v.label}`).join('; ')}), so they cannot be pooled.`)
+      .map(
+        (c) =>
+          `Sessions called “${c.name}” ran different treatments (${c.variants.map((v) => `${list(v.sessionIds)}: ${v.label}`).join('; ')}), so they cannot be pooled.`,
+      )
       .join(' ');
     return { ok: false, conflicts, message };
   }

@@ -26,7 +26,13 @@ function checkArgs(delta: number, epsilon: number): void {
 }
 
 /** Builds (I − δM) and ū for a (row player) against b. */
-export function jointSystem(a: Automaton | CompiledAutomaton, b: Automaton | CompiledAutomaton, game: StageGame, delta: number, epsilon = 0): JointSystem {
+export function jointSystem(
+  a: Automaton | CompiledAutomaton,
+  b: Automaton | CompiledAutomaton,
+  game: StageGame,
+  delta: number,
+  epsilon = 0,
+): JointSystem {
   checkArgs(delta, epsilon);
   const A = 'act' in a ? a : compileAutomaton(a);
   const B = 'act' in b ? b : compileAutomaton(b);
@@ -86,13 +92,25 @@ export function jointSystem(a: Automaton | CompiledAutomaton, b: Automaton | Com
  * V = Σ_t δ^(t−1) E[u_t] of a's player against b from (0,0): the expected total payoff of a
  * supergame. Source: methods.md §4.
  */
-export function expectedTotal(a: Automaton | CompiledAutomaton, b: Automaton | CompiledAutomaton, game: StageGame, delta: number, epsilon = 0): number {
+export function expectedTotal(
+  a: Automaton | CompiledAutomaton,
+  b: Automaton | CompiledAutomaton,
+  game: StageGame,
+  delta: number,
+  epsilon = 0,
+): number {
   const sys = jointSystem(a, b, game, delta, epsilon);
   return solveLinear(sys.matrix, sys.rhs)[0];
 }
 
 /** v = (1−δ)V, the per-round average (methods.md §0). */
-export function perRoundValue(a: Automaton | CompiledAutomaton, b: Automaton | CompiledAutomaton, game: StageGame, delta: number, epsilon = 0): number {
+export function perRoundValue(
+  a: Automaton | CompiledAutomaton,
+  b: Automaton | CompiledAutomaton,
+  game: StageGame,
+  delta: number,
+  epsilon = 0,
+): number {
   return (1 - delta) * expectedTotal(a, b, game, delta, epsilon);
 }
 

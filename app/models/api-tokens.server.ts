@@ -27,7 +27,13 @@ export async function createApiToken(userId: number, name: string, courseIds: nu
   const token = TOKEN_PREFIX + randomBytes(32).toString('base64url');
   await db()
     .insert(apiTokens)
-    .values({ userId, name, tokenHash: hashApiToken(token), prefix: token.slice(0, 12), courseIds: [...new Set(courseIds)].sort((a, b) => a - b) });
+    .values({
+      userId,
+      name,
+      tokenHash: hashApiToken(token),
+      prefix: token.slice(0, 12),
+      courseIds: [...new Set(courseIds)].sort((a, b) => a - b),
+    });
   return token;
 }
 

@@ -66,7 +66,10 @@ export async function checkStatus(courseId: number, sessionId: number): Promise<
     .from(comprehensionAttempts)
     .innerJoin(users, eq(users.id, comprehensionAttempts.userId))
     .leftJoin(courseMembers, and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, comprehensionAttempts.userId)))
-    .leftJoin(sessionParticipants, and(eq(sessionParticipants.sessionId, comprehensionAttempts.sessionId), eq(sessionParticipants.userId, comprehensionAttempts.userId)))
+    .leftJoin(
+      sessionParticipants,
+      and(eq(sessionParticipants.sessionId, comprehensionAttempts.sessionId), eq(sessionParticipants.userId, comprehensionAttempts.userId)),
+    )
     .where(eq(comprehensionAttempts.sessionId, sessionId))
     .orderBy(asc(comprehensionAttempts.createdAt));
   return rows

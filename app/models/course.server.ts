@@ -7,7 +7,6 @@ import { INVITATION_DAYS } from '#app/utils/roles';
 
 export { INVITATION_DAYS };
 
-
 export async function listCoursesForUser(userId: number, isAdmin: boolean) {
   const memberCount = db()
     .select({ courseId: courseMembers.courseId, n: count().as('n') })
@@ -35,12 +34,19 @@ export async function listCoursesForUser(userId: number, isAdmin: boolean) {
     .leftJoin(memberCount, eq(memberCount.courseId, courses.id))
     .where(isAdmin ? undefined : sql`${mine.role} IS NOT NULL`)
     .orderBy(asc(courses.title));
-  return rows.map((r) => ({ ...r, isDemo: r.isDemo === 1, members: Number(r.members ?? 0), role: r.role ?? (isAdmin ? ('admin' as const) : null) }));
+  return rows.map((r) => ({
+    ...r,
+    isDemo: r.isDemo === 1,
+    members: Number(r.members ?? 0),
+    role: r.role ?? (isAdmin ? ('admin' as const) : null),
+  }));
 }
 
 export async function createCourse(userId: number, input: { title: string; institution?: string; term?: string }) {
   return db().transaction(async (tx) => {
-    const [res] = await tx.insert(courses).values({ title: input.title, institution: input.institution || null, term: input.term || null, createdBy: userId });
+    const [res] = await tx
+      .insert(courses)
+      .values({ title: input.title, institution: input.institution || null, term: input.term || null, createdBy: userId });
     const courseId = res.insertId;
     await tx.insert(courseMembers).values({ courseId, userId, role: 'instructor' });
     return courseId;
@@ -93,7 +99,12 @@ export async function listPendingInvitations(courseId: number) {
     })
     .from(invitations)
     .where(
-      and(eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())),
+      and(
+        eq(invitations.courseId, courseId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
     )
     .orderBy(asc(invitations.email));
 }
@@ -110,13 +121,25 @@ export async function createInvitation(courseId: number, email: string, role: Co
     .from(courseMembers)
     .innerJoin(users, eq(users.id, courseMembers.userId))
     .where(and(eq(courseMembers.courseId, courseId), eq(users.email, normalised)));
-  if (existing) return { ok: false, field: 'email', message: `${normalised} is already a member (${existing.role}). Change the role in the table instead.` };
+  if (existing)
+    return {
+      ok: false,
+      field: 'email',
+      message: `${normalised} is already a member (${existing.role}). Change the role in the table instead.`,
+    };
   const token = randomBytes(24).toString('base64url');
   const invitationId = await db().transaction(async (tx) => {
     await tx
       .update(invitations)
       .set({ revokedAt: new Date() })
-      .where(and(eq(invitations.courseId, courseId), eq(invitations.email, normalised), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+      .where(
+        and(
+          eq(invitations.courseId, courseId),
+          eq(invitations.email, normalised),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+        ),
+      );
     const [res] = await tx.insert(invitations).values({
       courseId,
       email: normalised,
@@ -141,7 +164,14 @@ export async function findPendingInvitation(courseId: number, invitationId: numb
   const [inv] = await db()
     .select({ id: invitations.id, email: invitations.email, role: invitations.role })
     .from(invitations)
-    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    .where(
+      and(
+        eq(invitations.id, invitationId),
+        eq(invitations.courseId, courseId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    );
   return inv ?? null;
 }
 
@@ -154,7 +184,14 @@ export async function reissueInvitation(courseId: number, invitationId: number) 
   const [res] = await db()
     .update(invitations)
     .set({ tokenHash: hashToken(token), sentAt: null, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000) })
-    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    .where(
+      and(
+        eq(invitations.id, invitationId),
+        eq(invitations.courseId, courseId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    );
   return res.affectedRows === 1 ? token : null;
 }
 
@@ -188,13 +225,20 @@ export async function releaseCourseMail(reservationId: number) {
 
 /** Accounts a site admin allowed to create courses (docs/decisions/023-who-creates-courses.md). */
 export async function listCourseCreators() {
-  return db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.mayCreateCourses, 1)).orderBy(asc(users.email));
+  return db()
+    .select({ id: users.id, email: users.email, name: users.name })
+    .from(users)
+    .where(eq(users.mayCreateCourses, 1))
+    .orderBy(asc(users.email));
 }
 
 /** Grants the right by address: an account that has not signed in yet is made, as a roster does. */
 export async function grantCourseCreation(email: string) {
   const normalised = email.trim().toLowerCase();
-  await db().insert(users).values({ email: normalised, mayCreateCourses: 1 }).onDuplicateKeyUpdate({ set: { mayCreateCourses: 1 } });
+  await db()
+    .insert(users)
+    .values({ email: normalised, mayCreateCourses: 1 })
+    .onDuplicateKeyUpdate({ set: { mayCreateCourses: 1 } });
 }
 
 /** Courses already made stay with their instructors; only new ones are refused. */

@@ -37,7 +37,18 @@ export async function createDataset(courseId: number, userId: number, name: stri
     let batch: (typeof datasetRows.$inferInsert)[] = [];
     let bytes = 0;
     for (const [seq, r] of rows.entries()) {
-      batch.push({ datasetId, seq, session: r.session, treatment: r.treatment, subject: r.subject, partner: r.partner, supergame: r.supergame, round: r.round, action: r.action, partnerAction: r.partnerAction });
+      batch.push({
+        datasetId,
+        seq,
+        session: r.session,
+        treatment: r.treatment,
+        subject: r.subject,
+        partner: r.partner,
+        supergame: r.supergame,
+        round: r.round,
+        action: r.action,
+        partnerAction: r.partnerAction,
+      });
       // UTF-16 length × 3 bounds the UTF-8 bytes (escaping in the statement aside)
       bytes += 3 * (r.session.length + r.treatment.length + r.subject.length + r.partner.length) + 64;
       if (batch.length >= BATCH_ROWS || bytes >= BATCH_BYTES) {
@@ -75,6 +86,8 @@ export async function datasetChoiceRows(courseId: number, datasetId: number): Pr
 }
 
 export async function deleteDataset(courseId: number, id: number) {
-  const [res] = await db().delete(datasets).where(and(eq(datasets.courseId, courseId), eq(datasets.id, id)));
+  const [res] = await db()
+    .delete(datasets)
+    .where(and(eq(datasets.courseId, courseId), eq(datasets.id, id)));
   return res.affectedRows > 0;
 }

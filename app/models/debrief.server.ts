@@ -92,14 +92,23 @@ export function includeParam(url: URL): Include {
  */
 export function debriefGrouping(sessions: readonly DebriefSession[], url: URL) {
   const separate = url.searchParams.get('treatments') === 'separate';
-  return { separate, grouping: groupByTreatment(sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })), { separate }) };
+  return {
+    separate,
+    grouping: groupByTreatment(
+      sessions.map((s) => ({ id: s.id, name: s.treatment, design: s })),
+      { separate },
+    ),
+  };
 }
 
 /** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */
 export function sessionIdsParam(url: URL, max = 20): number[] {
   // `?sessions=3,4` from links, `?sessions=3&sessions=4` from the list's checkboxes
   const raw = url.searchParams.getAll('sessions').join(',');
-  const parts = raw.split(',').map((s) => s.trim()).filter(Boolean);
+  const parts = raw
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
   const ids = parts.map(Number);
   if (parts.length === 0 || ids.some((n) => !Number.isSafeInteger(n) || n <= 0)) {
     throw new Response('Name the sessions as ?sessions=1,2 (session numbers of this course).', { status: 400 });

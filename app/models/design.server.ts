@@ -45,7 +45,11 @@ async function sessionCounts(designIds: number[]): Promise<Map<number, number>> 
 }
 
 export async function listDesigns(courseId: number) {
-  const rows = await db().select(columns).from(designs).where(eq(designs.courseId, courseId)).orderBy(asc(designs.name), asc(designs.version));
+  const rows = await db()
+    .select(columns)
+    .from(designs)
+    .where(eq(designs.courseId, courseId))
+    .orderBy(asc(designs.name), asc(designs.version));
   const used = await sessionCounts(rows.map((r) => r.id));
   return rows.map((r) => toRow(r, used.get(r.id) ?? 0));
 }
@@ -125,7 +129,9 @@ export async function newDesignVersion(courseId: number, designId: number, userI
   const top = Math.max(...all.filter((d) => rootOf(d.id) === root).map((d) => d.version));
   const d = await getDesign(courseId, designId);
   if (!d) return null;
-  const [res] = await db().insert(designs).values({ courseId, name: d.name, params: d.params, createdBy: userId, previousId: designId, version: top + 1 });
+  const [res] = await db()
+    .insert(designs)
+    .values({ courseId, name: d.name, params: d.params, createdBy: userId, previousId: designId, version: top + 1 });
   return res.insertId;
 }
 

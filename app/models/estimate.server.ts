@@ -112,7 +112,8 @@ export async function getEstimate(courseId: number, id: number): Promise<Estimat
     .where(and(eq(estimates.courseId, courseId), eq(estimates.id, id)));
   if (!r) return null;
   // A queued or running row nobody in this process works on was cut off by a restart: run it again.
-  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id)) enqueue({ id: r.id, courseId: r.courseId, userId: r.createdBy });
+  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id))
+    enqueue({ id: r.id, courseId: r.courseId, userId: r.createdBy });
   return toStatus(r);
 }
 
@@ -120,9 +121,7 @@ export async function getEstimate(courseId: number, id: number): Promise<Estimat
 export async function estimatesForSessions(courseId: number, sessionIds: readonly number[]): Promise<EstimateStatus[]> {
   const wanted = [...new Set(sessionIds)].sort((a, b) => a - b).join(',');
   const rows = await db().select().from(estimates).where(eq(estimates.courseId, courseId)).orderBy(desc(estimates.id)).limit(200);
-  return rows
-    .map(toStatus)
-    .filter((e) => e.request.source.kind === 'sessions' && e.request.source.sessionIds.join(',') === wanted);
+  return rows.map(toStatus).filter((e) => e.request.source.kind === 'sessions' && e.request.source.sessionIds.join(',') === wanted);
 }
 
 /** The course's estimations on one uploaded dataset, newest first. */
@@ -141,15 +140,27 @@ export type StartResult =
  * Starts an estimation, or returns the stored one for the same request (same data, window,
  * strategies, B and seed). A failed run is not reused: asking again runs it again.
  */
-export async function startEstimate(courseId: number, userId: number, input: EstimateRequest, opts: { separate?: boolean } = {}): Promise<StartResult> {
+export async function startEstimate(
+  courseId: number,
+  userId: number,
+  input: EstimateRequest,
+  opts: { separate?: boolean } = {},
+): Promise<StartResult> {
   const request = canonicalRequest(input);
   if (request.source.kind === 'sessions') {
     const found = await getCourseSessions(courseId, request.source.sessionIds);
-    if (found.length !== request.source.sessionIds.length) return { ok: false, status: 404, code: 'not_found', message: 'A chosen session is not in this course.' };
+    if (found.length !== request.source.sessionIds.length)
+      return { ok: false, status: 404, code: 'not_found', message: 'A chosen session is not in this course.' };
     // Groups are treatments (frozen parameters); same-named sessions of different treatments are
     // estimated apart only when asked, never pooled under their shared name.
     const grouping = groupByTreatment(found.map(asTreatmentSession), opts);
-    if (!grouping.ok) return { ok: false, status: 409, code: 'mixed_treatments', message: `${grouping.message} Estimate them as separate treatments instead.` };
+    if (!grouping.ok)
+      return {
+        ok: false,
+        status: 409,
+        code: 'mixed_treatments',
+        message: `${grouping.message} Estimate them as separate treatments instead.`,
+      };
   } else {
     const [d] = await db()
       .select({ id: datasets.id })
@@ -184,7 +195,9 @@ export async function startEstimate(courseId: number, userId: number, input: Est
   j.admitting.set(userId, (j.admitting.get(userId) ?? 0) + 1);
   let id: number;
   try {
-    const [res] = await db().insert(estimates).values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
+    const [res] = await db()
+      .insert(estimates)
+      .values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
     id = res.insertId;
     enqueue({ id, courseId, userId });
   } finally {
@@ -331,7 +344,16 @@ async function run(id: number) {
   const results: GroupResult[] = [];
   for (const [i, gEst] of groups.entries()) {
     const e = gEst.estimate;
-    const boot = B > 0 ? await bootstrapOnWorkers(gEst.table, e, { B, seed: request.seed, workers: 2, workerUrl: workerUrl(), onProgress: (done) => report(i * B + done) }) : null;
+    const boot =
+      B > 0
+        ? await bootstrapOnWorkers(gEst.table, e, {
+            B,
+            seed: request.seed,
+            workers: 2,
+            workerUrl: workerUrl(),
+            onProgress: (done) => report(i * B + done),
+          })
+        : null;
     const K = e.strategies.length;
     const assigned = new Array<number>(K).fill(0);
     const expected = new Array<number>(K).fill(0);

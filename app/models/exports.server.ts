@@ -27,7 +27,14 @@ export async function listExportLog(courseId: number, limit = 20) {
 /** The course's completed sessions, and how much each holds. */
 export async function listExportableSessions(courseId: number) {
   const list = await db()
-    .select({ id: sessions.id, treatment: sessions.treatment, status: sessions.status, simulated: sessions.simulated, params: sessions.params, completedAt: sessions.completedAt })
+    .select({
+      id: sessions.id,
+      treatment: sessions.treatment,
+      status: sessions.status,
+      simulated: sessions.simulated,
+      params: sessions.params,
+      completedAt: sessions.completedAt,
+    })
     .from(sessions)
     .where(and(eq(sessions.courseId, courseId), inArray(sessions.status, ['complete', 'archived'])))
     .orderBy(desc(sessions.id));
@@ -97,7 +104,15 @@ export async function creditSheet(session: PanelSession): Promise<CreditLine[]> 
   return people.map((p) => {
     // sums of payoffs with decimals: keep 4 decimals, as the designs do
     const pts = Math.round((points.get(p.key) ?? 0) * 1e4) / 1e4;
-    return { key: p.key, pseudonym: p.pseudonym, name: p.name ?? '', email: p.email, studentId: p.studentId ?? '', points: pts, credit: creditFor(rule, pts) };
+    return {
+      key: p.key,
+      pseudonym: p.pseudonym,
+      name: p.name ?? '',
+      email: p.email,
+      studentId: p.studentId ?? '',
+      points: pts,
+      credit: creditFor(rule, pts),
+    };
   });
 }
 
@@ -114,7 +129,9 @@ export function creditCsv(lines: readonly CreditLine[], rule: CreditRule): strin
     email: l.email,
     pseudonym: l.pseudonym,
     points: l.points,
-    ...(l.credit.kind === 'paid' ? { payout: l.credit.payout.toFixed(l.credit.decimals), currency: l.credit.currency } : { credit: l.credit.credit }),
+    ...(l.credit.kind === 'paid'
+      ? { payout: l.credit.payout.toFixed(l.credit.decimals), currency: l.credit.currency }
+      : { credit: l.credit.credit }),
   }));
   return csvLines(rows, columns);
 }

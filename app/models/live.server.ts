@@ -70,7 +70,11 @@ export async function writeEffects(
     if (res.affectedRows !== 1) throw new StaleState(sessionId, opts.claim.from);
   } else {
     const last = lastSeqOf(effects);
-    if (last > 0) await w.update(sessions).set({ seq: sql`GREATEST(${sessions.seq}, ${last})` }).where(eq(sessions.id, sessionId));
+    if (last > 0)
+      await w
+        .update(sessions)
+        .set({ seq: sql`GREATEST(${sessions.seq}, ${last})` })
+        .where(eq(sessions.id, sessionId));
   }
   const choiceRows: (typeof choices.$inferInsert)[] = [];
   for (const e of effects) {
@@ -89,7 +93,9 @@ export async function writeEffects(
         });
         break;
       case 'persist-log':
-        await w.insert(sessionLog).values({ sessionId, seq: e.row.seq, atMs: e.row.at, event: e.row.event, userId: e.by === undefined ? userId : e.by });
+        await w
+          .insert(sessionLog)
+          .values({ sessionId, seq: e.row.seq, atMs: e.row.at, event: e.row.event, userId: e.by === undefined ? userId : e.by });
         break;
       case 'persist-session': {
         const at = new Date(e.at);
@@ -103,7 +109,10 @@ export async function writeEffects(
           .where(eq(sessions.id, sessionId));
         if (e.status === 'running') {
           // the first start only; resume also reports 'running'
-          await w.update(sessions).set({ startedAt: sql`COALESCE(${sessions.startedAt}, ${at})` }).where(eq(sessions.id, sessionId));
+          await w
+            .update(sessions)
+            .set({ startedAt: sql`COALESCE(${sessions.startedAt}, ${at})` })
+            .where(eq(sessions.id, sessionId));
         }
         break;
       }
@@ -111,7 +120,15 @@ export async function writeEffects(
         if (e.supergames.length) {
           await w
             .insert(supergameDraws)
-            .values(e.supergames.map((s) => ({ sessionId, supergame: s.supergame, draws: s.draws, length: s.length, roundsPlayed: s.roundsPlayed })))
+            .values(
+              e.supergames.map((s) => ({
+                sessionId,
+                supergame: s.supergame,
+                draws: s.draws,
+                length: s.length,
+                roundsPlayed: s.roundsPlayed,
+              })),
+            )
             .onDuplicateKeyUpdate({ set: { length: sql`length` } });
         }
         break;
@@ -120,7 +137,16 @@ export async function writeEffects(
           const supergame = e.matching.supergame;
           await w
             .insert(sessionPairs)
-            .values(e.pairs.map((p) => ({ sessionId, supergame, pairId: p.pairId, seat0: p.participants[0], seat1: p.participants[1], computerStrategy: p.computerStrategy })))
+            .values(
+              e.pairs.map((p) => ({
+                sessionId,
+                supergame,
+                pairId: p.pairId,
+                seat0: p.participants[0],
+                seat1: p.participants[1],
+                computerStrategy: p.computerStrategy,
+              })),
+            )
             .onDuplicateKeyUpdate({ set: { pairId: sql`pair_id` } });
         }
         break;
@@ -185,7 +211,12 @@ export async function loadRows(sessionId: number) {
     db().select().from(choices).where(eq(choices.sessionId, sessionId)).orderBy(asc(choices.seq)),
     db().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId)).orderBy(asc(sessionLog.seq)),
   ]);
-  const participants: ParticipantRow[] = p.map((r) => ({ id: r.participantKey, pseudonym: r.pseudonym, joinedAt: r.joinedAtMs, seq: r.seq }));
+  const participants: ParticipantRow[] = p.map((r) => ({
+    id: r.participantKey,
+    pseudonym: r.pseudonym,
+    joinedAt: r.joinedAtMs,
+    seq: r.seq,
+  }));
   const choiceRows: ChoiceRow[] = c.map((r) => ({
     sessionId: String(sessionId),
     seq: r.seq,

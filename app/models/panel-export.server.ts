@@ -52,7 +52,15 @@ export async function requirePanelSession(courseId: number, rawId: string | unde
 }
 
 /** A stored session row (with its frozen design) as the reader's session. */
-export function panelSessionOf(s: { id: number; courseId: number; treatment: string; status: PanelSession['status']; simulated: number | boolean; params: unknown; completedAt: Date | null }): PanelSession {
+export function panelSessionOf(s: {
+  id: number;
+  courseId: number;
+  treatment: string;
+  status: PanelSession['status'];
+  simulated: number | boolean;
+  params: unknown;
+  completedAt: Date | null;
+}): PanelSession {
   const design = designSchema.parse(s.params);
   return {
     id: s.id,
@@ -204,7 +212,9 @@ function choicesWithPartner(sessionId: number, keys: readonly string[], after?: 
         and(
           eq(choices.sessionId, sessionId),
           keys.length === 1 ? eq(choices.participantKey, keys[0]) : inArray(choices.participantKey, [...keys]),
-          after ? or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round))) : undefined,
+          after
+            ? or(gt(choices.supergame, after.supergame), and(eq(choices.supergame, after.supergame), gt(choices.round, after.round)))
+            : undefined,
         ),
       )
   );
@@ -242,7 +252,10 @@ export interface PanelPage<Row> {
  * supergame, round). De-identified unless asked: pseudonyms only, and participants who declined
  * research consent (consent = 0) are left out unless `identified` or `keepDeclined`.
  */
-export async function* panelPages(list: readonly PanelSession[], opts: PanelOptions = {}): AsyncGenerator<PanelPage<PanelRow | IdentifiedPanelRow>> {
+export async function* panelPages(
+  list: readonly PanelSession[],
+  opts: PanelOptions = {},
+): AsyncGenerator<PanelPage<PanelRow | IdentifiedPanelRow>> {
   const pageSize = opts.pageSize ?? 2000;
   const after = opts.after ?? null;
   for (const session of list) {
@@ -251,26 +264,44 @@ export async function* panelPages(list: readonly PanelSession[], opts: PanelOpti
     const [ctx, counts] = await Promise.all([contextOf(session, people), rowCounts(session.id)]);
     // resuming: skip the participants before the cursor's (in the panel's order, not by seq)
     let startAt = 0;
-    if (after && session.id === after.session) startAt = Math.max(0, people.findIndex((p) => p.seq === after.seq));
+    if (after && session.id === after.session)
+      startAt = Math.max(
+        0,
+        people.findIndex((p) => p.seq === after.seq),
+      );
     const wanted = people.filter(
-      (p, i) => i >= startAt && (opts.identified || opts.keepDeclined || p.consent !== 0) && (!opts.participantKeys || opts.participantKeys.includes(p.key)) && (counts.get(p.key) ?? 0) > 0,
+      (p, i) =>
+        i >= startAt &&
+        (opts.identified || opts.keepDeclined || p.consent !== 0) &&
+        (!opts.participantKeys || opts.participantKeys.includes(p.key)) &&
+        (counts.get(p.key) ?? 0) > 0,
     );
 
     const toPage = (p: Participant, batch: readonly ChoiceJoin[]): PanelPage<PanelRow | IdentifiedPanelRow> => {
       const rows: (PanelRow | IdentifiedPanelRow)[] = [];
       const unfinished: UnfinishedRound[] = [];
       for (const c of batch) {
-        const partner = c.partnerAction === null ? null : { participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy };
+        const partner =
+          c.partnerAction === null
+            ? null
+            : { participantKey: c.partnerKey, action: c.partnerAction, source: c.partnerSource!, strategy: c.partnerStrategy };
         const row = panelRowOf(ctx, p.pseudonym, c, partner);
         if (!row) unfinished.push({ pseudonym: p.pseudonym, supergame: c.supergame, round: c.round });
         else if (!opts.identified) rows.push(row);
-        else rows.push({ ...row, name: p.name ?? '', email: p.email, student_id: p.studentId ?? '', consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1] });
+        else
+          rows.push({
+            ...row,
+            name: p.name ?? '',
+            email: p.email,
+            student_id: p.studentId ?? '',
+            consent: p.consent === null ? 'not asked' : CONSENT_WORDS[p.consent as 0 | 1],
+          });
       }
       const lastChoice = batch[batch.length - 1];
       return { rows, unfinished, last: { session: session.id, seq: p.seq, supergame: lastChoice.supergame, round: lastChoice.round } };
     };
 
-    for (let i = 0; i < wanted.length; ) {
+    for (let i = 0; i < wanted.length;) {
       const p = wanted[i];
       const resume = after && session.id === after.session && p.seq === after.seq;
       if (!resume && (counts.get(p.key) ?? 0) < pageSize) {
@@ -286,7 +317,10 @@ export async function* panelPages(list: readonly PanelSession[], opts: PanelOpti
           i++;
         }
         if (group.length > 0) {
-          const batch = await choicesWithPartner(session.id, group.map((q) => q.key));
+          const batch = await choicesWithPartner(
+            session.id,
+            group.map((q) => q.key),
+          );
           const byKey = new Map<string, ChoiceJoin[]>();
           for (const c of batch) byKey.set(c.participantKey!, [...(byKey.get(c.participantKey!) ?? []), c]);
           for (const q of group) {
@@ -435,7 +469,13 @@ export function panelZipStream(course: string, list: readonly PanelSession[], op
     yield* add('codebook.csv', codebookCsv(identified));
     yield* add(
       'README.md',
-      panelReadme({ course, sessions: list.map((s) => ({ id: s.id, treatment: s.treatment, simulated: s.simulated })), identified, files, createdAt: mtime }),
+      panelReadme({
+        course,
+        sessions: list.map((s) => ({ id: s.id, treatment: s.treatment, simulated: s.simulated })),
+        identified,
+        files,
+        createdAt: mtime,
+      }),
     );
     zip.end();
     yield* drain();

@@ -30,7 +30,16 @@ const sessionColumns = {
   completedAt: sessions.completedAt,
 };
 
-function toInfo(s: { id: number; courseId: number; treatment: string; params: unknown; status: SessionInfo['status']; simulated: number; startedAt: Date | null; completedAt: Date | null }): SessionInfo {
+function toInfo(s: {
+  id: number;
+  courseId: number;
+  treatment: string;
+  params: unknown;
+  status: SessionInfo['status'];
+  simulated: number;
+  startedAt: Date | null;
+  completedAt: Date | null;
+}): SessionInfo {
   return { ...s, design: designSchema.parse(s.params), simulated: s.simulated === 1 };
 }
 
@@ -78,7 +87,10 @@ export async function loadSessionPanel(
     rows.push(...page.rows);
     unfinished.push(...page.unfinished);
   }
-  const consents = await db().select({ consent: sessionParticipants.consent }).from(sessionParticipants).where(eq(sessionParticipants.sessionId, sessionId));
+  const consents = await db()
+    .select({ consent: sessionParticipants.consent })
+    .from(sessionParticipants)
+    .where(eq(sessionParticipants.sessionId, sessionId));
   return { session, rows, unfinished, declined: consents.filter((c) => c.consent === 0).length };
 }
 

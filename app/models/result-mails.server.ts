@@ -46,17 +46,28 @@ export function summarise(rows: readonly PanelRow[]): { supergames: SupergameLin
   return { supergames, points };
 }
 
-const partnerWords = (p: string) => (p.startsWith('computer:') ? `a computer partner (${p.slice('computer:'.length)})` : 'another participant');
+const partnerWords = (p: string) =>
+  p.startsWith('computer:') ? `a computer partner (${p.slice('computer:'.length)})` : 'another participant';
 const computerWords = (s: SupergameLine) =>
-  s.byComputer ? ` (then a computer played ${s.byComputer} round${s.byComputer === 1 ? '' : 's'} in your seat; they earn you no points)` : '';
+  s.byComputer
+    ? ` (then a computer played ${s.byComputer} round${s.byComputer === 1 ? '' : 's'} in your seat; they earn you no points)`
+    : '';
 
-export function resultMail(opts: { to: string; name: string | null; course: string; session: PanelSession; pseudonym: string; rows: PanelRow[] }): Mail {
+export function resultMail(opts: {
+  to: string;
+  name: string | null;
+  course: string;
+  session: PanelSession;
+  pseudonym: string;
+  rows: PanelRow[];
+}): Mail {
   const { supergames, points } = summarise(opts.rows);
   const credit = formatCredit(creditFor(opts.session.credit, points));
   const rule = describeCreditRule(opts.session.credit);
   const hello = opts.name ? `Hello ${opts.name},` : 'Hello,';
   const lines = supergames.map(
-    (s) => `Supergame ${s.supergame}: with ${s.partners.map(partnerWords).join(', then ')}, ${s.rounds} round${s.rounds === 1 ? '' : 's'}, ${s.points} points${computerWords(s)}`,
+    (s) =>
+      `Supergame ${s.supergame}: with ${s.partners.map(partnerWords).join(', then ')}, ${s.rounds} round${s.rounds === 1 ? '' : 's'}, ${s.points} points${computerWords(s)}`,
   );
   const title = `Your results: ${opts.course}`;
   return {
@@ -93,7 +104,10 @@ ${supergames
 
 /** Queues a mail for every participant who has none yet (a sent one is never sent twice). */
 export async function queueResultMails(sessionId: number): Promise<number> {
-  const people = await db().select({ userId: sessionParticipants.userId }).from(sessionParticipants).where(eq(sessionParticipants.sessionId, sessionId));
+  const people = await db()
+    .select({ userId: sessionParticipants.userId })
+    .from(sessionParticipants)
+    .where(eq(sessionParticipants.sessionId, sessionId));
   if (people.length === 0) return 0;
   const [res] = await db()
     .insert(resultMails)
@@ -125,7 +139,10 @@ export async function resultMailStatus(sessionId: number) {
     })
     .from(resultMails)
     .innerJoin(users, eq(users.id, resultMails.userId))
-    .leftJoin(sessionParticipants, and(eq(sessionParticipants.sessionId, resultMails.sessionId), eq(sessionParticipants.userId, resultMails.userId)))
+    .leftJoin(
+      sessionParticipants,
+      and(eq(sessionParticipants.sessionId, resultMails.sessionId), eq(sessionParticipants.userId, resultMails.userId)),
+    )
     .innerJoin(sessions, eq(sessions.id, resultMails.sessionId))
     .leftJoin(courseMembers, and(eq(courseMembers.userId, resultMails.userId), eq(courseMembers.courseId, sessions.courseId)))
     .where(eq(resultMails.sessionId, sessionId))
@@ -172,7 +189,9 @@ export async function drainResultMails(session: PanelSession, opts: DrainOptions
       if (!who) throw new Error('not a participant of this session');
       const rows: PanelRow[] = [];
       for await (const page of panelPages([session], { identified: true, participantKeys: [who.key] })) rows.push(...page.rows);
-      await send(resultMail({ to: who.email, name: who.name, course: course?.title ?? 'your course', session, pseudonym: who.pseudonym, rows }));
+      await send(
+        resultMail({ to: who.email, name: who.name, course: course?.title ?? 'your course', session, pseudonym: who.pseudonym, rows }),
+      );
       await db().update(resultMails).set({ status: 'sent', sentAt: new Date(), error: null }).where(eq(resultMails.id, next.id));
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error);

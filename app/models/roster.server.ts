@@ -36,7 +36,13 @@ export async function planRoster(courseId: number, rows: readonly RosterRow[], r
   const known = await reader.select({ id: users.id, email: users.email }).from(users).where(inArray(users.email, emails));
   const userByEmail = new Map(known.map((u) => [u.email.toLowerCase(), u]));
   const members = await reader
-    .select({ userId: courseMembers.userId, role: courseMembers.role, studentId: courseMembers.studentId, email: users.email, name: courseMembers.name })
+    .select({
+      userId: courseMembers.userId,
+      role: courseMembers.role,
+      studentId: courseMembers.studentId,
+      email: users.email,
+      name: courseMembers.name,
+    })
     .from(courseMembers)
     .innerJoin(users, eq(users.id, courseMembers.userId))
     .where(eq(courseMembers.courseId, courseId));
@@ -47,7 +53,10 @@ export async function planRoster(courseId: number, rows: readonly RosterRow[], r
     const user = userByEmail.get(r.email);
     const member = user ? memberByUser.get(user.id) : undefined;
     if (member && member.role !== 'participant') {
-      errors.push({ line: r.line, message: `${r.email} is already in this course as ${ROLE_WORDS[member.role].toLowerCase()}; a roster adds participants only` });
+      errors.push({
+        line: r.line,
+        message: `${r.email} is already in this course as ${ROLE_WORDS[member.role].toLowerCase()}; a roster adds participants only`,
+      });
       continue;
     }
     const holder = holderOfId.get(r.studentId);
@@ -73,7 +82,10 @@ export interface ImportResult {
  * Writes the roster in one transaction, checking it again inside (someone may have changed the
  * course since the preview). Any clash → nothing written, the clashes returned.
  */
-export async function importRoster(courseId: number, rows: readonly RosterRow[]): Promise<{ ok: true; result: ImportResult } | { ok: false; errors: RosterIssue[] }> {
+export async function importRoster(
+  courseId: number,
+  rows: readonly RosterRow[],
+): Promise<{ ok: true; result: ImportResult } | { ok: false; errors: RosterIssue[] }> {
   class Clash extends Error {
     constructor(readonly errors: RosterIssue[]) {
       super('roster clashes');
@@ -94,7 +106,10 @@ export async function importRoster(courseId: number, rows: readonly RosterRow[])
           continue;
         }
         // The account gets no name from a roster: users.name is shared by every course.
-        await tx.insert(users).values({ email: r.email }).onDuplicateKeyUpdate({ set: { email: r.email } });
+        await tx
+          .insert(users)
+          .values({ email: r.email })
+          .onDuplicateKeyUpdate({ set: { email: r.email } });
         const [u] = await tx.select({ id: users.id }).from(users).where(eq(users.email, r.email));
         if (r.status === 'new') {
           await tx.insert(courseMembers).values({ courseId, userId: u.id, role: 'participant', studentId: r.studentId, name: r.name });
@@ -117,7 +132,12 @@ export async function importRoster(courseId: number, rows: readonly RosterRow[])
 }
 
 /** "You are on the roster": how a participant added by an import hears about it. */
-export function rosterMail(opts: { to: string; name: string; courseTitle: string; instructor: { name: string | null; email: string } }): Mail {
+export function rosterMail(opts: {
+  to: string;
+  name: string;
+  courseTitle: string;
+  instructor: { name: string | null; email: string };
+}): Mail {
   const link = new URL('/sign-in', env().APP_URL).toString();
   const instructor = senderOf(opts.instructor);
   return {

@@ -34,7 +34,12 @@ export async function listSessions(courseId: number) {
     .orderBy(desc(sessions.id));
   // A join code is shown only while it admits anyone: once a session is over, it is history.
   const admitting = new Set(['open', 'running', 'paused']);
-  return rows.map((r) => ({ ...r, joinCode: admitting.has(r.status) ? r.joinCode : null, simulated: r.simulated === 1, participants: Number(r.participants ?? 0) }));
+  return rows.map((r) => ({
+    ...r,
+    joinCode: admitting.has(r.status) ? r.joinCode : null,
+    simulated: r.simulated === 1,
+    participants: Number(r.participants ?? 0),
+  }));
 }
 
 export type OpenResult = { ok: true; sessionId: number } | { ok: false; field: string; message: string };
@@ -70,7 +75,11 @@ export async function createSessionFromDesign(opts: {
         // room (docs/decisions/028): refused here, inside the lock, so a save in between cannot slip past.
         const problems = instructionProblems(designSchema.parse(d.params));
         if (problems.length) {
-          return { ok: false, field: 'designId', message: `The instructions of “${d.name}” do not match its parameters: ${problems.join(' ')} Edit the design (or make a new version) before opening a session.` };
+          return {
+            ok: false,
+            field: 'designId',
+            message: `The instructions of “${d.name}” do not match its parameters: ${problems.join(' ')} Edit the design (or make a new version) before opening a session.`,
+          };
         }
         const [res] = await tx.insert(sessions).values({
           courseId: opts.courseId,
@@ -97,7 +106,13 @@ export async function createSessionFromDesign(opts: {
 
 export async function findByJoinCode(code: string) {
   const [s] = await db()
-    .select({ id: sessions.id, courseId: sessions.courseId, status: sessions.status, admission: sessions.admission, emailDomain: sessions.emailDomain })
+    .select({
+      id: sessions.id,
+      courseId: sessions.courseId,
+      status: sessions.status,
+      admission: sessions.admission,
+      emailDomain: sessions.emailDomain,
+    })
     .from(sessions)
     .where(and(eq(sessions.joinCode, code.toUpperCase()), inArray(sessions.status, ['open', 'running', 'paused', 'complete'])));
   return s ?? null;
@@ -113,7 +128,12 @@ export async function setConsent(sessionId: number, userId: number, consent: boo
 /** Names and e-mails behind the pseudonyms, for staff who ask for them on the Floor. */
 export async function namesOf(sessionId: number) {
   return db()
-    .select({ participantKey: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, name: memberName, email: users.email })
+    .select({
+      participantKey: sessionParticipants.participantKey,
+      pseudonym: sessionParticipants.pseudonym,
+      name: memberName,
+      email: users.email,
+    })
     .from(sessionParticipants)
     .innerJoin(users, eq(users.id, sessionParticipants.userId))
     .innerJoin(sessions, eq(sessions.id, sessionParticipants.sessionId))
@@ -124,7 +144,13 @@ export async function namesOf(sessionId: number) {
 /** Sessions a user took part in, newest first (the participant's home page). */
 export async function sessionsOfParticipant(userId: number) {
   return db()
-    .select({ id: sessions.id, courseId: sessions.courseId, treatment: sessions.treatment, status: sessions.status, pseudonym: sessionParticipants.pseudonym })
+    .select({
+      id: sessions.id,
+      courseId: sessions.courseId,
+      treatment: sessions.treatment,
+      status: sessions.status,
+      pseudonym: sessionParticipants.pseudonym,
+    })
     .from(sessionParticipants)
     .innerJoin(sessions, eq(sessions.id, sessionParticipants.sessionId))
     .where(eq(sessionParticipants.userId, userId))

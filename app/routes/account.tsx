@@ -23,8 +23,26 @@ export async function loader({ request }: Route.LoaderArgs) {
 /** A rough, readable name for a browser (a full user-agent string helps nobody here). */
 function describeDevice(ua: string | null) {
   if (!ua) return 'Unknown device';
-  const os = /iPhone|iPad/.test(ua) ? 'iPhone or iPad' : /Android/.test(ua) ? 'Android' : /Mac OS X/.test(ua) ? 'Mac' : /Windows/.test(ua) ? 'Windows' : /Linux/.test(ua) ? 'Linux' : 'another system';
-  const browser = /Edg\//.test(ua) ? 'Edge' : /Firefox\//.test(ua) ? 'Firefox' : /Chrome\//.test(ua) ? 'Chrome' : /Safari\//.test(ua) ? 'Safari' : 'A browser';
+  const os = /iPhone|iPad/.test(ua)
+    ? 'iPhone or iPad'
+    : /Android/.test(ua)
+      ? 'Android'
+      : /Mac OS X/.test(ua)
+        ? 'Mac'
+        : /Windows/.test(ua)
+          ? 'Windows'
+          : /Linux/.test(ua)
+            ? 'Linux'
+            : 'another system';
+  const browser = /Edg\//.test(ua)
+    ? 'Edge'
+    : /Firefox\//.test(ua)
+      ? 'Firefox'
+      : /Chrome\//.test(ua)
+        ? 'Chrome'
+        : /Safari\//.test(ua)
+          ? 'Safari'
+          : 'A browser';
   return `${browser} on ${os}`;
 }
 
@@ -37,7 +55,11 @@ export default function Account({ loaderData }: Route.ComponentProps) {
       <div className="flex flex-col gap-2">
         <h1 className="text-3xl font-semibold">Your sign-ins</h1>
         <p className="text-lg text-slate-700">
-          Signed in as <strong><EmailAddress email={email} /></strong>. These devices are signed in to your account.
+          Signed in as{' '}
+          <strong>
+            <EmailAddress email={email} />
+          </strong>
+          . These devices are signed in to your account.
         </p>
       </div>
       <ul className="flex flex-col gap-3" aria-label="Devices signed in">
@@ -58,7 +80,9 @@ export default function Account({ loaderData }: Route.ComponentProps) {
         <Button type="submit" variant="quiet">
           Sign out everywhere
         </Button>
-        <p className="text-sm text-slate-600">Ends every sign-in above, this one included. Live pages on those devices disconnect at once.</p>
+        <p className="text-sm text-slate-600">
+          Ends every sign-in above, this one included. Live pages on those devices disconnect at once.
+        </p>
       </Form>
     </ParticipantShell>
   );

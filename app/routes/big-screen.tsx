@@ -65,7 +65,9 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
   return (
     <main data-testid="big-screen" className="flex min-h-dvh w-full flex-col bg-slate-950 text-slate-50" style={{ fontSize: BASE_FONT }}>
       <header className="flex flex-wrap items-baseline justify-between gap-x-[1em] border-b border-slate-800 px-[1em] py-[0.4em]">
-        <p className="font-semibold text-accent-200">Parley{session.simulated ? <span className="font-normal text-slate-300"> · simulated demo session</span> : null}</p>
+        <p className="font-semibold text-accent-200">
+          Parley{session.simulated ? <span className="font-normal text-slate-300"> · simulated demo session</span> : null}
+        </p>
         <p data-testid="big-status">
           <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
           {STATUS_WORDS[status].word}
@@ -73,7 +75,11 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
         </p>
       </header>
       {status === 'paused' ? (
-        <div data-testid="pause-banner" role="status" className="flex w-full flex-wrap items-baseline gap-x-[1em] bg-accent-200 px-[1em] py-[0.3em] text-slate-950">
+        <div
+          data-testid="pause-banner"
+          role="status"
+          className="flex w-full flex-wrap items-baseline gap-x-[1em] bg-accent-200 px-[1em] py-[0.3em] text-slate-950"
+        >
           <p className="text-[2.4em] leading-tight font-bold">
             <span aria-hidden="true">❚❚ </span>Paused
           </p>
@@ -116,7 +122,10 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
                     }))}
                   />
                 ) : (
-                  <p data-testid="chart-placeholder" className="flex flex-1 items-center justify-center rounded-xl border border-dashed border-slate-600 px-[1em] text-center text-slate-300">
+                  <p
+                    data-testid="chart-placeholder"
+                    className="flex flex-1 items-center justify-center rounded-xl border border-dashed border-slate-600 px-[1em] text-center text-slate-300"
+                  >
                     Round 1 of supergame {screen.supergame} is being played. The chart fills in as pairs finish their rounds.
                   </p>
                 )}

@@ -10,7 +10,12 @@ export async function loader() {
   const degraded = live ? !live.ok : false;
   const ok = up && !degraded;
   return Response.json(
-    { ok, database: up ? 'up' : 'down', live: degraded ? 'degraded' : 'ok', ...(live?.lostSince ? { lostSince: new Date(live.lostSince).toISOString() } : {}) },
+    {
+      ok,
+      database: up ? 'up' : 'down',
+      live: degraded ? 'degraded' : 'ok',
+      ...(live?.lostSince ? { lostSince: new Date(live.lostSince).toISOString() } : {}),
+    },
     { status: ok ? 200 : 503, headers: { 'Cache-Control': 'no-store' } },
   );
 }

@@ -15,7 +15,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   // Staff land on their courses; participants stay on this phone-first page.
   if (user.isAdmin || courses.some((c) => c.role !== 'participant')) throw redirect('/courses');
   const [played, canCreate] = await Promise.all([sessionsOfParticipant(user.id), mayCreateCourses(user)]);
-  return { user: { email: user.email }, courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })), played, canCreate };
+  return {
+    user: { email: user.email },
+    courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })),
+    played,
+    canCreate,
+  };
 }
 
 export default function Home({ loaderData }: Route.ComponentProps) {
@@ -24,10 +29,16 @@ export default function Home({ loaderData }: Route.ComponentProps) {
     <ParticipantShell email={loaderData.user.email}>
       <h1 className="text-3xl font-semibold">Hello</h1>
       <p className="text-lg text-slate-700">
-        You are signed in as <strong><EmailAddress email={loaderData.user.email} /></strong>. When your instructor opens a
-        session, follow the join code or QR code on the big screen.
+        You are signed in as{' '}
+        <strong>
+          <EmailAddress email={loaderData.user.email} />
+        </strong>
+        . When your instructor opens a session, follow the join code or QR code on the big screen.
       </p>
-      <Link to="/join" className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800">
+      <Link
+        to="/join"
+        className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800"
+      >
         Join a session with a code
       </Link>
       <section aria-labelledby="my-courses" className="flex flex-col gap-3">
@@ -63,7 +74,10 @@ export default function Home({ loaderData }: Route.ComponentProps) {
                   Session #{s.id} · you were {s.pseudonym}
                 </span>
                 {s.status === 'complete' || s.status === 'archived' ? (
-                  <Link to={`/courses/${s.courseId}/debrief/${s.id}/mine`} className="min-h-11 content-center font-semibold text-accent-700 underline">
+                  <Link
+                    to={`/courses/${s.courseId}/debrief/${s.id}/mine`}
+                    className="min-h-11 content-center font-semibold text-accent-700 underline"
+                  >
                     Your summary
                   </Link>
                 ) : (
@@ -93,9 +107,15 @@ export default function Home({ loaderData }: Route.ComponentProps) {
 
 function Landing() {
   const steps = [
-    ['Design', 'Pick payoffs and a continuation probability δ on the right side of the theory’s thresholds, and see how long it will take in class.'],
+    [
+      'Design',
+      'Pick payoffs and a continuation probability δ on the right side of the theory’s thresholds, and see how long it will take in class.',
+    ],
     ['Enrol', 'Students join on their phones with a code from the big screen and a one-time code by e-mail. No app, no passwords.'],
-    ['Run', 'Random-termination supergames with random re-matching, a draw common to the whole room, and a live floor view for assistants.'],
+    [
+      'Run',
+      'Random-termination supergames with random re-matching, a draw common to the whole room, and a live floor view for assistants.',
+    ],
     ['Debrief', 'Cooperation against the theory and the strategies the class actually used, on the projector the same hour.'],
     ['Share', 'A clean, de-identified choice panel with a codebook, for research and for the gradebook.'],
   ];
@@ -104,20 +124,28 @@ function Landing() {
       <header className="mx-auto flex max-w-5xl items-center justify-between px-6 py-4">
         <Wordmark />
         <span className="flex gap-2">
-          <Link to="/join" className="inline-flex min-h-11 items-center rounded-lg px-4 font-semibold text-accent-700 ring-1 ring-accent-300 hover:bg-accent-50">
+          <Link
+            to="/join"
+            className="inline-flex min-h-11 items-center rounded-lg px-4 font-semibold text-accent-700 ring-1 ring-accent-300 hover:bg-accent-50"
+          >
             Join with a code
           </Link>
-          <Link to="/sign-in" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
+          <Link
+            to="/sign-in"
+            className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800"
+          >
             Sign in
           </Link>
         </span>
       </header>
       <main className="mx-auto flex max-w-5xl flex-col gap-10 px-6 pt-8 pb-16">
         <section className="flex max-w-3xl flex-col gap-4">
-          <h1 className="text-4xl font-semibold text-slate-900 sm:text-5xl">Let your class feel why cooperation survives when the future matters.</h1>
+          <h1 className="text-4xl font-semibold text-slate-900 sm:text-5xl">
+            Let your class feel why cooperation survives when the future matters.
+          </h1>
           <p className="text-xl text-slate-700">
-            Parley runs repeated prisoner’s-dilemma experiments live on students’ phones and turns the choices into
-            research-grade data and analysis in the same hour.
+            Parley runs repeated prisoner’s-dilemma experiments live on students’ phones and turns the choices into research-grade data and
+            analysis in the same hour.
           </p>
         </section>
         <ol className="grid gap-4 sm:grid-cols-2 lg:grid-cols-5">
@@ -131,8 +159,8 @@ function Landing() {
           ))}
         </ol>
         <p className="max-w-3xl text-sm text-slate-600">
-          Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed
-          consent. Parley records consent and exports pseudonyms by default; the decision is your institution’s.
+          Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed consent. Parley
+          records consent and exports pseudonyms by default; the decision is your institution’s.
         </p>
       </main>
     </div>

@@ -48,9 +48,16 @@ export default function Invitation({ loaderData, actionData }: Route.ComponentPr
       {!problem && !signedIn ? (
         <>
           <p className="text-slate-700">
-            Sign in with <strong><EmailAddress email={invitation.email} /></strong> to accept. We e-mail you a code; no password.
+            Sign in with{' '}
+            <strong>
+              <EmailAddress email={invitation.email} />
+            </strong>{' '}
+            to accept. We e-mail you a code; no password.
           </p>
-          <Link to={loaderData.signInHref} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800">
+          <Link
+            to={loaderData.signInHref}
+            className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white hover:bg-accent-800"
+          >
             Sign in to accept
           </Link>
         </>

@@ -36,7 +36,8 @@ export interface ApiCaller {
 
 export async function requireApiToken(request: Request): Promise<ApiCaller> {
   const header = request.headers.get('authorization');
-  if (!header) apiFail(401, 'missing_token', 'Send a token: Authorization: Bearer <token> (create one in Parley under Settings → API tokens).');
+  if (!header)
+    apiFail(401, 'missing_token', 'Send a token: Authorization: Bearer <token> (create one in Parley under Settings → API tokens).');
   const m = /^Bearer\s+(\S+)\s*$/i.exec(header);
   if (!m) apiFail(401, 'invalid_token', 'The Authorization header must read "Bearer <token>".');
   const token = await findApiToken(m[1]);
@@ -66,7 +67,8 @@ export async function requireApiCourse(caller: ApiCaller, courseId: number) {
   if (!course) apiFail(404, 'not_found', 'No such course.');
   if (!caller.courseIds.includes(courseId)) apiFail(403, 'out_of_scope', 'This token is not scoped to that course.');
   const role: CourseRole | null = caller.isAdmin ? 'instructor' : await roleIn(courseId, caller.userId);
-  if (!role || !(API_ROLES as readonly string[]).includes(role)) apiFail(403, 'forbidden', 'The token’s owner is no longer an instructor or researcher of that course.');
+  if (!role || !(API_ROLES as readonly string[]).includes(role))
+    apiFail(403, 'forbidden', 'The token’s owner is no longer an instructor or researcher of that course.');
   return { ...course, isDemo: course.isDemo === 1, role };
 }
 
@@ -137,4 +139,3 @@ export async function requireApiSession(caller: ApiCaller, raw: string | undefin
   await requireApiCourse(caller, s.courseId);
   return s;
 }
-

@@ -147,7 +147,10 @@ export async function recordAuthEvent(kind: 'code-failure' | 'sign-in', email: s
 /** Starts a sign-in for a verified e-mail: the user (created if new), a server-side row, the cookie. */
 export async function signInAs(request: Request, email: string) {
   const normalised = email.trim().toLowerCase();
-  await db().insert(users).values({ email: normalised }).onDuplicateKeyUpdate({ set: { lastSignInAt: new Date() } });
+  await db()
+    .insert(users)
+    .values({ email: normalised })
+    .onDuplicateKeyUpdate({ set: { lastSignInAt: new Date() } });
   const [u] = await db().select({ id: users.id }).from(users).where(eq(users.email, normalised));
   const token = randomBytes(32).toString('base64url');
   const now = new Date();
@@ -199,7 +202,13 @@ export async function pruneAuthSessions() {
 /** The account's sign-ins still held by the server, newest first (the account page lists them). */
 export async function listSignIns(userId: number) {
   return db()
-    .select({ id: authSessions.id, createdAt: authSessions.createdAt, lastSeenAt: authSessions.lastSeenAt, ip: authSessions.ip, userAgent: authSessions.userAgent })
+    .select({
+      id: authSessions.id,
+      createdAt: authSessions.createdAt,
+      lastSeenAt: authSessions.lastSeenAt,
+      ip: authSessions.ip,
+      userAgent: authSessions.userAgent,
+    })
     .from(authSessions)
     .where(and(eq(authSessions.userId, userId), gt(authSessions.expiresAt, new Date())))
     .orderBy(desc(authSessions.lastSeenAt));

@@ -17,8 +17,14 @@ const num = (f: Source, k: string): number | undefined => {
 };
 
 export function designInputFromForm(f: Source): DesignInput {
-  const termination = get(f, 'termination.kind') === 'block' ? { kind: 'block' as const, k: num(f, 'termination.k') as number } : { kind: 'standard' as const };
-  const oddCount = get(f, 'oddCount.kind') === 'sit-out' ? { kind: 'sit-out' as const } : { kind: 'computer' as const, strategy: get(f, 'oddCount.strategy') ?? 'TFT' };
+  const termination =
+    get(f, 'termination.kind') === 'block'
+      ? { kind: 'block' as const, k: num(f, 'termination.k') as number }
+      : { kind: 'standard' as const };
+  const oddCount =
+    get(f, 'oddCount.kind') === 'sit-out'
+      ? { kind: 'sit-out' as const }
+      : { kind: 'computer' as const, strategy: get(f, 'oddCount.strategy') ?? 'TFT' };
   const credit =
     get(f, 'credit.kind') === 'paid'
       ? {
@@ -30,7 +36,12 @@ export function designInputFromForm(f: Source): DesignInput {
         }
       : { kind: 'participation' as const, credit: num(f, 'credit.credit') as number, pointsScaleMax: num(f, 'credit.pointsScaleMax') };
   return {
-    payoffs: { R: num(f, 'payoffs.R') as number, S: num(f, 'payoffs.S') as number, T: num(f, 'payoffs.T') as number, P: num(f, 'payoffs.P') as number },
+    payoffs: {
+      R: num(f, 'payoffs.R') as number,
+      S: num(f, 'payoffs.S') as number,
+      T: num(f, 'payoffs.T') as number,
+      P: num(f, 'payoffs.P') as number,
+    },
     labels: { C: get(f, 'labels.C') ?? '', D: get(f, 'labels.D') ?? '' },
     delta: num(f, 'delta') as number,
     supergames: num(f, 'supergames') as number,

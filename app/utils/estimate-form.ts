@@ -10,14 +10,20 @@ export const MAX_BOOTSTRAP = 2000;
 export const MAX_SESSIONS = 20;
 
 /** Display and storage order: the preset's order first, then the rest of the library. */
-export const STRATEGY_ORDER: readonly string[] = [...STRATEGY_SETS.dbf2011, ...LIBRARY.map((a) => a.id).filter((id) => !(STRATEGY_SETS.dbf2011 as readonly string[]).includes(id))];
+export const STRATEGY_ORDER: readonly string[] = [
+  ...STRATEGY_SETS.dbf2011,
+  ...LIBRARY.map((a) => a.id).filter((id) => !(STRATEGY_SETS.dbf2011 as readonly string[]).includes(id)),
+];
 
 export const STRATEGY_PRESETS = {
   dbf2011: { label: 'Dal Bó & Fréchette (2011): ALLD, ALLC, Grim, TFT, WSLS, T2', ids: STRATEGY_SETS.dbf2011 as readonly string[] },
 } as const;
 
 const positive = (what: string) =>
-  z.coerce.number({ error: `${what} must be a whole number` }).int(`${what} must be a whole number`).min(1, `${what} must be at least 1`);
+  z.coerce
+    .number({ error: `${what} must be a whole number` })
+    .int(`${what} must be a whole number`)
+    .min(1, `${what} must be at least 1`);
 
 export const windowSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('all') }),
@@ -27,7 +33,10 @@ export const windowSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('last'), n: positive('The number of supergames') }),
   z.object({
     kind: z.literal('after-rounds'),
-    rounds: z.coerce.number({ error: 'Rounds must be a whole number' }).int('Rounds must be a whole number').min(0, 'Rounds cannot be negative'),
+    rounds: z.coerce
+      .number({ error: 'Rounds must be a whole number' })
+      .int('Rounds must be a whole number')
+      .min(0, 'Rounds cannot be negative'),
   }),
 ]);
 export type EstimateWindow = z.output<typeof windowSchema>;
@@ -57,7 +66,10 @@ export function windowWords(text: string): string {
 const sourceSchema = z.discriminatedUnion('kind', [
   z.object({
     kind: z.literal('sessions'),
-    sessionIds: z.array(z.number().int().positive()).min(1, 'Choose at least one session').max(MAX_SESSIONS, `At most ${MAX_SESSIONS} sessions at once`),
+    sessionIds: z
+      .array(z.number().int().positive())
+      .min(1, 'Choose at least one session')
+      .max(MAX_SESSIONS, `At most ${MAX_SESSIONS} sessions at once`),
   }),
   z.object({ kind: z.literal('dataset'), datasetId: z.number().int().positive() }),
 ]);
@@ -76,13 +88,20 @@ export const estimateRequestSchema = z.object({
     .min(1, 'Choose at least one strategy')
     .refine((ids) => new Set(ids).size === ids.length, 'A strategy is listed twice'),
   bootstrap: z.number().int().min(0).max(MAX_BOOTSTRAP),
-  seed: z.number().int().min(0).max(2 ** 31 - 1),
+  seed: z
+    .number()
+    .int()
+    .min(0)
+    .max(2 ** 31 - 1),
 });
 export type EstimateRequest = z.output<typeof estimateRequestSchema>;
 
 /** Same data, window, strategy set, B and seed → the same canonical request (and key). */
 export function canonicalRequest(r: EstimateRequest): EstimateRequest {
-  const source = r.source.kind === 'sessions' ? { kind: 'sessions' as const, sessionIds: [...new Set(r.source.sessionIds)].sort((a, b) => a - b) } : r.source;
+  const source =
+    r.source.kind === 'sessions'
+      ? { kind: 'sessions' as const, sessionIds: [...new Set(r.source.sessionIds)].sort((a, b) => a - b) }
+      : r.source;
   const strategies = [...r.strategies].sort((a, b) => STRATEGY_ORDER.indexOf(a) - STRATEGY_ORDER.indexOf(b));
   const include = r.source.kind === 'sessions' ? { include: r.include ?? ('own' as const) } : {};
   return { source, window: r.window, ...include, strategies, bootstrap: r.bootstrap, seed: r.seed };
@@ -92,7 +111,12 @@ const formSchema = z.object({
   sessions: z
     .string()
     .optional()
-    .transform((s) => (s ?? '').split(',').map((x) => x.trim()).filter(Boolean)),
+    .transform((s) =>
+      (s ?? '')
+        .split(',')
+        .map((x) => x.trim())
+        .filter(Boolean),
+    ),
   dataset: z.string().optional(),
   include: z.enum(INCLUDES, { error: 'Choose which choices to use' }).default('own'),
   windowKind: z.enum(['all', 'supergames', 'last', 'after-rounds'], { error: 'Choose which supergames to use' }),
@@ -160,11 +184,19 @@ export function estimateRequestFromForm(form: FormData): EstimateFormResult {
     f.dataset !== undefined
       ? { kind: 'dataset' as const, datasetId: Number(f.dataset) }
       : { kind: 'sessions' as const, sessionIds: f.sessions.map(Number) };
-  const r = estimateRequestSchema.safeParse({ source, window: w.success ? windowText(w.data) : 'all', include: source.kind === 'sessions' ? f.include : undefined, strategies, bootstrap: f.bootstrap, seed: f.seed });
+  const r = estimateRequestSchema.safeParse({
+    source,
+    window: w.success ? windowText(w.data) : 'all',
+    include: source.kind === 'sessions' ? f.include : undefined,
+    strategies,
+    bootstrap: f.bootstrap,
+    seed: f.seed,
+  });
   if (!r.success) {
     for (const issue of r.error.issues) {
       const top = String(issue.path[0]);
-      errors[top === 'strategies' ? 'strategy' : top === 'source' ? 'form' : top] ??= top === 'source' ? 'Choose sessions of this course or a dataset' : issue.message;
+      errors[top === 'strategies' ? 'strategy' : top === 'source' ? 'form' : top] ??=
+        top === 'source' ? 'Choose sessions of this course or a dataset' : issue.message;
     }
   }
   if (Object.keys(errors).length > 0 || !r.success) return { ok: false, errors };

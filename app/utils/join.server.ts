@@ -61,7 +61,13 @@ export function carriedConsent(design: Design, value: unknown): ConsentAnswer | 
 }
 
 /** Where a phone goes after the instructions, given what the design asks before play. */
-export async function nextStep(code: string, session: JoinSession, userId: number, consent: ConsentAnswer | null, after: 'instructions' | 'check') {
+export async function nextStep(
+  code: string,
+  session: JoinSession,
+  userId: number,
+  consent: ConsentAnswer | null,
+  after: 'instructions' | 'check',
+) {
   const q = consent ? `?consent=${consent}` : '';
   if (after === 'instructions' && session.design.comprehension && !(await hasPassed(session.id, userId))) return `/join/${code}/check${q}`;
   if (session.design.practice) return `/join/${code}/practice${q}`;

@@ -28,7 +28,14 @@ export class MailNotSentError extends Error {
 export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: number = env().SMTP_TIMEOUT_MS): Transporter {
   // Pooled: a lecture hall asks for hundreds of codes within minutes; a few kept-open connections
   // carry them instead of one new SMTP connection (and greeting) per mail.
-  return nodemailer.createTransport({ url, pool: true, maxConnections: 5, connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs });
+  return nodemailer.createTransport({
+    url,
+    pool: true,
+    maxConnections: 5,
+    connectionTimeout: timeoutMs,
+    greetingTimeout: timeoutMs,
+    socketTimeout: timeoutMs,
+  });
 }
 
 declare global {

@@ -53,10 +53,9 @@ export async function requireCourseRole(
   if (!course) throw new Response('No such course.', { status: 404 });
   const role: CourseRole | null = user.isAdmin ? 'instructor' : await roleIn(courseId, user.id);
   if (!role || !roles.includes(role)) {
-    throw new Response(
-      role ? `Your role in this course (${role}) does not open this page.` : 'You are not a member of this course.',
-      { status: 403 },
-    );
+    throw new Response(role ? `Your role in this course (${role}) does not open this page.` : 'You are not a member of this course.', {
+      status: 403,
+    });
   }
   return { user, course: { ...course, isDemo: course.isDemo === 1 }, role };
 }

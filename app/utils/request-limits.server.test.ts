@@ -19,7 +19,13 @@ describe('bodyLimitFor', () => {
   });
 
   it('does not stretch a look-alike path', () => {
-    for (const path of ['/courses/12/roster/x', '/courses/x/roster', '/courses/12/%72oster', '//courses/12/datasets', '/courses/12/datasets/3/estimate'])
+    for (const path of [
+      '/courses/12/roster/x',
+      '/courses/x/roster',
+      '/courses/12/%72oster',
+      '//courses/12/datasets',
+      '/courses/12/datasets/3/estimate',
+    ])
       expect(bodyLimitFor(path, true)).toBe(PAGE_BODY_LIMIT);
   });
 

@@ -94,8 +94,16 @@ export async function checkCodeRequestLimits(email: string, ip: string): Promise
   const since = new Date(Date.now() - WINDOW_MINUTES * 60_000);
   const recent = gt(signInCodes.createdAt, since);
   const checks = [
-    { where: and(eq(signInCodes.email, email), eq(signInCodes.ip, ip), recent), max: e.CODE_REQUESTS_PER_EMAIL_AND_IP, reason: 'Too many codes were requested for this e-mail address.' },
-    { where: and(eq(signInCodes.email, email), recent), max: e.CODE_REQUESTS_PER_EMAIL, reason: 'Too many codes were requested for this e-mail address.' },
+    {
+      where: and(eq(signInCodes.email, email), eq(signInCodes.ip, ip), recent),
+      max: e.CODE_REQUESTS_PER_EMAIL_AND_IP,
+      reason: 'Too many codes were requested for this e-mail address.',
+    },
+    {
+      where: and(eq(signInCodes.email, email), recent),
+      max: e.CODE_REQUESTS_PER_EMAIL,
+      reason: 'Too many codes were requested for this e-mail address.',
+    },
     { where: and(eq(signInCodes.ip, ip), recent), max: e.CODE_REQUESTS_PER_IP, reason: 'Too many codes were requested from this network.' },
   ];
   for (const c of checks) {
@@ -142,7 +150,10 @@ export type CodeState = { ok: true } | { ok: false; reason: 'unknown' | 'used' |
 /** Whether the pending code of a request may still be tried (for a clear message before trying). */
 export async function codeState(pending: PendingCode): Promise<CodeState> {
   if (!pending.jwe || !pending.email) return { ok: false, reason: 'unknown', message: MESSAGES.unknown };
-  const [row] = await db().select().from(signInCodes).where(eq(signInCodes.tokenHash, sha256(pending.jwe)));
+  const [row] = await db()
+    .select()
+    .from(signInCodes)
+    .where(eq(signInCodes.tokenHash, sha256(pending.jwe)));
   if (!row || row.email !== pending.email) return { ok: false, reason: 'unknown', message: MESSAGES.unknown };
   if (row.usedAt) return { ok: false, reason: 'used', message: MESSAGES.used };
   if (row.failures >= env().CODE_WRONG_TRIES) return { ok: false, reason: 'dead', message: MESSAGES.dead };
@@ -152,7 +163,12 @@ export async function codeState(pending: PendingCode): Promise<CodeState> {
 
 /** The message for a refusal named in a redirect (the magic link sends its reason to the code page). */
 export function refusalMessage(reason: string | null): string | null {
-  const messages: Record<string, string> = { unknown: MESSAGES.unknown, used: MESSAGES.used, dead: MESSAGES.dead, expired: MESSAGES.expiredTotp };
+  const messages: Record<string, string> = {
+    unknown: MESSAGES.unknown,
+    used: MESSAGES.used,
+    dead: MESSAGES.dead,
+    expired: MESSAGES.expiredTotp,
+  };
   return reason && Object.hasOwn(messages, reason) ? messages[reason] : null;
 }
 

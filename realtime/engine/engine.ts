@@ -14,11 +14,11 @@
  * from stored row times, and every random number from the session seed, so replaying the stored rows
  * in their sequence order rebuilds the same state (see rebuild.ts). The input state is never mutated.
  */
-import { type Action, type Automaton, libraryStrategy, LIBRARY, profileOf } from '../../app/lib/automata';
-import type { Design } from '../../app/lib/design';
-import { describeDraw, drawSequence, supergameDraws } from '../../app/lib/draws';
-import { matchSupergame } from '../../app/lib/matching';
-import { normaliseSeed, type Seed } from '../../app/lib/rng';
+import { type Action, type Automaton, libraryStrategy, LIBRARY, profileOf } from '#app/lib/automata';
+import type { Design } from '#app/lib/design';
+import { describeDraw, drawSequence, supergameDraws } from '#app/lib/draws';
+import { matchSupergame } from '#app/lib/matching';
+import { normaliseSeed, type Seed } from '#app/lib/rng';
 import type {
   BatchScope,
   ChoiceRow,
@@ -874,7 +874,11 @@ export function step(state: EngineState, event: EngineEvent, now: number, option
       });
     }
     broadcasts.push({ type: 'broadcast', room: roomOf('staff', s.sessionId), payload: { kind: 'floor-view', view: floorView(s, now) } });
-    broadcasts.push({ type: 'broadcast', room: roomOf('session', s.sessionId), payload: { kind: 'big-screen-view', view: bigScreenView(s) } });
+    broadcasts.push({
+      type: 'broadcast',
+      room: roomOf('session', s.sessionId),
+      payload: { kind: 'big-screen-view', view: bigScreenView(s) },
+    });
   }
   return { state: s, effects: [...d.persists, ...d.timers, ...broadcasts], row: d.row, touched };
 }

@@ -9,8 +9,8 @@
  * stored data and engine disagree, and the hub should not guess.
  * Connection state is not stored and starts empty.
  */
-import type { Design } from '../../app/lib/design';
-import type { Seed } from '../../app/lib/rng';
+import type { Design } from '#app/lib/design';
+import type { Seed } from '#app/lib/rng';
 import { createSession, newBatchScope, step } from './engine';
 import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow } from './types';
 

@@ -2,10 +2,10 @@
  * Types of the pure live-session engine: events in → new state + effects out (style.md,
  * "Shape of the house"). Nothing here does IO; the hub persists, broadcasts and keeps the timers.
  */
-import type { Action } from '../../app/lib/automata';
-import type { Design } from '../../app/lib/design';
-import type { SupergameDraws } from '../../app/lib/draws';
-import type { Matching } from '../../app/lib/matching';
+import type { Action } from '#app/lib/automata';
+import type { Design } from '#app/lib/design';
+import type { SupergameDraws } from '#app/lib/draws';
+import type { Matching } from '#app/lib/matching';
 
 /** cancelled: opened, then called off before it started (its join code no longer works) */
 export type SessionStatus = 'draft' | 'open' | 'running' | 'paused' | 'complete' | 'archived' | 'cancelled';
@@ -335,7 +335,12 @@ export interface FloorView {
     remainingMs: number | null;
   }[];
   /** participants not in a pair this supergame */
-  others: { participantId: string; pseudonym: string; why: 'waiting-to-enter' | 'sitting-out' | 'handed' | 'removed' | 'lobby'; connected: boolean }[];
+  others: {
+    participantId: string;
+    pseudonym: string;
+    why: 'waiting-to-enter' | 'sitting-out' | 'handed' | 'removed' | 'lobby';
+    connected: boolean;
+  }[];
   alerts: { participantId: string; pseudonym: string; kind: 'slow' | 'disconnected' }[];
   /** cooperation among players' own choices in the latest resolved round of each pair */
   currentCooperation: { choices: number; cooperate: number; rate: number | null };
@@ -400,7 +405,11 @@ export type Effect =
   /** informational: the draws of the session, stored when it opens */
   | { type: 'persist-draws'; supergames: SupergameDraws[] }
   /** informational: the pairs of a supergame, for the choice panel */
-  | { type: 'persist-matching'; matching: Matching; pairs: { pairId: string; participants: [string | null, string | null]; computerStrategy: string | null }[] }
+  | {
+      type: 'persist-matching';
+      matching: Matching;
+      pairs: { pairId: string; participants: [string | null, string | null]; computerStrategy: string | null }[];
+    }
   | { type: 'schedule-timer'; key: string; at: number; event: EngineEvent }
   | { type: 'cancel-timer'; key: string }
   | { type: 'broadcast'; room: string; payload: BroadcastPayload };

@@ -2,8 +2,8 @@
  * What each screen sees (product.md, "Play", "Floor and Conductor", "Big screen").
  * Participants never see their partner's pseudonym; the big screen shows aggregates only.
  */
-import type { Action } from '../../app/lib/automata';
-import { describeBlock, describeDraw, drawRule, formatCutoff, supergameDraws } from '../../app/lib/draws';
+import type { Action } from '#app/lib/automata';
+import { describeBlock, describeDraw, drawRule, formatCutoff, supergameDraws } from '#app/lib/draws';
 import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
 
 const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);

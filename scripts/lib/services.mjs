@@ -25,6 +25,17 @@ function run(cmd, args, opts = {}) {
   return r.status === 0;
 }
 
+/** Types (React Router typegen + tsc), ESLint and Prettier's check, as `npm run check` runs them. */
+export function runChecks() {
+  const bin = (name) => path.join(root, 'node_modules/.bin', name);
+  return (
+    run(bin('react-router'), ['typegen']) &&
+    run(bin('tsc'), ['--noEmit']) &&
+    run(bin('eslint'), ['--max-warnings=0', '.']) &&
+    run(bin('prettier'), ['--check', '--log-level=warn', '.'])
+  );
+}
+
 function which(bin) {
   for (const dir of [...(process.env.PATH ?? '').split(':'), '/usr/sbin', '/usr/bin', '/sbin']) {
     const p = path.join(dir, bin);
@@ -49,7 +60,10 @@ export function ensureDebian(needs) {
   const pkgs = [...new Set(missing.flatMap((n) => n.packages))];
   const cmd = `apt-get update && DEBIAN_FRONTEND=noninteractive apt-get install -y --no-install-recommends ${pkgs.join(' ')}`;
   if (process.getuid?.() !== 0) {
-    fail(`missing ${missing.map((n) => n.bin).join(', ')}`, `Install Debian's packages as root, then run this again:\n  sudo sh -c '${cmd}'`);
+    fail(
+      `missing ${missing.map((n) => n.bin).join(', ')}`,
+      `Install Debian's packages as root, then run this again:\n  sudo sh -c '${cmd}'`,
+    );
   }
   say(`installing Debian packages: ${pkgs.join(' ')}…`);
   if (!run('sh', ['-c', cmd], { env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } })) {
@@ -147,7 +161,11 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
       ],
       { detached: true, stdio: 'ignore' },
     );
-    started.push({ name: 'MariaDB', child, stop: () => spawnSync('mariadb-admin', ['--no-defaults', `--socket=${sock}`, '-uroot', 'shutdown']) });
+    started.push({
+      name: 'MariaDB',
+      child,
+      stop: () => spawnSync('mariadb-admin', ['--no-defaults', `--socket=${sock}`, '-uroot', 'shutdown']),
+    });
     let ready = false;
     for (let i = 0; i < 300 && !ready; i++) {
       await sleep(100);
@@ -230,15 +248,28 @@ export async function startMaildev({ smtp, web }) {
     return;
   }
   for (const p of [smtp, web]) {
-    if (!(await portIsFree(p))) fail(`port ${p} is taken, so maildev cannot start`, 'Set PARLEY_SMTP_PORT / PARLEY_MAIL_WEB_PORT to free ports.');
+    if (!(await portIsFree(p)))
+      fail(`port ${p} is taken, so maildev cannot start`, 'Set PARLEY_SMTP_PORT / PARLEY_MAIL_WEB_PORT to free ports.');
   }
   const child = spawn(
     process.execPath,
-    [path.join(root, 'node_modules/maildev/dist/bin/maildev.js'), '--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '--smtp', String(smtp), '--web', String(web), '--silent'],
+    [
+      path.join(root, 'node_modules/maildev/dist/bin/maildev.js'),
+      '--ip',
+      '127.0.0.1',
+      '--web-ip',
+      '127.0.0.1',
+      '--smtp',
+      String(smtp),
+      '--web',
+      String(web),
+      '--silent',
+    ],
     { detached: true, stdio: 'ignore' },
   );
   started.push({ name: 'maildev', child });
-  if (!(await waitForHttp(health, 20_000))) fail('maildev did not start', `Try by hand: node node_modules/maildev/dist/bin/maildev.js --smtp ${smtp} --web ${web}`);
+  if (!(await waitForHttp(health, 20_000)))
+    fail('maildev did not start', `Try by hand: node node_modules/maildev/dist/bin/maildev.js --smtp ${smtp} --web ${web}`);
 }
 
 export async function httpOk(url) {

@@ -13,7 +13,17 @@ export function howItEnded(code, signal) {
  * `windowMs`; one more death in the window calls `onGiveUp(reason)`. `stop()` ends it for good
  * (no restart) and resolves when the current process has exited.
  */
-export function supervise({ name, spawn, maxRestarts = 3, windowMs = 60_000, delayMs = 500, say = () => {}, onRestart = () => {}, onGiveUp, now = Date.now }) {
+export function supervise({
+  name,
+  spawn,
+  maxRestarts = 3,
+  windowMs = 60_000,
+  delayMs = 500,
+  say = () => {},
+  onRestart = () => {},
+  onGiveUp,
+  now = Date.now,
+}) {
   let child = spawn();
   let stopping = false;
   const restarts = [];

@@ -30,9 +30,19 @@ const world = {} as {
 
 beforeAll(async () => {
   browser = await launch();
-  const [inst, asst, part, newcomer] = [uniqueEmail('a11y-inst'), uniqueEmail('a11y-asst'), uniqueEmail('a11y-part'), uniqueEmail('a11y-new')];
+  const [inst, asst, part, newcomer] = [
+    uniqueEmail('a11y-inst'),
+    uniqueEmail('a11y-asst'),
+    uniqueEmail('a11y-part'),
+    uniqueEmail('a11y-new'),
+  ];
   // the instructor may create courses, so /courses/new is the form (not a 403)
-  const [instId, asstId, partId, newId] = await Promise.all([createCourseCreator(inst), createUser(asst, 'Assia Assistant'), createUser(part), createUser(newcomer)]);
+  const [instId, asstId, partId, newId] = await Promise.all([
+    createCourseCreator(inst),
+    createUser(asst, 'Assia Assistant'),
+    createUser(part),
+    createUser(newcomer),
+  ]);
   world.courseId = await createCourse('Accessible course', [
     { userId: instId, role: 'instructor' },
     { userId: asstId, role: 'assistant' },
@@ -40,7 +50,12 @@ beforeAll(async () => {
     { userId: newId, role: 'participant' },
   ]);
   world.designId = await createDesign(world.courseId, instId, { supergames: 2, delta: 0.75, roundSeconds: 60, consent: true });
-  [world.instructor, world.assistant, world.participant, world.newcomer] = await Promise.all([signIn(inst), signIn(asst), signIn(part), signIn(newcomer)]);
+  [world.instructor, world.assistant, world.participant, world.newcomer] = await Promise.all([
+    signIn(inst),
+    signIn(asst),
+    signIn(part),
+    signIn(newcomer),
+  ]);
   const opened = await openSession(world.instructor, world.courseId, world.designId);
   world.sessionId = opened.sessionId;
   world.code = opened.code;
@@ -56,7 +71,8 @@ afterAll(async () => {
 async function settle(page: Page) {
   await page.waitForLoadState('load');
   if (await page.locator('figure[data-chart]').count()) await page.locator('figure[data-chart] .recharts-surface').first().waitFor();
-  if (/\/(floor|sessions\/\d+|screen\/|play\/)/.test(page.url())) await page.waitForFunction(() => !/Connecting/.test(document.body.innerText), undefined, { timeout: 15_000 });
+  if (/\/(floor|sessions\/\d+|screen\/|play\/)/.test(page.url()))
+    await page.waitForFunction(() => !/Connecting/.test(document.body.innerText), undefined, { timeout: 15_000 });
   await page.waitForTimeout(200);
 }
 
@@ -79,9 +95,19 @@ async function audit(client: Client | null, paths: string[]): Promise<Violation[
       await settle(page);
       await page.addScriptTag({ path: AXE });
       const violations = await page.evaluate(async (tags) => {
-        const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: { id: string; nodes: { target: string[] }[] }[] }> } }).axe;
+        const axe = (
+          window as unknown as {
+            axe: { run: (ctx: Document, opts: object) => Promise<{ violations: { id: string; nodes: { target: string[] }[] }[] }> };
+          }
+        ).axe;
         const r = await axe.run(document, { runOnly: { type: 'tag', values: tags }, resultTypes: ['violations'] });
-        return r.violations.map((v) => ({ rule: v.id, targets: v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(' | ') }));
+        return r.violations.map((v) => ({
+          rule: v.id,
+          targets: v.nodes
+            .map((n) => n.target.join(' '))
+            .slice(0, 3)
+            .join(' | '),
+        }));
       }, TAGS);
       for (const v of violations) found.push({ page: path, size: sizeName, ...v });
       // every page has a title (axe's document-title rule checks it too; error pages had none)
@@ -108,7 +134,13 @@ describe('axe-core, WCAG 2.1 AA, every page at desktop and phone sizes', () => {
 
   it('an assistant', async () => {
     const c = world.courseId;
-    const own = await audit(world.assistant, [`/courses/${c}`, `/courses/${c}/sessions`, `/courses/${c}/sessions/${world.sessionId}`, `/courses/${c}/sessions/${world.sessionId}/floor`, `/courses/${c}/designs/${world.designId}`]);
+    const own = await audit(world.assistant, [
+      `/courses/${c}`,
+      `/courses/${c}/sessions`,
+      `/courses/${c}/sessions/${world.sessionId}`,
+      `/courses/${c}/sessions/${world.sessionId}/floor`,
+      `/courses/${c}/designs/${world.designId}`,
+    ]);
     const demo = await audit(await signIn('j.lindqvist@halvorsen.example'), ['/courses/1/debrief', '/courses/1/debrief/2', '/methods']);
     expect([...own, ...demo]).toEqual([]);
   }, 240_000);

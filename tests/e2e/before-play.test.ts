@@ -66,7 +66,12 @@ describe('before play, on a phone', () => {
   });
 
   it('checks understanding before the lobby: a wrong answer is explained, right answers join; the Conductor sees who is stuck', async () => {
-    const { courseId, designId, instructor, player, playerId } = await courseWith({ consent: true, comprehension: true, delta: 0.8, labels: { C: 'Blue', D: 'Green' } });
+    const { courseId, designId, instructor, player, playerId } = await courseWith({
+      consent: true,
+      comprehension: true,
+      delta: 0.8,
+      labels: { C: 'Blue', D: 'Green' },
+    });
     const { sessionId, code } = await openSession(instructor, courseId, designId);
     const { page } = await pageOf(player);
     await page.goto(`/join/${code}`);
@@ -113,7 +118,11 @@ describe('before play, on a phone', () => {
   });
 
   it('offers a practice supergame against the computer that sends and stores nothing', async () => {
-    const { courseId, designId, instructor, player } = await courseWith({ practice: true, delta: 0.5, oddCount: { kind: 'computer', strategy: 'TFT' } });
+    const { courseId, designId, instructor, player } = await courseWith({
+      practice: true,
+      delta: 0.5,
+      oddCount: { kind: 'computer', strategy: 'TFT' },
+    });
     const { sessionId, code } = await openSession(instructor, courseId, designId);
     const { page } = await pageOf(player);
     await page.goto(`/join/${code}`);
@@ -155,12 +164,16 @@ describe('instruction templates', () => {
     const { page } = await pageOf(instructor, DESKTOP);
     await page.goto(`/courses/${courseId}/designs/new`);
     await page.getByLabel('Name', { exact: true }).fill('Templated');
-    await page.getByLabel('Instructions participants read').fill('Both {C}: {R} points each. After each round another round follows with a chance of {delta%}.');
+    await page
+      .getByLabel('Instructions participants read')
+      .fill('Both {C}: {R} points each. After each round another round follows with a chance of {delta%}.');
     const delta = page.getByLabel('δ (chance of another round)');
     await delta.fill('0.5');
     const preview = page.getByTestId('phone-preview');
     await preview.getByText('All the rules, in full').click();
-    await expect.poll(() => preview.getByTestId('instructions').textContent()).toBe('Both X: 40 points each. After each round another round follows with a chance of 50%.');
+    await expect
+      .poll(() => preview.getByTestId('instructions').textContent())
+      .toBe('Both X: 40 points each. After each round another round follows with a chance of 50%.');
     await delta.fill('0.9');
     await expect.poll(() => preview.getByTestId('instructions').textContent()).toContain('a chance of 90%.');
     expect(await page.getByTestId('instruction-contradictions').count()).toBe(0);
@@ -174,7 +187,9 @@ describe('instruction templates', () => {
     const { code } = await openSession(instructor, courseId, designId);
     const { page: phone } = await pageOf(player);
     await phone.goto(`/join/${code}`);
-    expect(await phone.getByTestId('instructions').textContent()).toBe('Both X: 40 points each. After each round another round follows with a chance of 90%.');
+    expect(await phone.getByTestId('instructions').textContent()).toBe(
+      'Both X: 40 points each. After each round another round follows with a chance of 90%.',
+    );
     expect(pageErrors.splice(0)).toEqual([]);
   });
 

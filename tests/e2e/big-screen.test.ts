@@ -71,7 +71,10 @@ async function classOf(n: number, design: Parameters<typeof createDesign>[2], se
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`bs-p${i}`));
   const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Lecture hall', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse('Lecture hall', [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId, design);
   const instructor = await signIn(instructorEmail);
   const { sessionId, code } = await openSession(instructor, courseId, designId, { seed: String(seed) });
@@ -97,9 +100,13 @@ async function phones(players: Client[], code: string, sessionId: number) {
   const playRound = async (supergame: number, round: number, action: 'C' | 'D') => {
     for (const [i, seat] of seats.entries()) {
       await expect
-        .poll(() => seat.latest?.status === 'choosing' && seat.latest.supergame === supergame && seat.latest.round === round, { timeout: 10_000 })
+        .poll(() => seat.latest?.status === 'choosing' && seat.latest.supergame === supergame && seat.latest.round === round, {
+          timeout: 10_000,
+        })
         .toBe(true);
-      const ack = await seat.socket.timeout(8000).emitWithAck('choice:submit', { sessionId, supergame, round, action, clientChoiceId: `bs-${i}-${supergame}-${round}-choice` });
+      const ack = await seat.socket
+        .timeout(8000)
+        .emitWithAck('choice:submit', { sessionId, supergame, round, action, clientChoiceId: `bs-${i}-${supergame}-${round}-choice` });
       expect(ack.ok).toBe(true);
     }
   };
@@ -161,7 +168,12 @@ describe('the big screen on a 1920×1080 projector', () => {
     await expect.poll(() => page.getByTestId('pause-banner').isVisible()).toBe(true);
     expect(await page.getByTestId('pause-banner').textContent()).toContain('Paused');
     expect(await width(page, 'pause-banner')).toBeGreaterThanOrEqual(1800);
-    expect(await page.getByTestId('pause-banner').getByText('Paused').evaluate((el) => parseFloat(getComputedStyle(el).fontSize))).toBeGreaterThanOrEqual(48);
+    expect(
+      await page
+        .getByTestId('pause-banner')
+        .getByText('Paused')
+        .evaluate((el) => parseFloat(getComputedStyle(el).fontSize)),
+    ).toBeGreaterThanOrEqual(48);
     await shot(page, 'big-screen-paused-1920');
     await shot(phone, 'big-screen-paused-phone');
     await control('resume');
@@ -216,9 +228,12 @@ describe('the big screen on a 1920×1080 projector', () => {
   });
 
   it("the demo's completed session: a closing slide with all 20 supergames that fits the screen", async () => {
-    const demo = (await testDb().select().from(sessions).where(and(eq(sessions.simulated, 1), eq(sessions.status, 'complete')))).find(
-      (x) => designSchema.parse(x.params).supergames === 20,
-    )!;
+    const demo = (
+      await testDb()
+        .select()
+        .from(sessions)
+        .where(and(eq(sessions.simulated, 1), eq(sessions.status, 'complete')))
+    ).find((x) => designSchema.parse(x.params).supergames === 20)!;
     const design = designSchema.parse(demo.params);
     const page = await screenPage(await signIn('r.okafor@halvorsen.example'), demo.id, PROJECTOR);
     await page.getByRole('heading', { name: /Thank you/ }).waitFor();
@@ -227,7 +242,9 @@ describe('the big screen on a 1920×1080 projector', () => {
     // Each supergame's length is the one its draws gave. Source: common practice (the first draw above 100·δ ends it).
     for (let sg = 1; sg <= 20; sg++) {
       const length = supergameDraws(Number(demo.seed), design.delta, sg, design.termination).length;
-      expect(await rows.nth(sg - 1).textContent()).toMatch(new RegExp(`^Supergame ${sg}: \\d+ % chose ${design.labels.C}, ${length} rounds?\\.`));
+      expect(await rows.nth(sg - 1).textContent()).toMatch(
+        new RegExp(`^Supergame ${sg}: \\d+ % chose ${design.labels.C}, ${length} rounds?\\.`),
+      );
     }
     expect(await page.getByTestId('big-join-code').count()).toBe(0);
     const small = await smallestText(page);

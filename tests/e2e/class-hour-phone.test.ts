@@ -22,7 +22,10 @@ async function classOf(n: number, design: Parameters<typeof createDesign>[2]) {
   const emails = { instructor: uniqueEmail('ch-inst'), players: Array.from({ length: n }, (_, i) => uniqueEmail(`ch-p${i}`)) };
   const instructorId = await createUser(emails.instructor, 'Instructor');
   const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));
-  const courseId = await createCourse('Class hour', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse('Class hour', [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId, design);
   const instructor = await signIn(emails.instructor);
   const players = await Promise.all(emails.players.map((e) => signIn(e)));

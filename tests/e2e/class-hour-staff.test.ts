@@ -22,7 +22,10 @@ async function classOf(n: number) {
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`chs-p${i}`));
   const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Class hour', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse('Class hour', [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId, { supergames: 3, delta: 0.9, roundSeconds: 60 });
   const instructor = await signIn(instructorEmail);
   const { sessionId, code } = await openSession(instructor, courseId, designId);

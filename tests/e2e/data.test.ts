@@ -72,7 +72,10 @@ describe('data in and out, in Chromium', () => {
     await page.getByRole('link', { name: 'Data', exact: true }).click();
     await expect.poll(() => page.getByRole('table', { name: 'Completed sessions' }).isVisible()).toBe(true);
 
-    const [panelDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'CSV panel of session 2' }).click()]);
+    const [panelDownload] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('link', { name: 'CSV panel of session 2' }).click(),
+    ]);
     const panel = await saved(panelDownload);
     expect(panel.name).toBe('parley-session-2-panel.csv');
     const rows = Papa.parse<Record<string, string>>(panel.text, { header: true, skipEmptyLines: true });
@@ -83,7 +86,10 @@ describe('data in and out, in Chromium', () => {
 
     await page.getByRole('link', { name: 'Credit & results of session 2' }).click();
     await expect.poll(() => page.getByRole('heading', { name: 'Session 2: credit and results' }).isVisible()).toBe(true);
-    const [creditDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download credit sheet (CSV)' }).click()]);
+    const [creditDownload] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('link', { name: 'Download credit sheet (CSV)' }).click(),
+    ]);
     const credit = await saved(creditDownload);
     expect(credit.name).toBe('parley-session-2-credit.csv');
     const sheet = Papa.parse<Record<string, string>>(credit.text, { header: true, skipEmptyLines: true });

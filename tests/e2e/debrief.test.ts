@@ -80,10 +80,13 @@ describe('Debrief, in Chromium', () => {
       await expect.poll(() => page.getByRole('heading', { name: /^Debrief: .*Short horizon/ }).isVisible()).toBe(true);
 
       // Off by default: every cooperation caption says which choices it counts and what it left out.
-      const sw = page.getByRole('checkbox', { name: /Include timeout-filled and computer-seat choices, and rounds after a supergame’s end/ });
+      const sw = page.getByRole('checkbox', {
+        name: /Include timeout-filled and computer-seat choices, and rounds after a supergame’s end/,
+      });
       expect(await sw.isChecked()).toBe(false);
       const caption = (chart: string) => page.locator(`figure[data-chart="${chart}"] figcaption`).textContent();
-      for (const chart of ['cooperation-by-supergame', 'cooperation-by-round', 'outcomes', 'theory']) expect(await caption(chart)).toMatch(/Own choices in rounds that count: [\d,]+\./);
+      for (const chart of ['cooperation-by-supergame', 'cooperation-by-round', 'outcomes', 'theory'])
+        expect(await caption(chart)).toMatch(/Own choices in rounds that count: [\d,]+\./);
       expect(await caption('lengths')).not.toMatch(/methods\.md|§/);
       expect(await caption('points')).toContain('whoever chose');
       const csv = page.locator('figure[data-chart="cooperation-by-supergame"]').getByRole('link', { name: /download data \(CSV\)/ });
@@ -99,7 +102,10 @@ describe('Debrief, in Chromium', () => {
       expect(await csv.getAttribute('href')).toContain('include=all');
       expect(await page.locator('input[type="hidden"][name="include"]').getAttribute('value')).toBe('all');
       expect(await page.getByTestId('estimate-include').textContent()).toContain('Uses every choice');
-      await page.screenshot({ path: path.join(SHOTS, `debrief-switch-${size === PHONE ? 'phone' : 'desktop'}-on.png`), fullPage: size !== PHONE });
+      await page.screenshot({
+        path: path.join(SHOTS, `debrief-switch-${size === PHONE ? 'phone' : 'desktop'}-on.png`),
+        fullPage: size !== PHONE,
+      });
 
       // Off again: back to own, paid choices.
       await sw.uncheck();

@@ -86,13 +86,17 @@ describe('a design used by a session, in Chromium', () => {
     const courseId = await createCourse('Versions lab', [{ userId, role: 'instructor' }]);
     const params = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 });
     const [d] = await testDb().insert(designs).values({ courseId, name: 'Class run', params, createdBy: userId });
-    await testDb().insert(sessions).values({ courseId, designId: d.insertId, treatment: 'Class run', params, seed: 5, status: 'complete', createdBy: userId });
+    await testDb()
+      .insert(sessions)
+      .values({ courseId, designId: d.insertId, treatment: 'Class run', params, seed: 5, status: 'complete', createdBy: userId });
 
     for (const [viewport, name] of SIZES) {
       const page = await signedInPage(browser, email, viewport);
       await page.goto(`/courses/${courseId}/designs/${d.insertId}`);
       await expect.poll(() => page.getByText('Read-only: used by a session').isVisible()).toBe(true);
-      expect(await page.getByTestId('read-only-reason').textContent()).toContain('A session was opened from this design, so it stays exactly as they ran it');
+      expect(await page.getByTestId('read-only-reason').textContent()).toContain(
+        'A session was opened from this design, so it stays exactly as they ran it',
+      );
       expect(await page.getByLabel('δ (chance of another round)').isDisabled()).toBe(true);
       expect(await page.getByRole('button', { name: 'Save design' }).count()).toBe(0);
       await page.screenshot({ path: path.join(SHOTS, `design-read-only-${name}.png`), fullPage: true });
@@ -106,7 +110,13 @@ describe('a design used by a session, in Chromium', () => {
     expect(await page.getByLabel('δ (chance of another round)').isDisabled()).toBe(false);
 
     // Axelrod's payoffs T=5, R=3, P=1, S=0: δ_RD = 3/5, where sizeBAD is exactly ½ (methods.md §1 [calc]).
-    for (const [f, v] of [['T', '5'], ['R', '3'], ['P', '1'], ['S', '0']] as const) await page.locator(`#payoffs-${f}`).fill(v);
+    for (const [f, v] of [
+      ['T', '5'],
+      ['R', '3'],
+      ['P', '1'],
+      ['S', '0'],
+    ] as const)
+      await page.locator(`#payoffs-${f}`).fill(v);
     await page.getByLabel('δ (chance of another round)').fill('0.6');
     await expect.poll(() => verdict(page, 'Grim risk-dominates always-defect')).toBe('tie');
     expect(await page.locator('[data-basin]').textContent()).toBe('exactly ½: neither favoured');

@@ -78,7 +78,15 @@ describe('keyboard and screen readers', () => {
 
     // The partner chooses: the result of round 1 and the next round's title are announced.
     const next = nextView(otherSocket, (v) => v.round === 2);
-    expect(await otherSocket.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'D', clientChoiceId: `keyboard-${sessionId}-round1` })).toMatchObject({ ok: true });
+    expect(
+      await otherSocket.emitWithAck('choice:submit', {
+        sessionId,
+        supergame: 1,
+        round: 1,
+        action: 'D',
+        clientChoiceId: `keyboard-${sessionId}-round1`,
+      }),
+    ).toMatchObject({ ok: true });
     await next;
     await expect.poll(() => title.textContent()).toContain('Round 2');
     const last = phone.getByTestId('last-result');

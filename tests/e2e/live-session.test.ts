@@ -31,7 +31,13 @@ async function playToTheEnd(page: Page, pick: (round: number) => 'X' | 'Y') {
     taps.push({ supergame: Number(sg), round: Number(rd), action: label === 'X' ? 'C' : 'D' });
     // Then the page says it waits for the partner, or has already moved on to the next round.
     await expect
-      .poll(async () => (await page.getByTestId('waiting').isVisible()) || (await final.isVisible()) || (await page.getByTestId('round-title').textContent()) !== title, { timeout: 30_000 })
+      .poll(
+        async () =>
+          (await page.getByTestId('waiting').isVisible()) ||
+          (await final.isVisible()) ||
+          (await page.getByTestId('round-title').textContent()) !== title,
+        { timeout: 30_000 },
+      )
       .toBe(true);
   }
   throw new Error('the session did not end');
@@ -39,7 +45,11 @@ async function playToTheEnd(page: Page, pick: (round: number) => 'X' | 'Y') {
 
 describe('a live session in Chromium', () => {
   it('an instructor opens and starts; four phones join by code and play two supergames; an assistant watches the Floor', async () => {
-    const emails = { instructor: uniqueEmail('e2e-inst'), assistant: uniqueEmail('e2e-ta'), players: [0, 1, 2, 3].map((i) => uniqueEmail(`e2e-p${i}`)) };
+    const emails = {
+      instructor: uniqueEmail('e2e-inst'),
+      assistant: uniqueEmail('e2e-ta'),
+      players: [0, 1, 2, 3].map((i) => uniqueEmail(`e2e-p${i}`)),
+    };
     const instructorId = await createUser(emails.instructor, 'Instructor E2E');
     const assistantId = await createUser(emails.assistant, 'Assistant E2E');
     const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));

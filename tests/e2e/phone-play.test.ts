@@ -30,7 +30,10 @@ async function classOf(n: number, design: Parameters<typeof createDesign>[2], op
   const emails = { instructor: uniqueEmail('ob-inst'), players: Array.from({ length: n }, (_, i) => uniqueEmail(`ob-p${i}`)) };
   const instructorId = await createUser(emails.instructor, 'Instructor');
   const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));
-  const courseId = await createCourse('Outbox', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse('Outbox', [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId, design);
   const instructor = await signIn(emails.instructor);
   const players = await Promise.all(emails.players.map((e) => signIn(e)));
@@ -59,7 +62,11 @@ async function participantKey(sessionId: number, userId: number) {
 describe('the phone during play', () => {
   it('keeps a tap made offline and sends it when the network is back; the round resolves with it', async () => {
     // Seed 2 draws 14 after round 1 (≤ 50): the supergame goes on, so the phone shows round 1's result.
-    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 40, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } }, { seed: '2' });
+    const { sessionId, instructor, players, playerIds } = await classOf(
+      2,
+      { roundSeconds: 40, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } },
+      { seed: '2' },
+    );
     const { ctx, page } = await phoneOf(players[0]);
     await page.goto(`/play/${sessionId}`);
     await page.getByRole('heading', { name: 'You are in' }).waitFor();
@@ -93,15 +100,26 @@ describe('the phone during play', () => {
     const key = await participantKey(sessionId, playerIds[0]);
     // Before the fix: nothing was sent again, and 40 s later the timeout rule filled the choice.
     await expect
-      .poll(async () => (await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))).map((r) => `${r.supergame}/${r.round} ${r.action} ${r.source}`), {
-        timeout: 20_000,
-      })
+      .poll(
+        async () =>
+          (
+            await testDb()
+              .select()
+              .from(choices)
+              .where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))
+          ).map((r) => `${r.supergame}/${r.round} ${r.action} ${r.source}`),
+        {
+          timeout: 20_000,
+        },
+      )
       .toEqual(['1/1 D player']);
     await expect.poll(() => text(page)).toMatch(/You chose ● ?Defect/);
 
     // The partner chooses; the round resolves with the phone's own Defect, not a timeout.
     const resolved = nextView(partner, (v) => v.lastResult?.round === 1);
-    const ack = await partner.timeout(8000).emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'partner-1-1-xyz' });
+    const ack = await partner
+      .timeout(8000)
+      .emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'partner-1-1-xyz' });
     expect(ack.ok).toBe(true);
     expect((await resolved).lastResult).toMatchObject({ own: 'C', partner: 'D' });
     await expect.poll(() => page.getByTestId('last-result').textContent()).toMatch(/Round 1: you ● ?Defect, partner ◆ ?Cooperate/);
@@ -110,7 +128,12 @@ describe('the phone during play', () => {
   });
 
   it('tells a partner in plain words what the computer that took the other seat does, and the handed-over participant that the supergame goes on', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 2, delta: 0.9, labels: { C: 'Cooperate', D: 'Defect' } });
+    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+      roundSeconds: 60,
+      supergames: 2,
+      delta: 0.9,
+      labels: { C: 'Cooperate', D: 'Defect' },
+    });
     const phones = await Promise.all(players.map((p) => phoneOf(p)));
     for (const { page } of phones) {
       await page.goto(`/play/${sessionId}`);
@@ -124,14 +147,18 @@ describe('the phone during play', () => {
 
     // The second participant is away; the assistant hands the seat to tit-for-tat.
     const key = await participantKey(sessionId, playerIds[1]);
-    const handed = await staff.timeout(8000).emitWithAck('participant:act', { sessionId, participantId: key!, action: 'hand-to-computer', strategy: 'TFT' });
+    const handed = await staff
+      .timeout(8000)
+      .emitWithAck('participant:act', { sessionId, participantId: key!, action: 'hand-to-computer', strategy: 'TFT' });
     expect(handed.ok).toBe(true);
 
     // Before the fix: "a computer that follows a fixed rule (TFT)".
     await stays.getByText('Your partner is a computer', { exact: true }).waitFor();
-    expect.soft(await text(stays)).toContain(
-      'The participant you were paired with left, so for the rest of this supergame your partner is a computer that starts with Cooperate and then copies what you did last round.',
-    );
+    expect
+      .soft(await text(stays))
+      .toContain(
+        'The participant you were paired with left, so for the rest of this supergame your partner is a computer that starts with Cooperate and then copies what you did last round.',
+      );
     expect.soft(await text(stays)).not.toMatch(/TFT|fixed rule|Tit-for-tat/);
     await stays.screenshot({ path: path.join(SHOTS, 'phone-computer-partner.png') });
 
@@ -151,7 +178,12 @@ describe('the phone during play', () => {
   });
 
   it('holds a tap while the server has lost its database, and sends it again after an "unavailable" answer', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } });
+    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+      roundSeconds: 60,
+      supergames: 1,
+      delta: 0.5,
+      labels: { C: 'Cooperate', D: 'Defect' },
+    });
     const { page } = await phoneOf(players[0]);
     // Between the phone and the server: inject the server's 'storage:status' events, and answer
     // the first choice as a server with a stalled database does ('unavailable', outcome unknown).
@@ -191,7 +223,14 @@ describe('the phone during play', () => {
     toPage!(`42${JSON.stringify(['storage:status', { ok: true }])}`);
     const key = await participantKey(sessionId, playerIds[0]);
     await expect
-      .poll(async () => (await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))).map((r) => `${r.action} ${r.source}`))
+      .poll(async () =>
+        (
+          await testDb()
+            .select()
+            .from(choices)
+            .where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))
+        ).map((r) => `${r.action} ${r.source}`),
+      )
       .toEqual(['D player']);
     // Sent twice, the second time with the same client choice id, so it could only be stored once.
     expect(sent).toHaveLength(2);
@@ -203,7 +242,12 @@ describe('the phone during play', () => {
   });
 
   it('keeps a tap that could not be sent across a reload of the page, and sends it after', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, { roundSeconds: 60, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } });
+    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+      roundSeconds: 60,
+      supergames: 1,
+      delta: 0.5,
+      labels: { C: 'Cooperate', D: 'Defect' },
+    });
     const { page } = await phoneOf(players[0]);
     let toPage: ((frame: string) => void) | null = null;
     await page.routeWebSocket(/\/socket\.io\//, (ws) => {
@@ -225,7 +269,14 @@ describe('the phone during play', () => {
     await page.reload();
     const key = await participantKey(sessionId, playerIds[0]);
     await expect
-      .poll(async () => (await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))).map((r) => `${r.action} ${r.source}`))
+      .poll(async () =>
+        (
+          await testDb()
+            .select()
+            .from(choices)
+            .where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)))
+        ).map((r) => `${r.action} ${r.source}`),
+      )
       .toEqual(['C player']);
     await expect.poll(() => text(page)).toMatch(/You chose ◆ ?Cooperate/);
     expect(pageErrors.splice(0)).toEqual([]);
@@ -256,11 +307,19 @@ describe('the phone during play', () => {
     await page.getByTestId('round-title').waitFor();
     toPage!(`42${JSON.stringify(['storage:status', { ok: false }])}`);
     await page.getByRole('button', { name: 'Cooperate' }).click();
-    expect((await partner.timeout(8000).emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'partner-1-1-abc' })).ok).toBe(true);
+    expect(
+      (
+        await partner
+          .timeout(8000)
+          .emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'partner-1-1-abc' })
+      ).ok,
+    ).toBe(true);
 
     await expect
       .poll(() => text(page), { timeout: 20_000 })
-      .toMatch('Round 1 closed before your choice Cooperate reached the server, so it was not recorded. The timeout rule chose Defect for you.');
+      .toMatch(
+        'Round 1 closed before your choice Cooperate reached the server, so it was not recorded. The timeout rule chose Defect for you.',
+      );
     await page.screenshot({ path: path.join(SHOTS, 'phone-round-closed-first.png') });
     await expect.poll(() => page.getByTestId('round-title').textContent()).toContain('Round 2');
     toPage!(`42${JSON.stringify(['storage:status', { ok: true }])}`);
@@ -269,7 +328,10 @@ describe('the phone during play', () => {
     // The dropped tap is not sent into the next round, and round 1 holds the timeout rule's choice.
     expect(sent).toEqual([]);
     const key = await participantKey(sessionId, playerIds[0]);
-    const rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)));
+    const rows = await testDb()
+      .select()
+      .from(choices)
+      .where(and(eq(choices.sessionId, sessionId), eq(choices.participantKey, key!)));
     expect(rows.map((r) => `${r.round} ${r.action} ${r.source}`)).toEqual(['1 D timeout']);
     expect(await page.getByRole('button', { name: 'Cooperate' }).isEnabled()).toBe(true);
     expect(pageErrors.splice(0)).toEqual([]);

@@ -2,7 +2,7 @@
 // Floor's rows and waiting time, the design editor at 1440 px, e-mail addresses that wrap.
 import fs from 'node:fs';
 import path from 'node:path';
-import type { Browser, Locator, Page } from 'playwright-core';
+import type { Browser, Locator } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DESKTOP, launch, pageAs as pageOf, pageErrors, PHONE } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
@@ -43,12 +43,22 @@ describe('the Debrief', () => {
       const link = page.locator(`figure[data-chart="${id}"] figcaption`).getByRole('link', { name: /How this is computed/ });
       expect(await link.getAttribute('href')).toBe(`/methods#${id}`);
     }
-    await page.locator('figure[data-chart="lengths"] figcaption').getByRole('link', { name: /How this is computed/ }).click();
+    await page
+      .locator('figure[data-chart="lengths"] figcaption')
+      .getByRole('link', { name: /How this is computed/ })
+      .click();
     await expect.poll(() => page.title()).toBe('Methods · Parley');
     const lengths = page.locator('#lengths');
     expect(await lengths.textContent()).toContain('P(L = k) = (1 − δ) δ^(k − 1)');
     const methods = (await page.locator('main').textContent())!;
-    for (const source of ['Dal Bó, P. & Fréchette, G. R. (2011)', 'Blonski, M., Ockenfels, P. & Spagnolo, G. (2011)', 'Fréchette, G. R. & Yuksel, S. (2017)', 'Pearson, K. (1900)', 'Friedman, J. W. (1971)']) expect(methods).toContain(source);
+    for (const source of [
+      'Dal Bó, P. & Fréchette, G. R. (2011)',
+      'Blonski, M., Ockenfels, P. & Spagnolo, G. (2011)',
+      'Fréchette, G. R. & Yuksel, S. (2017)',
+      'Pearson, K. (1900)',
+      'Friedman, J. W. (1971)',
+    ])
+      expect(methods).toContain(source);
     expect(methods).not.toMatch(/methods\.md|§/);
     await page.screenshot({ path: path.join(SHOTS, 'methods-desktop.png'), fullPage: true });
     expect(pageErrors).toEqual([]);
@@ -67,7 +77,9 @@ describe('the Debrief', () => {
         const text = (await legend.textContent())!;
         // Before the fix: "#1 Short horizon (δ = 1/2) — demo" twice or more in four of the six.
         expect([id, text.split('Short horizon').length - 1, text.split('Long horizon').length - 1]).toEqual([id, 1, 1]);
-        const boxes = await legend.locator('li').evaluateAll((els) => els.map((e) => e.getBoundingClientRect()).map((r) => ({ l: r.left, r: r.right, t: r.top, b: r.bottom })));
+        const boxes = await legend
+          .locator('li')
+          .evaluateAll((els) => els.map((e) => e.getBoundingClientRect()).map((r) => ({ l: r.left, r: r.right, t: r.top, b: r.bottom })));
         for (let i = 0; i < boxes.length; i++)
           for (let j = i + 1; j < boxes.length; j++) {
             const [a, b] = [boxes[i], boxes[j]];
@@ -109,9 +121,20 @@ describe('the Floor', () => {
     // Nobody has chosen: nobody waits yet (before the fix it counted from the round's opening).
     await page.waitForTimeout(4500);
     expect(await waiting()).toBe('—');
-    const me = (await sockets[0].emitWithAck('session:watch', { sessionId, as: 'participant' })) as { ok: true; data: { supergame: number; round: number } };
+    const me = (await sockets[0].emitWithAck('session:watch', { sessionId, as: 'participant' })) as {
+      ok: true;
+      data: { supergame: number; round: number };
+    };
     expect(
-      (await sockets[0].emitWithAck('choice:submit', { sessionId, supergame: me.data.supergame, round: me.data.round, action: 'C', clientChoiceId: `floor-${sessionId}-0` })).ok,
+      (
+        await sockets[0].emitWithAck('choice:submit', {
+          sessionId,
+          supergame: me.data.supergame,
+          round: me.data.round,
+          action: 'C',
+          clientChoiceId: `floor-${sessionId}-0`,
+        })
+      ).ok,
     ).toBe(true);
     await expect.poll(waiting).toMatch(/^[0-2] s$/);
 
@@ -140,10 +163,13 @@ describe('the design editor at 1440 px', () => {
       const b = (await l.boundingBox())!;
       // Before the fix: (D, D) and Remove sat beyond the panel's right edge, in a sideways scroll.
       expect(b.x + b.width <= sec.x + sec.width).toBe(true);
-      expect(await l.evaluate((el) => {
-        for (let a = el.parentElement; a; a = a.parentElement) if (a.scrollWidth > a.clientWidth + 1 && getComputedStyle(a).overflowX !== 'visible') return false;
-        return true;
-      })).toBe(true);
+      expect(
+        await l.evaluate((el) => {
+          for (let a = el.parentElement; a; a = a.parentElement)
+            if (a.scrollWidth > a.clientWidth + 1 && getComputedStyle(a).overflowX !== 'visible') return false;
+          return true;
+        }),
+      ).toBe(true);
     }
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(1440);
 
@@ -175,7 +201,9 @@ describe('e-mail addresses', () => {
     const courseId = await createCourse('Long addresses', [{ userId, role: 'instructor' }]);
     const instructor = await signIn(email);
     const long = `teaching-assistant-with-a-long-name-${Date.now()}@department-of-economics.halvorsen.example`;
-    expect((await instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email: long, role: 'assistant' })).status).toBeLessThan(400);
+    expect(
+      (await instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email: long, role: 'assistant' })).status,
+    ).toBeLessThan(400);
     const page = await pageAs(instructor, `/courses/${courseId}/members`, PHONE);
     const el = page.getByText(long, { exact: true });
     const starts = await el.evaluate((node) => {

@@ -22,7 +22,11 @@ export const PHONE = { viewport: { width: 390, height: 844 }, deviceScaleFactor:
 export const DESKTOP = { viewport: { width: 1440, height: 900 } };
 
 /** A context that fails the test on any page error or console error. */
-export async function newContext(browser: Browser, opts: typeof PHONE | typeof DESKTOP = DESKTOP, extra: BrowserContextOptions = {}): Promise<BrowserContext> {
+export async function newContext(
+  browser: Browser,
+  opts: typeof PHONE | typeof DESKTOP = DESKTOP,
+  extra: BrowserContextOptions = {},
+): Promise<BrowserContext> {
   const ctx = await browser.newContext({ ...opts, ...extra, baseURL: process.env.PARLEY_TEST_URL });
   ctx.on('page', watch);
   return ctx;

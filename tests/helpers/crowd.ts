@@ -127,7 +127,13 @@ export async function playCrowd(
     const { socket } = phones[i];
     socket
       .timeout(120_000)
-      .emitWithAck('choice:submit', { sessionId: e.sessionId, supergame: e.supergame, round: e.round, action: e.action, clientChoiceId: e.clientChoiceId })
+      .emitWithAck('choice:submit', {
+        sessionId: e.sessionId,
+        supergame: e.supergame,
+        round: e.round,
+        action: e.action,
+        clientChoiceId: e.clientChoiceId,
+      })
       .then((res) => {
         if (e.ackedAt !== null || e.refused !== null) return;
         if (!res.ok && TRANSIENT.has(res.code)) {
@@ -212,7 +218,10 @@ export async function playCrowd(
   for (let i = 0; i < phones.length; i += 50) await Promise.all(phones.slice(i, i + 50).map((_, k) => watch(i + k)));
   await opts.start();
   let timer: NodeJS.Timeout | undefined;
-  const complete = await Promise.race([allDone.then(() => true), new Promise<boolean>((r) => (timer = setTimeout(() => r(false), opts.timeoutMs)))]);
+  const complete = await Promise.race([
+    allDone.then(() => true),
+    new Promise<boolean>((r) => (timer = setTimeout(() => r(false), opts.timeoutMs))),
+  ]);
   clearTimeout(timer);
 
   const refused: Record<string, number> = {};

@@ -26,7 +26,10 @@ export async function createCourse(title: string, members: { userId: number; rol
   const creator = members.find((m) => m.role === 'instructor') ?? members[0];
   const [res] = await testDb().insert(schema.courses).values({ title, createdBy: creator.userId });
   const courseId = res.insertId;
-  if (members.length) await testDb().insert(schema.courseMembers).values(members.map((m) => ({ ...m, courseId })));
+  if (members.length)
+    await testDb()
+      .insert(schema.courseMembers)
+      .values(members.map((m) => ({ ...m, courseId })));
   return courseId;
 }
 

@@ -3,7 +3,7 @@ import type { EstimateStatus } from '#app/models/estimate.server';
 import type { Client } from './http';
 
 export async function waitEstimate(c: Client, courseId: number, id: number, timeoutMs = 60_000): Promise<EstimateStatus> {
-  for (const until = Date.now() + timeoutMs; ; ) {
+  for (const until = Date.now() + timeoutMs; ;) {
     const res = await c.get(`/courses/${courseId}/estimates/${id}`);
     if (res.status !== 200) throw new Error(`estimate ${id}: status page answered ${res.status}`);
     const e = (await res.json()) as EstimateStatus;

@@ -121,16 +121,18 @@ export function uniqueEmail(prefix = 'user') {
 
 /** A server-rendered page's text as a person reads it: tags and React's markers out, entities decoded. */
 export function pageText(html: string) {
-  return html
-    .replace(/<!-- -->/g, '')
-    // an e-mail address (EmailAddress in app/components/ui.tsx) reads as one word
-    .replace(/<wbr\s*\/?>/g, '')
-    .replace(/<span class="whitespace-nowrap">([^<]*)<\/span>/g, '$1')
-    .replace(/<[^>]+>/g, ' ')
-    .replace(/&quot;/g, '"')
-    .replace(/&#x27;/g, "'")
-    .replace(/&lt;/g, '<')
-    .replace(/&gt;/g, '>')
-    .replace(/&amp;/g, '&')
-    .replace(/\s+/g, ' ');
+  return (
+    html
+      .replace(/<!-- -->/g, '')
+      // an e-mail address (EmailAddress in app/components/ui.tsx) reads as one word
+      .replace(/<wbr\s*\/?>/g, '')
+      .replace(/<span class="whitespace-nowrap">([^<]*)<\/span>/g, '$1')
+      .replace(/<[^>]+>/g, ' ')
+      .replace(/&quot;/g, '"')
+      .replace(/&#x27;/g, "'")
+      .replace(/&lt;/g, '<')
+      .replace(/&gt;/g, '>')
+      .replace(/&amp;/g, '&')
+      .replace(/\s+/g, ' ')
+  );
 }

@@ -12,7 +12,9 @@ export type TestSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
 
 export async function createDesign(courseId: number, createdBy: number, over: Partial<DesignInput> = {}) {
   const params = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.5, supergames: 2, roundSeconds: 60, ...over });
-  const [res] = await testDb().insert(designs).values({ courseId, name: `Test design ${Date.now()}`, params, createdBy });
+  const [res] = await testDb()
+    .insert(designs)
+    .values({ courseId, name: `Test design ${Date.now()}`, params, createdBy });
   return res.insertId;
 }
 
@@ -41,7 +43,13 @@ export function designForm(over: Record<string, string> = {}) {
 }
 
 export async function openSession(instructor: Client, courseId: number, designId: number, extra: Record<string, string> = {}) {
-  const res = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '', emailDomain: '', ...extra });
+  const res = await instructor.post(`/courses/${courseId}/sessions`, {
+    designId,
+    admission: 'roster',
+    seed: '',
+    emailDomain: '',
+    ...extra,
+  });
   if (res.status !== 302) throw new Error(`opening answered ${res.status}: ${(await res.text()).slice(0, 300)}`);
   const sessionId = Number(/sessions\/(\d+)/.exec(res.headers.get('location')!)![1]);
   const page = await (await instructor.get(`/courses/${courseId}/sessions/${sessionId}`)).text();
@@ -60,7 +68,12 @@ const open: TestSocket[] = [];
 
 export function connect(cookie: string, url = baseUrl()): Promise<TestSocket> {
   // The Origin a browser on Parley's pages sends (the hub refuses other origins).
-  const s: TestSocket = io(url, { transports: ['websocket'], extraHeaders: { cookie, origin: new URL(url).origin }, reconnection: false, forceNew: true });
+  const s: TestSocket = io(url, {
+    transports: ['websocket'],
+    extraHeaders: { cookie, origin: new URL(url).origin },
+    reconnection: false,
+    forceNew: true,
+  });
   open.push(s);
   return new Promise((resolve, reject) => {
     s.on('connect', () => resolve(s));
@@ -95,7 +108,10 @@ export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`${tag}-p${i}`));
   const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse(`Class ${tag}`, [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse(`Class ${tag}`, [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.9, roundSeconds: 120, ...over });
   const instructor = await signIn(instructorEmail);
   const { sessionId, code } = await openSession(instructor, courseId, designId, sessionFields);

@@ -63,5 +63,9 @@ export function removeMariadbs(dirs: readonly string[]) {
 
 /** Applies Parley's migrations to the database at `url` (scripts/migrate.ts). */
 export function migrate(url: string) {
-  return spawnSync(process.execPath, ['--import', 'tsx', 'scripts/migrate.ts'], { encoding: 'utf8', env: { ...process.env, DATABASE_URL: url }, timeout: 60_000 });
+  return spawnSync(process.execPath, ['--import', 'tsx', 'scripts/migrate.ts'], {
+    encoding: 'utf8',
+    env: { ...process.env, DATABASE_URL: url },
+    timeout: 60_000,
+  });
 }

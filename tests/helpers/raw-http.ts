@@ -15,7 +15,10 @@ export interface RawAnswer {
  * POSTs `total` bytes in 64 KB chunks (Transfer-Encoding: chunked unless a content-length header is
  * given), stops writing as soon as the server answers, and resolves with that answer.
  */
-export function streamPost(path: string, opts: { total: number; headers?: Record<string, string>; fill?: string; method?: string }): Promise<RawAnswer> {
+export function streamPost(
+  path: string,
+  opts: { total: number; headers?: Record<string, string>; fill?: string; method?: string },
+): Promise<RawAnswer> {
   const url = new URL(path, baseUrl());
   const chunk = Buffer.alloc(64 * 1024, opts.fill ?? 'a');
   return new Promise((resolve, reject) => {

@@ -17,7 +17,10 @@ export class SecondServer {
 
   /** Starts it (its APP_URL is its own address, so forms posted to it pass the Origin check) and waits until /healthz answers. */
   async start() {
-    this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], { env: { ...process.env, APP_URL: this.base, ...this.env, PORT: String(this.port) }, stdio: 'ignore' });
+    this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], {
+      env: { ...process.env, APP_URL: this.base, ...this.env, PORT: String(this.port) },
+      stdio: 'ignore',
+    });
     const until = Date.now() + 30_000;
     while (Date.now() < until) {
       try {

@@ -46,13 +46,18 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
 
   const emails = Array.from({ length: opts.participants }, (_, i) => `p${i + 1}-${tag}@synthetic.parley.test`);
   await db.insert(schema.users).values(emails.map((email, i) => ({ email, name: opts.name?.(i) ?? `Synthetic Person ${i + 1}` })));
-  const people = await db.select({ id: schema.users.id, email: schema.users.email }).from(schema.users).where(inArray(schema.users.email, emails));
+  const people = await db
+    .select({ id: schema.users.id, email: schema.users.email })
+    .from(schema.users)
+    .where(inArray(schema.users.email, emails));
   const idOf = new Map(people.map((p) => [p.email, p.id]));
   const userIds = emails.map((e) => idOf.get(e)!);
   if (opts.enrol) {
     await db
       .insert(schema.courseMembers)
-      .values(userIds.map((userId, i) => ({ courseId: opts.courseId, userId, role: 'participant' as const, studentId: `SYN-${tag}-${i + 1}` })));
+      .values(
+        userIds.map((userId, i) => ({ courseId: opts.courseId, userId, role: 'participant' as const, studentId: `SYN-${tag}-${i + 1}` })),
+      );
   }
 
   const [res] = await db.insert(schema.sessions).values({
@@ -100,7 +105,14 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
     const pairs: [string, string | null][] = [];
     for (let i = 0; i < order.length; i += 2) pairs.push([order[i], order[i + 1] ?? null]);
     await db.insert(schema.sessionPairs).values(
-      pairs.map(([a, b], i) => ({ sessionId, supergame, pairId: `s${supergame}-p${i + 1}`, seat0: a, seat1: b, computerStrategy: b ? null : 'TFT' })),
+      pairs.map(([a, b], i) => ({
+        sessionId,
+        supergame,
+        pairId: `s${supergame}-p${i + 1}`,
+        seat0: a,
+        seat1: b,
+        computerStrategy: b ? null : 'TFT',
+      })),
     );
     for (let round = 1; round <= length; round++) {
       for (const [i, [a, b]] of pairs.entries()) {
@@ -129,7 +141,10 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
     }
   }
   await flush();
-  await db.update(schema.sessions).set({ completedAt: new Date(now), currentSupergame: opts.lengths.length }).where(eq(schema.sessions.id, sessionId));
+  await db
+    .update(schema.sessions)
+    .set({ completedAt: new Date(now), currentSupergame: opts.lengths.length })
+    .where(eq(schema.sessions.id, sessionId));
 
   return {
     sessionId,

@@ -15,7 +15,10 @@ async function classOf(n: number) {
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`chi-p${i}`));
   const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Class hour', [{ userId: instructorId, role: 'instructor' }, ...playerIds.map((userId) => ({ userId, role: 'participant' as const }))]);
+  const courseId = await createCourse('Class hour', [
+    { userId: instructorId, role: 'instructor' },
+    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   const designId = await createDesign(courseId, instructorId);
   const instructor = await signIn(instructorEmail);
   return { courseId, designId, instructor, players: await Promise.all(playerEmails.map((e) => signIn(e))), playerIds };
@@ -30,10 +33,14 @@ describe('the class hour, staff side', () => {
     expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
     expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'end-now' })).ok).toBe(true);
 
-    const nudge = await staff.timeout(8000).emitWithAck('participant:act', { sessionId, participantId: String(playerIds[0]), action: 'nudge' });
+    const nudge = await staff
+      .timeout(8000)
+      .emitWithAck('participant:act', { sessionId, participantId: String(playerIds[0]), action: 'nudge' });
     // Before the fix: { ok: true, data: { done: true } } on a completed session.
     expect(nudge).toMatchObject({ ok: false, code: 'session-not-running' });
-    const hand = await staff.timeout(8000).emitWithAck('participant:act', { sessionId, participantId: String(playerIds[0]), action: 'hand-to-computer', strategy: 'TFT' });
+    const hand = await staff
+      .timeout(8000)
+      .emitWithAck('participant:act', { sessionId, participantId: String(playerIds[0]), action: 'hand-to-computer', strategy: 'TFT' });
     expect(hand).toMatchObject({ ok: false, code: 'session-not-running' });
   });
 
@@ -45,7 +52,12 @@ describe('the class hour, staff side', () => {
       expect(res.status).toBe(400);
       expect(pageText(await res.text())).toContain('A seed is a whole number from 0 to 4294967295');
     }
-    const ok = await instructor.post(`/courses/${courseId}/sessions`, { designId, admission: 'roster', seed: '4294967295', emailDomain: '' });
+    const ok = await instructor.post(`/courses/${courseId}/sessions`, {
+      designId,
+      admission: 'roster',
+      seed: '4294967295',
+      emailDomain: '',
+    });
     expect(ok.status).toBe(302);
   });
 

@@ -45,7 +45,13 @@ describe('courses', () => {
 
 describe('roles guard every course page and action', () => {
   let courseId: number;
-  const emails = { instructor: uniqueEmail('inst'), assistant: uniqueEmail('asst'), researcher: uniqueEmail('res'), participant: uniqueEmail('part'), outsider: uniqueEmail('out') };
+  const emails = {
+    instructor: uniqueEmail('inst'),
+    assistant: uniqueEmail('asst'),
+    researcher: uniqueEmail('res'),
+    participant: uniqueEmail('part'),
+    outsider: uniqueEmail('out'),
+  };
   const clients = {} as Record<keyof typeof emails, Client>;
   const ids = {} as Record<keyof typeof emails, number>;
 
@@ -61,7 +67,8 @@ describe('roles guard every course page and action', () => {
   });
 
   it('course page: staff 200, participant and outsider 403, unknown id 404', async () => {
-    for (const k of ['instructor', 'assistant', 'researcher'] as const) expect((await clients[k].get(`/courses/${courseId}`)).status).toBe(200);
+    for (const k of ['instructor', 'assistant', 'researcher'] as const)
+      expect((await clients[k].get(`/courses/${courseId}`)).status).toBe(200);
     const part = await clients.participant.get(`/courses/${courseId}`);
     expect(part.status).toBe(403);
     expect(await part.text()).toContain('Not for your role');
@@ -86,7 +93,11 @@ describe('roles guard every course page and action', () => {
       .from(courseMembers)
       .where(and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, ids.participant)));
     for (const k of ['assistant', 'researcher', 'participant', 'outsider'] as const) {
-      const res = await clients[k].post(`/courses/${courseId}/members`, { intent: 'change-role', memberId: participantRow.id, role: 'instructor' });
+      const res = await clients[k].post(`/courses/${courseId}/members`, {
+        intent: 'change-role',
+        memberId: participantRow.id,
+        role: 'instructor',
+      });
       expect(res.status).toBe(403);
       const inv = await clients[k].post(`/courses/${courseId}/members`, { intent: 'invite', email: uniqueEmail('x'), role: 'assistant' });
       expect(inv.status).toBe(403);
@@ -99,9 +110,17 @@ describe('roles guard every course page and action', () => {
     const bad = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email: 'nope', role: 'assistant' });
     expect(bad.status).toBe(400);
     expect(await bad.text()).toContain('Enter an e-mail address such as name@university.edu.');
-    const badRole = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email: uniqueEmail('r'), role: 'dean' });
+    const badRole = await clients.instructor.post(`/courses/${courseId}/members`, {
+      intent: 'invite',
+      email: uniqueEmail('r'),
+      role: 'dean',
+    });
     expect(badRole.status).toBe(400);
-    const already = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email: emails.assistant, role: 'assistant' });
+    const already = await clients.instructor.post(`/courses/${courseId}/members`, {
+      intent: 'invite',
+      email: emails.assistant,
+      role: 'assistant',
+    });
     expect(already.status).toBe(400);
     expect(await already.text()).toContain('is already a member');
     const unknownIntent = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'drop-table' });
@@ -117,7 +136,11 @@ describe('roles guard every course page and action', () => {
     const res = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'remove', memberId: me.id });
     expect(res.status).toBe(400);
     expect(await res.text()).toContain('A course needs at least one instructor.');
-    const demote = await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'change-role', memberId: me.id, role: 'assistant' });
+    const demote = await clients.instructor.post(`/courses/${courseId}/members`, {
+      intent: 'change-role',
+      memberId: me.id,
+      role: 'assistant',
+    });
     expect(demote.status).toBe(400);
     expect((await memberRows(courseId)).find((m) => m.userId === ids.instructor)?.role).toBe('instructor');
   });
@@ -127,7 +150,10 @@ describe('roles guard every course page and action', () => {
       .select({ id: courseMembers.id })
       .from(courseMembers)
       .where(and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, ids.researcher)));
-    expect((await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'change-role', memberId: row.id, role: 'assistant' })).status).toBe(200);
+    expect(
+      (await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'change-role', memberId: row.id, role: 'assistant' }))
+        .status,
+    ).toBe(200);
     expect((await memberRows(courseId)).find((m) => m.userId === ids.researcher)?.role).toBe('assistant');
     expect((await clients.instructor.post(`/courses/${courseId}/members`, { intent: 'remove', memberId: row.id })).status).toBe(200);
     expect((await memberRows(courseId)).some((m) => m.userId === ids.researcher)).toBe(false);
@@ -163,7 +189,9 @@ describe('invitations', () => {
     expect(accepted.status).toBe(302);
     expect(accepted.headers.get('location')).toBe(`/courses/${courseId}`);
     expect((await guest.get(`/courses/${courseId}/members`)).status).toBe(200);
-    expect((await guest.post(`/courses/${courseId}/members`, { intent: 'invite', email: uniqueEmail('y'), role: 'assistant' })).status).toBe(403);
+    expect(
+      (await guest.post(`/courses/${courseId}/members`, { intent: 'invite', email: uniqueEmail('y'), role: 'assistant' })).status,
+    ).toBe(403);
     // A second use of the link changes nothing.
     expect((await guest.post(path, {})).status).toBe(400);
   });

@@ -68,14 +68,24 @@ describe('external panel upload', () => {
   });
 
   it('asks for a column mapping when the names differ, then stores with it', async () => {
-    const csv = 'sid,cond,subj,opp,match,period,coop,opp_coop\nA,T1,s1,s2,1,1,1,0\nA,T1,s2,s1,1,1,0,1\nA,T1,s1,s2,1,2,0,0\nA,T1,s2,s1,1,2,0,0\n';
+    const csv =
+      'sid,cond,subj,opp,match,period,coop,opp_coop\nA,T1,s1,s2,1,1,1,0\nA,T1,s2,s1,1,1,0,1\nA,T1,s1,s2,1,2,0,0\nA,T1,s2,s1,1,2,0,0\n';
     const first = await upload(researcher, courseId, 'other-lab.csv', csv);
     expect(first.status).toBe(400);
     const page = text(await first.text());
     expect(page).toContain('Which column holds what?');
     expect(page).toContain('“Session”, “Treatment”, “Participant (pseudonym)”');
     const before = (await stored(courseId)).length;
-    const map = { map_session: 'sid', map_treatment: 'cond', map_subject: 'subj', map_partner: 'opp', map_supergame: 'match', map_round: 'period', map_action: 'coop', map_partnerAction: 'opp_coop' };
+    const map = {
+      map_session: 'sid',
+      map_treatment: 'cond',
+      map_subject: 'subj',
+      map_partner: 'opp',
+      map_supergame: 'match',
+      map_round: 'period',
+      map_action: 'coop',
+      map_partnerAction: 'opp_coop',
+    };
     const second = await upload(researcher, courseId, 'other-lab.csv', csv, map);
     expect(second.status).toBe(200);
     const all = await stored(courseId);
@@ -104,7 +114,10 @@ describe('external panel upload', () => {
 
   it('caps the size and the row count with a clear message, and is not for assistants', async () => {
     const header = 'session,treatment,pseudonym,partner,supergame,round,action,partner_action\n';
-    const rows = Array.from({ length: DATASET_LIMITS.maxRows + 1 }, (_, k) => `S,T,P${k % 2},P${(k + 1) % 2},${1 + Math.floor(k / 2)},1,C,C`).join('\n');
+    const rows = Array.from(
+      { length: DATASET_LIMITS.maxRows + 1 },
+      (_, k) => `S,T,P${k % 2},P${(k + 1) % 2},${1 + Math.floor(k / 2)},1,C,C`,
+    ).join('\n');
     const many = await upload(researcher, courseId, 'many.csv', header + rows);
     expect(many.status).toBe(413);
     expect(text(await many.text())).toContain(`more than ${DATASET_LIMITS.maxRows.toLocaleString('en-GB')} rows`);

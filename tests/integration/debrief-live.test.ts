@@ -27,7 +27,10 @@ describe('a Debrief while the session runs, is paused, and after “End now” m
       ids.push(await createUser(email));
       people.push({ client: await signIn(email) });
     }
-    courseId = await createCourse('Debrief of a live session', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
+    courseId = await createCourse('Debrief of a live session', [
+      { userId: instructorId, role: 'instructor' },
+      ...ids.map((userId) => ({ userId, role: 'participant' as const })),
+    ]);
     instructor = await signIn(instEmail);
   });
 
@@ -86,7 +89,13 @@ describe('a Debrief while the session runs, is paused, and after “End now” m
     await check('ended mid-round');
 
     // An estimation on the ended session runs to the end on the complete round's choices.
-    const res = await instructor.post(`/courses/${courseId}/estimates`, { sessions: String(sessionId), windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 3 });
+    const res = await instructor.post(`/courses/${courseId}/estimates`, {
+      sessions: String(sessionId),
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 0,
+      seed: 3,
+    });
     expect(res.status).toBe(202);
     const { estimate } = (await res.json()) as { estimate: { id: number } };
     const done = await waitEstimate(instructor, courseId, estimate.id);

@@ -24,9 +24,17 @@ afterAll(async () => {
 
 /** A completed session of `courseId`, simulated through the engine like the demo's. */
 async function simulatedSession(courseId: number, createdBy: number, players: number[], delta: number, seed: number) {
-  const design = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta, supergames: 6, roundSeconds: 15, oddCount: { kind: 'computer', strategy: 'TFT' } });
+  const design = designSchema.parse({
+    payoffs: { R: 40, S: 12, T: 50, P: 25 },
+    delta,
+    supergames: 6,
+    roundSeconds: 15,
+    oddCount: { kind: 'computer', strategy: 'TFT' },
+  });
   const treatment = `Test δ = ${delta} (${seed})`;
-  const [res] = await testDb().insert(sessions).values({ courseId, treatment, params: design, seed, status: 'draft', simulated: 1, createdBy });
+  const [res] = await testDb()
+    .insert(sessions)
+    .values({ courseId, treatment, params: design, seed, status: 'draft', simulated: 1, createdBy });
   const sim = simulateSession({
     sessionId: String(res.insertId),
     design,
@@ -96,7 +104,13 @@ describe('who sees a Debrief', () => {
     for (const p of staffPaths()) expect([p, (await clients.participant.get(p)).status]).toEqual([p, 403]);
     const status = await clients.participant.get(`/courses/${courseId}/estimates/1`);
     expect(status.status).toBe(403);
-    const post = await clients.participant.post(`/courses/${courseId}/estimates`, { sessions: String(sessionId), windowKind: 'all', preset: 'dbf2011', bootstrap: 10, seed: 1 });
+    const post = await clients.participant.post(`/courses/${courseId}/estimates`, {
+      sessions: String(sessionId),
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 10,
+      seed: 1,
+    });
     expect(post.status).toBe(403);
 
     const mine = await clients.participant.get(`/courses/${courseId}/debrief/${sessionId}/mine`);
@@ -148,7 +162,14 @@ async function waitDone(c: Client, id: number): Promise<{ seen: EstimateStatus[]
 }
 
 describe('estimation through the real server', () => {
-  const form = (extra: Record<string, string | number> = {}) => ({ sessions: String(sessionId), windowKind: 'all', preset: 'dbf2011', bootstrap: 80, seed: 7, ...extra });
+  const form = (extra: Record<string, string | number> = {}) => ({
+    sessions: String(sessionId),
+    windowKind: 'all',
+    preset: 'dbf2011',
+    bootstrap: 80,
+    seed: 7,
+    ...extra,
+  });
 
   it('runs the bootstrap on workers, reports progress to the total, stores the result, and reuses it', async () => {
     const res = await clients.assistant.post(`/courses/${courseId}/estimates`, form());
@@ -179,7 +200,13 @@ describe('estimation through the real server', () => {
 
     // The same request (fields in another order, same meaning) is answered from the stored row.
     const before = await testDb().select({ id: estimates.id }).from(estimates).where(eq(estimates.courseId, courseId));
-    const again = await clients.researcher.post(`/courses/${courseId}/estimates`, { seed: 7, bootstrap: 80, preset: 'dbf2011', windowKind: 'all', sessions: `${sessionId},${sessionId}` });
+    const again = await clients.researcher.post(`/courses/${courseId}/estimates`, {
+      seed: 7,
+      bootstrap: 80,
+      preset: 'dbf2011',
+      windowKind: 'all',
+      sessions: `${sessionId},${sessionId}`,
+    });
     expect(again.status).toBe(200);
     const reused = (await again.json()) as { ok: true; estimate: EstimateStatus; reused: boolean };
     expect([reused.reused, reused.estimate.id, reused.estimate.status]).toEqual([true, started.estimate.id, 'done']);
@@ -200,13 +227,24 @@ describe('estimation through the real server', () => {
     // the rows the estimation on the session used (own, paid choices, each supergame cut at its first other one)
     const { rows } = estimationRows(panel.rows, 'own');
     const datasetId = await createDataset(courseId, ids.researcher, 'Same rows', rows);
-    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 7 });
+    const res = await clients.researcher.post(`/courses/${courseId}/estimates`, {
+      dataset: datasetId,
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 0,
+      seed: 7,
+    });
     expect(res.status).toBe(202);
     const { estimate } = (await res.json()) as { estimate: EstimateStatus };
     const { last } = await waitDone(clients.researcher, estimate.id);
     expect(last.status).toBe('done');
     expect(last.total).toBe(0);
-    const bySession = (await testDb().select().from(estimates).where(and(eq(estimates.courseId, courseId), eq(estimates.status, 'done'))))
+    const bySession = (
+      await testDb()
+        .select()
+        .from(estimates)
+        .where(and(eq(estimates.courseId, courseId), eq(estimates.status, 'done')))
+    )
       .map((r) => r.result as { groups: { shares: number[] }[]; bootstrap: number })
       .find((r) => r.bootstrap === 80)!;
     last.result!.groups[0].shares.forEach((s, k) => expect(s).toBeCloseTo(bySession.groups[0].shares[k], 10));
@@ -216,11 +254,16 @@ describe('estimation through the real server', () => {
   it('bad requests get field errors and store nothing; another course’s data is a 404', async () => {
     const count = async () => (await testDb().select({ id: estimates.id }).from(estimates)).length;
     const before = await count();
-    const bad = await clients.instructor.post(`/courses/${courseId}/estimates`, form({ bootstrap: 'many', windowKind: 'supergames', from: 5, to: 2 }));
+    const bad = await clients.instructor.post(
+      `/courses/${courseId}/estimates`,
+      form({ bootstrap: 'many', windowKind: 'supergames', from: 5, to: 2 }),
+    );
     expect(bad.status).toBe(400);
     expect(((await bad.json()) as { errors: Record<string, string> }).errors).toMatchObject({ bootstrap: 'B must be a whole number' });
     const badWindow = await clients.instructor.post(`/courses/${courseId}/estimates`, form({ windowKind: 'supergames', from: 5, to: 2 }));
-    expect(((await badWindow.json()) as { errors: Record<string, string> }).errors).toEqual({ to: 'The last supergame must not come before the first' });
+    expect(((await badWindow.json()) as { errors: Record<string, string> }).errors).toEqual({
+      to: 'The last supergame must not come before the first',
+    });
     const noStrategy = await clients.instructor.post(`/courses/${courseId}/estimates`, form({ preset: 'custom' }));
     expect(((await noStrategy.json()) as { errors: Record<string, string> }).errors).toEqual({ strategy: 'Choose at least one strategy' });
     const tooMany = await clients.instructor.post(`/courses/${courseId}/estimates`, form({ bootstrap: 5000 }));
@@ -235,7 +278,10 @@ describe('estimation through the real server', () => {
 describe('realised lengths of the demo’s simulated sessions against the geometric law', () => {
   it('δ = 1/2: the Debrief’s χ² equals Pearson’s χ² recomputed here with jStat’s p-value; δ = 7/8: a simulated p-value', async () => {
     const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
-    const demoSessions = await testDb().select().from(sessions).where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
+    const demoSessions = await testDb()
+      .select()
+      .from(sessions)
+      .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
     const admin = await signIn('admin@halvorsen.example');
     for (const s of demoSessions) {
       const delta = (s.params as { delta: number }).delta;
@@ -245,7 +291,9 @@ describe('realised lengths of the demo’s simulated sessions against the geomet
         // 8 supergames: n(1−δ) = 1 < 5 already for L = 1, so no two bins reach expected counts of 5:
         // the p-value is simulated (9,999 seeded samples of 8 geometric lengths).
         expect(lengths).toHaveLength(8);
-        expect(page.replaceAll('<!-- -->', '')).toMatch(new RegExp(`#${s.id}: χ² = [0-9.]+, simulated p = [0-9.]+ from 9,999 seeded samples`));
+        expect(page.replaceAll('<!-- -->', '')).toMatch(
+          new RegExp(`#${s.id}: χ² = [0-9.]+, simulated p = [0-9.]+ from 9,999 seeded samples`),
+        );
         continue;
       }
       expect(delta).toBe(0.5);

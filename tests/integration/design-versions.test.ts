@@ -48,14 +48,18 @@ describe('a design used by a session', () => {
     const sessionId = await openSession(id);
     const refused = await instructor.post(`/courses/${courseId}/designs/${id}`, form({ delta: '0.5', name: 'Changed after use' }));
     expect(refused.status).toBe(409);
-    expect(pageText(await refused.text())).toContain('This design was used by a session, so it stays as they ran it and cannot be changed. Make a new version to change it.');
+    expect(pageText(await refused.text())).toContain(
+      'This design was used by a session, so it stays as they ran it and cannot be changed. Make a new version to change it.',
+    );
     const after = await designRow(id);
     expect(after.name).toBe('Versioned');
     expect((after.params as { delta: number }).delta).toBe(0.8);
 
     const page = pageText(await (await instructor.get(`/courses/${courseId}/designs/${id}`)).text());
     expect(page).toContain('Read-only: used by a session');
-    expect(page).toContain('A session was opened from this design, so it stays exactly as they ran it (treatment R40 S12 T50 P25, δ = 0.8, random termination)');
+    expect(page).toContain(
+      'A session was opened from this design, so it stays exactly as they ran it (treatment R40 S12 T50 P25, δ = 0.8, random termination)',
+    );
     expect(page).toContain('Make a new version');
     expect(page).not.toContain('Save design');
     // assistants see why, but no button

@@ -19,7 +19,12 @@ async function designCount(courseId: number) {
 describe('the design editor', () => {
   let courseId: number;
   let otherCourseId: number;
-  const emails = { instructor: uniqueEmail('d-inst'), assistant: uniqueEmail('d-asst'), researcher: uniqueEmail('d-res'), participant: uniqueEmail('d-part') };
+  const emails = {
+    instructor: uniqueEmail('d-inst'),
+    assistant: uniqueEmail('d-asst'),
+    researcher: uniqueEmail('d-res'),
+    participant: uniqueEmail('d-part'),
+  };
   const c = {} as Record<keyof typeof emails, Client>;
 
   beforeAll(async () => {
@@ -37,7 +42,10 @@ describe('the design editor', () => {
 
   it('refuses instructions with a placeholder the design cannot fill, beside the text, and saves nothing', async () => {
     const before = await designCount(courseId);
-    const res = await c.instructor.post(`/courses/${courseId}/designs/new`, form({ instructions: 'Blocks of {blockRounds} rounds; chance {delta%}.' }));
+    const res = await c.instructor.post(
+      `/courses/${courseId}/designs/new`,
+      form({ instructions: 'Blocks of {blockRounds} rounds; chance {delta%}.' }),
+    );
     expect(res.status).toBe(400);
     expect(html(await res.text())).toContain('{blockRounds} has no value in this design');
     expect(await designCount(courseId)).toBe(before);
@@ -136,7 +144,9 @@ describe('the design editor', () => {
     expect(bad.status).toBe(400);
     expect(await bad.text()).toContain('cannot be reached');
     expect((await c.instructor.post(`/courses/${courseId}/strategies`, { automaton: '{not json' })).status).toBe(400);
-    expect((await c.instructor.post(`/courses/${courseId}/strategies`, { automaton: JSON.stringify({ ...good, id: 'TFT' }) })).status).toBe(400);
+    expect((await c.instructor.post(`/courses/${courseId}/strategies`, { automaton: JSON.stringify({ ...good, id: 'TFT' }) })).status).toBe(
+      400,
+    );
     expect((await c.assistant.post(`/courses/${courseId}/strategies`, { automaton: JSON.stringify(good) })).status).toBe(403);
     expect(await strategies()).toBe(0);
     expect((await c.instructor.post(`/courses/${courseId}/strategies`, { automaton: JSON.stringify(good) })).status).toBe(200);

@@ -17,11 +17,18 @@ async function expectedPanel(sessionId: number, { identified = false } = {}) {
   const [s] = await testDb().select().from(sessions).where(eq(sessions.id, sessionId));
   const design = s.params as { payoffs: { R: number; S: number; T: number; P: number }; delta: number };
   const people = await testDb()
-    .select({ key: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, seq: sessionParticipants.seq, consent: sessionParticipants.consent })
+    .select({
+      key: sessionParticipants.participantKey,
+      pseudonym: sessionParticipants.pseudonym,
+      seq: sessionParticipants.seq,
+      consent: sessionParticipants.consent,
+    })
     .from(sessionParticipants)
     .where(eq(sessionParticipants.sessionId, sessionId));
   const all = await testDb().select().from(choices).where(eq(choices.sessionId, sessionId));
-  const draws = new Map((await testDb().select().from(supergameDraws).where(eq(supergameDraws.sessionId, sessionId))).map((d) => [d.supergame, d]));
+  const draws = new Map(
+    (await testDb().select().from(supergameDraws).where(eq(supergameDraws.sessionId, sessionId))).map((d) => [d.supergame, d]),
+  );
   const cell = new Map(all.map((c) => [`${c.supergame}/${c.round}/${c.pairId}/${c.seat}`, c]));
   const who = new Map(people.map((p) => [p.key, p]));
   const table = { CC: design.payoffs.R, CD: design.payoffs.S, DC: design.payoffs.T, DD: design.payoffs.P };
@@ -54,7 +61,14 @@ async function expectedPanel(sessionId: number, { identified = false } = {}) {
         supergame_length: draws.get(c.supergame)!.length,
         timestamp: new Date(c.atMs).toISOString(),
         paid: c.round <= draws.get(c.supergame)!.length ? 1 : 0,
-        origin: c.round > draws.get(c.supergame)!.length ? 'unpaid_round' : c.source === 'timeout' ? 'timeout' : c.source === 'computer' ? 'computer_seat' : 'own',
+        origin:
+          c.round > draws.get(c.supergame)!.length
+            ? 'unpaid_round'
+            : c.source === 'timeout'
+              ? 'timeout'
+              : c.source === 'computer'
+                ? 'computer_seat'
+                : 'own',
         partner_source: o.source,
         computer_partner: computerSeats.has(`${c.supergame}/${c.pairId}/${1 - c.seat}`) ? 1 : 0,
       },
@@ -159,7 +173,8 @@ describe('choice panel downloads', () => {
     const text = await (await researcher.get(`/courses/${courseId}/data/panel?session=${synthetic.sessionId}&format=json`)).text();
     const rows = JSON.parse(text) as Record<string, unknown>[];
     expect(Object.keys(rows[0]).sort()).toEqual([...PANEL_COLUMNS].sort());
-    for (const field of ['name', 'email', 'student_id', 'ip', 'user_id', 'participant_key']) expect(Object.keys(rows[0])).not.toContain(field);
+    for (const field of ['name', 'email', 'student_id', 'ip', 'user_id', 'participant_key'])
+      expect(Object.keys(rows[0])).not.toContain(field);
     const people = await testDb().select({ email: users.email, name: users.name, id: users.id }).from(users);
     for (const p of people.filter((p) => synthetic.userIds.includes(p.id))) {
       expect(text).not.toContain(p.email);
@@ -173,7 +188,9 @@ describe('choice panel downloads', () => {
   });
 
   it('several sessions download as a zip of panel.csv, codebook.csv and a README with the codebook', async () => {
-    const res = await researcher.get(`/courses/${courseId}/data/panel?session=${synthetic.sessionId}&session=${second.sessionId}&format=zip`);
+    const res = await researcher.get(
+      `/courses/${courseId}/data/panel?session=${synthetic.sessionId}&session=${second.sessionId}&format=zip`,
+    );
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toBe('application/zip');
     const files = unzipSync(new Uint8Array(await res.arrayBuffer()));
@@ -208,7 +225,12 @@ describe('choice panel downloads', () => {
 
 describe('identified export and credit sheet (instructors only, logged)', () => {
   const logCount = async (kind: string) =>
-    (await testDb().select().from(exportLog).where(and(eq(exportLog.courseId, courseId), eq(exportLog.kind, kind)))).length;
+    (
+      await testDb()
+        .select()
+        .from(exportLog)
+        .where(and(eq(exportLog.courseId, courseId), eq(exportLog.kind, kind)))
+    ).length;
 
   it('refuses the identified export to researchers and assistants, and without the confirmation', async () => {
     const form = { session: synthetic.sessionId, format: 'csv', confirm: 'yes' };
@@ -227,7 +249,9 @@ describe('identified export and credit sheet (instructors only, logged)', () => 
     const parsed = parseCsv(await res.text());
     expect(parsed.meta.fields).toEqual(IDENTIFIED_COLUMNS);
     const expected = await expectedPanel(synthetic.sessionId, { identified: true });
-    expect(parsed.data.map((r) => PANEL_COLUMNS.map((c) => r[c]))).toEqual(expected.map((r) => PANEL_COLUMNS.map((c) => r[c as keyof typeof r])));
+    expect(parsed.data.map((r) => PANEL_COLUMNS.map((c) => r[c]))).toEqual(
+      expected.map((r) => PANEL_COLUMNS.map((c) => r[c as keyof typeof r])),
+    );
     const declined = parsed.data.find((r) => r.pseudonym === 'P-002')!;
     expect(declined).toMatchObject({ email: synthetic.emails[1], name: 'Synthetic Person 2', consent: 'no' });
     expect(String(declined.student_id)).toMatch(/^SYN-/);

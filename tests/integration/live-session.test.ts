@@ -35,7 +35,10 @@ describe('a live session over real sockets', () => {
       ids.push(await createUser(email));
       seats.push({ email, client: undefined as unknown as Client });
     }
-    courseId = await createCourse('Live course', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
+    courseId = await createCourse('Live course', [
+      { userId: instructorId, role: 'instructor' },
+      ...ids.map((userId) => ({ userId, role: 'participant' as const })),
+    ]);
     instructor = await signIn(instEmail);
     for (const s of seats) s.client = await signIn(s.email);
     outsider = await signIn(uniqueEmail('live-outsider'));
@@ -121,20 +124,41 @@ describe('a live session over real sockets', () => {
     const s = seats[1].socket!;
     const bad = await s.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'X', clientChoiceId: 'short' } as never);
     expect(bad).toMatchObject({ ok: false, code: 'bad-payload' });
-    const notRunning = await s.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'before-start-01' });
+    const notRunning = await s.emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: 1,
+      action: 'C',
+      clientChoiceId: 'before-start-01',
+    });
     expect(notRunning).toMatchObject({ ok: false, code: 'session-not-running' });
     const control = await s.emitWithAck('session:control', { sessionId, command: 'start' });
     expect(control).toMatchObject({ ok: false, code: 'forbidden' });
     const act = await s.emitWithAck('participant:act', { sessionId, participantId: '1', action: 'remove' });
     expect(act).toMatchObject({ ok: false, code: 'forbidden' });
     const stranger = await connect(outsider.cookieHeader());
-    expect(await stranger.emitWithAck('session:watch', { sessionId, as: 'participant' })).toMatchObject({ ok: false, code: 'not-a-participant' });
+    expect(await stranger.emitWithAck('session:watch', { sessionId, as: 'participant' })).toMatchObject({
+      ok: false,
+      code: 'not-a-participant',
+    });
     expect(await stranger.emitWithAck('session:watch', { sessionId, as: 'floor' })).toMatchObject({ ok: false, code: 'forbidden' });
-    expect(await stranger.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'stranger-0001' })).toMatchObject({ ok: false });
-    expect(await stranger.emitWithAck('session:watch', { sessionId: 99999999, as: 'floor' })).toMatchObject({ ok: false, code: 'not-found' });
+    expect(
+      await stranger.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'stranger-0001' }),
+    ).toMatchObject({ ok: false });
+    expect(await stranger.emitWithAck('session:watch', { sessionId: 99999999, as: 'floor' })).toMatchObject({
+      ok: false,
+      code: 'not-found',
+    });
     expect(await storedFor(sessionId)).toHaveLength(0);
     // An outsider cannot join a roster session through the page either.
-    expect((await outsider.post(`/join/${(await testDb().query.sessions.findFirst({ where: (t, { eq: e }) => e(t.id, sessionId) }))!.joinCode}`, {})).status).toBe(403);
+    expect(
+      (
+        await outsider.post(
+          `/join/${(await testDb().query.sessions.findFirst({ where: (t, { eq: e }) => e(t.id, sessionId) }))!.joinCode}`,
+          {},
+        )
+      ).status,
+    ).toBe(403);
   });
 
   it('a participant who reconnects mid-round sees the same round and their choice', async () => {
@@ -143,7 +167,13 @@ describe('a live session over real sockets', () => {
     const first = nextView(s.socket!, (v) => v.status === 'choosing');
     await staff.emitWithAck('session:control', { sessionId, command: 'start' });
     const v = await first;
-    const ack = await s.socket!.emitWithAck('choice:submit', { sessionId, supergame: v.supergame, round: v.round!, action: 'D', clientChoiceId: 'before-sleep-01' });
+    const ack = await s.socket!.emitWithAck('choice:submit', {
+      sessionId,
+      supergame: v.supergame,
+      round: v.round!,
+      action: 'D',
+      clientChoiceId: 'before-sleep-01',
+    });
     expect(ack.ok).toBe(true);
     s.socket!.close();
     const again = await connect(s.client.cookieHeader());
@@ -162,14 +192,26 @@ describe('a live session over real sockets', () => {
     await staff.emitWithAck('session:control', { sessionId, command: 'start' });
     const v = await first;
     // seat 0 chooses; everyone else lets the 5-second timer run out
-    await seats[0].socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: v.round!, action: 'C', clientChoiceId: 'in-time-00001' });
+    await seats[0].socket!.emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: v.round!,
+      action: 'C',
+      clientChoiceId: 'in-time-00001',
+    });
     const resolved = await nextView(seats[0].socket!, (x) => x.history.length >= 1, 12_000);
     expect(resolved.history[0].own).toBe('C');
     // The other pair's timer fires at about the same moment: wait for all four round-1 rows.
-    let rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+    let rows = await testDb()
+      .select()
+      .from(choices)
+      .where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
     for (let i = 0; i < 50 && rows.length < 4; i++) {
       await new Promise((r) => setTimeout(r, 100));
-      rows = await testDb().select().from(choices).where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
+      rows = await testDb()
+        .select()
+        .from(choices)
+        .where(and(eq(choices.sessionId, sessionId), eq(choices.round, 1)));
     }
     const timeouts = rows.filter((r) => r.source === 'timeout');
     expect(timeouts.length).toBe(3);
@@ -188,20 +230,33 @@ describe('a live session over real sockets', () => {
     const me = seats[0];
     const [partnerSeat] = pair.seats.filter((s) => s.participantId && s.pseudonym !== v.pseudonym);
     const told = nextView(me.socket!, (x) => x.partner?.kind === 'computer');
-    const handed = await staff.emitWithAck('participant:act', { sessionId, participantId: partnerSeat.participantId!, action: 'hand-to-computer', strategy: 'TFT' });
+    const handed = await staff.emitWithAck('participant:act', {
+      sessionId,
+      participantId: partnerSeat.participantId!,
+      action: 'hand-to-computer',
+      strategy: 'TFT',
+    });
     expect(handed).toEqual({ ok: true, data: { done: true } });
     const view = await told;
     expect(view.partner).toMatchObject({ kind: 'computer', strategy: 'TFT', reason: 'hand-over' });
     // The handed participant opens the phone again while the supergame runs: back in play from the
     // next supergame (a logged re-join), told meanwhile that a computer plays this one for them.
-    const views = await Promise.all(seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })));
+    const views = await Promise.all(
+      seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })),
+    );
     const back = views.map((r) => (r.ok ? (r.data as ParticipantView) : null)).find((x) => x?.pseudonym === partnerSeat.pseudonym);
     expect(back?.notice).toBe('handed-to-computer');
     const log = await testDb().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId));
     expect(log.map((l) => l.event)).toContainEqual({ type: 'join', participantId: partnerSeat.participantId });
     // (views are broadcast before the acknowledgement returns: listen first)
     const resolved = nextView(me.socket!, (x) => x.history.length >= 1);
-    await me.socket!.emitWithAck('choice:submit', { sessionId, supergame: 1, round: view.round!, action: 'C', clientChoiceId: 'vs-computer-001' });
+    await me.socket!.emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: view.round!,
+      action: 'C',
+      clientChoiceId: 'vs-computer-001',
+    });
     await resolved;
     const rows = await testDb()
       .select()

@@ -23,7 +23,11 @@ async function stored(sessionId: number): Promise<StoredSession> {
   return {
     session: { id: s.id, treatment: s.treatment, payoffs: design.payoffs, delta: design.delta },
     participants: await testDb()
-      .select({ participantKey: sessionParticipants.participantKey, pseudonym: sessionParticipants.pseudonym, consent: sessionParticipants.consent })
+      .select({
+        participantKey: sessionParticipants.participantKey,
+        pseudonym: sessionParticipants.pseudonym,
+        consent: sessionParticipants.consent,
+      })
       .from(sessionParticipants)
       .where(eq(sessionParticipants.sessionId, sessionId)),
     choices: await testDb()
@@ -41,7 +45,10 @@ async function stored(sessionId: number): Promise<StoredSession> {
       })
       .from(choices)
       .where(eq(choices.sessionId, sessionId)),
-    draws: await testDb().select({ supergame: supergameDraws.supergame, draws: supergameDraws.draws, length: supergameDraws.length }).from(supergameDraws).where(eq(supergameDraws.sessionId, sessionId)),
+    draws: await testDb()
+      .select({ supergame: supergameDraws.supergame, draws: supergameDraws.draws, length: supergameDraws.length })
+      .from(supergameDraws)
+      .where(eq(supergameDraws.sessionId, sessionId)),
   };
 }
 
@@ -84,13 +91,26 @@ describe('a session of 1,001 participants with every kind of row', () => {
     const instructor = await createUser(uniqueEmail('agree-inst'));
     courseId = await createCourse('Agreement course', [{ userId: instructor, role: 'instructor' }]);
     // three supergames of 2, 1 and 2 rounds; every seventh participant declined research consent
-    const syn = await insertSyntheticSession(testDb(), { courseId, createdBy: instructor, participants: N, lengths: [2, 1, 2], consent: (i) => (i % 7 === 3 ? 0 : i % 2 ? 1 : null), seed: 11 });
+    const syn = await insertSyntheticSession(testDb(), {
+      courseId,
+      createdBy: instructor,
+      participants: N,
+      lengths: [2, 1, 2],
+      consent: (i) => (i % 7 === 3 ? 0 : i % 2 ? 1 : null),
+      seed: 11,
+    });
     sessionId = syn.sessionId;
     remove = syn.remove;
     // block termination: supergame 1 really ended after round 1, its second round was played unpaid
-    await testDb().update(supergameDraws).set({ length: 1 }).where(and(eq(supergameDraws.sessionId, sessionId), eq(supergameDraws.supergame, 1)));
+    await testDb()
+      .update(supergameDraws)
+      .set({ length: 1 })
+      .where(and(eq(supergameDraws.sessionId, sessionId), eq(supergameDraws.supergame, 1)));
     // a hand-over: P-001 is played by a computer (TFT) from round 2 of supergame 3
-    const [p1] = await testDb().select().from(sessionParticipants).where(and(eq(sessionParticipants.sessionId, sessionId), eq(sessionParticipants.pseudonym, 'P-001')));
+    const [p1] = await testDb()
+      .select()
+      .from(sessionParticipants)
+      .where(and(eq(sessionParticipants.sessionId, sessionId), eq(sessionParticipants.pseudonym, 'P-001')));
     handedKey = p1.participantKey;
     await testDb()
       .update(choices)
@@ -102,7 +122,14 @@ describe('a session of 1,001 participants with every kind of row', () => {
       .from(choices)
       .where(and(eq(choices.sessionId, sessionId), eq(choices.supergame, 3), eq(choices.round, 2), eq(choices.seat, 1)))
       .limit(10);
-    await testDb().delete(choices).where(inArray(choices.id, cut.map((c) => c.id)));
+    await testDb()
+      .delete(choices)
+      .where(
+        inArray(
+          choices.id,
+          cut.map((c) => c.id),
+        ),
+      );
     await testDb().update(sessions).set({ status: 'complete' }).where(eq(sessions.id, sessionId));
   }, 120_000);
 
@@ -129,7 +156,9 @@ describe('a session of 1,001 participants with every kind of row', () => {
     expect(sessionPanel(raw, { keepDeclined: true }).unfinished).toHaveLength(10);
     expect(unfinished.length).toBeLessThanOrEqual(10);
     expect(rows.filter((r) => r.origin === 'unpaid_round').length).toBe(N - declined.length);
-    expect(rows.find((r) => r.pseudonym === 'P-001' && r.supergame === 3 && r.round === 2)?.origin ?? 'cut').toMatch(/^(computer_seat|cut)$/);
+    expect(rows.find((r) => r.pseudonym === 'P-001' && r.supergame === 3 && r.round === 2)?.origin ?? 'cut').toMatch(
+      /^(computer_seat|cut)$/,
+    );
     // numeric order: P-999, P-1000, P-1001 at the end (a text sort puts P-1000 before P-101)
     const order = [...new Set(rows.map((r) => r.pseudonym))];
     expect(order.slice(-3)).toEqual(['P-999', 'P-1000', 'P-1001'].filter((p) => !declined.includes(p)));

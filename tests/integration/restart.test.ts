@@ -26,7 +26,10 @@ describe('a server killed mid-round', () => {
     const instructorId = await createUser(instEmail);
     const emails = [uniqueEmail('kill-a'), uniqueEmail('kill-b')];
     const ids = [await createUser(emails[0]), await createUser(emails[1])];
-    const courseId = await createCourse('Restart course', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
+    const courseId = await createCourse('Restart course', [
+      { userId: instructorId, role: 'instructor' },
+      ...ids.map((userId) => ({ userId, role: 'participant' as const })),
+    ]);
     await startServer();
     const instructor = (await signIn(instEmail)).at(base);
     const players = [(await signIn(emails[0])).at(base), (await signIn(emails[1])).at(base)];
@@ -40,7 +43,13 @@ describe('a server killed mid-round', () => {
     const first = nextView(sockets[0], (v) => v.status === 'choosing');
     await staff.emitWithAck('session:control', { sessionId, command: 'start' });
     const v = await first;
-    const ack = await sockets[0].emitWithAck('choice:submit', { sessionId, supergame: 1, round: v.round!, action: 'C', clientChoiceId: 'acked-before-kill' });
+    const ack = await sockets[0].emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: v.round!,
+      action: 'C',
+      clientChoiceId: 'acked-before-kill',
+    });
     expect(ack.ok).toBe(true);
 
     await killServer('SIGKILL');
@@ -64,7 +73,13 @@ describe('a server killed mid-round', () => {
             const key = `${view.supergame}-${view.round}`;
             if (seen.has(key)) return;
             seen.add(key);
-            await s.emitWithAck('choice:submit', { sessionId, supergame: view.supergame, round: view.round, action: 'C', clientChoiceId: `after-${i}-${key}` });
+            await s.emitWithAck('choice:submit', {
+              sessionId,
+              supergame: view.supergame,
+              round: view.round,
+              action: 'C',
+              clientChoiceId: `after-${i}-${key}`,
+            });
           };
           s.on('view:participant', act);
           const initial = views[i];

@@ -49,8 +49,22 @@ beforeAll(async () => {
     { userId: i, role: 'instructor' },
     { userId: r, role: 'researcher' },
   ]);
-  a = await insertSyntheticSession(testDb(), { courseId, createdBy: i, participants: 3, lengths: [2, 1, 3], seed: 31, tag: `mail-a-${Date.now().toString(36)}` });
-  b = await insertSyntheticSession(testDb(), { courseId, createdBy: i, participants: 3, lengths: [1, 2], seed: 32, tag: `mail-b-${Date.now().toString(36)}` });
+  a = await insertSyntheticSession(testDb(), {
+    courseId,
+    createdBy: i,
+    participants: 3,
+    lengths: [2, 1, 3],
+    seed: 31,
+    tag: `mail-a-${Date.now().toString(36)}`,
+  });
+  b = await insertSyntheticSession(testDb(), {
+    courseId,
+    createdBy: i,
+    participants: 3,
+    lengths: [1, 2],
+    seed: 32,
+    tag: `mail-b-${Date.now().toString(36)}`,
+  });
   [instructor, researcher] = await Promise.all([signIn(instructorEmail), signIn(researcherEmail)]);
 });
 
@@ -95,12 +109,15 @@ describe('results e-mails', () => {
     // sending again mails nobody twice
     await instructor.post(url(a.sessionId), { intent: 'send' });
     expect((await settled(a.sessionId)).counts.sent).toBe(3);
-    for (const email of a.emails) expect((await mailTo(email)).filter((m) => m.subject.includes(`session ${a.sessionId} `))).toHaveLength(1);
+    for (const email of a.emails)
+      expect((await mailTo(email)).filter((m) => m.subject.includes(`session ${a.sessionId} `))).toHaveLength(1);
   });
 
   it('show failures, and a retry sends them', async () => {
     // queued here and sent by a loop in this process whose mail server refuses one address
-    await testDb().insert(resultMails).values(b.userIds.map((userId) => ({ sessionId: b.sessionId, userId })));
+    await testDb()
+      .insert(resultMails)
+      .values(b.userIds.map((userId) => ({ sessionId: b.sessionId, userId })));
     const [session] = await panelSessions(courseId, [b.sessionId]);
     await drainResultMails(session, {
       intervalMs: 0,
@@ -111,7 +128,11 @@ describe('results e-mails', () => {
     });
     const failed = await statusOf(b.sessionId);
     expect(failed.counts).toEqual({ queued: 0, sending: 0, sent: 2, failed: 1 });
-    expect(failed.rows.find((r) => r.email === b.emails[1])).toMatchObject({ status: 'failed', attempts: 1, error: '550 mailbox unavailable' });
+    expect(failed.rows.find((r) => r.email === b.emails[1])).toMatchObject({
+      status: 'failed',
+      attempts: 1,
+      error: '550 mailbox unavailable',
+    });
     const page = pageText(await (await instructor.get(`/courses/${courseId}/sessions/${b.sessionId}/results`)).text());
     expect(page).toContain('Retry 1 failed');
     expect(page).toContain('550 mailbox unavailable');
@@ -128,7 +149,13 @@ describe('results e-mails', () => {
     const existing = await testDb().select().from(resultMails).where(eq(resultMails.sessionId, b.sessionId));
     if (existing.length === 0) {
       const ps = await testDb().select().from(sessionParticipants).where(eq(sessionParticipants.sessionId, b.sessionId));
-      await testDb().insert(resultMails).values(ps.slice(0, 2).map((p, k) => ({ sessionId: b.sessionId, userId: p.userId, status: k === 0 ? ('queued' as const) : ('sending' as const) })));
+      await testDb()
+        .insert(resultMails)
+        .values(
+          ps
+            .slice(0, 2)
+            .map((p, k) => ({ sessionId: b.sessionId, userId: p.userId, status: k === 0 ? ('queued' as const) : ('sending' as const) })),
+        );
     } else {
       await testDb().update(resultMails).set({ status: 'queued' }).where(eq(resultMails.sessionId, b.sessionId));
     }

@@ -23,13 +23,23 @@ function importCsv(client: Client, courseId: number, csv: string) {
 
 const membersOf = (courseId: number) =>
   testDb()
-    .select({ id: courseMembers.id, userId: courseMembers.userId, role: courseMembers.role, studentId: courseMembers.studentId, createdAt: courseMembers.createdAt })
+    .select({
+      id: courseMembers.id,
+      userId: courseMembers.userId,
+      role: courseMembers.role,
+      studentId: courseMembers.studentId,
+      createdAt: courseMembers.createdAt,
+    })
     .from(courseMembers)
     .where(eq(courseMembers.courseId, courseId))
     .orderBy(asc(courseMembers.id));
 
 const rosterUsers = () =>
-  testDb().select({ id: users.id, email: users.email, name: users.name }).from(users).where(like(users.email, '%@roster.parley.test')).orderBy(asc(users.id));
+  testDb()
+    .select({ id: users.id, email: users.email, name: users.name })
+    .from(users)
+    .where(like(users.email, '%@roster.parley.test'))
+    .orderBy(asc(users.id));
 
 let instructor: Client;
 let assistant: Client;
@@ -87,7 +97,9 @@ describe('roster upload', () => {
     const csv = `email,name,student id\nzora.penn@roster.parley.test,Zora Penn,RS-6001\n${assistantEmail},Some Assistant,RS-6002\n`;
     const res = await upload(instructor, courseId, 'clash.csv', csv);
     expect(res.status).toBe(400);
-    expect(pageText(await res.text())).toContain(`Line 3: ${assistantEmail} is already in this course as assistant; a roster adds participants only`);
+    expect(pageText(await res.text())).toContain(
+      `Line 3: ${assistantEmail} is already in this course as assistant; a roster adds participants only`,
+    );
     expect((await importCsv(instructor, courseId, csv)).status).toBe(400);
     expect((await rosterUsers()).map((u) => u.email)).not.toContain('zora.penn@roster.parley.test');
   });
@@ -129,7 +141,9 @@ describe('roster upload', () => {
     expect(pageText(await again.text())).toContain('4 valid lines: 0 new, 0 student id changes, 4 already on the roster');
     const second = await importCsv(instructor, courseId, csv);
     expect(second.status).toBe(200);
-    expect(pageText(await second.text())).toContain('0 new participants added and e-mailed, 0 student ids changed, 4 already on the roster');
+    expect(pageText(await second.text())).toContain(
+      '0 new participants added and e-mailed, 0 student ids changed, 4 already on the roster',
+    );
     expect(await membersOf(courseId)).toEqual(after);
     for (const a of added) expect((await mailTo(a.email)).filter((m) => subject.test(m.subject))).toHaveLength(1);
   });

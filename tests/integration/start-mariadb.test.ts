@@ -13,7 +13,9 @@ const startIn = (dir: string, port: number) => startMariadbIn(dir, port);
 
 /** The TCP port the app would connect to answers, with the app user's password. */
 function answersOn(port: number) {
-  return spawnSync('mariadb', ['--no-defaults', '-h127.0.0.1', `-P${port}`, '-uprobe', '-pprobe', '-N', '-e', 'SELECT @@port'], { encoding: 'utf8' });
+  return spawnSync('mariadb', ['--no-defaults', '-h127.0.0.1', `-P${port}`, '-uprobe', '-pprobe', '-N', '-e', 'SELECT @@port'], {
+    encoding: 'utf8',
+  });
 }
 
 function tmp() {

@@ -23,7 +23,10 @@ function waitForLine(pattern: RegExp, ms: number): Promise<RegExpExecArray> {
     const seen = output.join('');
     const m = pattern.exec(seen);
     if (m) return resolve(m);
-    const t = setTimeout(() => reject(new Error(`no line matching ${pattern} within ${ms} ms; output:\n${output.join('').slice(-2000)}`)), ms);
+    const t = setTimeout(
+      () => reject(new Error(`no line matching ${pattern} within ${ms} ms; output:\n${output.join('').slice(-2000)}`)),
+      ms,
+    );
     const on = () => {
       const found = pattern.exec(output.join(''));
       if (!found) return;

@@ -46,7 +46,8 @@ beforeAll(async () => {
   ids.d = await make('Low reward', 0.75, 14, 32);
 });
 
-const compare = (sessions: number[], extra = '') => instructor.get(`/courses/${courseId}/debrief/compare?sessions=${sessions.join(',')}${extra}`);
+const compare = (sessions: number[], extra = '') =>
+  instructor.get(`/courses/${courseId}/debrief/compare?sessions=${sessions.join(',')}${extra}`);
 
 /** The rows of the "per treatment" table as text, one string per row. */
 function treatmentRows(html: string): string[] {
@@ -90,18 +91,29 @@ describe('the side-by-side Debrief', () => {
 
   it('reads each session against the sizeBAD curve and thresholds of its own payoffs', async () => {
     const text = pageText(await (await compare([ids.a, ids.d])).text());
-    expect(text).toContain(`Curves: sizeBAD for each payoff set, each session read against its own (R40 S12 T50 P25: #${ids.a}; R32 S12 T50 P25: #${ids.d})`);
+    expect(text).toContain(
+      `Curves: sizeBAD for each payoff set, each session read against its own (R40 S12 T50 P25: #${ids.a}; R32 S12 T50 P25: #${ids.d})`,
+    );
     // Source: methods.md §1 table — sizeBAD 13/48 (R = 40) and 13/16 (R = 32) at δ = 3/4.
     const rows = treatmentRows(await (await compare([ids.a, ids.d])).text());
     expect(rows.map((r) => /δ = 0\.75, random termination #\d+ 0\.75 (0\.\d+)/.exec(r)?.[1])).toEqual(['0.271', '0.813']);
     // sessions of one payoff set share one curve
-    expect(pageText(await (await compare([ids.a, ids.b], '&treatments=separate')).text())).toContain('Curve: sizeBAD, the size of the basin');
+    expect(pageText(await (await compare([ids.a, ids.b], '&treatments=separate')).text())).toContain(
+      'Curve: sizeBAD, the size of the basin',
+    );
   });
 });
 
 describe('the estimation on sessions', () => {
   const start = (sessions: number[], extra: Record<string, string> = {}) =>
-    instructor.post(`/courses/${courseId}/estimates`, { sessions: sessions.join(','), windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 1, ...extra });
+    instructor.post(`/courses/${courseId}/estimates`, {
+      sessions: sessions.join(','),
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 0,
+      seed: 1,
+      ...extra,
+    });
 
   it('refuses to pool sessions that share a name but not their parameters (409), and nothing is queued', async () => {
     const res = await start([ids.a, ids.b]);
@@ -136,9 +148,13 @@ describe('the API', () => {
   it('gives each session its treatment identity beside its name', async () => {
     const made = await instructor.post('/settings/tokens', { intent: 'create', name: 'pooling', courseId });
     const token = /prl_[A-Za-z0-9_-]{43}/.exec(await made.text())![0];
-    const res = await fetch(new URL(`/api/v1/courses/${courseId}/sessions?limit=10`, baseUrl()), { headers: { authorization: `Bearer ${token}` } });
+    const res = await fetch(new URL(`/api/v1/courses/${courseId}/sessions?limit=10`, baseUrl()), {
+      headers: { authorization: `Bearer ${token}` },
+    });
     expect(res.status).toBe(200);
-    const { data } = (await res.json()) as { data: { id: number; treatment: string; treatment_key: string; treatment_parameters: string }[] };
+    const { data } = (await res.json()) as {
+      data: { id: number; treatment: string; treatment_key: string; treatment_parameters: string }[];
+    };
     const byId = new Map(data.map((s) => [s.id, s]));
     expect(byId.get(ids.a)).toMatchObject({
       treatment: 'Baseline',

@@ -20,7 +20,13 @@ describe('before-play entry points', () => {
   let otherInstructor: Client;
 
   beforeAll(async () => {
-    const e = { inst: uniqueEmail('bps-inst'), part: uniqueEmail('bps-part'), res: uniqueEmail('bps-res'), str: uniqueEmail('bps-str'), oth: uniqueEmail('bps-oth') };
+    const e = {
+      inst: uniqueEmail('bps-inst'),
+      part: uniqueEmail('bps-part'),
+      res: uniqueEmail('bps-res'),
+      str: uniqueEmail('bps-str'),
+      oth: uniqueEmail('bps-oth'),
+    };
     const instructorId = await createUser(e.inst);
     participantId = await createUser(e.part, 'Named Person');
     const researcherId = await createUser(e.res);
@@ -34,7 +40,11 @@ describe('before-play entry points', () => {
     await createCourse('Other', [{ userId: otherId, role: 'instructor' }]);
     const instructor = await signIn(e.inst);
     [participant, researcher, stranger, otherInstructor] = await Promise.all([signIn(e.part), signIn(e.res), signIn(e.str), signIn(e.oth)]);
-    ({ sessionId, code } = await openSession(instructor, courseId, await createDesign(courseId, instructorId, { comprehension: true, practice: true })));
+    ({ sessionId, code } = await openSession(
+      instructor,
+      courseId,
+      await createDesign(courseId, instructorId, { comprehension: true, practice: true }),
+    ));
   });
 
   it('the practice page does not let a phone skip the check into the lobby', async () => {

@@ -24,7 +24,8 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-const membersOf = async (id: number) => (await testDb().select({ id: courseMembers.id }).from(courseMembers).where(eq(courseMembers.courseId, id))).length;
+const membersOf = async (id: number) =>
+  (await testDb().select({ id: courseMembers.id }).from(courseMembers).where(eq(courseMembers.courseId, id))).length;
 
 describe('request bodies are capped while they stream', () => {
   it('a chunked 50 MB POST /sign-in is refused with 413 and the server does not buffer it', async () => {
@@ -41,7 +42,10 @@ describe('request bodies are capped while they stream', () => {
   it('a Content-Length above the cap is refused at once, without waiting for the body', async () => {
     const started = Date.now();
     // Announces 200 MB but sends only 64 KB: an answer proves the server did not wait to read it.
-    const res = await streamPost('/sign-in', { total: 64 * 1024, headers: { 'content-type': 'application/x-www-form-urlencoded', 'content-length': String(200 * MB) } });
+    const res = await streamPost('/sign-in', {
+      total: 64 * 1024,
+      headers: { 'content-type': 'application/x-www-form-urlencoded', 'content-length': String(200 * MB) },
+    });
     expect(res.status).toBe(413);
     expect(Date.now() - started).toBeLessThan(5000);
   });
@@ -60,7 +64,10 @@ describe('request bodies are capped while they stream', () => {
 
   it('an upload route gives its large allowance only to a signed-in caller', async () => {
     // 2 MB is within the roster's allowance but far above what an anonymous request may send.
-    const res = await streamPost(`/courses/${courseId}/roster`, { total: 2 * MB, headers: { 'content-type': 'multipart/form-data; boundary=x' } });
+    const res = await streamPost(`/courses/${courseId}/roster`, {
+      total: 2 * MB,
+      headers: { 'content-type': 'multipart/form-data; boundary=x' },
+    });
     expect(res.status).toBe(413);
   });
 

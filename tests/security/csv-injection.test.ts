@@ -76,7 +76,11 @@ const ids = () => made.map((s) => s.sessionId);
 
 describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
   it('panel CSV: every treatment neutralised, negative payoffs stay numbers', async () => {
-    const res = await researcher.get(`/courses/${courseId}/data/panel?${ids().map((id) => `session=${id}`).join('&')}&format=csv`);
+    const res = await researcher.get(
+      `/courses/${courseId}/data/panel?${ids()
+        .map((id) => `session=${id}`)
+        .join('&')}&format=csv`,
+    );
     expect(res.status).toBe(200);
     const csv = await res.text();
     expectSafe('panel csv', csv, TREATMENTS);
@@ -86,7 +90,11 @@ describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
   });
 
   it('panel zip: panel.csv and codebook.csv neutralised', async () => {
-    const res = await researcher.get(`/courses/${courseId}/data/panel?${ids().map((id) => `session=${id}`).join('&')}&format=zip`);
+    const res = await researcher.get(
+      `/courses/${courseId}/data/panel?${ids()
+        .map((id) => `session=${id}`)
+        .join('&')}&format=zip`,
+    );
     expect(res.status).toBe(200);
     const files = unzipSync(new Uint8Array(await res.arrayBuffer()));
     expectSafe('zip panel.csv', strFromU8(files['panel.csv']), TREATMENTS);
@@ -105,7 +113,9 @@ describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
     const token = /prl_[A-Za-z0-9_-]{43}/.exec(await created.text())?.[0];
     expect(token).toBeDefined();
     for (const s of made) {
-      const res = await fetch(new URL(`/api/v1/sessions/${s.sessionId}/panel?format=csv`, baseUrl()), { headers: { authorization: `Bearer ${token}` } });
+      const res = await fetch(new URL(`/api/v1/sessions/${s.sessionId}/panel?format=csv`, baseUrl()), {
+        headers: { authorization: `Bearer ${token}` },
+      });
       expect(res.status).toBe(200);
       expectSafe(`api csv ${s.sessionId}`, await res.text(), [TREATMENTS[made.indexOf(s)]]);
     }
@@ -135,9 +145,17 @@ describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
   it('Debrief strategies CSV of an uploaded dataset neutralises its treatment and session labels', async () => {
     const header = 'session,treatment,pseudonym,partner,supergame,round,action,partner_action';
     const lines = [header];
-    for (const [sg, len] of [[1, 3], [2, 2]] as const)
+    for (const [sg, len] of [
+      [1, 3],
+      [2, 2],
+    ] as const)
       for (let r = 1; r <= len; r++)
-        for (const [me, other] of [['s1', 's2'], ['s2', 's1'], ['s3', 's4'], ['s4', 's3']])
+        for (const [me, other] of [
+          ['s1', 's2'],
+          ['s2', 's1'],
+          ['s3', 's4'],
+          ['s4', 's3'],
+        ])
           lines.push(['@lab', `"${HYPERLINK.replace(/"/g, '""')}"`, me, other, sg, r, (r + me.length) % 2 ? 'C' : 'D', 'C'].join(','));
     const form = new FormData();
     form.set('intent', 'upload');
@@ -147,7 +165,13 @@ describe('CSV downloads neutralise formulas (OWASP CSV Injection)', () => {
     const page = await (await researcher.get(`/courses/${courseId}/datasets`)).text();
     const datasetId = Number(/datasets\/(\d+)\/estimate/.exec(page)?.[1]);
     expect(datasetId).toBeGreaterThan(0);
-    const start = await researcher.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 3 });
+    const start = await researcher.post(`/courses/${courseId}/estimates`, {
+      dataset: datasetId,
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 0,
+      seed: 3,
+    });
     expect([200, 202]).toContain(start.status);
     const { estimate } = (await start.json()) as { estimate: EstimateStatus };
     expect((await waitEstimate(researcher, courseId, estimate.id)).status).toBe('done');

@@ -32,7 +32,15 @@ beforeAll(async () => {
   ]);
   // 400 simulated subjects: a bootstrap of 2,000 replicates keeps the first job busy for a while
   const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
-  const sim = simulatePanel({ strategies, shares: strategies.map(() => 1 / strategies.length), beta: 0.9, subjects: 400, supergames: 10, delta: 0.75, seed: 12 });
+  const sim = simulatePanel({
+    strategies,
+    shares: strategies.map(() => 1 / strategies.length),
+    beta: 0.9,
+    subjects: 400,
+    supergames: 10,
+    delta: 0.75,
+    seed: 12,
+  });
   datasetId = await createDataset(courseId, aId, 'Simulated (cap test)', sim.rows);
   [first, second] = await Promise.all([signIn(a), signIn(b)]);
 });
@@ -44,7 +52,8 @@ afterAll(async () => {
 
 const ask = (c: Client, seed: number, bootstrap: number) =>
   c.post(`/courses/${courseId}/estimates`, { dataset: datasetId, windowKind: 'all', preset: 'dbf2011', bootstrap, seed });
-const rowsOfCourse = async () => (await testDb().select({ id: estimates.id }).from(estimates).where(eq(estimates.courseId, courseId))).length;
+const rowsOfCourse = async () =>
+  (await testDb().select({ id: estimates.id }).from(estimates).where(eq(estimates.courseId, courseId))).length;
 
 const waitDone = (c: Client, id: number) => waitEstimate(c, courseId, id);
 

@@ -13,7 +13,14 @@ beforeAll(async () => {
   const email = uniqueEmail('headers');
   const id = await createUser(email, 'Headers Instructor');
   courseId = await createCourse(`Headers course ${Date.now().toString(36)}`, [{ userId: id, role: 'instructor' }]);
-  synthetic = await insertSyntheticSession(testDb(), { courseId, createdBy: id, participants: 2, lengths: [1], seed: 9, tag: `headers-${Date.now().toString(36)}` });
+  synthetic = await insertSyntheticSession(testDb(), {
+    courseId,
+    createdBy: id,
+    participants: 2,
+    lengths: [1],
+    seed: 9,
+    tag: `headers-${Date.now().toString(36)}`,
+  });
   instructor = await signIn(email);
 });
 

@@ -19,7 +19,9 @@ export class ClientFrom extends Client {
           localAddress: this.localAddress,
           headers: {
             cookie: this.cookieHeader(),
-            ...(body === undefined ? {} : { 'content-type': 'application/x-www-form-urlencoded', origin: this.base, 'content-length': Buffer.byteLength(body) }),
+            ...(body === undefined
+              ? {}
+              : { 'content-type': 'application/x-www-form-urlencoded', origin: this.base, 'content-length': Buffer.byteLength(body) }),
           },
         },
         (res) => {
@@ -30,7 +32,10 @@ export class ClientFrom extends Client {
             for (const [k, v] of Object.entries(res.headers)) {
               for (const one of Array.isArray(v) ? v : v === undefined ? [] : [v]) headers.append(k, one);
             }
-            const response = new Response(res.statusCode === 204 || res.statusCode === 304 ? null : Buffer.concat(chunks), { status: res.statusCode, headers });
+            const response = new Response(res.statusCode === 204 || res.statusCode === 304 ? null : Buffer.concat(chunks), {
+              status: res.statusCode,
+              headers,
+            });
             this.remember(response);
             resolve(response);
           });

@@ -36,7 +36,8 @@ async function newCourse(title: string) {
   ]);
 }
 
-const invite = (courseId: number, email: string) => instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email, role: 'assistant' });
+const invite = (courseId: number, email: string) =>
+  instructor.post(`/courses/${courseId}/members`, { intent: 'invite', email, role: 'assistant' });
 const pendingOf = (courseId: number, email: string) =>
   testDb()
     .select()
@@ -59,7 +60,11 @@ describe('mail names its sender and course', () => {
   it('a roster mail says which instructor, with their address, added the person to which course', async () => {
     const courseId = await newCourse('Roster-mail course');
     const student = uniqueEmail('named-student');
-    const res = await instructor.post(`/courses/${courseId}/roster`, { intent: 'import', fileName: 'r.csv', csv: `email,name,student id\n${student},Nell Named,N-1\n` });
+    const res = await instructor.post(`/courses/${courseId}/roster`, {
+      intent: 'import',
+      fileName: 'r.csv',
+      csv: `email,name,student id\n${student},Nell Named,N-1\n`,
+    });
     expect(res.status).toBe(200);
     const mail = await waitForMail(student, { subject: /roster/ });
     expect(mail.subject).toContain('Roster-mail course');
@@ -72,8 +77,16 @@ describe('invitation mail per course and day', () => {
     const courseId = await newCourse('Capped course');
     // The course has already sent cap − 1 mails today (written directly: sending hundreds of
     // real mails would slow every other test reading maildev).
-    const filler = Array.from({ length: cap - 1 }, (_, i) => ({ courseId, kind: 'invitation' as const, email: `filler-${i}@tests.parley.test`, sentBy: instructorId }));
-    for (let i = 0; i < filler.length; i += 200) await testDb().insert(courseMails).values(filler.slice(i, i + 200));
+    const filler = Array.from({ length: cap - 1 }, (_, i) => ({
+      courseId,
+      kind: 'invitation' as const,
+      email: `filler-${i}@tests.parley.test`,
+      sentBy: instructorId,
+    }));
+    for (let i = 0; i < filler.length; i += 200)
+      await testDb()
+        .insert(courseMails)
+        .values(filler.slice(i, i + 200));
 
     const last = uniqueEmail('cap-last');
     expect((await invite(courseId, last)).status).toBe(200);
@@ -87,7 +100,11 @@ describe('invitation mail per course and day', () => {
 
     // a roster import past the cap still adds the people but mails nobody, and says so
     const student = uniqueEmail('cap-student');
-    const roster = await instructor.post(`/courses/${courseId}/roster`, { intent: 'import', fileName: 'r.csv', csv: `email,name,student id\n${student},Cap Student,C-1\n` });
+    const roster = await instructor.post(`/courses/${courseId}/roster`, {
+      intent: 'import',
+      fileName: 'r.csv',
+      csv: `email,name,student id\n${student},Cap Student,C-1\n`,
+    });
     expect(roster.status).toBe(200);
     expect(pageText(await roster.text())).toContain(`1 person was not e-mailed: this course has sent its ${cap} e-mails for today`);
 
@@ -109,7 +126,14 @@ describe('an invitation whose mail fails', () => {
     try {
       res = await invite(courseId, to);
     } finally {
-      fs.writeFileSync(faults!, fs.readFileSync(faults!, 'utf8').split('\n').filter((l) => l.trim() !== to).join('\n'));
+      fs.writeFileSync(
+        faults!,
+        fs
+          .readFileSync(faults!, 'utf8')
+          .split('\n')
+          .filter((l) => l.trim() !== to)
+          .join('\n'),
+      );
     }
     expect(res.status).toBe(503);
     const said = pageText(await res.text());

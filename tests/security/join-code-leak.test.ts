@@ -31,8 +31,12 @@ describe('join codes do not leak through /play/:id', () => {
 
   it('a signed-in stranger walking every session id gets 404 and never sees a join code', async () => {
     const stranger = await signIn(uniqueEmail('leak-walker'));
-    const [{ top }] = await testDb().select({ top: max(sessions.id) }).from(sessions);
-    const codes = (await testDb().select({ code: sessions.joinCode }).from(sessions).where(isNotNull(sessions.joinCode))).map((r) => r.code!);
+    const [{ top }] = await testDb()
+      .select({ top: max(sessions.id) })
+      .from(sessions);
+    const codes = (await testDb().select({ code: sessions.joinCode }).from(sessions).where(isNotNull(sessions.joinCode))).map(
+      (r) => r.code!,
+    );
     expect(codes).toContain(code);
     expect(top).toBeGreaterThanOrEqual(sessionId);
     for (let id = 1; id <= top! + 1; id++) {

@@ -81,14 +81,23 @@ describe('uploaded panels of any size under the limit', () => {
     expect(res.status).toBe(200);
     expect(pageText(await res.text())).toContain('“Big panel” stored: 99,000 choices of 300 participants');
 
-    const [d] = await testDb().select({ id: datasets.id, rowCount: datasets.rowCount }).from(datasets).where(eq(datasets.courseId, courseId));
+    const [d] = await testDb()
+      .select({ id: datasets.id, rowCount: datasets.rowCount })
+      .from(datasets)
+      .where(eq(datasets.courseId, courseId));
     expect(d.rowCount).toBe(99_000);
     // the same rows, in the file's order
     expect(await datasetChoiceRows(courseId, d.id)).toEqual(rows);
     // and only through its own course
     expect(await datasetChoiceRows(courseId + 1_000_000, d.id)).toBeNull();
 
-    const start = await researcher.post(`/courses/${courseId}/estimates`, { dataset: d.id, windowKind: 'all', preset: 'dbf2011', bootstrap: 0, seed: 5 });
+    const start = await researcher.post(`/courses/${courseId}/estimates`, {
+      dataset: d.id,
+      windowKind: 'all',
+      preset: 'dbf2011',
+      bootstrap: 0,
+      seed: 5,
+    });
     expect(start.status).toBe(202);
     const { estimate } = (await start.json()) as { estimate: EstimateStatus };
     const last = await waitEstimate(researcher, courseId, estimate.id, 90_000);

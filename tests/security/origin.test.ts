@@ -23,7 +23,14 @@ beforeAll(async () => {
   const email = uniqueEmail('origin');
   const id = await createUser(email, 'Origin Instructor');
   courseId = await createCourse(`Origin course ${Date.now().toString(36)}`, [{ userId: id, role: 'instructor' }]);
-  synthetic = await insertSyntheticSession(testDb(), { courseId, createdBy: id, participants: 2, lengths: [1], seed: 5, tag: `origin-${Date.now().toString(36)}` });
+  synthetic = await insertSyntheticSession(testDb(), {
+    courseId,
+    createdBy: id,
+    participants: 2,
+    lengths: [1],
+    seed: 5,
+    tag: `origin-${Date.now().toString(36)}`,
+  });
   instructor = await signIn(email);
 });
 
@@ -69,7 +76,10 @@ describe('state-changing requests from another origin', () => {
     const started = async () => (await testDb().select().from(estimates).where(eq(estimates.courseId, courseId))).length;
     for (const origin of foreignOrigins()) {
       expect((await postAs(instructor, `/courses/${courseId}/strategies`, { automaton: strategy }, { origin })).status).toBe(403);
-      expect((await postAs(instructor, `/courses/${courseId}/sessions/${synthetic.sessionId}/result-mails`, { intent: 'send' }, { origin })).status).toBe(403);
+      expect(
+        (await postAs(instructor, `/courses/${courseId}/sessions/${synthetic.sessionId}/result-mails`, { intent: 'send' }, { origin }))
+          .status,
+      ).toBe(403);
       const est = await postAs(
         instructor,
         `/courses/${courseId}/estimates`,
@@ -83,7 +93,9 @@ describe('state-changing requests from another origin', () => {
     expect(await queued()).toBe(0);
     expect(await started()).toBe(0);
     // The same request from our own pages goes through.
-    expect((await postAs(instructor, `/courses/${courseId}/strategies`, { automaton: strategy }, { origin: app().origin })).status).toBe(200);
+    expect((await postAs(instructor, `/courses/${courseId}/strategies`, { automaton: strategy }, { origin: app().origin })).status).toBe(
+      200,
+    );
     expect(await saved()).toBe(1);
   });
 

@@ -15,7 +15,8 @@ async function instructorOfNewCourse(title: string): Promise<[Client, number]> {
   return [await signIn(email), courseId];
 }
 
-const importRoster = (c: Client, courseId: number, csv: string) => c.post(`/courses/${courseId}/roster`, { intent: 'import', fileName: 'roster.csv', csv });
+const importRoster = (c: Client, courseId: number, csv: string) =>
+  c.post(`/courses/${courseId}/roster`, { intent: 'import', fileName: 'roster.csv', csv });
 
 describe('roster names stay in their course', () => {
   it('course A’s roster name changes neither course B’s members page nor the account', async () => {

@@ -138,7 +138,8 @@ describe('nobody can lock another person out', () => {
     // Leave maildev as we found it: other tests read every mail it holds.
     const all = (await (await fetch(`${process.env.PARLEY_MAIL_API}/api/email`)).json()) as { id: string; to: { address: string }[] }[];
     const ours = new Set(emails);
-    for (const m of all.filter((m) => m.to.some((t) => ours.has(t.address)))) await fetch(`${process.env.PARLEY_MAIL_API}/api/email/${m.id}`, { method: 'DELETE' });
+    for (const m of all.filter((m) => m.to.some((t) => ours.has(t.address))))
+      await fetch(`${process.env.PARLEY_MAIL_API}/api/email/${m.id}`, { method: 'DELETE' });
   });
 });
 
@@ -174,7 +175,10 @@ describe('after sign-in, only our own pages', () => {
       const res = await c.post('/sign-in/code', { intent: 'verify', code });
       expect(res.status, JSON.stringify(target)).toBe(302);
       const location = res.headers.get('location')!;
-      expect(location.startsWith('/') && !location.startsWith('//') && !location.startsWith('/\\'), `${JSON.stringify(target)} → ${location}`).toBe(true);
+      expect(
+        location.startsWith('/') && !location.startsWith('//') && !location.startsWith('/\\'),
+        `${JSON.stringify(target)} → ${location}`,
+      ).toBe(true);
       expect(new URL(location, origin).origin).toBe(origin);
     }
   });
@@ -253,12 +257,24 @@ describe('signing out ends the sign-in on the server', () => {
 
     // Reconnecting with the same (still valid) sign-in does not bring the seat back.
     const back = await connect(removed.cookieHeader());
-    const choice = await back.emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'removed-abcdef' });
+    const choice = await back.emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: 1,
+      action: 'C',
+      clientChoiceId: 'removed-abcdef',
+    });
     expect(choice).toMatchObject({ ok: false, code: 'forbidden' });
     const watch = await back.emitWithAck('session:watch', { sessionId, as: 'participant' });
     expect(watch).toMatchObject({ ok: false, code: 'forbidden' });
     // The other participant plays on.
-    const ok = await sockets[1].emitWithAck('choice:submit', { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'stays-abcdefgh' });
+    const ok = await sockets[1].emitWithAck('choice:submit', {
+      sessionId,
+      supergame: 1,
+      round: 1,
+      action: 'C',
+      clientChoiceId: 'stays-abcdefgh',
+    });
     expect(ok.ok).toBe(true);
   });
 

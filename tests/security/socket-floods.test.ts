@@ -20,7 +20,10 @@ beforeAll(async () => {
   instructorId = await createUser(email);
   const emails = [uniqueEmail('flood-a'), uniqueEmail('flood-b')];
   const ids = [await createUser(emails[0]), await createUser(emails[1])];
-  courseId = await createCourse('Flood course', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
+  courseId = await createCourse('Flood course', [
+    { userId: instructorId, role: 'instructor' },
+    ...ids.map((userId) => ({ userId, role: 'participant' as const })),
+  ]);
   instructor = await signIn(email);
   for (const e of emails) players.push(await signIn(e));
 });
@@ -57,7 +60,13 @@ describe('socket floods', () => {
     expect(views.every((v) => v.ok)).toBe(true);
     const first = views[0].ok ? (views[0].data as ParticipantView) : null;
     const choosing = first?.status === 'choosing' ? first : await nextView(sockets[0], (v) => v.status === 'choosing');
-    const choice = { sessionId, supergame: choosing.supergame, round: choosing.round!, action: 'C' as const, clientChoiceId: 'flood-choice-1' };
+    const choice = {
+      sessionId,
+      supergame: choosing.supergame,
+      round: choosing.round!,
+      action: 'C' as const,
+      clientChoiceId: 'flood-choice-1',
+    };
     const a1 = await sockets[0].emitWithAck('choice:submit', choice);
     const a2 = await sockets[0].emitWithAck('choice:submit', choice);
     expect(a1.ok).toBe(true);

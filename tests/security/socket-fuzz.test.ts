@@ -22,11 +22,16 @@ const SEED = 20261202;
 
 type EventName = 'me:get' | 'session:watch' | 'choice:submit' | 'session:control' | 'participant:act';
 
-function templates(sessionId: number): Record<EventName, { schema: { safeParse: (x: unknown) => { success: boolean } }; valid: Record<string, unknown> }> {
+function templates(
+  sessionId: number,
+): Record<EventName, { schema: { safeParse: (x: unknown) => { success: boolean } }; valid: Record<string, unknown> }> {
   return {
     'me:get': { schema: MeGet, valid: {} },
     'session:watch': { schema: SessionWatch, valid: { sessionId, as: 'participant' } },
-    'choice:submit': { schema: ChoiceSubmit, valid: { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'fuzz-choice-0001' } },
+    'choice:submit': {
+      schema: ChoiceSubmit,
+      valid: { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'fuzz-choice-0001' },
+    },
     'session:control': { schema: SessionControl, valid: { sessionId, command: 'pause' } },
     'participant:act': { schema: ParticipantAction, valid: { sessionId, participantId: '1', action: 'nudge' } },
   };
@@ -70,7 +75,13 @@ function malformed(t: { schema: { safeParse: (x: unknown) => { success: boolean 
     fc.constant([t.valid]),
     // an unknown key, or a prototype key, beside the right ones
     fc
-      .tuple(fc.oneof(fc.constantFrom('__proto__', 'constructor', 'prototype', 'toString', 'hasOwnProperty', 'valueOf'), fc.string({ minLength: 1, maxLength: 30 })), fc.anything({ maxDepth: 3 }))
+      .tuple(
+        fc.oneof(
+          fc.constantFrom('__proto__', 'constructor', 'prototype', 'toString', 'hasOwnProperty', 'valueOf'),
+          fc.string({ minLength: 1, maxLength: 30 }),
+        ),
+        fc.anything({ maxDepth: 3 }),
+      )
       .map(([k, v]) => withKey(t.valid, k, v)),
   ];
   if (keys.length) {
@@ -102,84 +113,112 @@ async function rowsOf(sessionId: number) {
 const healthy = async () => (await fetch(new URL('/healthz', baseUrl()))).ok;
 
 describe('malformed socket payloads', () => {
-  it('10,000+ generated payloads for every event: the server stays up, each ack is an error code, nothing is written', { timeout: 240_000 }, async () => {
-    const instEmail = uniqueEmail('fuzz-inst');
-    const instructorId = await createUser(instEmail);
-    const emails = [uniqueEmail('fuzz-a'), uniqueEmail('fuzz-b')];
-    const ids = await Promise.all(emails.map((e) => createUser(e)));
-    const courseId = await createCourse('Fuzz course', [{ userId: instructorId, role: 'instructor' }, ...ids.map((userId) => ({ userId, role: 'participant' as const }))]);
-    const instructor = await signIn(instEmail);
-    const players = await Promise.all(emails.map((e) => signIn(e)));
-    // Long rounds: no timeout may write a row while the fuzz runs.
-    const designId = await createDesign(courseId, instructorId, { supergames: 1, delta: 0.5, roundSeconds: 600 });
-    const { sessionId, code } = await openSession(instructor, courseId, designId);
-    for (const p of players) await join(p, code);
-    const sockets: TestSocket[] = [];
-    for (const p of players) {
-      const s = await connect(p.cookieHeader());
-      expect((await s.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);
-      sockets.push(s);
-    }
-    const staff = await connect(instructor.cookieHeader());
-    const choosing = nextView(sockets[0], (v) => v.status === 'choosing' && v.round === 1);
-    expect(await staff.emitWithAck('session:control', { sessionId, command: 'start' })).toEqual({ ok: true, data: { status: 'running' } });
-    const first = await choosing;
-    sockets.push(staff);
-    let disconnects = 0;
-    for (const s of sockets) s.on('disconnect', () => disconnects++);
+  it(
+    '10,000+ generated payloads for every event: the server stays up, each ack is an error code, nothing is written',
+    { timeout: 240_000 },
+    async () => {
+      const instEmail = uniqueEmail('fuzz-inst');
+      const instructorId = await createUser(instEmail);
+      const emails = [uniqueEmail('fuzz-a'), uniqueEmail('fuzz-b')];
+      const ids = await Promise.all(emails.map((e) => createUser(e)));
+      const courseId = await createCourse('Fuzz course', [
+        { userId: instructorId, role: 'instructor' },
+        ...ids.map((userId) => ({ userId, role: 'participant' as const })),
+      ]);
+      const instructor = await signIn(instEmail);
+      const players = await Promise.all(emails.map((e) => signIn(e)));
+      // Long rounds: no timeout may write a row while the fuzz runs.
+      const designId = await createDesign(courseId, instructorId, { supergames: 1, delta: 0.5, roundSeconds: 600 });
+      const { sessionId, code } = await openSession(instructor, courseId, designId);
+      for (const p of players) await join(p, code);
+      const sockets: TestSocket[] = [];
+      for (const p of players) {
+        const s = await connect(p.cookieHeader());
+        expect((await s.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);
+        sockets.push(s);
+      }
+      const staff = await connect(instructor.cookieHeader());
+      const choosing = nextView(sockets[0], (v) => v.status === 'choosing' && v.round === 1);
+      expect(await staff.emitWithAck('session:control', { sessionId, command: 'start' })).toEqual({
+        ok: true,
+        data: { status: 'running' },
+      });
+      const first = await choosing;
+      sockets.push(staff);
+      let disconnects = 0;
+      for (const s of sockets) s.on('disconnect', () => disconnects++);
 
-    const before = await rowsOf(sessionId);
-    const t = templates(sessionId);
-    const events = Object.keys(t) as EventName[];
-    // Per event: 1,700 with an ack and 400 without; plus 500 events nobody handles.
-    const plan: { event: string; payload: unknown; ack: boolean }[] = [];
-    events.forEach((event, k) => {
-      const payloads = fc.sample(malformed(t[event]), { numRuns: 2100, seed: SEED + k });
-      payloads.forEach((payload, i) => plan.push({ event, payload, ack: i < 1700 }));
-    });
-    fc.sample(fc.tuple(fc.string({ minLength: 1, maxLength: 40 }), fc.anything({ maxDepth: 3 })), { numRuns: 500, seed: SEED - 1 }).forEach(([name, payload]) =>
-      // socket.io's own reserved names cannot be emitted by a client at all
-      plan.push({ event: ['connect', 'connect_error', 'disconnect', 'disconnecting', 'newListener', 'removeListener'].includes(name) ? `x-${name}` : `${name}:fuzz`, payload, ack: false }),
-    );
-    expect(plan.length).toBeGreaterThanOrEqual(11_000);
-    expect(plan.filter((p) => p.ack).length).toBeGreaterThanOrEqual(8_500);
-
-    const codes = new Map<string, number>();
-    const unanswered: string[] = [];
-    const badShape: unknown[] = [];
-    const BATCH = 100;
-    for (let i = 0; i < plan.length; i += BATCH) {
-      await Promise.all(
-        plan.slice(i, i + BATCH).map(async ({ event, payload, ack }, k) => {
-          // Spread over the sockets (per-socket rate limits), the instructor's included.
-          const s = sockets[(i + k) % sockets.length] as unknown as { emit: (e: string, p: unknown) => void; timeout: (ms: number) => { emitWithAck: (e: string, p: unknown) => Promise<unknown> } };
-          if (!ack) return s.emit(event, payload);
-          try {
-            const res = (await s.timeout(15_000).emitWithAck(event, payload)) as { ok?: unknown; code?: unknown; message?: unknown };
-            if (res?.ok !== false || typeof res.code !== 'string' || typeof res.message !== 'string') badShape.push(res);
-            else codes.set(res.code, (codes.get(res.code) ?? 0) + 1);
-          } catch {
-            unanswered.push(`${event} ${JSON.stringify(payload)?.slice(0, 120)}`);
-          }
+      const before = await rowsOf(sessionId);
+      const t = templates(sessionId);
+      const events = Object.keys(t) as EventName[];
+      // Per event: 1,700 with an ack and 400 without; plus 500 events nobody handles.
+      const plan: { event: string; payload: unknown; ack: boolean }[] = [];
+      events.forEach((event, k) => {
+        const payloads = fc.sample(malformed(t[event]), { numRuns: 2100, seed: SEED + k });
+        payloads.forEach((payload, i) => plan.push({ event, payload, ack: i < 1700 }));
+      });
+      fc.sample(fc.tuple(fc.string({ minLength: 1, maxLength: 40 }), fc.anything({ maxDepth: 3 })), {
+        numRuns: 500,
+        seed: SEED - 1,
+      }).forEach(([name, payload]) =>
+        // socket.io's own reserved names cannot be emitted by a client at all
+        plan.push({
+          event: ['connect', 'connect_error', 'disconnect', 'disconnecting', 'newListener', 'removeListener'].includes(name)
+            ? `x-${name}`
+            : `${name}:fuzz`,
+          payload,
+          ack: false,
         }),
       );
-      if (i % 2000 === 0) expect(await healthy()).toBe(true);
-    }
+      expect(plan.length).toBeGreaterThanOrEqual(11_000);
+      expect(plan.filter((p) => p.ack).length).toBeGreaterThanOrEqual(8_500);
 
-    expect(unanswered).toEqual([]);
-    expect(badShape).toEqual([]);
-    for (const c of codes.keys()) expect(ERROR_CODES).toContain(c);
-    expect([...codes.values()].reduce((a, b) => a + b, 0)).toBe(plan.filter((p) => p.ack).length);
-    expect(codes.get('bad-payload') ?? 0).toBeGreaterThan(0);
-    expect(disconnects).toBe(0);
-    expect(await healthy()).toBe(true);
-    expect(await rowsOf(sessionId)).toEqual(before);
+      const codes = new Map<string, number>();
+      const unanswered: string[] = [];
+      const badShape: unknown[] = [];
+      const BATCH = 100;
+      for (let i = 0; i < plan.length; i += BATCH) {
+        await Promise.all(
+          plan.slice(i, i + BATCH).map(async ({ event, payload, ack }, k) => {
+            // Spread over the sockets (per-socket rate limits), the instructor's included.
+            const s = sockets[(i + k) % sockets.length] as unknown as {
+              emit: (e: string, p: unknown) => void;
+              timeout: (ms: number) => { emitWithAck: (e: string, p: unknown) => Promise<unknown> };
+            };
+            if (!ack) return s.emit(event, payload);
+            try {
+              const res = (await s.timeout(15_000).emitWithAck(event, payload)) as { ok?: unknown; code?: unknown; message?: unknown };
+              if (res?.ok !== false || typeof res.code !== 'string' || typeof res.message !== 'string') badShape.push(res);
+              else codes.set(res.code, (codes.get(res.code) ?? 0) + 1);
+            } catch {
+              unanswered.push(`${event} ${JSON.stringify(payload)?.slice(0, 120)}`);
+            }
+          }),
+        );
+        if (i % 2000 === 0) expect(await healthy()).toBe(true);
+      }
 
-    // The hub still serves the same sockets: a real choice is stored (one row more).
-    const ok = await sockets[0].emitWithAck('choice:submit', { sessionId, supergame: 1, round: first.round!, action: 'C', clientChoiceId: `fuzz-real-${Date.now()}` });
-    expect(ok.ok).toBe(true);
-    expect((await rowsOf(sessionId)).choices).toBe(before.choices + 1);
-  });
+      expect(unanswered).toEqual([]);
+      expect(badShape).toEqual([]);
+      for (const c of codes.keys()) expect(ERROR_CODES).toContain(c);
+      expect([...codes.values()].reduce((a, b) => a + b, 0)).toBe(plan.filter((p) => p.ack).length);
+      expect(codes.get('bad-payload') ?? 0).toBeGreaterThan(0);
+      expect(disconnects).toBe(0);
+      expect(await healthy()).toBe(true);
+      expect(await rowsOf(sessionId)).toEqual(before);
+
+      // The hub still serves the same sockets: a real choice is stored (one row more).
+      const ok = await sockets[0].emitWithAck('choice:submit', {
+        sessionId,
+        supergame: 1,
+        round: first.round!,
+        action: 'C',
+        clientChoiceId: `fuzz-real-${Date.now()}`,
+      });
+      expect(ok.ok).toBe(true);
+      expect((await rowsOf(sessionId)).choices).toBe(before.choices + 1);
+    },
+  );
 
   it('a message over the 32 KB cap closes only that socket; the server and the others go on', { timeout: 60_000 }, async () => {
     const a = await signIn(uniqueEmail('fuzz-big'));

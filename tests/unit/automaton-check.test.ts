@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { LIBRARY, type Automaton } from '../../app/lib/automata';
-import { compileAutomaton, MAX_STATES, validateAutomaton } from '../../app/lib/automaton-check';
+import { LIBRARY, type Automaton } from '#app/lib/automata';
+import { compileAutomaton, MAX_STATES, validateAutomaton } from '#app/lib/automaton-check';
 
 const loop = { cc: 0, cd: 0, dc: 0, dd: 0 };
 
@@ -69,6 +69,8 @@ describe('compileAutomaton', () => {
   });
 
   it('refuses an invalid automaton with the messages', () => {
-    expect(() => compileAutomaton({ id: 'e', name: 'e', states: [] })).toThrow('Invalid strategy "e": A strategy needs at least one state.');
+    expect(() => compileAutomaton({ id: 'e', name: 'e', states: [] })).toThrow(
+      'Invalid strategy "e": A strategy needs at least one state.',
+    );
   });
 });

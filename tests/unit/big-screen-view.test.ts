@@ -1,10 +1,10 @@
 // The projector's view of a live session (issue 12, "The big screen"): who may still join, the
 // draw the whole room has seen, and what the closing slide needs. Pure: engine state in, view out.
 import { describe, expect, it } from 'vitest';
-import type { Action } from '../../app/lib/automata';
-import type { DesignInput } from '../../app/lib/design';
-import { supergameDraws } from '../../app/lib/draws';
-import { bigScreenView } from '../../realtime/engine/views';
+import type { Action } from '#app/lib/automata';
+import type { DesignInput } from '#app/lib/design';
+import { supergameDraws } from '#app/lib/draws';
+import { bigScreenView } from '#realtime/engine/views';
 import { TestHub, T0, joinAll, makeDesign, play, rngOf } from './harness';
 
 const SEC = 1000;
@@ -27,7 +27,14 @@ function chooseAll(hub: TestHub, action: Action, pairIds?: string[]) {
     pair.seats.forEach((seat, i) => {
       if (!seat.participantId || seat.computer || hub.state.pairs[id].pending[i]) return;
       hub.ok(
-        { type: 'choose', participantId: seat.participantId, supergame: pair.supergame, round: pair.round, action, clientChoiceId: `${seat.participantId}-${pair.supergame}-${pair.round}` },
+        {
+          type: 'choose',
+          participantId: seat.participantId,
+          supergame: pair.supergame,
+          round: pair.round,
+          action,
+          clientChoiceId: `${seat.participantId}-${pair.supergame}-${pair.round}`,
+        },
         hub.now + 100,
       );
     });
@@ -94,7 +101,14 @@ describe('big screen: the draw', () => {
     expect(bigScreenView(hub.state).latestDraw).toBeNull();
 
     chooseAll(hub, 'D', [p2]);
-    expect(bigScreenView(hub.state).latestDraw).toEqual({ supergame: 1, fromRound: 1, toRound: 1, draws: [sg1.draws[0]], continues: true, sentence: null });
+    expect(bigScreenView(hub.state).latestDraw).toEqual({
+      supergame: 1,
+      fromRound: 1,
+      toRound: 1,
+      draws: [sg1.draws[0]],
+      continues: true,
+      sentence: null,
+    });
     // Source: common practice — the supergame goes on while draw ≤ 100·δ = 75.
     expect(sg1.draws[0]).toBeLessThanOrEqual(75);
 
@@ -110,7 +124,14 @@ describe('big screen: the draw', () => {
     expect(v.supergame).toBe(2);
     expect(v.cooperationByRound).toEqual([]);
     const last = sg1.draws[sg1.length - 1];
-    expect(v.latestDraw).toEqual({ supergame: 1, fromRound: sg1.length, toRound: sg1.length, draws: [last], continues: false, sentence: null });
+    expect(v.latestDraw).toEqual({
+      supergame: 1,
+      fromRound: sg1.length,
+      toRound: sg1.length,
+      draws: [last],
+      continues: false,
+      sentence: null,
+    });
     // Source: common practice — the supergame ends at the first draw above 100·δ.
     expect(last).toBeGreaterThan(75);
 

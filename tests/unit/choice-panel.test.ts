@@ -15,7 +15,17 @@ import {
 import { buildPanel } from '#app/lib/panel';
 import { PANEL_COLUMNS } from '#app/lib/panel-codebook';
 
-const choice = (supergame: number, round: number, pairId: string, seat: number, participantKey: string | null, action: 'C' | 'D', decisionMs: number, atMs: number, source: StoredChoice['source'] = participantKey ? 'player' : 'computer'): StoredChoice => ({
+const choice = (
+  supergame: number,
+  round: number,
+  pairId: string,
+  seat: number,
+  participantKey: string | null,
+  action: 'C' | 'D',
+  decisionMs: number,
+  atMs: number,
+  source: StoredChoice['source'] = participantKey ? 'player' : 'computer',
+): StoredChoice => ({
   supergame,
   round,
   pairId,
@@ -62,15 +72,177 @@ const at = (ms: number) => new Date(ms).toISOString();
 describe('the row rule on a whole session', () => {
   it('gives one row per participant × supergame × round, exactly, in numeric pseudonym order', () => {
     const expected: PanelRow[] = [
-      { ...base, pseudonym: 'P-001', partner: 'P-002', supergame: 1, round: 1, action: 'C', partner_action: 'D', payoff: 0, source: 'player', partner_source: 'player', paid: 1, origin: 'own', computer_partner: 0, decision_ms: 1100, draw: 30, supergame_length: 2, timestamp: at(1_000) },
-      { ...base, pseudonym: 'P-001', partner: 'P-002', supergame: 1, round: 2, action: 'D', partner_action: 'D', payoff: 1, source: 'player', partner_source: 'timeout', paid: 1, origin: 'own', computer_partner: 0, decision_ms: 2100, draw: 80, supergame_length: 2, timestamp: at(2_000) },
-      { ...base, pseudonym: 'P-001', partner: 'P-003', supergame: 2, round: 1, action: 'C', partner_action: 'C', payoff: 3, source: 'player', partner_source: 'player', paid: 1, origin: 'own', computer_partner: 0, decision_ms: 3200, draw: 70, supergame_length: 1, timestamp: at(3_001) },
-      { ...base, pseudonym: 'P-002', partner: 'P-001', supergame: 1, round: 1, action: 'D', partner_action: 'C', payoff: 5, source: 'player', partner_source: 'player', paid: 1, origin: 'own', computer_partner: 0, decision_ms: 1200, draw: 30, supergame_length: 2, timestamp: at(1_001) },
-      { ...base, pseudonym: 'P-002', partner: 'P-001', supergame: 1, round: 2, action: 'D', partner_action: 'D', payoff: 1, source: 'timeout', partner_source: 'player', paid: 1, origin: 'timeout', computer_partner: 0, decision_ms: 15000, draw: 80, supergame_length: 2, timestamp: at(2_001) },
-      { ...base, pseudonym: 'P-002', partner: 'computer:TFT', supergame: 2, round: 1, action: 'D', partner_action: 'C', payoff: 5, source: 'player', partner_source: 'computer', paid: 1, origin: 'own', computer_partner: 1, decision_ms: 3300, draw: 70, supergame_length: 1, timestamp: at(3_002) },
-      { ...base, pseudonym: 'P-003', partner: 'computer:TFT', supergame: 1, round: 1, action: 'C', partner_action: 'C', payoff: 3, source: 'player', partner_source: 'computer', paid: 1, origin: 'own', computer_partner: 1, decision_ms: 1300, draw: 30, supergame_length: 2, timestamp: at(1_002) },
-      { ...base, pseudonym: 'P-003', partner: 'computer:TFT', supergame: 1, round: 2, action: 'D', partner_action: 'C', payoff: 5, source: 'player', partner_source: 'computer', paid: 1, origin: 'own', computer_partner: 1, decision_ms: 2300, draw: 80, supergame_length: 2, timestamp: at(2_002) },
-      { ...base, pseudonym: 'P-003', partner: 'P-001', supergame: 2, round: 1, action: 'C', partner_action: 'C', payoff: 3, source: 'player', partner_source: 'player', paid: 1, origin: 'own', computer_partner: 0, decision_ms: 3100, draw: 70, supergame_length: 1, timestamp: at(3_000) },
+      {
+        ...base,
+        pseudonym: 'P-001',
+        partner: 'P-002',
+        supergame: 1,
+        round: 1,
+        action: 'C',
+        partner_action: 'D',
+        payoff: 0,
+        source: 'player',
+        partner_source: 'player',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 0,
+        decision_ms: 1100,
+        draw: 30,
+        supergame_length: 2,
+        timestamp: at(1_000),
+      },
+      {
+        ...base,
+        pseudonym: 'P-001',
+        partner: 'P-002',
+        supergame: 1,
+        round: 2,
+        action: 'D',
+        partner_action: 'D',
+        payoff: 1,
+        source: 'player',
+        partner_source: 'timeout',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 0,
+        decision_ms: 2100,
+        draw: 80,
+        supergame_length: 2,
+        timestamp: at(2_000),
+      },
+      {
+        ...base,
+        pseudonym: 'P-001',
+        partner: 'P-003',
+        supergame: 2,
+        round: 1,
+        action: 'C',
+        partner_action: 'C',
+        payoff: 3,
+        source: 'player',
+        partner_source: 'player',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 0,
+        decision_ms: 3200,
+        draw: 70,
+        supergame_length: 1,
+        timestamp: at(3_001),
+      },
+      {
+        ...base,
+        pseudonym: 'P-002',
+        partner: 'P-001',
+        supergame: 1,
+        round: 1,
+        action: 'D',
+        partner_action: 'C',
+        payoff: 5,
+        source: 'player',
+        partner_source: 'player',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 0,
+        decision_ms: 1200,
+        draw: 30,
+        supergame_length: 2,
+        timestamp: at(1_001),
+      },
+      {
+        ...base,
+        pseudonym: 'P-002',
+        partner: 'P-001',
+        supergame: 1,
+        round: 2,
+        action: 'D',
+        partner_action: 'D',
+        payoff: 1,
+        source: 'timeout',
+        partner_source: 'player',
+        paid: 1,
+        origin: 'timeout',
+        computer_partner: 0,
+        decision_ms: 15000,
+        draw: 80,
+        supergame_length: 2,
+        timestamp: at(2_001),
+      },
+      {
+        ...base,
+        pseudonym: 'P-002',
+        partner: 'computer:TFT',
+        supergame: 2,
+        round: 1,
+        action: 'D',
+        partner_action: 'C',
+        payoff: 5,
+        source: 'player',
+        partner_source: 'computer',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 1,
+        decision_ms: 3300,
+        draw: 70,
+        supergame_length: 1,
+        timestamp: at(3_002),
+      },
+      {
+        ...base,
+        pseudonym: 'P-003',
+        partner: 'computer:TFT',
+        supergame: 1,
+        round: 1,
+        action: 'C',
+        partner_action: 'C',
+        payoff: 3,
+        source: 'player',
+        partner_source: 'computer',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 1,
+        decision_ms: 1300,
+        draw: 30,
+        supergame_length: 2,
+        timestamp: at(1_002),
+      },
+      {
+        ...base,
+        pseudonym: 'P-003',
+        partner: 'computer:TFT',
+        supergame: 1,
+        round: 2,
+        action: 'D',
+        partner_action: 'C',
+        payoff: 5,
+        source: 'player',
+        partner_source: 'computer',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 1,
+        decision_ms: 2300,
+        draw: 80,
+        supergame_length: 2,
+        timestamp: at(2_002),
+      },
+      {
+        ...base,
+        pseudonym: 'P-003',
+        partner: 'P-001',
+        supergame: 2,
+        round: 1,
+        action: 'C',
+        partner_action: 'C',
+        payoff: 3,
+        source: 'player',
+        partner_source: 'player',
+        paid: 1,
+        origin: 'own',
+        computer_partner: 0,
+        decision_ms: 3100,
+        draw: 70,
+        supergame_length: 1,
+        timestamp: at(3_000),
+      },
     ];
     expect(sessionPanel(stored)).toEqual({ rows: expected, unfinished: [] });
   });
@@ -92,7 +264,9 @@ describe('the row rule on a whole session', () => {
     // P-002 (key 12) is handed to a computer playing TFT from round 2 of supergame 1
     const handed: StoredSession = {
       ...stored,
-      choices: stored.choices.map((c) => (c.supergame === 1 && c.round === 2 && c.participantKey === '12' ? { ...c, source: 'computer' as const, strategy: 'TFT' } : c)),
+      choices: stored.choices.map((c) =>
+        c.supergame === 1 && c.round === 2 && c.participantKey === '12' ? { ...c, source: 'computer' as const, strategy: 'TFT' } : c,
+      ),
     };
     const rows = sessionPanel(handed).rows.filter((r) => r.supergame === 1 && r.pseudonym !== 'P-003');
     expect(rows.map((r) => [r.pseudonym, r.round, r.partner, r.origin, r.partner_source, r.computer_partner])).toEqual([
@@ -112,7 +286,10 @@ describe('the row rule on a whole session', () => {
   });
 
   it('participants who declined research consent are left out unless kept for the class’s own view', () => {
-    const declined: StoredSession = { ...stored, participants: stored.participants.map((p) => (p.pseudonym === 'P-002' ? { ...p, consent: 0 } : p)) };
+    const declined: StoredSession = {
+      ...stored,
+      participants: stored.participants.map((p) => (p.pseudonym === 'P-002' ? { ...p, consent: 0 } : p)),
+    };
     expect(new Set(sessionPanel(declined).rows.map((r) => r.pseudonym))).toEqual(new Set(['P-001', 'P-003']));
     // their partners' rows stay, with the pseudonym they faced
     expect(sessionPanel(declined).rows.filter((r) => r.partner === 'P-002')).toHaveLength(2);
@@ -145,7 +322,11 @@ describe('numeric pseudonym order', () => {
 
   it('a session of 1,001 participants comes out in that order', () => {
     const n = 1001;
-    const participants = Array.from({ length: n }, (_, i) => ({ participantKey: String(i + 1), pseudonym: `P-${String(i + 1).padStart(3, '0')}`, consent: null }));
+    const participants = Array.from({ length: n }, (_, i) => ({
+      participantKey: String(i + 1),
+      pseudonym: `P-${String(i + 1).padStart(3, '0')}`,
+      consent: null,
+    }));
     const choices: StoredChoice[] = participants.map((p, i) => choice(1, 1, `g1-${Math.floor(i / 2)}`, i % 2, p.participantKey, 'C', 1, i));
     choices.push(choice(1, 1, `g1-${Math.floor(n / 2)}`, 1, null, 'D', 0, n));
     const rows = sessionPanel({ ...stored, participants: [...participants].reverse(), choices }).rows;
@@ -167,7 +348,9 @@ describe('what analyses use', () => {
     // P-001's round 1 of supergame 1 is timeout-filled: its own round 2 is left out too
     const early: StoredSession = {
       ...stored,
-      choices: stored.choices.map((c) => (c.supergame === 1 && c.round === 1 && c.participantKey === '11' ? { ...c, source: 'timeout' as const } : c)),
+      choices: stored.choices.map((c) =>
+        c.supergame === 1 && c.round === 1 && c.participantKey === '11' ? { ...c, source: 'timeout' as const } : c,
+      ),
     };
     const used = estimationRows(sessionPanel(early).rows, 'own');
     expect(used.rows.filter((r) => r.subject === 'P-001').map((r) => [r.supergame, r.round])).toEqual([[2, 1]]);

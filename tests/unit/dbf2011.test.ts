@@ -6,12 +6,12 @@ import { readFileSync } from 'node:fs';
 import chi2gof from '@stdlib/stats-chi2gof';
 import jstat from 'jstat';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { geometricLengthGof } from '../../app/lib/gof';
-import { parseWindow, selectWindow, groupPanel, countChoices } from '../../app/lib/panel';
-import type { Panel } from '../../app/lib/panel';
-import { estimateFromCsv, parseColumnMap, readChoiceCsv } from '../../app/lib/panel-csv';
-import type { CsvEstimation } from '../../app/lib/panel-csv';
-import { bootstrap } from '../../app/lib/sfem';
+import { geometricLengthGof } from '#app/lib/gof';
+import { parseWindow, selectWindow, groupPanel, countChoices } from '#app/lib/panel';
+import type { Panel } from '#app/lib/panel';
+import { estimateFromCsv, parseColumnMap, readChoiceCsv } from '#app/lib/panel-csv';
+import type { CsvEstimation } from '#app/lib/panel-csv';
+import { bootstrap } from '#app/lib/sfem';
 
 const FILE = new URL('../../../shared/data/dbf2011/choices.csv', import.meta.url);
 // The CLI's mapping for this file: --map subject=subject --map action=cooperate --map partner_action=partner_cooperate
@@ -49,7 +49,12 @@ describe('the panel', () => {
     // 1,396 as in methods.md §5. The six treatments' windows together hold 7,358 choices, the row
     // count of stratEst's data.DF2011 (the same window, stratEst documentation).
     const counts = (w: string) =>
-      Object.fromEntries(groupPanel(selectWindow(panel, parseWindow(w)), 'treatment').map((g) => [g.group, [g.panel.subjects.length, countChoices(g.panel)]]));
+      Object.fromEntries(
+        groupPanel(selectWindow(panel, parseWindow(w)), 'treatment').map((g) => [
+          g.group,
+          [g.panel.subjects.length, countChoices(g.panel)],
+        ]),
+      );
     const ge = counts('after-rounds:110');
     expect(ge.D5R32).toEqual([44, 832]);
     expect(ge.D75R48).toEqual([44, 1396]);
@@ -113,7 +118,10 @@ describe('realised supergame lengths against the geometric law (methods.md §2)'
     expect(r.df).toBe(9);
     expect(r.pValue).toBeCloseTo(0.409, 3);
     expect(Math.abs(r.pValue - (1 - jstat.jStat.chisquare.cdf(r.statistic, r.df)))).toBeLessThan(1e-10);
-    const ref = chi2gof(r.bins.map((b) => b.observed), r.bins.map((b) => b.expected / r.n));
+    const ref = chi2gof(
+      r.bins.map((b) => b.observed),
+      r.bins.map((b) => b.expected / r.n),
+    );
     expect(ref.statistic).toBeCloseTo(r.statistic, 10);
     expect(ref.pValue).toBeCloseTo(r.pValue, 10);
   });
@@ -127,7 +135,10 @@ describe('realised supergame lengths against the geometric law (methods.md §2)'
     expect(r.df).toBe(5);
     expect(r.pValue).toBeCloseTo(0.059, 3);
     expect(Math.abs(r.pValue - (1 - jstat.jStat.chisquare.cdf(r.statistic, r.df)))).toBeLessThan(1e-10);
-    const ref = chi2gof(r.bins.map((b) => b.observed), r.bins.map((b) => b.expected / r.n));
+    const ref = chi2gof(
+      r.bins.map((b) => b.observed),
+      r.bins.map((b) => b.expected / r.n),
+    );
     expect(ref.statistic).toBeCloseTo(r.statistic, 10);
     expect(ref.pValue).toBeCloseTo(r.pValue, 10);
   });

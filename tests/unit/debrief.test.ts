@@ -2,7 +2,16 @@
 import { describe, expect, it } from 'vitest';
 import { lengthFit, originWords, pointsHistogram, sessionDebrief, type DebriefRow } from '#app/lib/debrief';
 
-const row = (pseudonym: string, supergame: number, round: number, action: 'C' | 'D', partnerAction: 'C' | 'D', payoff: number, length: number, origin: DebriefRow['origin'] = 'own'): DebriefRow => ({
+const row = (
+  pseudonym: string,
+  supergame: number,
+  round: number,
+  action: 'C' | 'D',
+  partnerAction: 'C' | 'D',
+  payoff: number,
+  length: number,
+  origin: DebriefRow['origin'] = 'own',
+): DebriefRow => ({
   pseudonym,
   supergame,
   round,
@@ -86,7 +95,9 @@ describe('sessionDebrief', () => {
   });
 
   it('rows a computer played for a participant do not count as the participant’s cooperation', () => {
-    const handed = rows.map((r) => (r.pseudonym === 'P-003' && r.supergame === 1 && r.round === 2 ? { ...r, origin: 'computer_seat' as const, action: 'C' as const } : r));
+    const handed = rows.map((r) =>
+      r.pseudonym === 'P-003' && r.supergame === 1 && r.round === 2 ? { ...r, origin: 'computer_seat' as const, action: 'C' as const } : r,
+    );
     const h = sessionDebrief(handed, design);
     expect([h.overall.cooperate, h.overall.n, h.counts.computer_seat]).toEqual([4, 7, 1]);
   });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_LABELS, type DesignInput, designSchema, designWarnings } from '../../app/lib/design';
+import { DEFAULT_LABELS, type DesignInput, designSchema, designWarnings } from '#app/lib/design';
 
 const base: DesignInput = {
   payoffs: { R: 3, S: 0, T: 5, P: 1 }, // Axelrod (1984, p. 8) payoffs, methods.md §1
@@ -39,7 +39,11 @@ describe('design schema', () => {
     expect(fieldErrors({ ...base, payoffs: { R: 3, S: 2, T: 5, P: 1 } })).toEqual({
       'payoffs.P': ['P (punishment) must be greater than S (sucker)'],
     });
-    expect(Object.keys(fieldErrors({ ...base, payoffs: { R: 0, S: 5, T: 0, P: 1 } })).sort()).toEqual(['payoffs.P', 'payoffs.R', 'payoffs.T']);
+    expect(Object.keys(fieldErrors({ ...base, payoffs: { R: 0, S: 5, T: 0, P: 1 } })).sort()).toEqual([
+      'payoffs.P',
+      'payoffs.R',
+      'payoffs.T',
+    ]);
   });
 
   it('needs 0 < δ < 1', () => {
@@ -85,6 +89,8 @@ describe('design warnings', () => {
   it('accepts δ = 0.875 (drawn 1–1000, exact) and refuses δ the draw cannot implement exactly', () => {
     // methods.md §8: the announced δ must be the true continuation probability.
     expect(designWarnings(designSchema.parse({ ...base, delta: 0.875 }))).toEqual([]);
-    expect(fieldErrors({ ...base, delta: 0.87501 })).toEqual({ delta: ['Use at most four decimals for δ (e.g. 0.875), so the draw implements it exactly'] });
+    expect(fieldErrors({ ...base, delta: 0.87501 })).toEqual({
+      delta: ['Use at most four decimals for δ (e.g. 0.875), so the draw implements it exactly'],
+    });
   });
 });

@@ -1,12 +1,12 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import type { Action } from '../../app/lib/automata';
-import type { Design, DesignInput } from '../../app/lib/design';
-import { drawSequence, supergameDraws } from '../../app/lib/draws';
-import { createSession, newBatchScope, resumeEffects, step } from '../../realtime/engine/engine';
-import { RebuildError, rebuild } from '../../realtime/engine/rebuild';
-import type { ChoiceRow, Effect, EngineEvent, EngineState } from '../../realtime/engine/types';
-import { bigScreenView, floorView, participantView } from '../../realtime/engine/views';
+import type { Action } from '#app/lib/automata';
+import type { Design, DesignInput } from '#app/lib/design';
+import { drawSequence, supergameDraws } from '#app/lib/draws';
+import { createSession, newBatchScope, resumeEffects, step } from '#realtime/engine/engine';
+import { RebuildError, rebuild } from '#realtime/engine/rebuild';
+import type { ChoiceRow, Effect, EngineEvent, EngineState } from '#realtime/engine/types';
+import { bigScreenView, floorView, participantView } from '#realtime/engine/views';
 import { TestHub, T0, joinAll, logical, makeDesign, play, rngOf } from './harness';
 
 const SEC = 1000;
@@ -247,7 +247,8 @@ describe('choices: idempotence and error codes', () => {
     const pair = s.pairs['s1-p1'];
     const [p, q] = pair.seats.map((x) => x.participantId!);
     const other = s.pairs['s1-p2'].seats[0].participantId!;
-    const ch = (who: string, over: object = {}) => ({ type: 'choose', participantId: who, supergame: 1, round: 1, action: 'C', clientChoiceId: `${who}-x`, ...over }) as const;
+    const ch = (who: string, over: object = {}) =>
+      ({ type: 'choose', participantId: who, supergame: 1, round: 1, action: 'C', clientChoiceId: `${who}-x`, ...over }) as const;
     run(ch('stranger'), 'not-a-participant');
     run(ch(sitter), 'not-your-pair');
     run(ch(p, { pairId: 's1-p2' }), 'not-your-pair');
@@ -302,7 +303,11 @@ describe('choices: idempotence and error codes', () => {
   it('closes rounds of earlier supergames', () => {
     const { hub, ids } = startSession(2, { supergames: 3 }, 5);
     play(hub, rngOf(5), { stopWhen: (h) => h.state.supergame!.number === 2 });
-    const res = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 40, action: 'C', clientChoiceId: 'old' }, hub.now);
+    const res = step(
+      hub.state,
+      { type: 'choose', participantId: ids[0], supergame: 1, round: 40, action: 'C', clientChoiceId: 'old' },
+      hub.now,
+    );
     expect(res.error?.code).toBe('round-closed');
   });
 });
@@ -436,7 +441,11 @@ describe('hand to computer, remove, late joiners', () => {
     hub.ok({ type: 'join', participantId: 'late' }, hub.now + SEC);
     expect(hub.state.participants.late).toMatchObject({ pseudonym: 'P-005', entersAt: 2 });
     expect(participantView(hub.state, 'late')).toMatchObject({ status: 'lobby', notice: 'waiting-to-enter', supergame: 1 });
-    const ch = step(hub.state, { type: 'choose', participantId: 'late', supergame: 1, round: 1, action: 'C', clientChoiceId: 'l' }, hub.now);
+    const ch = step(
+      hub.state,
+      { type: 'choose', participantId: 'late', supergame: 1, round: 1, action: 'C', clientChoiceId: 'l' },
+      hub.now,
+    );
     expect(ch.error?.code).toBe('not-your-pair');
     play(hub, rngOf(21), { stopWhen: (h) => h.state.supergame!.number === 2 });
     const five = hub.state.joinOrder.filter((id) => hub.state.participants[id].pairId || hub.state.participants[id].sittingOut);
@@ -527,7 +536,15 @@ describe('views', () => {
     const { hub } = startSession(4, { supergames: 2, delta: 0.9 }, seedWithLength(0.9, 2));
     const [a, b] = hub.state.pairs['s1-p1'].seats.map((x) => x.participantId!);
     let v = participantView(hub.state, a);
-    expect(v).toMatchObject({ status: 'choosing', supergame: 1, supergames: 2, round: 1, partner: { kind: 'human' }, labels: { C: 'X', D: 'Y' }, cutoff: '90' });
+    expect(v).toMatchObject({
+      status: 'choosing',
+      supergame: 1,
+      supergames: 2,
+      round: 1,
+      partner: { kind: 'human' },
+      labels: { C: 'X', D: 'Y' },
+      cutoff: '90',
+    });
     expect(v.payoffTable).toEqual([
       { own: 'C', partner: 'C', ownPoints: 48, partnerPoints: 48 },
       { own: 'C', partner: 'D', ownPoints: 12, partnerPoints: 50 },
@@ -540,8 +557,27 @@ describe('views', () => {
     hub.ok({ type: 'choose', participantId: b, supergame: 1, round: 1, action: 'D', clientChoiceId: 'b1' }, hub.now + SEC);
     v = participantView(hub.state, a);
     const draw = hub.state.pairs['s1-p1'].rounds[0].draw;
-    expect(v.lastResult).toMatchObject({ own: 'C', partner: 'D', ownPayoff: 12, partnerPayoff: 50, draw, drawSentence: `Draw ${draw} — another round, because it is ≤ 90` });
-    expect(v.history).toEqual([{ round: 1, own: 'C', partner: 'D', ownPayoff: 12, partnerPayoff: 50, ownSource: 'player', draw, paid: true, sentence: v.lastResult!.drawSentence }]);
+    expect(v.lastResult).toMatchObject({
+      own: 'C',
+      partner: 'D',
+      ownPayoff: 12,
+      partnerPayoff: 50,
+      draw,
+      drawSentence: `Draw ${draw} — another round, because it is ≤ 90`,
+    });
+    expect(v.history).toEqual([
+      {
+        round: 1,
+        own: 'C',
+        partner: 'D',
+        ownPayoff: 12,
+        partnerPayoff: 50,
+        ownSource: 'player',
+        draw,
+        paid: true,
+        sentence: v.lastResult!.drawSentence,
+      },
+    ]);
     expect(v.totalPoints).toBe(12);
     const text = JSON.stringify(v);
     expect(text).not.toContain(b);
@@ -602,20 +638,29 @@ describe('views', () => {
 describe('large sessions', () => {
   it('views: "none" builds no views and says whose view changed, for the runner to build once per batch', () => {
     const { hub, ids } = startSession(2, { supergames: 1 }, 62);
-    const res = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' }, hub.now + SEC, {
-      views: 'none',
-    });
+    const res = step(
+      hub.state,
+      { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' },
+      hub.now + SEC,
+      {
+        views: 'none',
+      },
+    );
     expect(res.effects.filter((e) => e.type === 'broadcast')).toEqual([]);
     expect(res.effects.filter((e) => e.type === 'persist-choice')).toHaveLength(1);
     // the chooser's view changed, and the partner's (the pair's "waiting for partner" line)
     expect([...res.touched].sort()).toEqual([...ids].sort());
-    const full = step(hub.state, { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' }, hub.now + SEC);
+    const full = step(
+      hub.state,
+      { type: 'choose', participantId: ids[0], supergame: 1, round: 1, action: 'C', clientChoiceId: 'r' },
+      hub.now + SEC,
+    );
     expect(full.touched).toEqual(res.touched);
     expect(full.effects.filter((e) => e.type !== 'broadcast')).toEqual(res.effects);
   });
 });
 
-describe('a batch of steps (the runner\'s group commit)', () => {
+describe("a batch of steps (the runner's group commit)", () => {
   it('gives the same state and rows as single steps, errors included, and never touches the state it started from', () => {
     const { hub, ids } = startSession(40, { supergames: 3 }, 'batch');
     const start = hub.state;
@@ -625,9 +670,12 @@ describe('a batch of steps (the runner\'s group commit)', () => {
     ids.forEach((id, i) => {
       events.push({ type: 'choose', participantId: id, supergame: 1, round: 1, action: i % 3 ? 'C' : 'D', clientChoiceId: `b-${id}` });
       // refused ones between them: a changed retry, a future round, a stranger, an early timer
-      if (i % 7 === 0) events.push({ type: 'choose', participantId: id, supergame: 1, round: 1, action: 'D', clientChoiceId: `other-${id}` });
-      if (i % 11 === 0) events.push({ type: 'choose', participantId: id, supergame: 1, round: 9, action: 'C', clientChoiceId: `late-${id}` });
-      if (i % 13 === 0) events.push({ type: 'choose', participantId: 'stranger', supergame: 1, round: 1, action: 'C', clientChoiceId: 'x-stranger' });
+      if (i % 7 === 0)
+        events.push({ type: 'choose', participantId: id, supergame: 1, round: 1, action: 'D', clientChoiceId: `other-${id}` });
+      if (i % 11 === 0)
+        events.push({ type: 'choose', participantId: id, supergame: 1, round: 9, action: 'C', clientChoiceId: `late-${id}` });
+      if (i % 13 === 0)
+        events.push({ type: 'choose', participantId: 'stranger', supergame: 1, round: 1, action: 'C', clientChoiceId: 'x-stranger' });
       if (i % 17 === 0) events.push({ type: 'timeout', pairId: 's1-p1', round: 1 });
     });
     const run = (batch: boolean) => {
@@ -686,9 +734,16 @@ describe('grace after an outage or a restart', () => {
     // and when it comes back the runner applies grace first
     const back = oldDeadline + 20 * SEC;
     const res = hub.ok({ type: 'grace' }, back);
-    expect(res.effects.filter((e) => e.type === 'persist-log')).toEqual([{ type: 'persist-log', row: { seq: hub.state.seq, at: back, event: { type: 'grace' } } }]);
+    expect(res.effects.filter((e) => e.type === 'persist-log')).toEqual([
+      { type: 'persist-log', row: { seq: hub.state.seq, at: back, event: { type: 'grace' } } },
+    ]);
     for (const id of hub.state.supergame!.pairIds) expect(hub.state.pairs[id].deadline).toBe(back + 30 * SEC);
-    expect(res.effects).toContainEqual({ type: 'schedule-timer', key: `sess-1:${other}:1`, at: back + 30 * SEC, event: { type: 'timeout', pairId: other, round: 1 } });
+    expect(res.effects).toContainEqual({
+      type: 'schedule-timer',
+      key: `sess-1:${other}:1`,
+      at: back + 30 * SEC,
+      event: { type: 'timeout', pairId: other, round: 1 },
+    });
     // the old timer, if it still fires, is refused: nobody is timed out for a round their phone could not answer
     expect(hub.dispatch({ type: 'timeout', pairId: other, round: 1 }, back + SEC).error?.code).toBe('timer-not-due');
     expect(logical(rebuildOf(hub))).toEqual(logical(hub.state));

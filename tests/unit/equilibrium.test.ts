@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { libraryStrategy, LIBRARY, type Automaton } from '../../app/lib/automata';
+import { libraryStrategy, LIBRARY, type Automaton } from '#app/lib/automata';
 import {
   breakingDeviation,
   checkStrategy,
@@ -11,9 +11,9 @@ import {
   nashIntervals,
   speIntervals,
   type DeltaInterval,
-} from '../../app/lib/equilibrium';
-import type { StageGame } from '../../app/lib/stage-game';
-import { grimSPE, tftNash, tftSPE, wslsSPE } from '../../app/lib/thresholds';
+} from '#app/lib/equilibrium';
+import type { StageGame } from '#app/lib/stage-game';
+import { grimSPE, tftNash, tftSPE, wslsSPE } from '#app/lib/thresholds';
 import { arbAutomaton, arbGame, expectClose } from './helpers';
 
 const S = (id: string) => libraryStrategy(id);

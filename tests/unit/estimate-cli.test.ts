@@ -26,11 +26,22 @@ describe('npm run estimate', { timeout: 90_000 }, () => {
   it('estimates the Dal Bó & Fréchette (2011) panel from the command line', () => {
     // Source: Dal Bó & Fréchette (2011), Table 7, D5R32 (methods.md §5: ALLD 0.9196, TFT 0.0804).
     const r = run(
-      '--file', '../shared/data/dbf2011/choices.csv', '--window', 'after-rounds:110', '--json',
-      '--map', 'subject=subject', '--map', 'action=cooperate', '--map', 'partner_action=partner_cooperate',
+      '--file',
+      '../shared/data/dbf2011/choices.csv',
+      '--window',
+      'after-rounds:110',
+      '--json',
+      '--map',
+      'subject=subject',
+      '--map',
+      'action=cooperate',
+      '--map',
+      'partner_action=partner_cooperate',
     );
     expect(r.status, r.stderr).toBe(0);
-    const out = JSON.parse(r.stdout) as { groups: { group: string; subjects: number; choices: number; shares: Record<string, number>; logLik: number }[] };
+    const out = JSON.parse(r.stdout) as {
+      groups: { group: string; subjects: number; choices: number; shares: Record<string, number>; logLik: number }[];
+    };
     const d5r32 = out.groups.find((g) => g.group === 'D5R32')!;
     expect([d5r32.subjects, d5r32.choices]).toEqual([44, 832]);
     expect(d5r32.shares.ALLD).toBeCloseTo(0.9196, 4);

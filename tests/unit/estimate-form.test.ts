@@ -15,7 +15,14 @@ describe('estimateRequestFromForm', () => {
   it('the DBF 2011 preset on two sessions, all supergames', () => {
     expect(estimateRequestFromForm(form(base))).toEqual({
       ok: true,
-      request: { source: { kind: 'sessions', sessionIds: [2, 4] }, window: 'all', include: 'own', strategies: ['ALLD', 'ALLC', 'Grim', 'TFT', 'WSLS', 'T2'], bootstrap: 200, seed: 9 },
+      request: {
+        source: { kind: 'sessions', sessionIds: [2, 4] },
+        window: 'all',
+        include: 'own',
+        strategies: ['ALLD', 'ALLC', 'Grim', 'TFT', 'WSLS', 'T2'],
+        bootstrap: 200,
+        seed: 9,
+      },
     });
   });
 
@@ -25,7 +32,10 @@ describe('estimateRequestFromForm', () => {
     if (!all.ok || !own.ok) throw new Error('refused');
     expect([all.request.include, own.request.include]).toEqual(['all', 'own']);
     expect(canonicalRequest(all.request)).not.toEqual(canonicalRequest(own.request));
-    expect(estimateRequestFromForm(form({ ...base, include: 'some' }))).toEqual({ ok: false, errors: { include: 'Choose which choices to use' } });
+    expect(estimateRequestFromForm(form({ ...base, include: 'some' }))).toEqual({
+      ok: false,
+      errors: { include: 'Choose which choices to use' },
+    });
   });
 
   it('each window kind becomes the syntax parseWindow reads', () => {
@@ -44,7 +54,10 @@ describe('estimateRequestFromForm', () => {
 
   it('library strategies of the user’s choice, in a fixed order; a dataset instead of sessions', () => {
     const r = estimateRequestFromForm(form({ ...base, sessions: '', dataset: '12', preset: 'custom', strategy: ['STFT', 'TFT', 'ALLD'] }));
-    expect(r).toEqual({ ok: true, request: { source: { kind: 'dataset', datasetId: 12 }, window: 'all', strategies: ['ALLD', 'TFT', 'STFT'], bootstrap: 200, seed: 9 } });
+    expect(r).toEqual({
+      ok: true,
+      request: { source: { kind: 'dataset', datasetId: 12 }, window: 'all', strategies: ['ALLD', 'TFT', 'STFT'], bootstrap: 200, seed: 9 },
+    });
   });
 
   it('errors by field, nothing else', () => {
@@ -52,14 +65,35 @@ describe('estimateRequestFromForm', () => {
       ok: false,
       errors: { bootstrap: 'B cannot be negative', seed: 'The seed must be a whole number' },
     });
-    expect(estimateRequestFromForm(form({ ...base, windowKind: 'last', last: '0' }))).toEqual({ ok: false, errors: { last: 'The number of supergames must be at least 1' } });
-    expect(estimateRequestFromForm(form({ ...base, preset: 'custom', strategy: ['TFT', 'Nope'] }))).toEqual({ ok: false, errors: { strategy: 'Choose strategies from the library' } });
-    expect(estimateRequestFromForm(form({ ...base, sessions: 'a,b' }))).toEqual({ ok: false, errors: { form: 'Choose sessions of this course or a dataset' } });
+    expect(estimateRequestFromForm(form({ ...base, windowKind: 'last', last: '0' }))).toEqual({
+      ok: false,
+      errors: { last: 'The number of supergames must be at least 1' },
+    });
+    expect(estimateRequestFromForm(form({ ...base, preset: 'custom', strategy: ['TFT', 'Nope'] }))).toEqual({
+      ok: false,
+      errors: { strategy: 'Choose strategies from the library' },
+    });
+    expect(estimateRequestFromForm(form({ ...base, sessions: 'a,b' }))).toEqual({
+      ok: false,
+      errors: { form: 'Choose sessions of this course or a dataset' },
+    });
   });
 
   it('same sessions in another order or repeated, same strategies in another order: one canonical request', () => {
-    const a = canonicalRequest({ source: { kind: 'sessions', sessionIds: [4, 2, 4] }, window: 'all', strategies: ['TFT', 'ALLD'], bootstrap: 10, seed: 1 });
-    const b = canonicalRequest({ source: { kind: 'sessions', sessionIds: [2, 4] }, window: 'all', strategies: ['ALLD', 'TFT'], bootstrap: 10, seed: 1 });
+    const a = canonicalRequest({
+      source: { kind: 'sessions', sessionIds: [4, 2, 4] },
+      window: 'all',
+      strategies: ['TFT', 'ALLD'],
+      bootstrap: 10,
+      seed: 1,
+    });
+    const b = canonicalRequest({
+      source: { kind: 'sessions', sessionIds: [2, 4] },
+      window: 'all',
+      strategies: ['ALLD', 'TFT'],
+      bootstrap: 10,
+      seed: 1,
+    });
     expect(JSON.stringify(a)).toBe(JSON.stringify(b));
   });
 });

@@ -6,9 +6,9 @@ import { isDeepStrictEqual } from 'node:util';
 import { uniformInt } from 'pure-rand/distribution/uniformInt';
 import { xoroshiro128plus } from 'pure-rand/generator/xoroshiro128plus';
 import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
-import { type Design, type DesignInput, designSchema } from '../../app/lib/design';
-import { createSession, step } from '../../realtime/engine/engine';
-import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow, StepResult } from '../../realtime/engine/types';
+import { type Design, type DesignInput, designSchema } from '#app/lib/design';
+import { createSession, step } from '#realtime/engine/engine';
+import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow, StepResult } from '#realtime/engine/types';
 
 export const T0 = Date.UTC(2025, 0, 15, 10, 0, 0);
 

@@ -1,7 +1,7 @@
 import { expect } from 'vitest';
 import fc from 'fast-check';
-import type { Automaton } from '../../app/lib/automata';
-import type { StageGame } from '../../app/lib/stage-game';
+import type { Automaton } from '#app/lib/automata';
+import type { StageGame } from '#app/lib/stage-game';
 
 /** |actual − expected| ≤ rel·max(1, |expected|) */
 export function expectClose(actual: number, expected: number, rel = 1e-12): void {

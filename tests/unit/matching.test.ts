@@ -186,7 +186,13 @@ describe('speed', () => {
     const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
     for (const n of [1000, 999]) {
       const past = history(n, 30, n);
-      const input = (k: number): MatchingInput => ({ supergame: 31 + k, participants: ids(n), pastPairs: past, policy: sitOut, seed: n + k });
+      const input = (k: number): MatchingInput => ({
+        supergame: 31 + k,
+        participants: ids(n),
+        pastPairs: past,
+        policy: sitOut,
+        seed: n + k,
+      });
       for (let k = 0; k < 3; k++) matchSupergame(input(k));
       const full: number[] = [];
       const blossom: number[] = [];
@@ -252,7 +258,11 @@ describe('after everyone has met', () => {
         const m = met.get(key(a, b)) ?? 0;
         return [last.has(key(a, b)) ? 1 : 0, m > 0 ? 1 : 0, 2 * m + 1];
       };
-      const add = (x: [number, number, number], y: [number, number, number]): [number, number, number] => [x[0] + y[0], x[1] + y[1], x[2] + y[2]];
+      const add = (x: [number, number, number], y: [number, number, number]): [number, number, number] => [
+        x[0] + y[0],
+        x[1] + y[1],
+        x[2] + y[2],
+      ];
       const less = (x: [number, number, number], y: [number, number, number]) => x[0] - y[0] || x[1] - y[1] || x[2] - y[2];
       const best = (rest: string[]): [number, number, number] => {
         if (rest.length === 0) return [0, 0, 0];
@@ -316,7 +326,10 @@ describe('after everyone has met', () => {
       const trials = 3000;
       for (let seed = 0; seed < trials; seed++) {
         const m = matchSupergame({ supergame: 1, participants: ids(n), pastPairs: [], policy: sitOut, seed });
-        const k = m.pairs.map(([a, b]) => key(a, b)).sort().join(' ');
+        const k = m.pairs
+          .map(([a, b]) => key(a, b))
+          .sort()
+          .join(' ');
         seen.set(k, (seen.get(k) ?? 0) + 1);
       }
       expect(seen.size).toBe(count);

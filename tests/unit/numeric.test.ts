@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { solve, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { brentRoot, goldenMin, oneMinusPow, pathValues, solveLinear } from '../../app/lib/numeric';
+import { brentRoot, goldenMin, oneMinusPow, pathValues, solveLinear } from '#app/lib/numeric';
 import { expectClose } from './helpers';
 
 describe('solveLinear (Gaussian elimination, partial pivoting)', () => {
@@ -17,7 +17,15 @@ describe('solveLinear (Gaussian elimination, partial pivoting)', () => {
   });
 
   it('throws on a singular matrix', () => {
-    expect(() => solveLinear([[1, 2], [2, 4]], [1, 2])).toThrow('singular');
+    expect(() =>
+      solveLinear(
+        [
+          [1, 2],
+          [2, 4],
+        ],
+        [1, 2],
+      ),
+    ).toThrow('singular');
   });
 
   it('agrees with ml-matrix 6.15.1 solve on random diagonally dominant systems', () => {
@@ -26,7 +34,10 @@ describe('solveLinear (Gaussian elimination, partial pivoting)', () => {
       fc.property(
         fc.integer({ min: 1, max: 12 }).chain((n) =>
           fc.tuple(
-            fc.array(fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: n, maxLength: n }), { minLength: n, maxLength: n }),
+            fc.array(fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: n, maxLength: n }), {
+              minLength: n,
+              maxLength: n,
+            }),
             fc.array(fc.double({ min: -100, max: 100, noNaN: true }), { minLength: n, maxLength: n }),
           ),
         ),
@@ -47,16 +58,25 @@ describe('pathValues (deterministic paths)', () => {
     // Source: methods.md §4 — (I − δM)V = ū; here M is a 0/1 successor matrix [calc].
     fc.assert(
       fc.property(
-        fc.integer({ min: 1, max: 20 }).chain((n) =>
-          fc.tuple(
-            fc.array(fc.integer({ min: 0, max: n - 1 }), { minLength: n, maxLength: n }),
-            fc.array(fc.double({ min: -50, max: 50, noNaN: true }), { minLength: n, maxLength: n }),
+        fc
+          .integer({ min: 1, max: 20 })
+          .chain((n) =>
+            fc.tuple(
+              fc.array(fc.integer({ min: 0, max: n - 1 }), { minLength: n, maxLength: n }),
+              fc.array(fc.double({ min: -50, max: 50, noNaN: true }), { minLength: n, maxLength: n }),
+            ),
           ),
-        ),
         fc.double({ min: 0.01, max: 0.99, noNaN: true }),
         ([succ, r], delta) => {
           const n = succ.length;
-          const out = pathValues(Int32Array.from(succ), Float64Array.from(r), delta, new Float64Array(n), new Uint8Array(n), new Int32Array(n));
+          const out = pathValues(
+            Int32Array.from(succ),
+            Float64Array.from(r),
+            delta,
+            new Float64Array(n),
+            new Uint8Array(n),
+            new Int32Array(n),
+          );
           const A = succ.map((s, i) => {
             const row = new Array<number>(n).fill(0);
             row[i] += 1;

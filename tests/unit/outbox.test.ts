@@ -34,14 +34,16 @@ const entry: OutboxEntry = { sessionId: 7, supergame: 2, round: 3, action: 'D', 
 describe('the outbox', () => {
   it('keeps a choice for another send while the outcome is open or the server cannot take it now', () => {
     // 'unavailable': the database stalled, the row may exist; a resend with the same id is safe.
-    for (const code of ['unavailable', 'server-error', 'rate-limited', 'forbidden', 'session-not-running'] as const) expect(outcomeOf(refused(code))).toBe('retry');
+    for (const code of ['unavailable', 'server-error', 'rate-limited', 'forbidden', 'session-not-running'] as const)
+      expect(outcomeOf(refused(code))).toBe('retry');
   });
 
   it('drops it on a definitive answer, and says which', () => {
     expect(outcomeOf({ ok: true, data: {} as ChoiceRow })).toBe('stored');
     expect(outcomeOf(refused('round-closed'))).toBe('closed');
     expect(outcomeOf(refused('already-chosen'))).toBe('taken');
-    for (const code of ['bad-payload', 'not-found', 'not-a-participant', 'handed-to-computer', 'not-your-pair'] as const) expect(outcomeOf(refused(code))).toBe('refused');
+    for (const code of ['bad-payload', 'not-found', 'not-a-participant', 'handed-to-computer', 'not-your-pair'] as const)
+      expect(outcomeOf(refused(code))).toBe('refused');
   });
 
   it('waits 1, 2, 4, 8 s between sends, then 8 s, stretched by up to half at random', () => {

@@ -1,12 +1,12 @@
 // A rebuild replays stored rows through the engine; the views it would build are thrown away, so
 // it must build none (a 1,000-phone session is rebuilt on every restart).
 import { describe, expect, it, vi } from 'vitest';
-import { rebuild } from '../../realtime/engine/rebuild';
+import { rebuild } from '#realtime/engine/rebuild';
 import { TestHub, joinAll, makeDesign, play, rngOf } from './harness';
 
 const calls = vi.hoisted(() => ({ participant: 0, floor: 0, bigScreen: 0 }));
-vi.mock('../../realtime/engine/views', async (importOriginal) => {
-  const real = await importOriginal<typeof import('../../realtime/engine/views')>();
+vi.mock('#realtime/engine/views', async (importOriginal) => {
+  const real = await importOriginal<typeof import('#realtime/engine/views')>();
   return {
     ...real,
     participantView: (...a: Parameters<typeof real.participantView>) => (calls.participant++, real.participantView(...a)),

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { libraryStrategy } from '../../app/lib/automata';
+import { libraryStrategy } from '#app/lib/automata';
 import {
   defaultBackground,
   fitness,
@@ -9,9 +9,9 @@ import {
   meanFitness,
   replicatorDerivative,
   replicatorStep,
-} from '../../app/lib/replicator';
-import { sizeBAD } from '../../app/lib/thresholds';
-import { valueMatrix } from '../../app/lib/values';
+} from '#app/lib/replicator';
+import { sizeBAD } from '#app/lib/thresholds';
+import { valueMatrix } from '#app/lib/values';
 import { expectClose } from './helpers';
 
 // Source: methods.md §6 check — (Grim, ALLD) at T=50, S=12, P=25, R=48, δ = 3/4.
@@ -70,12 +70,14 @@ describe('replicator dynamics, methods.md §6 check', () => {
 });
 
 describe('general properties', () => {
-  const arbMatrix = fc.integer({ min: 2, max: 5 }).chain((n) =>
-    fc.tuple(
-      fc.array(fc.array(fc.double({ min: -50, max: 50, noNaN: true }), { minLength: n, maxLength: n }), { minLength: n, maxLength: n }),
-      fc.array(fc.double({ min: 0.01, max: 1, noNaN: true }), { minLength: n, maxLength: n }),
-    ),
-  );
+  const arbMatrix = fc
+    .integer({ min: 2, max: 5 })
+    .chain((n) =>
+      fc.tuple(
+        fc.array(fc.array(fc.double({ min: -50, max: 50, noNaN: true }), { minLength: n, maxLength: n }), { minLength: n, maxLength: n }),
+        fc.array(fc.double({ min: 0.01, max: 1, noNaN: true }), { minLength: n, maxLength: n }),
+      ),
+    );
 
   it('shares stay on the simplex and ẋ sums to 0', () => {
     // Source: [calc] Σ x_j(f_j − f̄) = f̄ − f̄ = 0; the discrete map divides by c + f̄.

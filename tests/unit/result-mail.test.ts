@@ -39,7 +39,15 @@ describe('results e-mail', () => {
     row({ round: 2, action: 'D', payoff: 50 }),
     row({ round: 3, source: 'computer', origin: 'computer_seat', payoff: 25 }),
     row({ supergame: 2, partner: 'P-005', round: 1, payoff: 12, supergame_length: 1 }),
-    row({ supergame: 3, partner: 'computer:TFT', round: 1, payoff: 48, supergame_length: 1, partner_source: 'computer', computer_partner: 1 }),
+    row({
+      supergame: 3,
+      partner: 'computer:TFT',
+      round: 1,
+      payoff: 48,
+      supergame_length: 1,
+      partner_source: 'computer',
+      computer_partner: 1,
+    }),
   ];
 
   it('counts only the rounds the participant played: not the computer’s after a hand-over', () => {
@@ -53,7 +61,9 @@ describe('results e-mail', () => {
       to: 'a@b.test',
       name: null,
       course: 'Course',
-      session: { id: 7, treatment: 'D75', simulated: false, credit: { kind: 'participation', credit: 1 } } as Parameters<typeof resultMail>[0]['session'],
+      session: { id: 7, treatment: 'D75', simulated: false, credit: { kind: 'participation', credit: 1 } } as Parameters<
+        typeof resultMail
+      >[0]['session'],
       pseudonym: 'P-001',
       rows,
     });

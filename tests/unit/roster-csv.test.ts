@@ -61,7 +61,9 @@ describe('parseRoster (the committed fixtures in tests/fixtures/roster)', () => 
     const lines = ['email,name,student id'];
     for (let i = 1; i <= ROSTER_LIMITS.maxRows + 1; i++) lines.push(`p${i}@roster.parley.test,Person ${i},ID-${i}`);
     const { errors } = parseRoster(lines.join('\n'));
-    expect(errors).toEqual([{ line: ROSTER_LIMITS.maxRows + 2, message: `more than ${ROSTER_LIMITS.maxRows} people: split the roster into several files` }]);
+    expect(errors).toEqual([
+      { line: ROSTER_LIMITS.maxRows + 2, message: `more than ${ROSTER_LIMITS.maxRows} people: split the roster into several files` },
+    ]);
   });
 
   it('matches header names loosely', () => {

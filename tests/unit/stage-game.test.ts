@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { checkStageGame, normalised, payoffTable, stagePayoff } from '../../app/lib/stage-game';
+import { checkStageGame, normalised, payoffTable, stagePayoff } from '#app/lib/stage-game';
 
 describe('checkStageGame', () => {
   it("accepts Axelrod's payoffs and δ in (0,1)", () => {

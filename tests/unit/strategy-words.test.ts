@@ -67,7 +67,9 @@ describe('a computer partner in plain words', () => {
     expect(words).not.toContain(libraryStrategy(id).name);
     expect(words).not.toMatch(/cooperat|defect/i);
     // The first move the words name is the automaton's.
-    expect(words).toMatch(new RegExp(`^(always chooses|starts with|chooses) ${libraryStrategy(id).states[0].action === 'C' ? 'Blue' : 'Green'}`));
+    expect(words).toMatch(
+      new RegExp(`^(always chooses|starts with|chooses) ${libraryStrategy(id).states[0].action === 'C' ? 'Blue' : 'Green'}`),
+    );
   });
 
   it('has a rule written from the words for every library strategy', () => {
@@ -95,7 +97,9 @@ describe('a computer partner in plain words', () => {
         { action: 'C', next: { cc: 0, cd: 0, dc: 0, dd: 0 } },
       ],
     };
-    expect(strategyInWords(odd, L)).toBe('starts with Defect and then follows a fixed plan that reacts to what the two of you chose in earlier rounds');
+    expect(strategyInWords(odd, L)).toBe(
+      'starts with Defect and then follows a fixed plan that reacts to what the two of you chose in earlier rounds',
+    );
     expect(strategyInWords('NoSuch', L)).not.toContain('NoSuch');
   });
 });

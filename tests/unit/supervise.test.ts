@@ -7,11 +7,14 @@ import { howItEnded, supervise, type Supervisor } from '../../scripts/lib/superv
 const children: ChildProcess[] = [];
 /** A process that lives until killed, or exits at once with `code`. */
 function node(code?: number) {
-  const c = spawn(process.execPath, ['-e', code === undefined ? 'setInterval(() => {}, 1000)' : `process.exit(${code})`], { stdio: 'ignore' });
+  const c = spawn(process.execPath, ['-e', code === undefined ? 'setInterval(() => {}, 1000)' : `process.exit(${code})`], {
+    stdio: 'ignore',
+  });
   children.push(c);
   return c;
 }
-const exited = (c: ChildProcess) => new Promise<void>((r) => (c.exitCode !== null || c.signalCode !== null ? r() : c.once('exit', () => r())));
+const exited = (c: ChildProcess) =>
+  new Promise<void>((r) => (c.exitCode !== null || c.signalCode !== null ? r() : c.once('exit', () => r())));
 const until = async (test: () => boolean, ms = 10_000) => {
   const end = Date.now() + ms;
   while (!test()) {
@@ -35,7 +38,14 @@ describe('supervise', () => {
   it('restarts a process killed by any signal, and one that exits with any code, and says so', async () => {
     const lines: string[] = [];
     const restarted: ChildProcess[] = [];
-    sup = supervise({ name: 'Parley', spawn: () => node(), delayMs: 10, say: (l) => lines.push(l), onRestart: (c) => restarted.push(c), onGiveUp: () => lines.push('gave up') });
+    sup = supervise({
+      name: 'Parley',
+      spawn: () => node(),
+      delayMs: 10,
+      say: (l) => lines.push(l),
+      onRestart: (c) => restarted.push(c),
+      onGiveUp: () => lines.push('gave up'),
+    });
     const first = sup.child;
     first.kill('SIGKILL');
     await until(() => restarted.length === 1);
@@ -53,7 +63,15 @@ describe('supervise', () => {
     let clock = 0;
     const reasons: string[] = [];
     // Exits with code 1 at once, as a server that cannot start would.
-    sup = supervise({ name: 'Parley', spawn: () => node(1), maxRestarts: 2, windowMs: 60_000, delayMs: 10, now: () => clock, onGiveUp: (r) => reasons.push(r) });
+    sup = supervise({
+      name: 'Parley',
+      spawn: () => node(1),
+      maxRestarts: 2,
+      windowMs: 60_000,
+      delayMs: 10,
+      now: () => clock,
+      onGiveUp: (r) => reasons.push(r),
+    });
     await until(() => reasons.length === 1);
     expect(reasons[0]).toBe('Parley exited with code 1, after 2 restart(s) within 60 s');
     // Stopped for good: no more processes are started after giving up.
@@ -65,7 +83,16 @@ describe('supervise', () => {
     // Deaths spread out over more than the window never give up.
     const spread: string[] = [];
     const restarted: ChildProcess[] = [];
-    sup = supervise({ name: 'P', spawn: () => node(), maxRestarts: 1, windowMs: 1000, delayMs: 10, now: () => clock, onRestart: (c) => restarted.push(c), onGiveUp: (r) => spread.push(r) });
+    sup = supervise({
+      name: 'P',
+      spawn: () => node(),
+      maxRestarts: 1,
+      windowMs: 1000,
+      delayMs: 10,
+      now: () => clock,
+      onRestart: (c) => restarted.push(c),
+      onGiveUp: (r) => spread.push(r),
+    });
     for (let i = 1; i <= 3; i++) {
       clock += 5000;
       sup.child.kill('SIGKILL');

@@ -11,7 +11,7 @@ import {
   pLengthAtMost,
   pLengthExactly,
   roundsForSupergames,
-} from '../../app/lib/termination';
+} from '#app/lib/termination';
 import { expectClose } from './helpers';
 
 describe('geometric supergame length', () => {
@@ -114,9 +114,7 @@ describe('classTimePlanner', () => {
     // Source: [calc] 30 min of rounds + 30 × 15 s; rounded half-up.
     const p = classTimePlanner({ supergames: 30, delta: 0.75, secondsPerRound: 15, overheadSecondsPerSupergame: 15 });
     expect(p.minutes).toBe(37.5);
-    expect(p.sentence).toBe(
-      '30 supergames at δ = 0.75 ≈ 120 rounds ≈ 38 minutes at 15 s a round and 15 s between supergames',
-    );
+    expect(p.sentence).toBe('30 supergames at δ = 0.75 ≈ 120 rounds ≈ 38 minutes at 15 s a round and 15 s between supergames');
   });
 
   it('prints δ with up to 4 decimals and singular supergame', () => {

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { basinWords, grimSPE, riskDominance, sizeBAD, tftNash, tftSPE, theoryAt, wslsSPE } from '../../app/lib/thresholds';
+import { basinWords, grimSPE, riskDominance, sizeBAD, tftNash, tftSPE, theoryAt, wslsSPE } from '#app/lib/thresholds';
 import { arbDelta, arbGame, expectClose } from './helpers';
 
 const AXELROD = { T: 5, R: 3, P: 1, S: 0 };

@@ -1,9 +1,9 @@
 import fc from 'fast-check';
 import { Matrix, solve } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { LIBRARY, libraryStrategy } from '../../app/lib/automata';
-import { solveLinear } from '../../app/lib/numeric';
-import { expectedTotal, jointSystem, perRoundValue, valueMatrix } from '../../app/lib/values';
+import { LIBRARY, libraryStrategy } from '#app/lib/automata';
+import { solveLinear } from '#app/lib/numeric';
+import { expectedTotal, jointSystem, perRoundValue, valueMatrix } from '#app/lib/values';
 import { ALTERNATE, arbAutomaton, arbDelta, arbGame, expectClose } from './helpers';
 
 const S = (id: string) => libraryStrategy(id);
@@ -91,7 +91,7 @@ describe('execution errors', () => {
       fc.property(arbGame, arbDelta, fc.double({ min: 0, max: 0.5, noNaN: true }), (g, d, e) => {
         const eu = (1 - e) ** 2 * g.P + (1 - e) * e * g.T + e * (1 - e) * g.S + e * e * g.R;
         const v = expectedTotal(S('ALLD'), S('ALLD'), g, d, e);
-        expect(Math.abs(v - eu / (1 - d))).toBeLessThanOrEqual(1e-12 * (Math.abs(g.T) + Math.abs(g.S) + 1) / (1 - d));
+        expect(Math.abs(v - eu / (1 - d))).toBeLessThanOrEqual((1e-12 * (Math.abs(g.T) + Math.abs(g.S) + 1)) / (1 - d));
       }),
     );
   });
@@ -108,7 +108,7 @@ describe('execution errors', () => {
         const vD = uD / (1 - d);
         const vC = (uC + d * (1 - q * q) * vD) / (1 - d * q * q);
         const v = expectedTotal(S('Grim'), S('ALLC'), g, d, e);
-        expect(Math.abs(v - vC)).toBeLessThanOrEqual(1e-11 * (Math.abs(g.T) + Math.abs(g.S) + 1) / (1 - d));
+        expect(Math.abs(v - vC)).toBeLessThanOrEqual((1e-11 * (Math.abs(g.T) + Math.abs(g.S) + 1)) / (1 - d));
       }),
     );
   });

@@ -49,14 +49,21 @@ export function ColumnChart({ columns, rows, testId }: { columns: Column[]; rows
                 <span className="relative block h-full">
                   <span className="absolute inset-x-[8%] bottom-0 rounded-t bg-accent-300" style={{ height: `${pct}%` }} />
                   {labelled ? (
-                    <span className="num absolute inset-x-0 text-center text-[0.95em] leading-none font-semibold whitespace-nowrap" style={{ bottom: `calc(${pct}% + 0.25em)` }}>
+                    <span
+                      className="num absolute inset-x-0 text-center text-[0.95em] leading-none font-semibold whitespace-nowrap"
+                      style={{ bottom: `calc(${pct}% + 0.25em)` }}
+                    >
                       {percent(c.rate)}
                     </span>
                   ) : null}
                 </span>
               </span>
               {c.below.map((b, j) => (
-                <span key={j} aria-hidden="true" className={`num h-[1.5em] text-center text-[0.95em] leading-[1.5em] whitespace-nowrap text-slate-200 ${j === 0 ? 'border-t border-slate-500' : ''}`}>
+                <span
+                  key={j}
+                  aria-hidden="true"
+                  className={`num h-[1.5em] text-center text-[0.95em] leading-[1.5em] whitespace-nowrap text-slate-200 ${j === 0 ? 'border-t border-slate-500' : ''}`}
+                >
                   {showLabel ? b : ''}
                 </span>
               ))}

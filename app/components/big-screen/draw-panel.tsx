@@ -24,7 +24,11 @@ function DrawLine({ draws, rule }: { draws: number[]; rule: BigScreenView['drawR
         <span className="absolute inset-y-0 left-0 rounded-l bg-accent-700" style={{ width: `${(rule.cutoff / rule.max) * 100}%` }} />
         <span className="absolute inset-y-0 right-0 rounded-r bg-slate-600" style={{ width: `${(1 - rule.cutoff / rule.max) * 100}%` }} />
         {draws.map((d, i) => (
-          <span key={i} className="absolute -top-[0.35em] h-[1.4em] w-[0.3em] -translate-x-1/2 rounded bg-slate-50" style={{ left: at(d) }} />
+          <span
+            key={i}
+            className="absolute -top-[0.35em] h-[1.4em] w-[0.3em] -translate-x-1/2 rounded bg-slate-50"
+            style={{ left: at(d) }}
+          />
         ))}
       </div>
       <div className="relative h-[1.4em] text-[0.95em] text-slate-300">
@@ -38,7 +42,15 @@ function DrawLine({ draws, rule }: { draws: number[]; rule: BigScreenView['drawR
   );
 }
 
-export function DrawPanel({ draw, rule, currentSupergame }: { draw: Draw | null; rule: BigScreenView['drawRule']; currentSupergame: number }) {
+export function DrawPanel({
+  draw,
+  rule,
+  currentSupergame,
+}: {
+  draw: Draw | null;
+  rule: BigScreenView['drawRule'];
+  currentSupergame: number;
+}) {
   const block = draw?.sentence != null;
   let caption: string;
   if (!draw) caption = 'The first draw comes once every pair has played round 1.';
@@ -46,7 +58,10 @@ export function DrawPanel({ draw, rule, currentSupergame }: { draw: Draw | null;
   else if (draw.supergame !== currentSupergame) caption = `The last draw of supergame ${draw.supergame}, after round ${draw.toRound}`;
   else caption = `Supergame ${draw.supergame}, after round ${draw.toRound}`;
   return (
-    <section aria-label="The draw" className="flex flex-col gap-[0.3em] rounded-xl border border-slate-700 bg-slate-900 px-[0.8em] py-[0.6em]">
+    <section
+      aria-label="The draw"
+      className="flex flex-col gap-[0.3em] rounded-xl border border-slate-700 bg-slate-900 px-[0.8em] py-[0.6em]"
+    >
       <p className="text-slate-300">{caption}</p>
       <div role="status" aria-live="polite">
         {draw && !block ? (

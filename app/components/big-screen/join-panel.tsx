@@ -39,7 +39,11 @@ export function JoinHero({ code, host, qr }: JoinProps) {
 /** While running: smaller, with the supergame a late joiner plays first. */
 export function JoinSide({ code, host, qr, entersAt }: JoinProps & { entersAt: number }) {
   return (
-    <section data-testid="big-join" aria-labelledby="join-late" className="flex flex-col gap-[0.3em] rounded-xl border border-slate-700 px-[0.8em] py-[0.6em]">
+    <section
+      data-testid="big-join"
+      aria-labelledby="join-late"
+      className="flex flex-col gap-[0.3em] rounded-xl border border-slate-700 px-[0.8em] py-[0.6em]"
+    >
       <h2 id="join-late" className="font-semibold">
         Joining late?
       </h2>

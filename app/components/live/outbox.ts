@@ -57,7 +57,8 @@ export function backoffMs(attempt: number, random: () => number = Math.random): 
   return Math.round(base * (1 + random() / 2));
 }
 
-export const sameRound = (e: Pick<OutboxEntry, 'supergame' | 'round'>, supergame: number, round: number | null) => e.supergame === supergame && e.round === round;
+export const sameRound = (e: Pick<OutboxEntry, 'supergame' | 'round'>, supergame: number, round: number | null) =>
+  e.supergame === supergame && e.round === round;
 
 const keyOf = (sessionId: number) => `parley:outbox:${sessionId}`;
 

@@ -16,7 +16,19 @@ export interface OutboxNote {
  * goes into the outbox, the outbox is sent whenever the socket is admitted to the session and the
  * server has its database, and resent with back-off after answers that leave the outcome open.
  */
-export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { sessionId: number; view: ParticipantView; ready: boolean; storageOk: boolean; emit: Emit }) {
+export function useChoiceOutbox({
+  sessionId,
+  view,
+  ready,
+  storageOk,
+  emit,
+}: {
+  sessionId: number;
+  view: ParticipantView;
+  ready: boolean;
+  storageOk: boolean;
+  emit: Emit;
+}) {
   const [entry, setEntry] = useState<OutboxEntry | null>(null);
   const [confirmed, setConfirmed] = useState<Pick<OutboxEntry, 'supergame' | 'round' | 'action'> | null>(null);
   const [note, setNote] = useState<OutboxNote | null>(null);
@@ -28,6 +40,12 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
   const attempts = useRef(0);
   const retryTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
   const labels = view.labels;
+  // The send effect's answer arrives later; it words its note with the newest labels without
+  // re-running (a new view must not cut a back-off short).
+  const labelsRef = useRef(labels);
+  useEffect(() => {
+    labelsRef.current = labels;
+  });
 
   const put = useCallback(
     (e: OutboxEntry | null) => {
@@ -58,9 +76,13 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
     const open = (view.status === 'choosing' || view.status === 'waiting-partner') && sameRound(e, view.supergame, view.round);
     if (open && view.ownChoice === null) return;
     put(null);
-    if (open && view.ownChoice !== e.action) setNote({ tone: 'info', text: `This round already has your choice ${labels[view.ownChoice!]}, so ${labels[e.action]} was not sent.` });
+    if (open && view.ownChoice !== e.action)
+      setNote({
+        tone: 'info',
+        text: `This round already has your choice ${labels[view.ownChoice!]}, so ${labels[e.action]} was not sent.`,
+      });
     if (!open) setClosed(e);
-  }, [view, entry, put]);
+  }, [view, labels, entry, put]);
 
   // A dropped connection leaves its answer unknown: forget the send in flight, send again when back.
   useEffect(() => {
@@ -99,11 +121,11 @@ export function useChoiceOutbox({ sessionId, view, ready, storageOk, emit }: { s
           return;
         case 'taken':
           put(null);
-          setNote({ tone: 'info', text: `This round already has a recorded choice, so ${labels[e.action]} was not sent.` });
+          setNote({ tone: 'info', text: `This round already has a recorded choice, so ${labelsRef.current[e.action]} was not sent.` });
           return;
         case 'refused':
           put(null);
-          setNote({ tone: 'error', text: `${labels[e.action]} was not recorded: ${res.ok ? '' : res.message}` });
+          setNote({ tone: 'error', text: `${labelsRef.current[e.action]} was not recorded: ${res.ok ? '' : res.message}` });
       }
     });
   }, [entry, ready, storageOk, view.paused, view.supergame, view.round, view.ownChoice, retryTick, emit, put]);

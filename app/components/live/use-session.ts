@@ -79,8 +79,10 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
           resolve({ ok: false, code: 'server-error', message: 'Not connected. Trying again…' });
           return;
         }
-        (s.timeout(8000).emit as (e: string, p: unknown, cb: (err: Error | null, res: Ack<unknown>) => void) => void)(event, payload, (err, res) =>
-          resolve(err ? { ok: false, code: 'server-error', message: 'No answer from the server. Try again.' } : res),
+        (s.timeout(8000).emit as (e: string, p: unknown, cb: (err: Error | null, res: Ack<unknown>) => void) => void)(
+          event,
+          payload,
+          (err, res) => resolve(err ? { ok: false, code: 'server-error', message: 'No answer from the server. Try again.' } : res),
         );
       }),
     [],

@@ -17,14 +17,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     .orderBy(asc(estimates.id))
     .limit(limit + 1);
   return idPage(rows, limit, (e) => ({
-      id: e.id,
-      status: e.status,
-      progress: e.progress,
-      total: e.total,
-      request: e.request,
-      result: e.result,
-      error: e.error,
-      created_at: e.createdAt.toISOString(),
+    id: e.id,
+    status: e.status,
+    progress: e.progress,
+    total: e.total,
+    request: e.request,
+    result: e.result,
+    error: e.error,
+    created_at: e.createdAt.toISOString(),
     finished_at: e.finishedAt?.toISOString() ?? null,
   }));
 }

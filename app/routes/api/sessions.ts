@@ -1,7 +1,16 @@
 // GET /api/v1/courses/:courseId/sessions — the course's sessions by id; ?limit (≤ 100) &cursor.
 import { and, asc, eq, gt } from 'drizzle-orm';
 import type { Route } from './+types/sessions';
-import { idCursor, idPage, notAllowed, pageParams, parseApiId, requireApiCourse, requireApiToken, sessionJson } from '#app/utils/api.server';
+import {
+  idCursor,
+  idPage,
+  notAllowed,
+  pageParams,
+  parseApiId,
+  requireApiCourse,
+  requireApiToken,
+  sessionJson,
+} from '#app/utils/api.server';
 import { db } from '#app/utils/db.server';
 import { sessions } from '#drizzle/schema';
 

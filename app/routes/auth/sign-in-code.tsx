@@ -42,7 +42,10 @@ export async function action({ request }: Route.ActionArgs) {
   if (!email) throw redirect('/sign-in');
   const ip = clientIp(request);
   const refuse = (status: number, refused: Refused) =>
-    data({ errors: {} as { code?: string }, refused }, { status, headers: refused.retryAfterSeconds ? { 'Retry-After': String(refused.retryAfterSeconds) } : undefined });
+    data(
+      { errors: {} as { code?: string }, refused },
+      { status, headers: refused.retryAfterSeconds ? { 'Retry-After': String(refused.retryAfterSeconds) } : undefined },
+    );
 
   if (form.get('intent') === 'resend') {
     const limited = await checkCodeRequestLimits(email, ip);
@@ -57,7 +60,12 @@ export async function action({ request }: Route.ActionArgs) {
   if (!parsed.success) return data({ errors: { code: parsed.error.issues[0]?.message }, refused: null }, { status: 400 });
   // Parley's record of the code decides, not the cookie (app/utils/sign-in.server.ts).
   const state = await codeState(pending);
-  if (!state.ok) return refuse(state.reason === 'dead' ? 429 : 400, { title: 'This code no longer works', reason: state.message, retryAfterSeconds: null });
+  if (!state.ok)
+    return refuse(state.reason === 'dead' ? 429 : 400, {
+      title: 'This code no longer works',
+      reason: state.message,
+      retryAfterSeconds: null,
+    });
   try {
     await authenticator().authenticate('TOTP', strategyRequest(request, { code: parsed.data.code }));
   } catch (thrown) {
@@ -77,8 +85,11 @@ export default function SignInCode({ loaderData, actionData }: Route.ComponentPr
         <h1 className="text-3xl font-semibold">Check your e-mail</h1>
         {loaderData.email ? (
           <p className="text-lg text-slate-700">
-            We sent a six-digit code to <strong><EmailAddress email={loaderData.email} /></strong>. It works for {loaderData.minutes}{' '}
-            minutes. You can also open the link in the e-mail on this device.
+            We sent a six-digit code to{' '}
+            <strong>
+              <EmailAddress email={loaderData.email} />
+            </strong>
+            . It works for {loaderData.minutes} minutes. You can also open the link in the e-mail on this device.
           </p>
         ) : null}
       </div>

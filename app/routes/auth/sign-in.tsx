@@ -24,12 +24,19 @@ export async function action({ request }: Route.ActionArgs) {
   const form = await request.clone().formData();
   const parsed = SignInForm.safeParse({ email: String(form.get('email') ?? '').trim(), redirectTo: form.get('redirectTo') ?? undefined });
   if (!parsed.success) {
-    return data({ errors: { email: parsed.error.issues[0]?.message } as { email?: string }, limited: null, email: String(form.get('email') ?? '') }, { status: 400 });
+    return data(
+      { errors: { email: parsed.error.issues[0]?.message } as { email?: string }, limited: null, email: String(form.get('email') ?? '') },
+      { status: 400 },
+    );
   }
   const email = parsed.data.email.toLowerCase();
   const ip = clientIp(request);
   const limited = await checkCodeRequestLimits(email, ip);
-  if (limited) return data({ errors: {} as { email?: string }, limited, email }, { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } });
+  if (limited)
+    return data(
+      { errors: {} as { email?: string }, limited, email },
+      { status: 429, headers: { 'Retry-After': String(limited.retryAfterSeconds) } },
+    );
 
   const session = await getAuthSession(request);
   session.set('redirectTo', safeRedirect(parsed.data.redirectTo));
@@ -74,8 +81,8 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
         </Button>
       </Form>
       <p className="text-sm text-slate-600">
-        Parley stores your e-mail address to sign you in and, in a course, to link your choices to you. Exports for research
-        use pseudonyms, not names or addresses.
+        Parley stores your e-mail address to sign you in and, in a course, to link your choices to you. Exports for research use pseudonyms,
+        not names or addresses.
       </p>
     </ParticipantShell>
   );

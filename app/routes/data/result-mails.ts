@@ -4,7 +4,13 @@ import { data } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/result-mails';
 import { requirePanelSession } from '#app/models/panel-export.server';
-import { queueResultMails, resultMailLoopRunning, resultMailStatus, retryFailedMails, startResultMailLoop } from '#app/models/result-mails.server';
+import {
+  queueResultMails,
+  resultMailLoopRunning,
+  resultMailStatus,
+  retryFailedMails,
+  startResultMailLoop,
+} from '#app/models/result-mails.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 const Intent = z.object({ intent: z.enum(['send', 'retry'], 'Choose send or retry.') });

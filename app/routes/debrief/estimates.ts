@@ -6,7 +6,10 @@ import { estimateRequestFromForm } from '#app/utils/estimate-form';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 export async function loader() {
-  return Response.json({ ok: false, message: 'POST an estimation request here; GET /courses/:courseId/estimates/:id for its status.' }, { status: 405 });
+  return Response.json(
+    { ok: false, message: 'POST an estimation request here; GET /courses/:courseId/estimates/:id for its status.' },
+    { status: 405 },
+  );
 }
 
 export async function action({ request, params }: Route.ActionArgs) {

@@ -18,17 +18,19 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   // Their own rows only, consent or not (it is their own play); a round their partner has not
   // chosen in yet is not a row.
   const mine = (await loadSessionPanel(course.id, sessionId, { keepDeclined: true, participantKeys: [me.key] }))!.rows;
-  const supergames = [...new Set(mine.map((r) => r.supergame))].sort((a, b) => a - b).map((s) => {
-    const rows = mine.filter((r) => r.supergame === s);
-    return {
-      supergame: s,
-      rounds: rows.filter((r) => r.paid === 1).length,
-      partner: partnerWords(rows.map((r) => r.partner)),
-      ownC: rows.filter((r) => r.action === 'C').length,
-      partnerC: rows.filter((r) => r.partner_action === 'C').length,
-      points: rows.reduce((t, r) => t + (r.paid === 1 ? r.payoff : 0), 0),
-    };
-  });
+  const supergames = [...new Set(mine.map((r) => r.supergame))]
+    .sort((a, b) => a - b)
+    .map((s) => {
+      const rows = mine.filter((r) => r.supergame === s);
+      return {
+        supergame: s,
+        rounds: rows.filter((r) => r.paid === 1).length,
+        partner: partnerWords(rows.map((r) => r.partner)),
+        ownC: rows.filter((r) => r.action === 'C').length,
+        partnerC: rows.filter((r) => r.partner_action === 'C').length,
+        points: rows.reduce((t, r) => t + (r.paid === 1 ? r.payoff : 0), 0),
+      };
+    });
   return {
     email: user.email,
     course: { title: course.title, isDemo: course.isDemo },
@@ -66,7 +68,9 @@ export default function MySummary({ loaderData }: Route.ComponentProps) {
         <p className="num text-4xl font-semibold" data-testid="total-points">
           {total}
         </p>
-        {session.status !== 'complete' && session.status !== 'archived' ? <p className="text-sm text-slate-600">The session is not over yet: this is so far.</p> : null}
+        {session.status !== 'complete' && session.status !== 'archived' ? (
+          <p className="text-sm text-slate-600">The session is not over yet: this is so far.</p>
+        ) : null}
       </div>
       <ul className="flex flex-col gap-3" aria-label="Your supergames">
         {supergames.map((s) => (
@@ -83,7 +87,10 @@ export default function MySummary({ loaderData }: Route.ComponentProps) {
         ))}
       </ul>
       <p className="text-sm text-slate-600">
-        Partners stay anonymous: this page shows your own choices and points only. <Link to="/" className="font-semibold text-accent-700 underline">Parley’s start page</Link>
+        Partners stay anonymous: this page shows your own choices and points only.{' '}
+        <Link to="/" className="font-semibold text-accent-700 underline">
+          Parley’s start page
+        </Link>
       </p>
     </ParticipantShell>
   );

@@ -52,7 +52,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   const grade = gradeAnswers(questions, answers);
   await recordAttempt(session.id, user.id, grade.wrong);
   if (!grade.passed) {
-    const explanations = Object.fromEntries(questions.filter((q) => grade.wrong.includes(q.id)).map((q) => [q.id, answers[q.id] ? q.explanation : 'Choose an answer.']));
+    const explanations = Object.fromEntries(
+      questions.filter((q) => grade.wrong.includes(q.id)).map((q) => [q.id, answers[q.id] ? q.explanation : 'Choose an answer.']),
+    );
     return data({ wrong: grade.wrong as string[], explanations, answers, error: null }, { status: 400 });
   }
   const next = await nextStep(code, session, user.id, consent, 'check');
@@ -69,7 +71,9 @@ export default function ComprehensionCheck({ loaderData, actionData }: Route.Com
     <ParticipantShell email={loaderData.email}>
       <header className="flex flex-col gap-1">
         <h1 className="text-2xl font-semibold">Three questions before you play</h1>
-        <p className="text-slate-700">They check that the rules are clear. They do not count for anything; answer all three correctly to go on.</p>
+        <p className="text-slate-700">
+          They check that the rules are clear. They do not count for anything; answer all three correctly to go on.
+        </p>
       </header>
       <PayoffTable table={table} labels={labels} />
       <div aria-live="polite">
@@ -96,7 +100,13 @@ export default function ComprehensionCheck({ loaderData, actionData }: Route.Com
               </legend>
               {q.options.map((o) => (
                 <label key={o.value} className="flex min-h-12 items-center gap-3">
-                  <input type="radio" name={q.id} value={o.value} defaultChecked={actionData?.answers[q.id] === o.value} className="size-5 shrink-0" />
+                  <input
+                    type="radio"
+                    name={q.id}
+                    value={o.value}
+                    defaultChecked={actionData?.answers[q.id] === o.value}
+                    className="size-5 shrink-0"
+                  />
                   {o.label}
                 </label>
               ))}
@@ -113,7 +123,10 @@ export default function ComprehensionCheck({ loaderData, actionData }: Route.Com
           {busy ? 'Checking…' : practiceNext ? 'Check my answers' : 'Check my answers and join'}
         </Button>
       </Form>
-      <Link to={`/join/${code}`} className="min-h-11 content-center text-center font-semibold text-accent-700 underline-offset-4 hover:underline">
+      <Link
+        to={`/join/${code}`}
+        className="min-h-11 content-center text-center font-semibold text-accent-700 underline-offset-4 hover:underline"
+      >
         Read the rules again
       </Link>
     </ParticipantShell>

@@ -90,14 +90,16 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
               <fieldset className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4">
                 <legend className="px-1 font-semibold">Research use of your choices</legend>
                 <p className="text-sm text-slate-700">
-                  Your instructor may use the class’s choices, without names, for research approved by the institution’s ethics board.
-                  Your answer does not change your points or your grade.
+                  Your instructor may use the class’s choices, without names, for research approved by the institution’s ethics board. Your
+                  answer does not change your points or your grade.
                 </p>
                 <label className="flex min-h-12 items-center gap-3">
-                  <input type="radio" name="consent" value="yes" defaultChecked={answered === 'yes'} className="size-5" /> Yes, my choices may be used for research
+                  <input type="radio" name="consent" value="yes" defaultChecked={answered === 'yes'} className="size-5" /> Yes, my choices
+                  may be used for research
                 </label>
                 <label className="flex min-h-12 items-center gap-3">
-                  <input type="radio" name="consent" value="no" defaultChecked={answered === 'no'} className="size-5" /> No, leave my choices out of research
+                  <input type="radio" name="consent" value="no" defaultChecked={answered === 'no'} className="size-5" /> No, leave my
+                  choices out of research
                 </label>
                 {actionData?.field === 'consent' ? <FieldError>{actionData.error}</FieldError> : null}
               </fieldset>
@@ -113,4 +115,6 @@ export default function JoinSession({ loaderData, actionData }: Route.ComponentP
   );
 }
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.heading.course ? `${data.heading.course} · ` : ''}Before you play · Parley` }];
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: `${data?.heading.course ? `${data.heading.course} · ` : ''}Before you play · Parley` },
+];

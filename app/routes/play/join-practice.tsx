@@ -75,21 +75,25 @@ export default function Practice({ loaderData, actionData }: Route.ComponentProp
   };
   return (
     <ParticipantShell email={loaderData.email}>
-      <p className="self-start rounded-full border-2 border-dashed border-slate-500 px-3 py-1 text-sm font-bold tracking-wide text-slate-800 uppercase" data-testid="practice-label">
+      <p
+        className="self-start rounded-full border-2 border-dashed border-slate-500 px-3 py-1 text-sm font-bold tracking-wide text-slate-800 uppercase"
+        data-testid="practice-label"
+      >
         Practice — not recorded
       </p>
       <header className="flex flex-col gap-1">
         <h1 className="text-2xl font-semibold">Practise against the computer</h1>
         <p className="text-slate-700">
-          Your partner here is a computer that {computerWords}. Nothing you choose is sent or stored, and it earns no points. Up to {PRACTICE_MAX_ROUNDS} rounds.
+          Your partner here is a computer that {computerWords}. Nothing you choose is sent or stored, and it earns no points. Up to{' '}
+          {PRACTICE_MAX_ROUNDS} rounds.
         </p>
       </header>
       <PayoffTable table={table} labels={labels} />
       <section aria-live="polite" className="flex flex-col gap-2" data-testid="practice-rounds">
         {rounds.map((r) => (
           <p key={r.round} className="rounded-lg border border-slate-200 bg-white p-3">
-            Practice round {r.round}: you {SHAPES[r.own]} {labels[r.own]}, computer {SHAPES[r.computer]} {labels[r.computer]} → you would get{' '}
-            <strong className="num">{r.ownPoints}</strong>, the computer <span className="num">{r.computerPoints}</span>.{' '}
+            Practice round {r.round}: you {SHAPES[r.own]} {labels[r.own]}, computer {SHAPES[r.computer]} {labels[r.computer]} → you would
+            get <strong className="num">{r.ownPoints}</strong>, the computer <span className="num">{r.computerPoints}</span>.{' '}
             <strong>
               Draw {r.draw} {r.another ? `≤ ${cutoff} — another round` : `> ${cutoff} — the supergame ends`}
             </strong>

@@ -27,14 +27,20 @@ export async function action({ request }: Route.ActionArgs) {
   if (wait !== null) {
     const minutes = Math.ceil(wait / 60);
     return data(
-      { error: `Too many codes that match no session were typed on this network. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or scan the QR code on the big screen.`, code: typed },
+      {
+        error: `Too many codes that match no session were typed on this network. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or scan the QR code on the big screen.`,
+        code: typed,
+      },
       { status: 429, headers: { 'Retry-After': String(wait) } },
     );
   }
   const found = await findByJoinCode(parsed.data);
   if (!found || !JOINABLE.has(found.status)) {
     recordJoinMiss(ip);
-    return data({ error: 'No session is open with this code. Check the code on the big screen and type it again.', code: typed }, { status: 404 });
+    return data(
+      { error: 'No session is open with this code. Check the code on the big screen and type it again.', code: typed },
+      { status: 404 },
+    );
   }
   throw redirect(`/join/${parsed.data}`);
 }

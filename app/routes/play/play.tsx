@@ -46,7 +46,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 const SHAPES: Record<Action, string> = { C: '◆', D: '●' };
 
 export default function Play({ loaderData }: Route.ComponentProps) {
-  const { view: live, connected, ready, online, storageOk, emit, socket } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
+  const {
+    view: live,
+    connected,
+    ready,
+    online,
+    storageOk,
+    emit,
+    socket,
+  } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
   const view = (live ?? loaderData.view) as ParticipantView;
   const offset = useRef(loaderData.serverNow - Date.now()).current;
   const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset, loaderData.roundMs);
@@ -95,8 +103,14 @@ export default function Play({ loaderData }: Route.ComponentProps) {
           {link === 'connecting' ? 'connecting…' : link === 'reconnecting' ? 'reconnecting…' : link}
         </span>
       </div>
-      {linkDown && view.status !== 'finished' ? <LinkBanner link={link} storageOk={storageOk} choosing={view.status === 'choosing' || view.status === 'waiting-partner'} /> : null}
-      {view.paused ? <Notice tone="warn" title="Paused">The instructor paused the session. Your timer is stopped.</Notice> : null}
+      {linkDown && view.status !== 'finished' ? (
+        <LinkBanner link={link} storageOk={storageOk} choosing={view.status === 'choosing' || view.status === 'waiting-partner'} />
+      ) : null}
+      {view.paused ? (
+        <Notice tone="warn" title="Paused">
+          The instructor paused the session. Your timer is stopped.
+        </Notice>
+      ) : null}
       {nudge ? <Notice tone="warn">{nudge}</Notice> : null}
       {outbox.note ? <Notice tone={outbox.note.tone}>{outbox.note.text}</Notice> : null}
 
@@ -133,23 +147,38 @@ export default function Play({ loaderData }: Route.ComponentProps) {
               </span>
             </Notice>
           ) : null}
-          {view.lastResult && (view.lastResult.supergame === view.supergame || view.history.length === 0) ? <ResultLine r={view.lastResult} labels={labels} /> : null}
+          {view.lastResult && (view.lastResult.supergame === view.supergame || view.history.length === 0) ? (
+            <ResultLine r={view.lastResult} labels={labels} />
+          ) : null}
           {view.blockNotice ? <Notice>{view.blockNotice}</Notice> : null}
           <PayoffTable table={view.payoffTable} labels={labels} />
           <History view={view} />
           <div className="mt-auto flex flex-col gap-3 pt-2">
             {waiting ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="outbox">
-                Your choice (<strong>{SHAPES[waiting.action]} {labels[waiting.action]}</strong>){' '}
-                {link === 'offline' ? 'will be sent when you are back online.' : linkDown ? 'will be sent when the connection is back.' : 'is being sent…'}
+                Your choice (
+                <strong>
+                  {SHAPES[waiting.action]} {labels[waiting.action]}
+                </strong>
+                ){' '}
+                {link === 'offline'
+                  ? 'will be sent when you are back online.'
+                  : linkDown
+                    ? 'will be sent when the connection is back.'
+                    : 'is being sent…'}
               </p>
             ) : chosen ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="waiting">
-                You chose <strong>{SHAPES[chosen]} {labels[chosen]}</strong>. {view.partnerHasChosen ? 'Your partner has chosen too.' : 'Waiting for your partner…'}
+                You chose{' '}
+                <strong>
+                  {SHAPES[chosen]} {labels[chosen]}
+                </strong>
+                . {view.partnerHasChosen ? 'Your partner has chosen too.' : 'Waiting for your partner…'}
               </p>
             ) : linkDown ? (
               <p className="text-center text-lg" aria-live="polite" data-testid="choose-offline">
-                Choose: your tap is kept on this phone and sent {link === 'offline' ? 'when you are back online' : 'when the connection is back'}.
+                Choose: your tap is kept on this phone and sent{' '}
+                {link === 'offline' ? 'when you are back online' : 'when the connection is back'}.
               </p>
             ) : (
               <p className="text-center text-lg">Choose:</p>
@@ -206,7 +235,9 @@ export default function Play({ loaderData }: Route.ComponentProps) {
       {view.status === 'finished' ? (
         <section className="flex flex-col gap-4" aria-live="polite">
           <h1 className="text-3xl font-semibold">{view.notice === 'cancelled' ? 'The session was cancelled' : 'The session is over'}</h1>
-          {view.notice === 'cancelled' ? <p className="text-slate-700">The instructor called it off before it started. Nothing was recorded.</p> : null}
+          {view.notice === 'cancelled' ? (
+            <p className="text-slate-700">The instructor called it off before it started. Nothing was recorded.</p>
+          ) : null}
           {view.notice === 'ended-early' ? <p className="text-slate-700">The instructor ended it early.</p> : null}
           {view.notice === 'removed' ? <p className="text-slate-700">The instructor took you out of the session.</p> : null}
           {view.notice === 'cancelled' ? null : (
@@ -215,7 +246,10 @@ export default function Play({ loaderData }: Route.ComponentProps) {
                 Your points: <strong>{view.totalPoints}</strong>
               </p>
               <p className="text-slate-700">Thank you for taking part.</p>
-              <Link to={`/courses/${loaderData.courseId}/debrief/${loaderData.sessionId}/mine`} className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white">
+              <Link
+                to={`/courses/${loaderData.courseId}/debrief/${loaderData.sessionId}/mine`}
+                className="inline-flex min-h-14 items-center justify-center rounded-lg bg-accent-700 px-4 text-lg font-semibold text-white"
+              >
                 See your summary
               </Link>
             </>
@@ -227,7 +261,15 @@ export default function Play({ loaderData }: Route.ComponentProps) {
 }
 
 /** Says what is wrong with the link and what happens to a tap meanwhile, in words, not only a dot. */
-function LinkBanner({ link, storageOk, choosing }: { link: 'offline' | 'reconnecting' | 'connecting' | 'connected'; storageOk: boolean; choosing: boolean }) {
+function LinkBanner({
+  link,
+  storageOk,
+  choosing,
+}: {
+  link: 'offline' | 'reconnecting' | 'connecting' | 'connected';
+  storageOk: boolean;
+  choosing: boolean;
+}) {
   if (link === 'offline') {
     return (
       <Notice tone="warn" title="You are offline">
@@ -238,7 +280,8 @@ function LinkBanner({ link, storageOk, choosing }: { link: 'offline' | 'reconnec
   }
   return (
     <Notice tone="warn" title="Reconnecting…">
-      {storageOk ? 'The connection to the game was lost.' : 'The game’s server is catching up.'} Keep this page open: it reconnects by itself.
+      {storageOk ? 'The connection to the game was lost.' : 'The game’s server is catching up.'} Keep this page open: it reconnects by
+      itself.
       {choosing ? ' A choice you tap now is kept on this phone and sent as soon as the connection is back.' : ''}
     </Notice>
   );
@@ -249,8 +292,8 @@ function ResultLine({ r, labels }: { r: NonNullable<ParticipantView['lastResult'
     <div className="rounded-lg border border-slate-200 bg-white p-3" aria-live="polite" data-testid="last-result">
       {r.supergameOver ? <p className="text-sm font-semibold text-slate-600">Supergame {r.supergame} ended with this round</p> : null}
       <p className="text-base">
-        Round {r.round}: you {SHAPES[r.own]} {labels[r.own]}, partner {SHAPES[r.partner]} {labels[r.partner]} → you get <strong className="num">{r.ownPayoff}</strong>, partner{' '}
-        <span className="num">{r.partnerPayoff}</span>.
+        Round {r.round}: you {SHAPES[r.own]} {labels[r.own]}, partner {SHAPES[r.partner]} {labels[r.partner]} → you get{' '}
+        <strong className="num">{r.ownPayoff}</strong>, partner <span className="num">{r.partnerPayoff}</span>.
       </p>
       {r.drawSentence ? <p className="mt-1 font-semibold">{r.drawSentence}.</p> : null}
     </div>

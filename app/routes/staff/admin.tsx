@@ -14,7 +14,11 @@ import { fieldErrors } from '#app/utils/forms';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const admin = await requireAdmin(request);
-  const [courses, [{ n }], creators] = await Promise.all([listCoursesForUser(admin.id, true), db().select({ n: count() }).from(users), listCourseCreators()]);
+  const [courses, [{ n }], creators] = await Promise.all([
+    listCoursesForUser(admin.id, true),
+    db().select({ n: count() }).from(users),
+    listCourseCreators(),
+  ]);
   return {
     courses: courses.map(({ id, title, institution, term, members, isDemo }) => ({ id, title, institution, term, members, isDemo })),
     users: n,
@@ -39,7 +43,8 @@ export async function action({ request }: Route.ActionArgs) {
     await grantCourseCreation(a.email);
     return { ok: true as const, message: `${a.email.toLowerCase()} may now create courses.` };
   }
-  if (!(await revokeCourseCreation(a.userId))) return data({ ok: false as const, errors: {}, values: form, message: 'No such account.' }, { status: 404 });
+  if (!(await revokeCourseCreation(a.userId)))
+    return data({ ok: false as const, errors: {}, values: form, message: 'No such account.' }, { status: 404 });
   return { ok: true as const, message: 'The account may no longer create courses. Its courses stay as they are.' };
 }
 
@@ -70,8 +75,8 @@ export default function Admin({ loaderData, actionData }: Route.ComponentProps) 
     <>
       <PageHeader title="Site admin" />
       <p className="mb-4 text-slate-700">
-        <span className="num font-semibold">{loaderData.users}</span> accounts · <span className="num font-semibold">{loaderData.courses.length}</span> courses.
-        Site admins act as instructors in every course.
+        <span className="num font-semibold">{loaderData.users}</span> accounts ·{' '}
+        <span className="num font-semibold">{loaderData.courses.length}</span> courses. Site admins act as instructors in every course.
       </p>
       <DataTable columns={columns} data={loaderData.courses} caption="All courses" filterLabel="Filter courses" />
 
@@ -81,8 +86,10 @@ export default function Admin({ loaderData, actionData }: Route.ComponentProps) 
         </h2>
         <p className="mb-3 text-slate-700">
           Site admins, the accounts below
-          {instructorDomains.length ? <>, and every address at {instructorDomains.join(', ')} (exactly that domain, not its subdomains)</> : null}. Everyone
-          else can only be invited to courses. Taking the right away leaves the courses an account already runs as they are.
+          {instructorDomains.length ? (
+            <>, and every address at {instructorDomains.join(', ')} (exactly that domain, not its subdomains)</>
+          ) : null}
+          . Everyone else can only be invited to courses. Taking the right away leaves the courses an account already runs as they are.
         </p>
         <div aria-live="polite" className="mb-3">
           {actionData?.ok ? <Notice tone="ok">{actionData.message}</Notice> : null}
@@ -90,7 +97,15 @@ export default function Admin({ loaderData, actionData }: Route.ComponentProps) 
         </div>
         <Form method="post" className="mb-4 flex flex-wrap items-start gap-3" noValidate>
           <input type="hidden" name="intent" value="grant" />
-          <TextField label="E-mail address" name="email" type="email" autoComplete="off" className="min-w-72 flex-1" defaultValue={values.email} error={errors.email} />
+          <TextField
+            label="E-mail address"
+            name="email"
+            type="email"
+            autoComplete="off"
+            className="min-w-72 flex-1"
+            defaultValue={values.email}
+            error={errors.email}
+          />
           <Button type="submit" className="mt-7">
             Allow to create courses
           </Button>
@@ -103,7 +118,11 @@ export default function Admin({ loaderData, actionData }: Route.ComponentProps) 
                   <EmailAddress email={c.email} />
                   {c.name ? <span className="text-slate-600"> · {c.name}</span> : null}
                 </span>
-                <RowAction fields={{ intent: 'revoke', userId: c.id }} label="Take away" target={`the right to create courses from ${c.email}`} />
+                <RowAction
+                  fields={{ intent: 'revoke', userId: c.id }}
+                  label="Take away"
+                  target={`the right to create courses from ${c.email}`}
+                />
               </li>
             ))}
           </ul>

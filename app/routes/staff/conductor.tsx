@@ -20,9 +20,23 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return {
     course,
     role,
-    session: { id: session.id, treatment: session.treatment, joinCode: session.joinCode, seed: session.seed, simulated: session.simulated, status: session.status },
+    session: {
+      id: session.id,
+      treatment: session.treatment,
+      joinCode: session.joinCode,
+      seed: session.seed,
+      simulated: session.simulated,
+      status: session.status,
+    },
     joinUrl: session.joinCode ? new URL(`/join/${session.joinCode}`, env().APP_URL).toString() : null,
-    design: { delta: d.delta, supergames: d.supergames, roundSeconds: d.roundSeconds, payoffs: d.payoffs, labels: d.labels, comprehension: d.comprehension },
+    design: {
+      delta: d.delta,
+      supergames: d.supergames,
+      roundSeconds: d.roundSeconds,
+      payoffs: d.payoffs,
+      labels: d.labels,
+      comprehension: d.comprehension,
+    },
   };
 }
 
@@ -52,7 +66,11 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
   const command = async (c: Command, confirmText?: string) => {
     if (confirmText && !window.confirm(confirmText)) return;
     const res = await emit('session:control', { sessionId: session.id, command: c });
-    setMessage(res.ok ? { ok: true, text: DONE[c], status: (res.data as { status: SessionStatus }).status } : { ok: false, text: res.message, status });
+    setMessage(
+      res.ok
+        ? { ok: true, text: DONE[c], status: (res.data as { status: SessionStatus }).status }
+        : { ok: false, text: res.message, status },
+    );
   };
   const floor = view && 'counts' in view ? view : null;
   const shown = message && message.status === status ? message : null;
@@ -75,7 +93,11 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
           Debrief
         </ButtonLink>
       </PageHeader>
-      {session.simulated ? <Notice title="Simulated session">The choices of this demo session were simulated from a stated strategy mixture; nobody played it.</Notice> : null}
+      {session.simulated ? (
+        <Notice title="Simulated session">
+          The choices of this demo session were simulated from a stated strategy mixture; nobody played it.
+        </Notice>
+      ) : null}
       <div className="mt-4 grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,24rem)]">
         <section aria-labelledby="conductor-title" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
           <div className="flex flex-wrap items-center justify-between gap-2">
@@ -96,7 +118,15 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
             {isInstructor && status === 'open' ? (
               <>
                 <Button onClick={() => command('start')}>Start the session</Button>
-                <Button variant="danger" onClick={() => command('cancel', 'Cancel this session? Its join code stops working and the phones in the lobby are told. It cannot be started afterwards.')}>
+                <Button
+                  variant="danger"
+                  onClick={() =>
+                    command(
+                      'cancel',
+                      'Cancel this session? Its join code stops working and the phones in the lobby are told. It cannot be started afterwards.',
+                    )
+                  }
+                >
                   Cancel the session
                 </Button>
               </>
@@ -112,7 +142,10 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
                 <Button variant="secondary" onClick={() => command('end-after-supergame')} disabled={floor?.endAfterSupergame}>
                   {floor?.endAfterSupergame ? 'Ends after this supergame' : 'End after this supergame'}
                 </Button>
-                <Button variant="danger" onClick={() => command('end-now', 'End the session now? Open rounds are dropped and everyone sees their final points.')}>
+                <Button
+                  variant="danger"
+                  onClick={() => command('end-now', 'End the session now? Open rounds are dropped and everyone sees their final points.')}
+                >
                   End now
                 </Button>
               </>
@@ -150,14 +183,19 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
             </section>
           ) : null}
           {design.comprehension && canSeeFloor ? (
-            <ComprehensionStatus courseId={course.id} sessionId={session.id} live={status === 'open' || status === 'running' || status === 'paused'} />
+            <ComprehensionStatus
+              courseId={course.id}
+              sessionId={session.id}
+              live={status === 'open' || status === 'running' || status === 'paused'}
+            />
           ) : null}
           <section aria-labelledby="frozen-title" className="rounded-lg border border-slate-200 bg-white p-4 text-sm">
             <h2 id="frozen-title" className="mb-2 text-lg font-semibold">
               Frozen design
             </h2>
             <p className="num">
-              T {design.payoffs.T} · R {design.payoffs.R} · P {design.payoffs.P} · S {design.payoffs.S} · δ = {design.delta} · {design.supergames} supergames · {design.roundSeconds} s a round
+              T {design.payoffs.T} · R {design.payoffs.R} · P {design.payoffs.P} · S {design.payoffs.S} · δ = {design.delta} ·{' '}
+              {design.supergames} supergames · {design.roundSeconds} s a round
             </p>
             <p className="mt-1 text-slate-600">
               Seed <span className="font-mono">{session.seed}</span> (type it when opening another session to reuse these draws)

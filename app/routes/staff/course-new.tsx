@@ -34,7 +34,14 @@ export default function NewCoursePage({ actionData }: Route.ComponentProps) {
     <>
       <PageHeader title="New course" />
       <Form method="post" className="flex max-w-xl flex-col gap-5" noValidate>
-        <TextField label="Title" name="title" required defaultValue={v.title} error={e.title} hint="For example “ECON 214 Strategy and Markets”." />
+        <TextField
+          label="Title"
+          name="title"
+          required
+          defaultValue={v.title}
+          error={e.title}
+          hint="For example “ECON 214 Strategy and Markets”."
+        />
         <TextField label="Institution" name="institution" defaultValue={v.institution} error={e.institution} />
         <TextField label="Term" name="term" defaultValue={v.term} error={e.term} hint="For example “Spring 2027”." />
         <p className="text-slate-700">You will be the course’s instructor. You can invite assistants, researchers and participants next.</p>

@@ -74,8 +74,7 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
       </section>
       {course.isDemo ? (
         <p className="mb-6 max-w-3xl text-slate-700">
-          This course is part of Parley’s demo: the college, the people and every choice in it are invented, and the choices
-          are simulated.
+          This course is part of Parley’s demo: the college, the people and every choice in it are invented, and the choices are simulated.
         </p>
       ) : null}
       <Cautions />

@@ -46,7 +46,10 @@ export default function Courses({ loaderData }: Route.ComponentProps) {
     <>
       <PageHeader title="Courses">
         {loaderData.canCreate ? (
-          <Link to="/courses/new" className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
+          <Link
+            to="/courses/new"
+            className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800"
+          >
             New course
           </Link>
         ) : null}
@@ -58,7 +61,13 @@ export default function Courses({ loaderData }: Route.ComponentProps) {
             : 'You have no courses yet. An instructor can invite you to one; to create courses yourself, ask a site administrator of Parley.'}
         </p>
       ) : (
-        <DataTable columns={columns} data={loaderData.courses} caption="Your courses" filterLabel="Filter courses" initialSorting={[{ id: 'title', desc: false }]} />
+        <DataTable
+          columns={columns}
+          data={loaderData.courses}
+          caption="Your courses"
+          filterLabel="Filter courses"
+          initialSorting={[{ id: 'title', desc: false }]}
+        />
       )}
     </>
   );

@@ -11,7 +11,10 @@ import { requireCourseRole } from '#app/utils/permissions.server';
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, ['instructor', 'researcher']);
   const isInstructor = role === 'instructor';
-  const [sessions, log] = await Promise.all([listExportableSessions(course.id), isInstructor ? listExportLog(course.id) : Promise.resolve([])]);
+  const [sessions, log] = await Promise.all([
+    listExportableSessions(course.id),
+    isInstructor ? listExportLog(course.id) : Promise.resolve([]),
+  ]);
   return { course, isInstructor, sessions, log };
 }
 
@@ -64,14 +67,25 @@ function columnsFor(courseId: number, isInstructor: boolean) {
         const id = i.row.original.id;
         return (
           <span className="flex flex-wrap gap-2 whitespace-nowrap">
-            <a className="font-semibold text-accent-700 underline-offset-4 hover:underline" href={`${base}?session=${id}&format=csv`} download>
+            <a
+              className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+              href={`${base}?session=${id}&format=csv`}
+              download
+            >
               CSV<span className="sr-only"> panel of session {id}</span>
             </a>
-            <a className="font-semibold text-accent-700 underline-offset-4 hover:underline" href={`${base}?session=${id}&format=json`} download>
+            <a
+              className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+              href={`${base}?session=${id}&format=json`}
+              download
+            >
               JSON<span className="sr-only"> panel of session {id}</span>
             </a>
             {isInstructor ? (
-              <Link className="font-semibold text-accent-700 underline-offset-4 hover:underline" to={`/courses/${courseId}/sessions/${id}/results`}>
+              <Link
+                className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+                to={`/courses/${courseId}/sessions/${id}/results`}
+              >
                 Credit &amp; results<span className="sr-only"> of session {id}</span>
               </Link>
             ) : null}
@@ -97,9 +111,9 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
       </PageHeader>
       <div className="mb-6 flex max-w-3xl flex-col gap-3">
         <Notice title="Research use">
-          Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed consent. Downloads here are
-          de-identified: pseudonyms only, no names, e-mail addresses, student ids or network addresses, and participants who declined research consent
-          are left out.
+          Using classroom data for research needs your institution’s ethics-board approval and the participants’ informed consent. Downloads
+          here are de-identified: pseudonyms only, no names, e-mail addresses, student ids or network addresses, and participants who
+          declined research consent are left out.
         </Notice>
       </div>
 
@@ -118,7 +132,12 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
               filterLabel="Filter sessions"
               initialSorting={[{ id: 'id', desc: false }]}
             />
-            <form id={FORM} method="get" action={panelUrl} className="mt-4 flex flex-wrap items-end gap-3 rounded-lg border border-slate-200 bg-white p-4">
+            <form
+              id={FORM}
+              method="get"
+              action={panelUrl}
+              className="mt-4 flex flex-wrap items-end gap-3 rounded-lg border border-slate-200 bg-white p-4"
+            >
               <fieldset className="flex flex-wrap items-center gap-4">
                 <legend className="mb-1 font-semibold text-slate-800">Chosen sessions as one download</legend>
                 {(
@@ -146,9 +165,9 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
             <span aria-hidden="true">⚠</span> Identified export (instructors only)
           </h2>
           <p className="mb-3 text-slate-700">
-            Adds each participant’s name, e-mail address, student id and consent answer, and keeps those who declined research consent. It carries
-            personal data under your institution’s privacy rules: keep it apart from research files and delete it when no longer needed. Every
-            identified download is logged with your name.
+            Adds each participant’s name, e-mail address, student id and consent answer, and keeps those who declined research consent. It
+            carries personal data under your institution’s privacy rules: keep it apart from research files and delete it when no longer
+            needed. Every identified download is logged with your name.
           </p>
           <form method="post" action={panelUrl} className="flex flex-col gap-3">
             <fieldset className="flex flex-wrap gap-4">
@@ -177,7 +196,8 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
               <ul className="mt-2 flex flex-col gap-1 text-sm text-slate-700">
                 {log.map((l) => (
                   <li key={l.id}>
-                    {new Date(l.at).toISOString().replace('T', ' ').slice(0, 16)} UTC · {l.kind === 'credit-sheet' ? 'credit sheet' : 'identified panel'}
+                    {new Date(l.at).toISOString().replace('T', ' ').slice(0, 16)} UTC ·{' '}
+                    {l.kind === 'credit-sheet' ? 'credit sheet' : 'identified panel'}
                     {l.sessionId ? ` · session ${l.sessionId}` : ''} · {l.email}
                   </li>
                 ))}
@@ -192,13 +212,17 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
           <h2 id="codebook" className="text-lg font-semibold">
             Codebook
           </h2>
-          <a className="font-semibold text-accent-700 underline-offset-4 hover:underline" href={`/courses/${course.id}/data/codebook.csv`} download>
+          <a
+            className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+            href={`/courses/${course.id}/data/codebook.csv`}
+            download
+          >
             Download codebook (CSV)
           </a>
         </div>
         <p className="mb-3 text-slate-700">
-          One row per participant × supergame × round. CSV with a header line, no index column, <code>.</code> as the decimal mark and ISO 8601
-          timestamps (UTC): <code>read.csv()</code> in R and <code>pandas.read_csv()</code> read it as it is. {FORMULA_NOTE}
+          One row per participant × supergame × round. CSV with a header line, no index column, <code>.</code> as the decimal mark and ISO
+          8601 timestamps (UTC): <code>read.csv()</code> in R and <code>pandas.read_csv()</code> read it as it is. {FORMULA_NOTE}
         </p>
         <ul className="mb-3 max-w-3xl list-disc pl-5 text-slate-700">
           {PANEL_NOTES.map((n) => (
@@ -206,21 +230,36 @@ export default function DataPage({ loaderData }: Route.ComponentProps) {
           ))}
         </ul>
         {/* Scrolls sideways on a phone: focusable, so a keyboard can scroll it too. */}
-        <div tabIndex={0} role="region" aria-label="Codebook of the choice panel" className="overflow-x-auto rounded-lg border border-slate-200 bg-white">
+        <div
+          tabIndex={0}
+          role="region"
+          aria-label="Codebook of the choice panel"
+          className="overflow-x-auto rounded-lg border border-slate-200 bg-white"
+        >
           <table className="w-full text-left text-sm">
             <caption className="sr-only">Codebook of the choice panel</caption>
             <thead className="border-b border-slate-200 bg-slate-50">
               <tr>
-                <th scope="col" className="px-3 py-2">Column</th>
-                <th scope="col" className="px-3 py-2">Type</th>
-                <th scope="col" className="px-3 py-2">Meaning</th>
-                <th scope="col" className="px-3 py-2">Values</th>
+                <th scope="col" className="px-3 py-2">
+                  Column
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Type
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Meaning
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Values
+                </th>
               </tr>
             </thead>
             <tbody>
               {PANEL_CODEBOOK.map((c) => (
                 <tr key={c.column} className="border-b border-slate-100 last:border-0">
-                  <th scope="row" className="px-3 py-2 font-mono font-semibold">{c.column}</th>
+                  <th scope="row" className="px-3 py-2 font-mono font-semibold">
+                    {c.column}
+                  </th>
                   <td className="px-3 py-2">{c.type}</td>
                   <td className="px-3 py-2">{c.meaning}</td>
                   <td className="px-3 py-2">{c.values}</td>

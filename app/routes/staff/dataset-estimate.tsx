@@ -25,24 +25,34 @@ export default function DatasetEstimate({ loaderData }: Route.ComponentProps) {
   const estimate = run.current;
   return (
     <>
-      <PageHeader title={`Strategies in ${dataset.name}`} eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/datasets`, label: 'Uploaded panels' }]} />} />
+      <PageHeader
+        title={`Strategies in ${dataset.name}`}
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/datasets`, label: 'Uploaded panels' }]} />}
+      />
       <section aria-labelledby="estimation" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
         <h2 id="estimation" className="text-xl font-semibold">
           Strategy-frequency estimation
         </h2>
         <p className="max-w-3xl text-slate-700">
-          {dataset.rowCount.toLocaleString('en')} choices, estimated per treatment of the uploaded panel (Dal Bó &amp; Fréchette 2011): each subject follows one strategy of the
-          set with occasional slips; standard errors from a bootstrap over subjects on worker threads. The result is stored.
+          {dataset.rowCount.toLocaleString('en')} choices, estimated per treatment of the uploaded panel (Dal Bó &amp; Fréchette 2011): each
+          subject follows one strategy of the set with occasional slips; standard errors from a bootstrap over subjects on worker threads.
+          The result is stored.
         </p>
         <EstimationForm courseId={course.id} datasetId={dataset.id} start={run.start} />
         {estimate ? (
           <div className="flex flex-col gap-4 border-t border-slate-200 pt-4">
             <h3 className="font-semibold">{`Estimation #${estimate.id}: ${estimate.request.strategies.join(', ')}; B = ${estimate.request.bootstrap}, seed ${estimate.request.seed}`}</h3>
             <EstimateProgress estimate={estimate} />
-            {estimate.status === 'done' ? <EstimateResults estimate={estimate} csvHref={`/courses/${course.id}/debrief/csv/strategies?estimate=${estimate.id}`} /> : null}
+            {estimate.status === 'done' ? (
+              <EstimateResults estimate={estimate} csvHref={`/courses/${course.id}/debrief/csv/strategies?estimate=${estimate.id}`} />
+            ) : null}
           </div>
         ) : null}
-        <StoredEstimates estimates={estimates} currentId={estimate?.id ?? null} basePath={`/courses/${course.id}/datasets/${dataset.id}/estimate?`} />
+        <StoredEstimates
+          estimates={estimates}
+          currentId={estimate?.id ?? null}
+          basePath={`/courses/${course.id}/datasets/${dataset.id}/estimate?`}
+        />
       </section>
     </>
   );

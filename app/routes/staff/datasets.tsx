@@ -53,7 +53,20 @@ const MB = 1024 * 1024;
 export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['instructor', 'researcher']);
   const outcome = (o: Partial<UploadOutcome>, status = 400) =>
-    data({ ok: false, message: null, fileName: '', header: null, map: {}, errors: [], errorCount: 0, warnings: [], ...o } satisfies UploadOutcome, { status });
+    data(
+      {
+        ok: false,
+        message: null,
+        fileName: '',
+        header: null,
+        map: {},
+        errors: [],
+        errorCount: 0,
+        warnings: [],
+        ...o,
+      } satisfies UploadOutcome,
+      { status },
+    );
   const tooBig = `The file is larger than ${DATASET_LIMITS.maxBytes / MB} MB. Split it by session, or leave out the columns estimation does not need.`;
   if (Number(request.headers.get('content-length') ?? 0) > DATASET_LIMITS.maxBytes + 64 * 1024) return outcome({ message: tooBig }, 413);
   const form = await request.formData();
@@ -62,7 +75,16 @@ export async function action({ request, params }: Route.ActionArgs) {
     const parsed = Delete.safeParse(Object.fromEntries(form));
     if (!parsed.success) return outcome({ message: 'Unknown dataset.' });
     if (!(await deleteDataset(course.id, parsed.data.id))) return outcome({ message: 'That dataset is not in this course.' }, 404);
-    return { ok: true, message: 'Dataset deleted.', fileName: '', header: null, map: {}, errors: [], errorCount: 0, warnings: [] } satisfies UploadOutcome;
+    return {
+      ok: true,
+      message: 'Dataset deleted.',
+      fileName: '',
+      header: null,
+      map: {},
+      errors: [],
+      errorCount: 0,
+      warnings: [],
+    } satisfies UploadOutcome;
   }
 
   const parsed = Upload.safeParse(Object.fromEntries([...form].filter(([, v]) => typeof v === 'string')));
@@ -71,7 +93,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (!(file instanceof File) || file.size === 0) return outcome({ message: 'Choose a CSV file of choices.' });
   if (file.size > DATASET_LIMITS.maxBytes) return outcome({ message: tooBig, fileName: file.name }, 413);
   const text = await file.text();
-  if (text.includes('\uFFFD')) return outcome({ message: 'The file is not UTF-8 text. Save it as “CSV UTF-8” and upload it again.', fileName: file.name });
+  if (text.includes('\uFFFD'))
+    return outcome({ message: 'The file is not UTF-8 text. Save it as “CSV UTF-8” and upload it again.', fileName: file.name });
 
   const input = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   const header = (Papa.parse<string[]>(input, { preview: 1 }).data[0] ?? []).map((h) => h.trim());
@@ -90,12 +113,25 @@ export async function action({ request, params }: Route.ActionArgs) {
 
   const rows = parseChoiceCsv(text, map);
   if (rows.rows.length + rows.errors.length > DATASET_LIMITS.maxRows) {
-    return outcome({ fileName: file.name, message: `The file has more than ${DATASET_LIMITS.maxRows.toLocaleString('en-GB')} rows. Split it (for example by session) and upload the parts as separate datasets.` }, 413);
+    return outcome(
+      {
+        fileName: file.name,
+        message: `The file has more than ${DATASET_LIMITS.maxRows.toLocaleString('en-GB')} rows. Split it (for example by session) and upload the parts as separate datasets.`,
+      },
+      413,
+    );
   }
   const built = buildPanel(rows.rows);
   const errors = [...rows.errors, ...built.errors].sort((a, b) => (a.line ?? 0) - (b.line ?? 0));
   if (errors.length) {
-    return outcome({ fileName: file.name, header, map, errors: errors.slice(0, 200), errorCount: errors.length, warnings: built.warnings.slice(0, 50) });
+    return outcome({
+      fileName: file.name,
+      header,
+      map,
+      errors: errors.slice(0, 200),
+      errorCount: errors.length,
+      warnings: built.warnings.slice(0, 50),
+    });
   }
   const name = parsed.data.name || file.name.replace(/\.csv$/i, '');
   await createDataset(course.id, user.id, name.slice(0, 160), rows.rows);
@@ -119,20 +155,34 @@ const columns = col.columns([
     cell: (i) => (
       <span className="flex flex-wrap items-center gap-3">
         <span className="font-semibold">{i.getValue()}</span>
-        <Link to={`./${i.row.original.id}/estimate`} relative="path" className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+        <Link
+          to={`./${i.row.original.id}/estimate`}
+          relative="path"
+          className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+        >
           Estimate strategies<span className="sr-only"> in {i.getValue()}</span>
         </Link>
       </span>
     ),
   }),
-  col.accessor('rowCount', { header: 'Choices', meta: { align: 'right' }, sortFn: 'basic', cell: (i) => `${i.getValue().toLocaleString('en-GB')} rows` }),
+  col.accessor('rowCount', {
+    header: 'Choices',
+    meta: { align: 'right' },
+    sortFn: 'basic',
+    cell: (i) => `${i.getValue().toLocaleString('en-GB')} rows`,
+  }),
   col.accessor('createdAt', { header: 'Uploaded', sortFn: 'datetime', cell: (i) => formatDate(i.getValue()) }),
   col.accessor('by', { header: 'By' }),
   col.display({
     id: 'actions',
     header: () => <span className="sr-only">Actions</span>,
     cell: (i) => (
-      <RowAction fields={{ intent: 'delete', id: i.row.original.id }} label="Delete" target={i.row.original.name} confirmText={`Delete the dataset “${i.row.original.name}”?`} />
+      <RowAction
+        fields={{ intent: 'delete', id: i.row.original.id }}
+        label="Delete"
+        target={i.row.original.name}
+        confirmText={`Delete the dataset “${i.row.original.name}”?`}
+      />
     ),
   }),
 ]);
@@ -143,23 +193,31 @@ export default function Datasets({ loaderData, actionData }: Route.ComponentProp
   const header = actionData?.header ?? null;
   return (
     <>
-      <PageHeader title="Uploaded panels" eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/data`, label: 'Data' }]} />} />
+      <PageHeader
+        title="Uploaded panels"
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/data`, label: 'Data' }]} />}
+      />
       <section aria-labelledby="upload" className="mb-8 max-w-3xl rounded-lg border border-slate-200 bg-white p-4">
         <h2 id="upload" className="mb-2 text-lg font-semibold">
           Upload a choice panel
         </h2>
         <p className="mb-3 text-slate-700">
-          A CSV with one row per participant × supergame × round, in Parley’s own export format (columns <code>session</code>, <code>treatment</code>,{' '}
-          <code>pseudonym</code>, <code>partner</code>, <code>supergame</code>, <code>round</code>, <code>action</code>, <code>partner_action</code>;
-          others are ignored) or with your own column names, which you match below. Every line is checked; a file with any bad line is not stored.
-          At most {limits.maxBytes / MB} MB and {limits.maxRows.toLocaleString('en-GB')} rows. Research use of data from elsewhere follows its own
-          ethics approval and consent.
+          A CSV with one row per participant × supergame × round, in Parley’s own export format (columns <code>session</code>,{' '}
+          <code>treatment</code>, <code>pseudonym</code>, <code>partner</code>, <code>supergame</code>, <code>round</code>,{' '}
+          <code>action</code>, <code>partner_action</code>; others are ignored) or with your own column names, which you match below. Every
+          line is checked; a file with any bad line is not stored. At most {limits.maxBytes / MB} MB and{' '}
+          {limits.maxRows.toLocaleString('en-GB')} rows. Research use of data from elsewhere follows its own ethics approval and consent.
         </p>
         <Form method="post" encType="multipart/form-data" className="flex flex-col gap-4">
           <input type="hidden" name="intent" value="upload" />
           <div className="flex flex-wrap items-end gap-3">
             <CsvFileField label="Panel file (CSV)" />
-            <TextField label="Name (optional)" name="name" className="min-w-64 flex-1" hint="Shown when you choose data for an estimation." />
+            <TextField
+              label="Name (optional)"
+              name="name"
+              className="min-w-64 flex-1"
+              hint="Shown when you choose data for an estimation."
+            />
           </div>
           {header ? (
             <fieldset className="rounded-lg border border-slate-200 p-3">
@@ -173,7 +231,10 @@ export default function Datasets({ loaderData, actionData }: Route.ComponentProp
                     <select
                       id={`map-${f}`}
                       name={`map_${f}`}
-                      defaultValue={(actionData?.map as Partial<ColumnMap> | undefined)?.[f] ?? (header.includes(PARLEY_COLUMNS[f]) ? PARLEY_COLUMNS[f] : '')}
+                      defaultValue={
+                        (actionData?.map as Partial<ColumnMap> | undefined)?.[f] ??
+                        (header.includes(PARLEY_COLUMNS[f]) ? PARLEY_COLUMNS[f] : '')
+                      }
                       className="min-h-11 rounded-lg border border-slate-300 bg-white px-2"
                     >
                       <option value="">— choose a column —</option>
@@ -220,7 +281,13 @@ export default function Datasets({ loaderData, actionData }: Route.ComponentProp
         <h2 id="stored" className="mb-3 text-lg font-semibold">
           Stored datasets
         </h2>
-        <DataTable columns={columns} data={datasets} caption="Uploaded datasets" filterLabel="Filter datasets" empty="No panel uploaded yet." />
+        <DataTable
+          columns={columns}
+          data={datasets}
+          caption="Uploaded datasets"
+          filterLabel="Filter datasets"
+          empty="No panel uploaded yet."
+        />
       </section>
     </>
   );

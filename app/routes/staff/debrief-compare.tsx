@@ -16,7 +16,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (!grouping.ok) {
     // Pooling sessions that ran different games under one name would mislead: refuse, and offer
     // to show them apart (the researcher's explicit choice).
-    return data({ course, ids, include, refusal: grouping.message, sessions: null, estimates: [], current: null, separated: [] as string[] }, { status: 409 });
+    return data(
+      { course, ids, include, refusal: grouping.message, sessions: null, estimates: [], current: null, separated: [] as string[] },
+      { status: 409 },
+    );
   }
   return {
     course,
@@ -32,7 +35,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export default function DebriefCompare({ loaderData }: Route.ComponentProps) {
   const { course, ids, include, refusal, sessions, estimates, current, separated } = loaderData;
-  const header = <PageHeader title="Debrief: sessions side by side" eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/debrief`, label: 'Debrief' }]} />} />;
+  const header = (
+    <PageHeader
+      title="Debrief: sessions side by side"
+      eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/debrief`, label: 'Debrief' }]} />}
+    />
+  );
   const list = ids.join(',');
   if (refusal !== null || sessions === null) {
     return (
@@ -43,11 +51,15 @@ export default function DebriefCompare({ loaderData }: Route.ComponentProps) {
             {refusal}
           </Notice>
           <p className="text-slate-700">
-            The side-by-side Debrief pools sessions of the same treatment. Sessions are the same treatment when their payoffs, δ and termination are the same, whatever
-            their names. You can look at these sessions as separate treatments instead.
+            The side-by-side Debrief pools sessions of the same treatment. Sessions are the same treatment when their payoffs, δ and
+            termination are the same, whatever their names. You can look at these sessions as separate treatments instead.
           </p>
           <div className="flex flex-wrap gap-2">
-            <ButtonLink to={`/courses/${course.id}/debrief/compare?sessions=${list}&treatments=separate${include === 'all' ? '&include=all' : ''}`}>Show them as separate treatments</ButtonLink>
+            <ButtonLink
+              to={`/courses/${course.id}/debrief/compare?sessions=${list}&treatments=separate${include === 'all' ? '&include=all' : ''}`}
+            >
+              Show them as separate treatments
+            </ButtonLink>
             <ButtonLink to={`/courses/${course.id}/debrief`} variant="secondary">
               Choose other sessions
             </ButtonLink>
@@ -66,7 +78,8 @@ export default function DebriefCompare({ loaderData }: Route.ComponentProps) {
       {separate ? (
         <div className="mb-6 max-w-3xl">
           <Notice tone="info" title="Separate treatments">
-            Sessions called {separated.map((n) => `“${n}”`).join(', ')} ran different treatments: shown as separate treatments, each with its own parameters.
+            Sessions called {separated.map((n) => `“${n}”`).join(', ')} ran different treatments: shown as separate treatments, each with
+            its own parameters.
           </Notice>
         </div>
       ) : null}

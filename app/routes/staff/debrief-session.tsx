@@ -17,7 +17,10 @@ export default function DebriefSession({ loaderData }: Route.ComponentProps) {
   const s = sessions[0];
   return (
     <>
-      <PageHeader title={`Debrief: ${s.treatment}`} eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/debrief`, label: 'Debrief' }]} />} />
+      <PageHeader
+        title={`Debrief: ${s.treatment}`}
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/debrief`, label: 'Debrief' }]} />}
+      />
       <dl className="mb-6 grid max-w-5xl grid-cols-2 gap-3 sm:grid-cols-4 lg:grid-cols-7">
         {[
           ['Session', `#${s.id}`],
@@ -26,7 +29,12 @@ export default function DebriefSession({ loaderData }: Route.ComponentProps) {
           ['δ', String(Number(s.delta.toFixed(4)))],
           ['Cooperation', s.debrief.overall.rate === null ? '–' : `${(s.debrief.overall.rate * 100).toFixed(1)} %`],
           [include === 'all' ? 'Choices (every origin)' : 'Own choices counted', s.debrief.counts.used.toLocaleString('en-US')],
-          ['Left out', (s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished).toLocaleString('en-US')],
+          [
+            'Left out',
+            (s.debrief.counts.timeout + s.debrief.counts.computer_seat + s.debrief.counts.unpaid_round + s.unfinished).toLocaleString(
+              'en-US',
+            ),
+          ],
         ].map(([k, v]) => (
           <div key={k} className="rounded-lg border border-slate-200 bg-white p-3">
             <dt className="text-sm text-slate-600">{k}</dt>
@@ -34,7 +42,14 @@ export default function DebriefSession({ loaderData }: Route.ComponentProps) {
           </div>
         ))}
       </dl>
-      <DebriefView courseId={course.id} sessions={sessions} estimates={estimates} current={current} include={include} basePath={`/courses/${course.id}/debrief/${s.id}?`} />
+      <DebriefView
+        courseId={course.id}
+        sessions={sessions}
+        estimates={estimates}
+        current={current}
+        include={include}
+        basePath={`/courses/${course.id}/debrief/${s.id}?`}
+      />
     </>
   );
 }

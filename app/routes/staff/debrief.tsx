@@ -39,14 +39,24 @@ function columnsFor(courseId: number) {
       id: 'pick',
       header: () => <span className="sr-only">Compare</span>,
       cell: (i) => (
-        <input type="checkbox" name="sessions" value={i.row.original.id} form="compare" aria-label={`Compare session #${i.row.original.id} ${i.row.original.treatment}`} className="size-5" />
+        <input
+          type="checkbox"
+          name="sessions"
+          value={i.row.original.id}
+          form="compare"
+          aria-label={`Compare session #${i.row.original.id} ${i.row.original.treatment}`}
+          className="size-5"
+        />
       ),
     }),
     col.accessor('id', { header: 'Session', cell: (i) => `#${i.getValue()}`, meta: { align: 'right' } }),
     col.accessor('treatment', {
       header: 'Treatment (design)',
       cell: (i) => (
-        <Link to={`/courses/${courseId}/debrief/${i.row.original.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+        <Link
+          to={`/courses/${courseId}/debrief/${i.row.original.id}`}
+          className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+        >
           {i.getValue()}
         </Link>
       ),
@@ -69,14 +79,20 @@ export default function DebriefIndex({ loaderData }: Route.ComponentProps) {
     <>
       <PageHeader title="Debrief" eyebrow={<CourseCrumbs course={course} />} />
       <p className="mb-4 max-w-3xl text-slate-700">
-        Open a session’s Debrief, or tick several sessions (treatments) and compare them side by side. Everything here is de-identified: participants appear by
-        their pseudonyms only.
+        Open a session’s Debrief, or tick several sessions (treatments) and compare them side by side. Everything here is de-identified:
+        participants appear by their pseudonyms only.
       </p>
       {sessions.length === 0 ? (
         <p className="text-lg text-slate-700">No session has started yet. A session’s Debrief appears here once it runs.</p>
       ) : (
         <>
-          <DataTable columns={columns} data={sessions} caption="Sessions of this course" filterLabel="Filter sessions" initialSorting={[{ id: 'id', desc: false }]} />
+          <DataTable
+            columns={columns}
+            data={sessions}
+            caption="Sessions of this course"
+            filterLabel="Filter sessions"
+            initialSorting={[{ id: 'id', desc: false }]}
+          />
           <Form id="compare" method="get" action={`/courses/${course.id}/debrief/compare`} className="mt-4">
             <Button type="submit">Compare the ticked sessions</Button>
           </Form>

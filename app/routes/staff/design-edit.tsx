@@ -8,10 +8,27 @@ import { TheoryPanel, type TheoryDraft } from '#app/components/theory-panel';
 import { Button, FieldError, Notice, SelectField, TextField } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
 import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
-import { fillInstructions, generateInstructions, instructionContradictions, instructionsTemplate, PLACEHOLDER_HELP, PLACEHOLDERS, placeholderProblems, placeholderValues } from '#app/lib/instructions';
+import {
+  fillInstructions,
+  generateInstructions,
+  instructionContradictions,
+  instructionsTemplate,
+  PLACEHOLDER_HELP,
+  PLACEHOLDERS,
+  placeholderProblems,
+  placeholderValues,
+} from '#app/lib/instructions';
 import { PhonePreview } from '#app/components/phone-preview';
 import { treatmentOf } from '#app/lib/treatment';
-import { createDesign, getDesign, laterVersions, listCourseStrategies, newDesignVersion, previousVersion, updateDesign } from '#app/models/design.server';
+import {
+  createDesign,
+  getDesign,
+  laterVersions,
+  listCourseStrategies,
+  newDesignVersion,
+  previousVersion,
+  updateDesign,
+} from '#app/models/design.server';
 import { designInputFromForm } from '#app/utils/design-form';
 import { fieldErrors } from '#app/utils/forms';
 import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
@@ -79,12 +96,24 @@ export async function action({ request, params }: Route.ActionArgs) {
   const input = designInputFromForm(form);
   const parsed = designSchema.safeParse(input);
   if (!name.success || !parsed.success) {
-    const errors = { ...(parsed.success ? {} : fieldErrors(parsed.error)), ...(name.success ? {} : { name: name.error.issues[0].message }) };
+    const errors = {
+      ...(parsed.success ? {} : fieldErrors(parsed.error)),
+      ...(name.success ? {} : { name: name.error.issues[0].message }),
+    };
     return data({ ok: false as const, errors, values, message: 'Some fields need attention; nothing was saved.' }, { status: 400 });
   }
   // A placeholder the design cannot fill would reach the phones as "{name}": refused beside the text.
   const unknown = placeholderProblems(parsed.data, parsed.data.instructions);
-  if (unknown.length) return data({ ok: false as const, errors: { instructions: unknown.join(' ') }, values, message: 'Some fields need attention; nothing was saved.' }, { status: 400 });
+  if (unknown.length)
+    return data(
+      {
+        ok: false as const,
+        errors: { instructions: unknown.join(' ') },
+        values,
+        message: 'Some fields need attention; nothing was saved.',
+      },
+      { status: 400 },
+    );
   // Stored as a template, so the numbers follow the parameters when they change later.
   const params_ = parsed.data.instructions.trim() ? parsed.data : { ...parsed.data, instructions: instructionsTemplate(parsed.data) };
   if (!params.designId) {
@@ -94,11 +123,24 @@ export async function action({ request, params }: Route.ActionArgs) {
   const designId = parseId(params.designId);
   const existing = await getDesign(course.id, designId);
   if (!existing) throw new Response('No such design in this course.', { status: 404 });
-  if (existing.archivedAt) return data({ ok: false as const, errors: {}, values, message: 'This design is archived; restore it before editing.' }, { status: 409 });
-  if (existing.sessionCount > 0) return data({ ok: false as const, errors: {}, values, message: usedMessage(existing.sessionCount) }, { status: 409 });
+  if (existing.archivedAt)
+    return data(
+      { ok: false as const, errors: {}, values, message: 'This design is archived; restore it before editing.' },
+      { status: 409 },
+    );
+  if (existing.sessionCount > 0)
+    return data({ ok: false as const, errors: {}, values, message: usedMessage(existing.sessionCount) }, { status: 409 });
   // false: a session opened from it (or it was archived) since it was read above
   if (!(await updateDesign(course.id, designId, name.data, params_))) {
-    return data({ ok: false as const, errors: {}, values, message: 'This design was used by a session or archived a moment ago; nothing was saved. Make a new version to change it.' }, { status: 409 });
+    return data(
+      {
+        ok: false as const,
+        errors: {},
+        values,
+        message: 'This design was used by a session or archived a moment ago; nothing was saved. Make a new version to change it.',
+      },
+      { status: 409 },
+    );
   }
   return { ok: true as const, errors: {}, values: null, message: 'Design saved.' };
 }
@@ -162,7 +204,11 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   // or as the template) keep following the parameters.
   const [instructionsEdited, setInstructionsEdited] = useState(() => {
     const stored = values.instructions.trim();
-    return stored !== '' && stored !== generateInstructions(loaderData.params).trim() && stored !== instructionsTemplate(loaderData.params).trim();
+    return (
+      stored !== '' &&
+      stored !== generateInstructions(loaderData.params).trim() &&
+      stored !== instructionsTemplate(loaderData.params).trim()
+    );
   });
   const [instructions, setInstructions] = useState(values.instructions);
   const [creditKind, setCreditKind] = useState(values['credit.kind'] ?? 'participation');
@@ -175,7 +221,12 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
   const shownInstructions = instructionsEdited ? instructions : generated;
   const draft = draftFrom(input);
   const filled = parsed.success ? placeholderValues(parsed.data) : null;
-  const contradictions = parsed.success ? [...placeholderProblems(parsed.data, shownInstructions), ...instructionContradictions(parsed.data, fillInstructions(parsed.data, shownInstructions))] : [];
+  const contradictions = parsed.success
+    ? [
+        ...placeholderProblems(parsed.data, shownInstructions),
+        ...instructionContradictions(parsed.data, fillInstructions(parsed.data, shownInstructions)),
+      ]
+    : [];
   const game = parsed.success ? parsed.data.payoffs : null;
   const saved = loaderData.saved && !actionData;
   const madeVersion = loaderData.madeVersion && !actionData && design;
@@ -235,7 +286,10 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
           <p className="text-slate-700" data-testid="design-version">
             v{design.version} of{' '}
             {design.previous ? (
-              <Link to={`/courses/${course.id}/designs/${design.previous.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+              <Link
+                to={`/courses/${course.id}/designs/${design.previous.id}`}
+                className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+              >
                 {design.previous.name} (v{design.previous.version})
               </Link>
             ) : (
@@ -256,8 +310,9 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
         {used && !design.archived ? (
           <Notice tone="info" title="Read-only: used by a session">
             <span data-testid="read-only-reason">
-              {design.sessionCount === 1 ? 'A session was' : `${design.sessionCount} sessions were`} opened from this design, so it stays exactly as they ran it (treatment{' '}
-              {design.treatment}).{isInstructor ? ' To change it, make a new version: a copy you can edit, linked to this one.' : ''}
+              {design.sessionCount === 1 ? 'A session was' : `${design.sessionCount} sessions were`} opened from this design, so it stays
+              exactly as they ran it (treatment {design.treatment}).
+              {isInstructor ? ' To change it, make a new version: a copy you can edit, linked to this one.' : ''}
             </span>
             {isInstructor ? (
               <Form method="post" className="mt-3">
@@ -273,7 +328,10 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 {design.later.map((v, i) => (
                   <span key={v.id}>
                     {i > 0 ? ', ' : ''}
-                    <Link to={`/courses/${course.id}/designs/${v.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+                    <Link
+                      to={`/courses/${course.id}/designs/${v.id}`}
+                      className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+                    >
                       {v.name} (v{v.version})
                     </Link>
                   </span>
@@ -282,18 +340,28 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
             ) : null}
           </Notice>
         ) : null}
-        {!isInstructor && !design?.archived && !used ? <Notice tone="info">You can look at this design; only the course’s instructors change it.</Notice> : null}
+        {!isInstructor && !design?.archived && !used ? (
+          <Notice tone="info">You can look at this design; only the course’s instructors change it.</Notice>
+        ) : null}
       </div>
       <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,30rem)]">
         <Form method="post" ref={formRef} onChange={onChange} className="flex min-w-0 flex-col gap-6" noValidate>
           <fieldset disabled={!canEdit} className="contents">
-            <TextField label="Name" name="name" defaultValue={values.name} error={errors.name} hint="Exports show the name as the treatment; Parley tells treatments apart by payoffs, δ and termination, not by name." />
+            <TextField
+              label="Name"
+              name="name"
+              defaultValue={values.name}
+              error={errors.name}
+              hint="Exports show the name as the treatment; Parley tells treatments apart by payoffs, δ and termination, not by name."
+            />
 
             <section aria-labelledby="payoffs-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
               <h2 id="payoffs-title" className="text-lg font-semibold">
                 Payoffs and labels
               </h2>
-              <p className="text-sm text-slate-600">Points per round, as participants will see them. A prisoner’s dilemma needs T &gt; R &gt; P &gt; S.</p>
+              <p className="text-sm text-slate-600">
+                Points per round, as participants will see them. A prisoner’s dilemma needs T &gt; R &gt; P &gt; S.
+              </p>
               <div className="grid grid-cols-[auto_minmax(0,1fr)_minmax(0,1fr)] items-start gap-x-3 gap-y-3">
                 <span />
                 <span className="text-center text-sm font-semibold text-slate-700">Partner chooses {labelC}</span>
@@ -306,8 +374,19 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 {payoffCell('P', `both choose ${labelD}`, num('P'))}
               </div>
               <div className="grid gap-3 sm:grid-cols-2">
-                <TextField label="Label of the first action (C)" name="labels.C" defaultValue={values['labels.C']} error={errors['labels.C'] ?? errors.labels} hint="Neutral words; the default X and Y carry no meaning." />
-                <TextField label="Label of the second action (D)" name="labels.D" defaultValue={values['labels.D']} error={errors['labels.D']} />
+                <TextField
+                  label="Label of the first action (C)"
+                  name="labels.C"
+                  defaultValue={values['labels.C']}
+                  error={errors['labels.C'] ?? errors.labels}
+                  hint="Neutral words; the default X and Y carry no meaning."
+                />
+                <TextField
+                  label="Label of the second action (D)"
+                  name="labels.D"
+                  defaultValue={values['labels.D']}
+                  error={errors['labels.D']}
+                />
               </div>
             </section>
 
@@ -316,9 +395,28 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 Continuation and time
               </h2>
               <div className="grid gap-3 sm:grid-cols-3">
-                <TextField label="δ (chance of another round)" name="delta" inputMode="decimal" defaultValue={values.delta} error={deltaError} hint="Between 0 and 1, e.g. 0.75." />
-                <TextField label="Supergames" name="supergames" inputMode="numeric" defaultValue={values.supergames} error={errors.supergames} />
-                <TextField label="Round timer (seconds)" name="roundSeconds" inputMode="numeric" defaultValue={values.roundSeconds} error={errors.roundSeconds} />
+                <TextField
+                  label="δ (chance of another round)"
+                  name="delta"
+                  inputMode="decimal"
+                  defaultValue={values.delta}
+                  error={deltaError}
+                  hint="Between 0 and 1, e.g. 0.75."
+                />
+                <TextField
+                  label="Supergames"
+                  name="supergames"
+                  inputMode="numeric"
+                  defaultValue={values.supergames}
+                  error={errors.supergames}
+                />
+                <TextField
+                  label="Round timer (seconds)"
+                  name="roundSeconds"
+                  inputMode="numeric"
+                  defaultValue={values.roundSeconds}
+                  error={errors.roundSeconds}
+                />
               </div>
               <input
                 type="range"
@@ -337,18 +435,39 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               <fieldset className="flex flex-col gap-2">
                 <legend className="font-semibold">Termination</legend>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="termination.kind" value="standard" checked={termKind === 'standard'} onChange={() => setTermKind('standard')} /> Standard: a draw after every
-                  round, shown at once
+                  <input
+                    type="radio"
+                    name="termination.kind"
+                    value="standard"
+                    checked={termKind === 'standard'}
+                    onChange={() => setTermKind('standard')}
+                  />{' '}
+                  Standard: a draw after every round, shown at once
                 </label>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="termination.kind" value="block" checked={termKind === 'block'} onChange={() => setTermKind('block')} /> Blocks of rounds, the end revealed after
-                  each block (Fréchette &amp; Yuksel 2017)
+                  <input
+                    type="radio"
+                    name="termination.kind"
+                    value="block"
+                    checked={termKind === 'block'}
+                    onChange={() => setTermKind('block')}
+                  />{' '}
+                  Blocks of rounds, the end revealed after each block (Fréchette &amp; Yuksel 2017)
                 </label>
                 {termKind === 'block' ? (
-                  <TextField label="Rounds per block" name="termination.k" inputMode="numeric" defaultValue={values['termination.k']} error={errors['termination.k']} className="max-w-48" />
+                  <TextField
+                    label="Rounds per block"
+                    name="termination.k"
+                    inputMode="numeric"
+                    defaultValue={values['termination.k']}
+                    error={errors['termination.k']}
+                    className="max-w-48"
+                  />
                 ) : null}
               </fieldset>
-              <p className="text-sm text-slate-700">Matching: random re-matching between supergames, avoiding earlier partners while possible.</p>
+              <p className="text-sm text-slate-700">
+                Matching: random re-matching between supergames, avoiding earlier partners while possible.
+              </p>
             </section>
 
             <section aria-labelledby="rules-title" className="flex flex-col gap-3 rounded-lg border border-slate-200 bg-white p-4">
@@ -358,10 +477,24 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               <fieldset className="flex flex-col gap-2">
                 <legend className="font-semibold">Odd head-count</legend>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="oddCount.kind" value="computer" checked={oddKind === 'computer'} onChange={() => setOddKind('computer')} /> A disclosed computer partner, in turn
+                  <input
+                    type="radio"
+                    name="oddCount.kind"
+                    value="computer"
+                    checked={oddKind === 'computer'}
+                    onChange={() => setOddKind('computer')}
+                  />{' '}
+                  A disclosed computer partner, in turn
                 </label>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="oddCount.kind" value="sit-out" checked={oddKind === 'sit-out'} onChange={() => setOddKind('sit-out')} /> One participant sits out, in turn
+                  <input
+                    type="radio"
+                    name="oddCount.kind"
+                    value="sit-out"
+                    checked={oddKind === 'sit-out'}
+                    onChange={() => setOddKind('sit-out')}
+                  />{' '}
+                  One participant sits out, in turn
                 </label>
                 {oddKind === 'computer' ? (
                   <SelectField
@@ -390,14 +523,34 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               <fieldset className="flex flex-col gap-2">
                 <legend className="font-semibold">Credit</legend>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="credit.kind" value="participation" checked={creditKind === 'participation'} onChange={() => setCreditKind('participation')} /> Course credit
+                  <input
+                    type="radio"
+                    name="credit.kind"
+                    value="participation"
+                    checked={creditKind === 'participation'}
+                    onChange={() => setCreditKind('participation')}
+                  />{' '}
+                  Course credit
                 </label>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="radio" name="credit.kind" value="paid" checked={creditKind === 'paid'} onChange={() => setCreditKind('paid')} /> Paid session
+                  <input
+                    type="radio"
+                    name="credit.kind"
+                    value="paid"
+                    checked={creditKind === 'paid'}
+                    onChange={() => setCreditKind('paid')}
+                  />{' '}
+                  Paid session
                 </label>
                 {creditKind === 'participation' ? (
                   <div className="grid gap-3 sm:grid-cols-2">
-                    <TextField label="Credit for taking part" name="credit.credit" inputMode="decimal" defaultValue={values['credit.credit'] ?? '1'} error={errors['credit.credit']} />
+                    <TextField
+                      label="Credit for taking part"
+                      name="credit.credit"
+                      inputMode="decimal"
+                      defaultValue={values['credit.credit'] ?? '1'}
+                      error={errors['credit.credit']}
+                    />
                     <TextField
                       label="Points for full credit (optional)"
                       name="credit.pointsScaleMax"
@@ -410,31 +563,60 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 ) : (
                   <>
                     <div className="grid gap-3 sm:grid-cols-4">
-                      <TextField label="Show-up fee" name="credit.showUpFee" inputMode="decimal" defaultValue={values['credit.showUpFee'] ?? '5'} error={errors['credit.showUpFee']} />
-                      <TextField label="Per point" name="credit.ratePerPoint" inputMode="decimal" defaultValue={values['credit.ratePerPoint'] ?? '0.01'} error={errors['credit.ratePerPoint']} />
-                      <TextField label="Currency" name="credit.currency" defaultValue={values['credit.currency'] ?? 'EUR'} error={errors['credit.currency']} maxLength={3} />
-                      <TextField label="Round up to" name="credit.rounding" inputMode="decimal" defaultValue={values['credit.rounding'] ?? '0.01'} error={errors['credit.rounding']} />
+                      <TextField
+                        label="Show-up fee"
+                        name="credit.showUpFee"
+                        inputMode="decimal"
+                        defaultValue={values['credit.showUpFee'] ?? '5'}
+                        error={errors['credit.showUpFee']}
+                      />
+                      <TextField
+                        label="Per point"
+                        name="credit.ratePerPoint"
+                        inputMode="decimal"
+                        defaultValue={values['credit.ratePerPoint'] ?? '0.01'}
+                        error={errors['credit.ratePerPoint']}
+                      />
+                      <TextField
+                        label="Currency"
+                        name="credit.currency"
+                        defaultValue={values['credit.currency'] ?? 'EUR'}
+                        error={errors['credit.currency']}
+                        maxLength={3}
+                      />
+                      <TextField
+                        label="Round up to"
+                        name="credit.rounding"
+                        inputMode="decimal"
+                        defaultValue={values['credit.rounding'] ?? '0.01'}
+                        error={errors['credit.rounding']}
+                      />
                     </div>
                     <p className="text-sm text-slate-600">Paid sessions follow your institution’s payment rules; nobody can lose money.</p>
                   </>
                 )}
               </fieldset>
               <label className="flex min-h-11 items-center gap-2">
-                <input type="checkbox" name="consent" defaultChecked={values.consent === 'on'} /> Ask participants for consent to research use before they play
+                <input type="checkbox" name="consent" defaultChecked={values.consent === 'on'} /> Ask participants for consent to research
+                use before they play
               </label>
               <p className="text-sm text-slate-600">
-                Research use of classroom data needs your institution’s ethics-board approval and the participants’ informed consent; grades must not depend on it.
+                Research use of classroom data needs your institution’s ethics-board approval and the participants’ informed consent; grades
+                must not depend on it.
               </p>
               <fieldset className="flex flex-col gap-1">
                 <legend className="font-semibold">Before play</legend>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="checkbox" name="comprehension" defaultChecked={values.comprehension === 'on'} /> Comprehension check: three questions on the points table and the draw rule,
-                  answered correctly before the lobby
+                  <input type="checkbox" name="comprehension" defaultChecked={values.comprehension === 'on'} /> Comprehension check: three
+                  questions on the points table and the draw rule, answered correctly before the lobby
                 </label>
                 <label className="flex min-h-11 items-center gap-2">
-                  <input type="checkbox" name="practice" defaultChecked={values.practice === 'on'} /> Practice supergame against the computer, on the phone, not recorded
+                  <input type="checkbox" name="practice" defaultChecked={values.practice === 'on'} /> Practice supergame against the
+                  computer, on the phone, not recorded
                 </label>
-                <p className="text-sm text-slate-600">Neither changes the treatment: sessions with and without them are pooled in the Debrief.</p>
+                <p className="text-sm text-slate-600">
+                  Neither changes the treatment: sessions with and without them are pooled in the Debrief.
+                </p>
               </fieldset>
             </section>
 
@@ -470,9 +652,14 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
               />
               {errors.instructions ? <FieldError>{errors.instructions}</FieldError> : null}
               {contradictions.length ? (
-                <div role="alert" className="rounded-md border border-red-300 bg-red-50 p-3 text-sm text-red-900" data-testid="instruction-contradictions">
+                <div
+                  role="alert"
+                  className="rounded-md border border-red-300 bg-red-50 p-3 text-sm text-red-900"
+                  data-testid="instruction-contradictions"
+                >
                   <p className="font-semibold">
-                    <span aria-hidden="true">✕ </span>These instructions contradict the design; a session cannot be opened from it until they agree.
+                    <span aria-hidden="true">✕ </span>These instructions contradict the design; a session cannot be opened from it until
+                    they agree.
                   </p>
                   <ul className="mt-1 list-disc pl-5">
                     {contradictions.map((c) => (
@@ -482,14 +669,22 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 </div>
               ) : null}
               <details className="text-sm">
-                <summary className="min-h-11 cursor-pointer content-center font-semibold text-accent-700">Placeholders: write a name in curly braces, e.g. {'{delta%}'}</summary>
+                <summary className="min-h-11 cursor-pointer content-center font-semibold text-accent-700">
+                  Placeholders: write a name in curly braces, e.g. {'{delta%}'}
+                </summary>
                 <table className="mt-1 w-full text-left">
                   <caption className="sr-only">Placeholders and what they are filled with</caption>
                   <thead className="text-slate-600">
                     <tr>
-                      <th scope="col" className="py-1 pr-3 font-semibold">Write</th>
-                      <th scope="col" className="py-1 pr-3 font-semibold">Filled with</th>
-                      <th scope="col" className="py-1 font-semibold">Now</th>
+                      <th scope="col" className="py-1 pr-3 font-semibold">
+                        Write
+                      </th>
+                      <th scope="col" className="py-1 pr-3 font-semibold">
+                        Filled with
+                      </th>
+                      <th scope="col" className="py-1 font-semibold">
+                        Now
+                      </th>
                     </tr>
                   </thead>
                   <tbody>
@@ -504,7 +699,6 @@ export default function DesignEditor({ loaderData, actionData }: Route.Component
                 </table>
               </details>
             </section>
-
           </fieldset>
           {/* Outside the fieldset: someone who may only look at the design still switches the preview's tabs and scrolls it. */}
           <PhonePreview design={parsed.success ? parsed.data : null} text={shownInstructions} course={course.title} />

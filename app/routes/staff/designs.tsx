@@ -59,13 +59,20 @@ function columnsFor(courseId: number, canEdit: boolean) {
     col.accessor('name', {
       header: 'Design',
       cell: (i) => (
-        <Link to={`/courses/${courseId}/designs/${i.row.original.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+        <Link
+          to={`/courses/${courseId}/designs/${i.row.original.id}`}
+          className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+        >
           {i.getValue()}
           {i.row.original.version > 1 ? <span className="font-normal text-slate-600"> (v{i.row.original.version})</span> : null}
         </Link>
       ),
     }),
-    col.accessor((r) => `${fmt(r.payoffs.T)} / ${fmt(r.payoffs.R)} / ${fmt(r.payoffs.P)} / ${fmt(r.payoffs.S)}`, { id: 'payoffs', header: 'T / R / P / S', meta: { align: 'right' } }),
+    col.accessor((r) => `${fmt(r.payoffs.T)} / ${fmt(r.payoffs.R)} / ${fmt(r.payoffs.P)} / ${fmt(r.payoffs.S)}`, {
+      id: 'payoffs',
+      header: 'T / R / P / S',
+      meta: { align: 'right' },
+    }),
     col.accessor('delta', { header: 'δ', cell: (i) => fmt(i.getValue()), meta: { align: 'right' } }),
     col.accessor('supergames', { header: 'Supergames', meta: { align: 'right' } }),
     col.accessor('roundSeconds', { header: 'Timer', cell: (i) => `${i.getValue()} s`, meta: { align: 'right' } }),
@@ -102,7 +109,12 @@ function columnsFor(courseId: number, canEdit: boolean) {
             header: () => <span className="sr-only">Actions</span>,
             cell: (i) => (
               <div className="flex gap-1">
-                <RowAction fields={{ intent: 'duplicate', designId: i.row.original.id }} label="Duplicate" target={i.row.original.name} tone="quiet" />
+                <RowAction
+                  fields={{ intent: 'duplicate', designId: i.row.original.id }}
+                  label="Duplicate"
+                  target={i.row.original.name}
+                  tone="quiet"
+                />
                 <RowAction
                   fields={{ intent: i.row.original.status === 'archived' ? 'restore' : 'archive', designId: i.row.original.id }}
                   label={i.row.original.status === 'archived' ? 'Restore' : 'Archive'}
@@ -121,12 +133,12 @@ export default function Designs({ loaderData, actionData }: Route.ComponentProps
   const { course, canEdit, designs } = loaderData;
   return (
     <>
-      <PageHeader
-        title="Designs"
-        eyebrow={<CourseCrumbs course={course} />}
-      >
+      <PageHeader title="Designs" eyebrow={<CourseCrumbs course={course} />}>
         {canEdit ? (
-          <Link to={`/courses/${course.id}/designs/new`} className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800">
+          <Link
+            to={`/courses/${course.id}/designs/new`}
+            className="inline-flex min-h-11 items-center rounded-lg bg-accent-700 px-4 font-semibold text-white hover:bg-accent-800"
+          >
             New design
           </Link>
         ) : null}
@@ -135,9 +147,17 @@ export default function Designs({ loaderData, actionData }: Route.ComponentProps
         {actionData ? <Notice tone={actionData.ok ? 'ok' : 'error'}>{actionData.message}</Notice> : null}
       </div>
       {designs.length === 0 ? (
-        <p className="text-lg text-slate-700">No designs yet. A design fixes the payoffs, δ, the number of supergames and the rules of a session.</p>
+        <p className="text-lg text-slate-700">
+          No designs yet. A design fixes the payoffs, δ, the number of supergames and the rules of a session.
+        </p>
       ) : (
-        <DataTable columns={columnsFor(course.id, canEdit)} data={designs} caption="Designs of this course" filterLabel="Filter designs" initialSorting={[{ id: 'name', desc: false }]} />
+        <DataTable
+          columns={columnsFor(course.id, canEdit)}
+          data={designs}
+          caption="Designs of this course"
+          filterLabel="Filter designs"
+          initialSorting={[{ id: 'name', desc: false }]}
+        />
       )}
     </>
   );

@@ -43,7 +43,12 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
   };
   const act = async (participantId: string, action: 'nudge' | 'hand-to-computer' | 'remove', label: string) => {
     if (action !== 'nudge' && !window.confirm(`${label}? The participant is told.`)) return;
-    const res = await emit('participant:act', { sessionId: session.id, participantId, action, ...(action === 'hand-to-computer' ? { strategy } : {}) });
+    const res = await emit('participant:act', {
+      sessionId: session.id,
+      participantId,
+      action,
+      ...(action === 'hand-to-computer' ? { strategy } : {}),
+    });
     setMessage(res.ok ? { ok: true, text: `${label}: done.` } : { ok: false, text: res.message });
   };
   const who = (s: FloorSeatView) => {
@@ -56,7 +61,9 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
     <>
       <PageHeader
         title={`Floor · session #${session.id}`}
-        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/sessions/${session.id}`, label: `Session #${session.id}` }]} />}
+        eyebrow={
+          <CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/sessions/${session.id}`, label: `Session #${session.id}` }]} />
+        }
       >
         <Button variant="secondary" onClick={showNames} aria-pressed={names !== null}>
           {names ? 'Hide names' : 'Show names'}
@@ -74,13 +81,18 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
               {STATUS_WORDS[floor.status].word}
             </span>
             <span className="num">
-              Supergame {floor.supergame || '—'} of {floor.supergames} · {floor.counts.pairsDone}/{floor.counts.pairs} pairs done · {floor.counts.connected}/{floor.counts.joined} connected
+              Supergame {floor.supergame || '—'} of {floor.supergames} · {floor.counts.pairsDone}/{floor.counts.pairs} pairs done ·{' '}
+              {floor.counts.connected}/{floor.counts.joined} connected
             </span>
           </>
         ) : null}
         <label className="flex items-center gap-2">
           Computer partner plays
-          <select value={strategy} onChange={(e) => setStrategy(e.target.value)} className="min-h-9 rounded border border-slate-300 bg-white px-2">
+          <select
+            value={strategy}
+            onChange={(e) => setStrategy(e.target.value)}
+            className="min-h-9 rounded border border-slate-300 bg-white px-2"
+          >
             {LIBRARY.map((a) => (
               <option key={a.id} value={a.id}>
                 {a.id}
@@ -155,7 +167,11 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                       <span className="flex flex-wrap items-center gap-x-3 gap-y-1">
                         <span>{s.hasChosen ? '✓ chosen' : p.done ? '' : '… choosing'}</span>
                         {s.connected === false ? <span className="font-semibold text-danger-600">✕ disconnected</span> : null}
-                        {s.timeouts ? <span className="text-slate-600">{s.timeouts} timeout{s.timeouts > 1 ? 's' : ''}</span> : null}
+                        {s.timeouts ? (
+                          <span className="text-slate-600">
+                            {s.timeouts} timeout{s.timeouts > 1 ? 's' : ''}
+                          </span>
+                        ) : null}
                       </span>
                     </td>
                     {i === 0 ? (
@@ -166,14 +182,25 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
                     <td className="px-3 py-1">
                       {live && s.participantId && !s.computer ? (
                         <div className="flex flex-wrap gap-1">
-                          <button className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50" onClick={() => act(s.participantId!, 'nudge', `Nudge ${s.pseudonym}`)}>
+                          <button
+                            className="min-h-9 rounded px-2 font-semibold text-accent-700 hover:bg-accent-50"
+                            onClick={() => act(s.participantId!, 'nudge', `Nudge ${s.pseudonym}`)}
+                          >
                             Nudge<span className="sr-only"> {s.pseudonym}</span>
                           </button>
-                          <button className="min-h-9 rounded px-2 font-semibold text-slate-700 hover:bg-slate-100" onClick={() => act(s.participantId!, 'hand-to-computer', `Hand ${s.pseudonym} to a computer partner (${strategy})`)}>
+                          <button
+                            className="min-h-9 rounded px-2 font-semibold text-slate-700 hover:bg-slate-100"
+                            onClick={() =>
+                              act(s.participantId!, 'hand-to-computer', `Hand ${s.pseudonym} to a computer partner (${strategy})`)
+                            }
+                          >
                             Hand to computer<span className="sr-only"> {s.pseudonym}</span>
                           </button>
                           {role === 'instructor' ? (
-                            <button className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(s.participantId!, 'remove', `Remove ${s.pseudonym}`)}>
+                            <button
+                              className="min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
+                              onClick={() => act(s.participantId!, 'remove', `Remove ${s.pseudonym}`)}
+                            >
                               Remove<span className="sr-only"> {s.pseudonym}</span>
                             </button>
                           ) : null}
@@ -197,10 +224,14 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
             {floor.others.map((o) => (
               <li key={o.participantId} className="rounded border border-slate-200 bg-white px-2 py-1">
                 {o.pseudonym}
-                {names?.[o.participantId] ? ` · ${names[o.participantId].name ?? names[o.participantId].email}` : ''} — {o.why.replace(/-/g, ' ')}
+                {names?.[o.participantId] ? ` · ${names[o.participantId].name ?? names[o.participantId].email}` : ''} —{' '}
+                {o.why.replace(/-/g, ' ')}
                 {o.connected ? '' : ' · ✕ disconnected'}
                 {role === 'instructor' && floor.status === 'open' && o.why === 'lobby' ? (
-                  <button className="ml-2 min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50" onClick={() => act(o.participantId, 'remove', `Remove ${o.pseudonym}`)}>
+                  <button
+                    className="ml-2 min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
+                    onClick={() => act(o.participantId, 'remove', `Remove ${o.pseudonym}`)}
+                  >
                     Remove<span className="sr-only"> {o.pseudonym}</span>
                   </button>
                 ) : null}

@@ -77,7 +77,10 @@ export async function action({ request, params }: Route.ActionArgs) {
   const form = Object.fromEntries(await request.formData());
   const parsed = MemberAction.safeParse(form);
   if (!parsed.success) {
-    return data({ ok: false as const, intent: String(form.intent ?? ''), errors: fieldErrors(parsed.error), values: form, message: null }, { status: 400 });
+    return data(
+      { ok: false as const, intent: String(form.intent ?? ''), errors: fieldErrors(parsed.error), values: form, message: null },
+      { status: 400 },
+    );
   }
   const a = parsed.data;
   const fail = (message: string, status: number) =>
@@ -97,7 +100,10 @@ export async function action({ request, params }: Route.ActionArgs) {
       const res = await createInvitation(course.id, email, a.role, user.id);
       if (!res.ok) {
         await releaseCourseMail(reservation);
-        return data({ ok: false as const, intent: a.intent, errors: { [res.field]: res.message }, values: form, message: null }, { status: 400 });
+        return data(
+          { ok: false as const, intent: a.intent, errors: { [res.field]: res.message }, values: form, message: null },
+          { status: 400 },
+        );
       }
       if (!(await sendInvitation(course, user, { ...res, email, role: a.role }, reservation))) return notSent(email);
       return { ok: true as const, intent: a.intent, message: `Invitation sent to ${email}.` };
@@ -112,7 +118,8 @@ export async function action({ request, params }: Route.ActionArgs) {
         await releaseCourseMail(reservation);
         return fail('That invitation is not pending in this course.', 404);
       }
-      if (!(await sendInvitation(course, user, { invitationId: inv.id, token, email: inv.email, role: inv.role }, reservation))) return notSent(inv.email);
+      if (!(await sendInvitation(course, user, { invitationId: inv.id, token, email: inv.email, role: inv.role }, reservation)))
+        return notSent(inv.email);
       return { ok: true as const, intent: a.intent, message: `Invitation sent again to ${inv.email}.` };
     }
     case 'change-role':
@@ -193,14 +200,12 @@ function columnsFor(canManage: boolean, me: number) {
 export default function Members({ loaderData, actionData }: Route.ComponentProps) {
   const { course, canManage, members, invitations, me } = loaderData;
   const nav = useNavigation();
-  const inviteErrors: Record<string, string | undefined> = actionData && !actionData.ok && actionData.intent === 'invite' ? actionData.errors : {};
+  const inviteErrors: Record<string, string | undefined> =
+    actionData && !actionData.ok && actionData.intent === 'invite' ? actionData.errors : {};
   const values: Record<string, string | undefined> = actionData && !actionData.ok ? (actionData.values as Record<string, string>) : {};
   return (
     <>
-      <PageHeader
-        title="Members"
-        eyebrow={<CourseCrumbs course={course} />}
-      />
+      <PageHeader title="Members" eyebrow={<CourseCrumbs course={course} />} />
       <div className="mb-4 flex flex-col gap-3" aria-live="polite">
         {actionData?.ok ? <Notice tone="ok">{actionData.message}</Notice> : null}
         {actionData && !actionData.ok && actionData.message ? <Notice tone="error">{actionData.message}</Notice> : null}
@@ -210,22 +215,49 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
           <h2 id="invite" className="mb-3 text-lg font-semibold">
             Invite by e-mail
           </h2>
-          <Form method="post" className="flex flex-wrap items-start gap-3" noValidate key={actionData?.ok && actionData.intent === 'invite' ? actionData.message : 'invite'}>
+          <Form
+            method="post"
+            className="flex flex-wrap items-start gap-3"
+            noValidate
+            key={actionData?.ok && actionData.intent === 'invite' ? actionData.message : 'invite'}
+          >
             <input type="hidden" name="intent" value="invite" />
-            <TextField label="E-mail address" name="email" type="email" autoComplete="off" className="min-w-72 flex-1" defaultValue={values.email} error={inviteErrors.email} />
-            <SelectField label="Role" name="role" options={roleOptions} defaultValue={values.role ?? 'assistant'} error={inviteErrors.role} />
+            <TextField
+              label="E-mail address"
+              name="email"
+              type="email"
+              autoComplete="off"
+              className="min-w-72 flex-1"
+              defaultValue={values.email}
+              error={inviteErrors.email}
+            />
+            <SelectField
+              label="Role"
+              name="role"
+              options={roleOptions}
+              defaultValue={values.role ?? 'assistant'}
+              error={inviteErrors.role}
+            />
             <Button type="submit" className="mt-7" disabled={nav.state === 'submitting'}>
               Send invitation
             </Button>
           </Form>
-          <p className="mt-2 text-sm text-slate-600">The invitation is valid for {INVITATION_DAYS} days. The person signs in with a code sent to that address.</p>
+          <p className="mt-2 text-sm text-slate-600">
+            The invitation is valid for {INVITATION_DAYS} days. The person signs in with a code sent to that address.
+          </p>
         </section>
       ) : null}
       <section aria-labelledby="member-list" className="mb-8">
         <h2 id="member-list" className="mb-3 text-lg font-semibold">
           {members.length} members
         </h2>
-        <DataTable columns={columnsFor(canManage, me)} data={members} caption="Course members" filterLabel="Filter members" initialSorting={[{ id: 'email', desc: false }]} />
+        <DataTable
+          columns={columnsFor(canManage, me)}
+          data={members}
+          caption="Course members"
+          filterLabel="Filter members"
+          initialSorting={[{ id: 'email', desc: false }]}
+        />
       </section>
       {invitations.length > 0 ? (
         <section aria-labelledby="pending">
@@ -247,7 +279,14 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                 </span>
                 {canManage ? (
                   <span className="flex items-center gap-1">
-                    {inv.sentAt ? null : <RowAction fields={{ intent: 'resend', invitationId: inv.id }} label="Resend" target={`invitation to ${inv.email}`} tone="quiet" />}
+                    {inv.sentAt ? null : (
+                      <RowAction
+                        fields={{ intent: 'resend', invitationId: inv.id }}
+                        label="Resend"
+                        target={`invitation to ${inv.email}`}
+                        tone="quiet"
+                      />
+                    )}
                     <Form method="post">
                       <input type="hidden" name="intent" value="revoke" />
                       <input type="hidden" name="invitationId" value={inv.id} />

@@ -35,7 +35,9 @@ interface Outcome {
 const sizeMessage = `The file is larger than ${ROSTER_LIMITS.maxBytes / 1024} KB: a roster of ${ROSTER_LIMITS.maxRows} people fits well below that. Export only the e-mail, name and student id columns.`;
 
 function refuse(message: string, status = 400, fileName = '') {
-  return data({ intent: 'preview', fileName, csv: '', rows: [], errors: [{ line: null, message }], imported: null } satisfies Outcome, { status });
+  return data({ intent: 'preview', fileName, csv: '', rows: [], errors: [{ line: null, message }], imported: null } satisfies Outcome, {
+    status,
+  });
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -71,7 +73,12 @@ export async function action({ request, params }: Route.ActionArgs) {
   // The roster is written whatever the course's daily mail cap; past the cap nobody is mailed
   // (the mail only tells people they are on the roster) and the instructor is told how many.
   const { added } = res.result;
-  const reservations = await reserveCourseMails(course.id, user.id, 'roster', added.map((r) => r.email));
+  const reservations = await reserveCourseMails(
+    course.id,
+    user.id,
+    'roster',
+    added.map((r) => r.email),
+  );
   let mailFailures = 0;
   for (const [i, id] of reservations.entries()) {
     const r = added[i];
@@ -136,15 +143,19 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
   const canImport = outcome && outcome.intent === 'preview' && outcome.errors.length === 0 && outcome.rows.length > 0;
   return (
     <>
-      <PageHeader title="Roster upload" eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/members`, label: 'Members' }]} />} />
+      <PageHeader
+        title="Roster upload"
+        eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/members`, label: 'Members' }]} />}
+      />
       <section aria-labelledby="upload" className="mb-6 max-w-3xl rounded-lg border border-slate-200 bg-white p-4">
         <h2 id="upload" className="mb-2 text-lg font-semibold">
           1. Choose the class list
         </h2>
         <p className="mb-3 text-slate-700">
-          A CSV file with a header line and the columns <strong>e-mail</strong>, <strong>name</strong> and <strong>student id</strong>, in any order
-          (“Email address”, “Full name”, “Student number” and similar names are recognised; so are “First name” and “Last name”). Comma or semicolon,
-          UTF-8. At most {limits.maxRows.toLocaleString('en-GB')} people and {limits.maxBytes / 1024} KB. Nothing is written until you import.
+          A CSV file with a header line and the columns <strong>e-mail</strong>, <strong>name</strong> and <strong>student id</strong>, in
+          any order (“Email address”, “Full name”, “Student number” and similar names are recognised; so are “First name” and “Last name”).
+          Comma or semicolon, UTF-8. At most {limits.maxRows.toLocaleString('en-GB')} people and {limits.maxBytes / 1024} KB. Nothing is
+          written until you import.
         </p>
         <Form method="post" encType="multipart/form-data" className="flex flex-wrap items-end gap-3">
           <input type="hidden" name="intent" value="preview" />
@@ -158,16 +169,19 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
       <div aria-live="polite" className="flex max-w-3xl flex-col gap-3">
         {outcome?.imported ? (
           <Notice tone="ok" title="Roster imported">
-            {outcome.imported.added} new participant{outcome.imported.added === 1 ? '' : 's'} added{outcome.imported.notMailed ? '' : ' and e-mailed'}, {outcome.imported.changed} student id
+            {outcome.imported.added} new participant{outcome.imported.added === 1 ? '' : 's'} added
+            {outcome.imported.notMailed ? '' : ' and e-mailed'}, {outcome.imported.changed} student id
             {outcome.imported.changed === 1 ? '' : 's'} changed, {outcome.imported.unchanged} already on the roster.
-            {outcome.imported.mailFailures ? ` ${outcome.imported.mailFailures} e-mail(s) could not be sent; the people are on the roster all the same.` : ''}
+            {outcome.imported.mailFailures
+              ? ` ${outcome.imported.mailFailures} e-mail(s) could not be sent; the people are on the roster all the same.`
+              : ''}
           </Notice>
         ) : null}
         {outcome?.imported?.notMailed ? (
           <Notice tone="warn" title="Not everyone was e-mailed">
-            {outcome.imported.notMailed === 1 ? '1 person was' : `${outcome.imported.notMailed} people were`} not e-mailed: this course has sent its{' '}
-            {outcome.imported.mailCap} e-mails for today (invitations and roster e-mails together). They are on the roster all the same and can sign in
-            with their e-mail address.
+            {outcome.imported.notMailed === 1 ? '1 person was' : `${outcome.imported.notMailed} people were`} not e-mailed: this course has
+            sent its {outcome.imported.mailCap} e-mails for today (invitations and roster e-mails together). They are on the roster all the
+            same and can sign in with their e-mail address.
           </Notice>
         ) : null}
         {outcome && outcome.errors.length > 0 ? (
@@ -183,13 +197,22 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
             2. Preview of {outcome.fileName}
           </h2>
           <p className="mb-3 text-slate-700">
-            {outcome.rows.length} valid line{outcome.rows.length === 1 ? '' : 's'}: {counts.new} new, {counts['student-id-changes']} student id change
+            {outcome.rows.length} valid line{outcome.rows.length === 1 ? '' : 's'}: {counts.new} new, {counts['student-id-changes']} student
+            id change
             {counts['student-id-changes'] === 1 ? '' : 's'}, {counts.unchanged} already on the roster.
           </p>
-          <DataTable columns={columns} data={outcome.rows} caption="Roster preview" filterLabel="Filter the preview" initialSorting={[{ id: 'line', desc: false }]} />
+          <DataTable
+            columns={columns}
+            data={outcome.rows}
+            caption="Roster preview"
+            filterLabel="Filter the preview"
+            initialSorting={[{ id: 'line', desc: false }]}
+          />
           {canImport && counts.new + counts['student-id-changes'] === 0 ? (
             <div className="mt-4">
-              <Notice tone="info">Everyone in this file is already on the roster with the same student id: there is nothing to import.</Notice>
+              <Notice tone="info">
+                Everyone in this file is already on the roster with the same student id: there is nothing to import.
+              </Notice>
             </div>
           ) : canImport ? (
             <Form method="post" className="mt-4 flex flex-wrap items-center gap-3">
@@ -199,7 +222,9 @@ export default function Roster({ loaderData, actionData }: Route.ComponentProps)
               <Button type="submit" disabled={busy}>
                 Import {outcome.rows.length} {outcome.rows.length === 1 ? 'person' : 'people'}
               </Button>
-              <p className="text-sm text-slate-600">New participants get an e-mail saying they are on the roster. All lines are written, or none.</p>
+              <p className="text-sm text-slate-600">
+                New participants get an e-mail saying they are on the roster. All lines are written, or none.
+              </p>
             </Form>
           ) : null}
         </section>

@@ -9,7 +9,8 @@ import { parseId, requireCourseRole } from '#app/utils/permissions.server';
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor', 'assistant']);
   const session = await getSession(parseId(params.sessionId));
-  if (!session || session.courseId !== course.id) return Response.json({ error: { code: 'not-found', message: 'No such session.' } }, { status: 404 });
+  if (!session || session.courseId !== course.id)
+    return Response.json({ error: { code: 'not-found', message: 'No such session.' } }, { status: 404 });
   const topics = Object.fromEntries(comprehensionQuestions(session.design).map((q, i) => [q.id, `question ${i + 1} (${q.topic})`]));
   const rows = (await checkStatus(course.id, session.id)).map((r) => ({ ...r, lastWrong: r.lastWrong.map((id) => topics[id] ?? id) }));
   return Response.json({ enabled: session.design.comprehension, rows, now: Date.now() }, { headers: { 'Cache-Control': 'no-store' } });

@@ -7,7 +7,11 @@ import { parseId, requireCourseRole } from '#app/utils/permissions.server';
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor', 'assistant']);
   const session = await getSession(parseId(params.sessionId));
-  if (!session || session.courseId !== course.id) return Response.json({ error: { code: 'not-found', message: 'No such session.' } }, { status: 404 });
+  if (!session || session.courseId !== course.id)
+    return Response.json({ error: { code: 'not-found', message: 'No such session.' } }, { status: 404 });
   const rows = await namesOf(session.id);
-  return Response.json({ names: Object.fromEntries(rows.map((r) => [r.participantKey, { name: r.name, email: r.email }])) }, { headers: { 'Cache-Control': 'no-store' } });
+  return Response.json(
+    { names: Object.fromEntries(rows.map((r) => [r.participantKey, { name: r.name, email: r.email }])) },
+    { headers: { 'Cache-Control': 'no-store' } },
+  );
 }

@@ -16,9 +16,22 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const [lines, mails] = await Promise.all([creditSheet(session), resultMailStatus(session.id)]);
   return {
     course,
-    session: { id: session.id, treatment: session.treatment, status: session.status, simulated: session.simulated, paid: session.credit.kind === 'paid' },
+    session: {
+      id: session.id,
+      treatment: session.treatment,
+      status: session.status,
+      simulated: session.simulated,
+      paid: session.credit.kind === 'paid',
+    },
     rule: describeCreditRule(session.credit),
-    credit: lines.map((l) => ({ pseudonym: l.pseudonym, name: l.name, email: l.email, studentId: l.studentId, points: l.points, credit: formatCredit(l.credit) })),
+    credit: lines.map((l) => ({
+      pseudonym: l.pseudonym,
+      name: l.name,
+      email: l.email,
+      studentId: l.studentId,
+      points: l.points,
+      credit: formatCredit(l.credit),
+    })),
     mails,
   };
 }
@@ -126,7 +139,8 @@ export default function SessionResults({ loaderData }: Route.ComponentProps) {
           Results e-mails
         </h2>
         <p className="mb-3 max-w-3xl text-slate-700">
-          Each participant gets their supergames, points and credit. Mails go out in the background a few per second; this page follows them.
+          Each participant gets their supergames, points and credit. Mails go out in the background a few per second; this page follows
+          them.
         </p>
         <div className="mb-4 flex flex-col gap-3" aria-live="polite">
           {act.data ? <Notice tone={act.data.ok ? 'ok' : 'error'}>{act.data.message}</Notice> : null}
@@ -160,7 +174,7 @@ export default function SessionResults({ loaderData }: Route.ComponentProps) {
           </div>
         )}
       </section>
-      <section aria-labelledby="credit" >
+      <section aria-labelledby="credit">
         <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
           <h2 id="credit" className="text-lg font-semibold">
             Credit sheet
@@ -174,13 +188,18 @@ export default function SessionResults({ loaderData }: Route.ComponentProps) {
           </a>
         </div>
         <p className="mb-3 max-w-3xl text-slate-700">
-          Rule of this session’s design: {rule}. Points count the rounds of each supergame up to its length. Research consent plays no part in credit.
-          The download carries names, e-mail addresses and student ids (personal data) and is logged.
+          Rule of this session’s design: {rule}. Points count the rounds of each supergame up to its length. Research consent plays no part
+          in credit. The download carries names, e-mail addresses and student ids (personal data) and is logged.
           {session.paid ? ' Paid sessions follow your institution’s payment rules.' : ''}
         </p>
-        <DataTable columns={creditColumns(session.paid)} data={credit} caption="Credit sheet" filterLabel="Filter participants" initialSorting={[{ id: 'pseudonym', desc: false }]} />
+        <DataTable
+          columns={creditColumns(session.paid)}
+          data={credit}
+          caption="Credit sheet"
+          filterLabel="Filter participants"
+          initialSorting={[{ id: 'pseudonym', desc: false }]}
+        />
       </section>
-
     </>
   );
 }

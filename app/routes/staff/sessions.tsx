@@ -41,7 +41,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     course,
     canOpen: role === 'instructor',
     sessions,
-    designs: designs.filter((d) => !d.archivedAt).map((d) => ({ id: d.id, name: d.name, delta: d.params.delta, supergames: d.params.supergames })),
+    designs: designs
+      .filter((d) => !d.archivedAt)
+      .map((d) => ({ id: d.id, name: d.name, delta: d.params.delta, supergames: d.params.supergames })),
   };
 }
 
@@ -70,10 +72,15 @@ export default function Sessions({ loaderData, actionData }: Route.ComponentProp
       header: 'Session',
       cell: (i) => (
         <span className="flex flex-wrap items-center gap-2">
-          <Link to={`/courses/${course.id}/sessions/${i.row.original.id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
+          <Link
+            to={`/courses/${course.id}/sessions/${i.row.original.id}`}
+            className="font-semibold text-accent-700 underline-offset-4 hover:underline"
+          >
             #{i.row.original.id} {i.getValue()}
           </Link>
-          {i.row.original.simulated ? <span className="rounded-full border border-slate-300 px-2 text-xs font-semibold text-slate-700">simulated</span> : null}
+          {i.row.original.simulated ? (
+            <span className="rounded-full border border-slate-300 px-2 text-xs font-semibold text-slate-700">simulated</span>
+          ) : null}
         </span>
       ),
     }),
@@ -86,7 +93,10 @@ export default function Sessions({ loaderData, actionData }: Route.ComponentProp
         </span>
       ),
     }),
-    col.accessor('joinCode', { header: 'Join code', cell: (i) => (i.getValue() ? <span className="font-mono tracking-wider">{i.getValue()}</span> : '—') }),
+    col.accessor('joinCode', {
+      header: 'Join code',
+      cell: (i) => (i.getValue() ? <span className="font-mono tracking-wider">{i.getValue()}</span> : '—'),
+    }),
     col.accessor('participants', { header: 'Participants', meta: { align: 'right' } }),
     col.accessor('createdAt', { header: 'Made', cell: (i) => formatDate(i.getValue()), sortFn: 'datetime' }),
   ]);
@@ -126,7 +136,13 @@ export default function Sessions({ loaderData, actionData }: Route.ComponentProp
                   { value: 'open', label: 'Anyone who signs in (optionally by e-mail domain)' },
                 ]}
               />
-              <TextField label="E-mail domain (open sessions, optional)" name="emailDomain" defaultValue={values.emailDomain} error={errors.emailDomain} placeholder="halvorsen.example" />
+              <TextField
+                label="E-mail domain (open sessions, optional)"
+                name="emailDomain"
+                defaultValue={values.emailDomain}
+                error={errors.emailDomain}
+                placeholder="halvorsen.example"
+              />
               <TextField
                 label="Seed (optional)"
                 name="seed"

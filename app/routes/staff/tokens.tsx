@@ -12,7 +12,11 @@ import { formatDate } from '#app/utils/format';
 
 const Create = z.object({
   intent: z.literal('create'),
-  name: z.string().trim().min(1, 'Name the token after where it is used, e.g. “lab laptop, R scripts”.').max(120, 'Keep the name to 120 characters.'),
+  name: z
+    .string()
+    .trim()
+    .min(1, 'Name the token after where it is used, e.g. “lab laptop, R scripts”.')
+    .max(120, 'Keep the name to 120 characters.'),
   courseId: z.array(z.coerce.number().int().positive()).min(1, 'Choose at least one course the token may read.'),
 });
 const Revoke = z.object({ intent: z.literal('revoke'), id: z.coerce.number().int().positive() });
@@ -29,7 +33,10 @@ export async function action({ request }: Route.ActionArgs) {
   if (form.get('intent') === 'revoke') {
     const parsed = Revoke.safeParse(Object.fromEntries(form));
     if (!parsed.success || !(await revokeApiToken(user.id, parsed.data.id))) {
-      return data({ ok: false as const, errors: { form: 'That token is not yours or is already revoked.' }, token: null, message: null }, { status: 404 });
+      return data(
+        { ok: false as const, errors: { form: 'That token is not yours or is already revoked.' }, token: null, message: null },
+        { status: 404 },
+      );
     }
     return { ok: true as const, errors: {}, token: null, message: 'Token revoked: it no longer opens the API.' };
   }
@@ -37,7 +44,15 @@ export async function action({ request }: Route.ActionArgs) {
   if (!parsed.success) return data({ ok: false as const, errors: fieldErrors(parsed.error), token: null, message: null }, { status: 400 });
   const allowed = new Set((await tokenCourseChoices(user.id, user.isAdmin)).map((c) => c.id));
   if (!parsed.data.courseId.every((id) => allowed.has(id))) {
-    return data({ ok: false as const, errors: { courseId: 'You can scope a token only to courses where you are instructor or researcher.' }, token: null, message: null }, { status: 403 });
+    return data(
+      {
+        ok: false as const,
+        errors: { courseId: 'You can scope a token only to courses where you are instructor or researcher.' },
+        token: null,
+        message: null,
+      },
+      { status: 403 },
+    );
   }
   const token = await createApiToken(user.id, parsed.data.name, parsed.data.courseId);
   return { ok: true as const, errors: {}, token, message: `Token “${parsed.data.name}” created.` };
@@ -53,10 +68,18 @@ function columnsFor(titles: Map<number, string>) {
     col.accessor('courseIds', {
       header: 'Courses',
       enableSorting: false,
-      cell: (i) => i.getValue().map((id) => titles.get(id) ?? `course ${id}`).join(', '),
+      cell: (i) =>
+        i
+          .getValue()
+          .map((id) => titles.get(id) ?? `course ${id}`)
+          .join(', '),
     }),
     col.accessor('createdAt', { header: 'Created', sortFn: 'datetime', cell: (i) => formatDate(i.getValue()) }),
-    col.accessor('lastUsedAt', { header: 'Last used', sortFn: 'datetime', cell: (i) => (i.getValue() ? formatDate(i.getValue()!) : 'never') }),
+    col.accessor('lastUsedAt', {
+      header: 'Last used',
+      sortFn: 'datetime',
+      cell: (i) => (i.getValue() ? formatDate(i.getValue()!) : 'never'),
+    }),
     col.display({
       id: 'status',
       header: 'Status',
@@ -99,7 +122,13 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
             <label htmlFor="new-token" className="font-semibold">
               Your new token
             </label>
-            <input id="new-token" readOnly value={actionData.token} className="mt-1 block w-full rounded border border-slate-300 bg-white px-2 py-2 font-mono text-sm" onFocus={(e) => e.currentTarget.select()} />
+            <input
+              id="new-token"
+              readOnly
+              value={actionData.token}
+              className="mt-1 block w-full rounded border border-slate-300 bg-white px-2 py-2 font-mono text-sm"
+              onFocus={(e) => e.currentTarget.select()}
+            />
           </Notice>
         ) : actionData?.ok ? (
           <Notice tone="ok">{actionData.message}</Notice>
@@ -108,8 +137,8 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
       </div>
       <p className="mb-4 max-w-3xl text-slate-700">
         Tokens let your scripts read the de-identified choice panels, sessions and estimates of the courses you choose, through the API at{' '}
-        <code>{apiBase}</code>. Treat a token like a password; revoke it when a laptop or a script is retired. Research use needs your institution’s
-        ethics-board approval and the participants’ consent.
+        <code>{apiBase}</code>. Treat a token like a password; revoke it when a laptop or a script is retired. Research use needs your
+        institution’s ethics-board approval and the participants’ consent.
       </p>
       {courses.length === 0 ? (
         <Notice tone="info">API tokens are for instructors and researchers of a course; you are neither in any course yet.</Notice>
@@ -152,7 +181,12 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
           Try it
         </h2>
         {/* Long lines scroll sideways: focusable, so a keyboard can scroll them too. */}
-        <pre tabIndex={0} role="region" aria-label="Example requests" className="overflow-x-auto rounded-lg bg-slate-900 p-4 text-sm text-slate-100">
+        <pre
+          tabIndex={0}
+          role="region"
+          aria-label="Example requests"
+          className="overflow-x-auto rounded-lg bg-slate-900 p-4 text-sm text-slate-100"
+        >
           {[
             `curl -H "Authorization: Bearer ${example}" ${apiBase}/courses`,
             `curl -H "Authorization: Bearer ${example}" ${apiBase}/courses/${firstCourse}/sessions`,
@@ -160,7 +194,9 @@ export default function Tokens({ loaderData, actionData }: Route.ComponentProps)
             `curl -H "Authorization: Bearer ${example}" "${apiBase}/sessions/<session id>/panel?format=csv" -o panel.csv`,
           ].join('\n')}
         </pre>
-        <p className="mt-2 text-sm text-slate-600">Every endpoint, its pagination and its errors are described in the API section of Parley’s README.</p>
+        <p className="mt-2 text-sm text-slate-600">
+          Every endpoint, its pagination and its errors are described in the API section of Parley’s README.
+        </p>
       </section>
     </>
   );
