@@ -20,17 +20,22 @@ export function solveLinear(A: readonly (readonly number[])[], b: readonly numbe
   const n = A.length;
   if (b.length !== n) throw new Error(`solveLinear: ${n} rows but ${b.length} right-hand sides`);
   const m = new Float64Array(n * n);
-  const x = new Float64Array(n);
-  let scale = 0;
   for (let i = 0; i < n; i++) {
     if (A[i].length !== n) throw new Error('solveLinear: the matrix must be square');
-    for (let j = 0; j < n; j++) {
-      const v = A[i][j];
-      m[i * n + j] = v;
-      if (Math.abs(v) > scale) scale = Math.abs(v);
-    }
-    x[i] = b[i];
+    for (let j = 0; j < n; j++) m[i * n + j] = A[i][j];
   }
+  const [x] = solveInPlace(m, n, [Float64Array.from(b)]);
+  return Array.from(x);
+}
+
+/**
+ * Solves M X = B for several right-hand sides with one elimination, in place: `m` (n × n, row
+ * major) is overwritten, each column of `rhs` becomes its solution and is returned.
+ * Throws when the matrix is (numerically) singular.
+ */
+export function solveInPlace(m: Float64Array, n: number, rhs: Float64Array[]): Float64Array[] {
+  let scale = 0;
+  for (let i = 0; i < n * n; i++) if (Math.abs(m[i]) > scale) scale = Math.abs(m[i]);
   const tiny = SINGULAR_REL * scale;
 
   for (let k = 0; k < n; k++) {
@@ -50,9 +55,11 @@ export function solveLinear(A: readonly (readonly number[])[], b: readonly numbe
         m[k * n + j] = m[p * n + j];
         m[p * n + j] = t;
       }
-      const t = x[k];
-      x[k] = x[p];
-      x[p] = t;
+      for (const x of rhs) {
+        const t = x[k];
+        x[k] = x[p];
+        x[p] = t;
+      }
     }
     const piv = m[k * n + k];
     for (let i = k + 1; i < n; i++) {
@@ -60,15 +67,17 @@ export function solveLinear(A: readonly (readonly number[])[], b: readonly numbe
       if (f === 0) continue;
       m[i * n + k] = 0;
       for (let j = k + 1; j < n; j++) m[i * n + j] -= f * m[k * n + j];
-      x[i] -= f * x[k];
+      for (const x of rhs) x[i] -= f * x[k];
     }
   }
-  for (let i = n - 1; i >= 0; i--) {
-    let s = x[i];
-    for (let j = i + 1; j < n; j++) s -= m[i * n + j] * x[j];
-    x[i] = s / m[i * n + i];
+  for (const x of rhs) {
+    for (let i = n - 1; i >= 0; i--) {
+      let s = x[i];
+      for (let j = i + 1; j < n; j++) s -= m[i * n + j] * x[j];
+      x[i] = s / m[i * n + i];
+    }
   }
-  return Array.from(x);
+  return rhs;
 }
 
 /**
