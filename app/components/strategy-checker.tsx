@@ -1,14 +1,14 @@
 import { useMemo, useState } from 'react';
 import { useFetcher } from 'react-router';
-import { type Action, type Automaton, LIBRARY, PROFILES, type Profile } from '#app/lib/automata';
-import { validateAutomaton } from '#app/lib/automaton-check';
+import { type Automaton, LIBRARY } from '#app/lib/automata';
+import { MAX_STATES, validateAutomaton } from '#app/lib/automaton-check';
 import { breakingDeviation, checkStrategy, formatIntervals, inIntervals } from '#app/lib/equilibrium';
 import type { StageGame } from '#app/lib/stage-game';
 import { expectedTotal } from '#app/lib/values';
+import { AutomatonBuilder } from './automaton-builder';
 import { Button, FieldError, Notice } from './ui';
 
 const fmt = (x: number, d = 3) => String(Number(x.toFixed(d)));
-const PROFILE_WORDS: Record<Profile, string> = { cc: 'after (C, C)', cd: 'after (C, D)', dc: 'after (D, C)', dd: 'after (D, D)' };
 const NEW = '__new__';
 
 function blank(): Automaton {
@@ -53,9 +53,6 @@ export function StrategyChecker({
       : null;
     return { intervals, atDelta };
   }, [game, delta, strategy, issues.length, all]);
-
-  const setState = (i: number, change: (s: Automaton['states'][number]) => Automaton['states'][number]) =>
-    setDraft((d) => ({ ...d, states: d.states.map((s, j) => (j === i ? change(s) : s)) }));
 
   return (
     <section aria-labelledby="checker-title" className="flex flex-col gap-4 rounded-lg border border-slate-200 bg-white p-4">
@@ -117,98 +114,18 @@ export function StrategyChecker({
             </label>
           </div>
           {fetcher.data?.errors?.id ? <FieldError id="checker-id-error">{fetcher.data.errors.id}</FieldError> : null}
-          {/* One card per state, its four transitions two by two: the builder fits the editor's
-              side panel (30rem at 1440 px) and a phone without a sideways scroll. */}
-          <ol
-            className="flex flex-col gap-2 text-sm"
-            aria-label="States: the action of each state and the next state after each observed profile (own, partner)"
-          >
-            {draft.states.map((s, i) => (
-              <li key={i} className="rounded-md border border-slate-200 px-3 py-2">
-                <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
-                  <span className="font-semibold">
-                    State {i + 1}
-                    {i === 0 ? <span className="font-normal text-slate-600"> (start)</span> : null}
-                  </span>
-                  <label className="flex items-center gap-2">
-                    <span className="text-slate-600">plays</span>
-                    <select
-                      aria-label={`State ${i + 1} plays`}
-                      value={s.action}
-                      onChange={(e) => setState(i, (st) => ({ ...st, action: e.target.value as Action }))}
-                      className="min-h-9 rounded border border-slate-300 bg-white px-2"
-                    >
-                      <option value="C">C</option>
-                      <option value="D">D</option>
-                    </select>
-                  </label>
-                  {i > 0 ? (
-                    <button
-                      type="button"
-                      onClick={() =>
-                        setDraft((d) => ({
-                          ...d,
-                          states: d.states
-                            .filter((_, j) => j !== i)
-                            .map((st) => ({
-                              ...st,
-                              next: Object.fromEntries(
-                                PROFILES.map((p) => [p, st.next[p] === i ? 0 : st.next[p] > i ? st.next[p] - 1 : st.next[p]]),
-                              ) as Record<Profile, number>,
-                            })),
-                        }))
-                      }
-                      className="ml-auto min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
-                    >
-                      Remove<span className="sr-only"> state {i + 1}</span>
-                    </button>
-                  ) : null}
-                </div>
-                <div className="mt-2 grid grid-cols-2 gap-x-3 gap-y-2">
-                  {PROFILES.map((p) => (
-                    <label key={p} className="flex items-center justify-between gap-2">
-                      <span className="text-slate-600">Next {PROFILE_WORDS[p]}</span>
-                      <select
-                        aria-label={`State ${i + 1}, next ${PROFILE_WORDS[p]}`}
-                        value={s.next[p]}
-                        onChange={(e) => setState(i, (st) => ({ ...st, next: { ...st.next, [p]: Number(e.target.value) } }))}
-                        className="min-h-9 rounded border border-slate-300 bg-white px-2"
-                      >
-                        {draft.states.map((_, j) => (
-                          <option key={j} value={j}>
-                            {j + 1}
-                          </option>
-                        ))}
-                      </select>
-                    </label>
-                  ))}
-                </div>
-              </li>
-            ))}
-          </ol>
-          <div className="flex flex-wrap gap-2">
-            <Button
-              type="button"
-              variant="secondary"
-              disabled={draft.states.length >= 12}
-              onClick={() =>
-                setDraft((d) => ({
-                  ...d,
-                  states: [
-                    ...d.states,
-                    { action: 'D', next: { cc: d.states.length, cd: d.states.length, dc: d.states.length, dd: d.states.length } },
-                  ],
-                }))
-              }
-            >
-              Add a state
-            </Button>
-            {canSave ? (
-              <Button type="submit" disabled={issues.length > 0 || fetcher.state !== 'idle'}>
-                Save to this course
-              </Button>
-            ) : null}
-          </div>
+          <AutomatonBuilder
+            value={draft}
+            onChange={setDraft}
+            maxStates={MAX_STATES}
+            actions={
+              canSave ? (
+                <Button type="submit" disabled={issues.length > 0 || fetcher.state !== 'idle'}>
+                  Save to this course
+                </Button>
+              ) : null
+            }
+          />
           {issues.length ? (
             <ul className="flex flex-col gap-1" aria-live="polite">
               {issues.map((i) => (
