@@ -13,7 +13,7 @@
  * - Evolution: the discrete replicator map (Taylor & Jonker 1978) over the entries, with the
  *   background fitness stated.
  */
-import type { Automaton } from './automata';
+import { type Action, type Automaton, profileOf } from './automata';
 import { type AutomatonIssue, compileAutomaton, type CompiledAutomaton, MAX_STATES, validateAutomaton } from './automaton-check';
 import { oneMinusPow, solveInPlace } from './numeric';
 import { mulberry32, substreamSeed } from './prng';
@@ -302,4 +302,34 @@ export function survivors(evolution: Evolution, threshold = 1e-3): { entry: numb
     .map((share, entry) => ({ entry, share }))
     .filter((s) => s.share >= threshold)
     .sort((p, q) => q.share - p.share || p.entry - q.entry);
+}
+
+export interface PreviewPlay {
+  /** the entry's moves, round by round */
+  own: Action[];
+  /** the opponent's moves */
+  partner: Action[];
+  /** the entry's per-round value against this opponent at the league's δ, exactly (ε = 0) */
+  perRound: number;
+}
+
+/**
+ * The first `rounds` moves of `a` against `b` without errors, as the entry editor's live preview
+ * shows them, and the exact per-round value of the whole supergame at δ (no execution error).
+ */
+export function previewPlay(a: Automaton, b: Automaton, game: StageGame, delta: number, rounds = 8): PreviewPlay {
+  const own: Action[] = [];
+  const partner: Action[] = [];
+  let i = 0;
+  let j = 0;
+  for (let t = 0; t < rounds; t++) {
+    const x = a.states[i].action;
+    const y = b.states[j].action;
+    own.push(x);
+    partner.push(y);
+    i = a.states[i].next[profileOf(x, y)];
+    j = b.states[j].next[profileOf(y, x)];
+  }
+  const [va] = pairTotals(compileAutomaton(a), compileAutomaton(b), payoffTable(game), delta, 0);
+  return { own, partner, perRound: (1 - delta) * va };
 }

@@ -9,6 +9,7 @@ import {
   LEAGUE_MAX_STATES,
   leagueEntryIssues,
   pairTotals,
+  previewPlay,
   roundRobin,
   simulatedRoundRobin,
   standings,
@@ -256,5 +257,16 @@ describe('entries', () => {
     expect(leagueEntryIssues(big).map((i) => i.message)).toEqual([
       `A league entry may have at most ${LEAGUE_MAX_STATES} states (this one has ${LEAGUE_MAX_STATES + 1}).`,
     ]);
+  });
+});
+
+describe('preview', () => {
+  it('shows TFT against STFT alternating out of phase, worth (T + S)/2 per round in the long run', () => {
+    // Source: common practice (TFT vs suspicious TFT echo each other's defections); the value is
+    // the check matrix's TFT vs STFT = 113.143 at δ = 3/4 (methods.md §4), per round × (1 − δ).
+    const p = previewPlay(S('TFT'), S('STFT'), DBF48, 0.75, 6);
+    expect(p.own.join('')).toBe('CDCDCD');
+    expect(p.partner.join('')).toBe('DCDCDC');
+    expect(p.perRound).toBeCloseTo(0.25 * 113.143, 3);
   });
 });
