@@ -333,3 +333,60 @@ export function previewPlay(a: Automaton, b: Automaton, game: StageGame, delta: 
   const [va] = pairTotals(compileAutomaton(a), compileAutomaton(b), payoffTable(game), delta, 0);
   return { own, partner, perRound: (1 - delta) * va };
 }
+
+/** A class's estimated strategy mix (strategy-frequency estimation on a session). */
+export interface ClassMix {
+  /** library strategy ids, in the estimate's order */
+  strategies: readonly string[];
+  /** estimated shares φ, summing to 1 */
+  shares: readonly number[];
+  /** the estimate's error probability 1 − β, used as execution error ε */
+  errorProbability: number;
+}
+
+export interface ClassComparison {
+  /** per-round values among the estimated strategies, with ε = the estimate's error probability */
+  perRound: number[][];
+  /** each estimated strategy's per-round payoff against the estimated mix, f = A φ */
+  earnings: number[];
+  /** the mix's mean payoff, f̄ = φ·A φ */
+  mean: number;
+  /** replicator dynamics started from the class's own mix */
+  evolution: Evolution;
+  /** each league entry's per-round payoff against the class's mix (same ε) */
+  entriesAgainstMix: number[];
+}
+
+/**
+ * The class beside the league: what the strategies the class was estimated to use earn against
+ * each other and against the class's mix, how that mix evolves, and how each league entry would
+ * have fared in that population. The estimate's tremble plays the part of execution error.
+ */
+export function classComparison(
+  mix: ClassMix,
+  entries: readonly Automaton[],
+  game: StageGame,
+  delta: number,
+  generations: number,
+  strategyOf: (id: string) => Automaton,
+): ClassComparison {
+  if (mix.shares.length !== mix.strategies.length) throw new RangeError('one share per estimated strategy is needed');
+  // Estimates are stored rounded: shares summing to 0.9999 are read as the mix they describe.
+  const total = mix.shares.reduce((s, x) => s + x, 0);
+  if (!(total > 0) || mix.shares.some((x) => !(x >= 0))) throw new RangeError('shares must be non-negative and not all zero');
+  const shares = mix.shares.map((x) => x / total);
+  const settings = { game, delta, epsilon: mix.errorProbability };
+  checkSettings(settings);
+  const estimated = mix.strategies.map(strategyOf);
+  const perRound = roundRobin(estimated, settings);
+  const earnings = perRound.map((row) => row.reduce((s, v, k) => s + v * shares[k], 0));
+  const mean = earnings.reduce((s, f, j) => s + f * shares[j], 0);
+  const evolution = evolve(perRound, generations, { start: shares });
+  const u = payoffTable(game);
+  const compiledEstimated = estimated.map(compileAutomaton);
+  const entriesAgainstMix = entries.map((e) => {
+    const c = compileAutomaton(e);
+    return compiledEstimated.reduce((s, b, k) => s + shares[k] * (1 - delta) * pairTotals(c, b, u, delta, mix.errorProbability)[0], 0);
+  });
+  return { perRound, earnings, mean, evolution, entriesAgainstMix };
+}

@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { type Automaton, LIBRARY, libraryStrategy, profileOf, type Action } from '#app/lib/automata';
 import { compileAutomaton } from '#app/lib/automaton-check';
 import {
+  classComparison,
   evolve,
   LEAGUE_MAX_STATES,
   leagueEntryIssues,
@@ -268,5 +269,53 @@ describe('preview', () => {
     expect(p.own.join('')).toBe('CDCDCD');
     expect(p.partner.join('')).toBe('DCDCDC');
     expect(p.perRound).toBeCloseTo(0.25 * 113.143, 3);
+  });
+});
+
+describe('the class beside the league', () => {
+  // Source: Dal Bó & Fréchette (2011), Table 7, treatment δ = 3/4, R = 48: ALLC 0.0789, Grim 0.1158,
+  // TFT 0.5613, T2 0.2439 (ALLD, WSLS 0); β 0.9704 [calc] (methods.md §5).
+  const mix = { strategies: ['ALLC', 'Grim', 'TFT', 'T2'], shares: [0.0789, 0.1158, 0.5613, 0.2439], errorProbability: 1 - 0.9704 };
+  const entries = ['ALLD', 'TFT', 'WSLS'].map(S);
+  const result = classComparison(mix, entries, DBF48, 0.75, 100, S);
+
+  it('values the estimated strategies against each other with the tremble as execution error (ml-matrix)', () => {
+    // Source: independent reference, ml-matrix `solve` on the full product chain (methods.md §7).
+    mix.strategies.forEach((a, i) =>
+      mix.strategies.forEach((b, j) =>
+        expectClose(result.perRound[i][j], 0.25 * referenceTotal(S(a), S(b), DBF48, 0.75, mix.errorProbability), 1e-10),
+      ),
+    );
+    const phi = mix.shares.map((x) => x / 0.9999); // the published shares sum to 0.9999 (rounding)
+    const f = result.perRound.map((row) => row.reduce((s, v, k) => s + v * phi[k], 0));
+    result.earnings.forEach((e, j) => expectClose(e, f[j], 1e-12));
+    expectClose(
+      result.mean,
+      f.reduce((s, x, j) => s + x * phi[j], 0),
+      1e-12,
+    );
+  });
+
+  it('starts the evolution from the class mix', () => {
+    result.evolution.shares[0].forEach((x, k) => expectClose(x, mix.shares[k] / mix.shares.reduce((s, v) => s + v, 0), 1e-12));
+    expect(result.evolution.shares).toHaveLength(101);
+  });
+
+  it('scores each league entry against the class mix', () => {
+    // ALLD against the class: (1 − δ)·Σ_k φ_k V(ALLD vs k), each V by ml-matrix.
+    const expected = mix.strategies.reduce(
+      (s, id, k) => s + (mix.shares[k] / 0.9999) * 0.25 * referenceTotal(S('ALLD'), S(id), DBF48, 0.75, mix.errorProbability),
+      0,
+    );
+    expectClose(result.entriesAgainstMix[0], expected, 1e-10);
+  });
+
+  it('gives R to everyone when a nice mix makes no mistakes', () => {
+    // Source: common practice: nice strategies (never first to defect) cooperate with each other
+    // in every round, so each earns R = 48 per round against any mix of them.
+    const nice = classComparison({ ...mix, errorProbability: 0 }, [S('TFT')], DBF48, 0.75, 10, S);
+    nice.earnings.forEach((e) => expectClose(e, 48, 1e-12));
+    expectClose(nice.entriesAgainstMix[0], 48, 1e-12);
+    nice.evolution.shares[10].forEach((x, k) => expectClose(x, mix.shares[k] / mix.shares.reduce((s, v) => s + v, 0), 1e-9));
   });
 });
