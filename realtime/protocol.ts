@@ -1,7 +1,7 @@
 // The socket contract shared by the hub and the browser: event names `entity:verb`, payloads
 // validated with zod, every acknowledgement `{ ok: true, data } | { ok: false, code, message }`.
 import { z } from 'zod';
-import type { BigScreenView, ChoiceRow, ErrorCode, FloorView, ParticipantView } from './engine/types';
+import type { BigScreenView, StoredChoice, ErrorCode, FloorView, ParticipantView } from './engine/types';
 
 /**
  * `rate-limited`: the socket sent this kind of event faster than realtime/rate-limit.ts allows.
@@ -66,7 +66,7 @@ export const ParticipantAction = z
 export interface ClientToServerEvents {
   'me:get': (payload: z.input<typeof MeGet>, ack: (res: Ack<{ userId: number }>) => void) => void;
   'session:watch': (payload: z.input<typeof SessionWatch>, ack: (res: Ack<ParticipantView | FloorView | BigScreenView>) => void) => void;
-  'choice:submit': (payload: z.input<typeof ChoiceSubmit>, ack: (res: Ack<ChoiceRow>) => void) => void;
+  'choice:submit': (payload: z.input<typeof ChoiceSubmit>, ack: (res: Ack<StoredChoice>) => void) => void;
   'session:control': (payload: z.input<typeof SessionControl>, ack: (res: Ack<{ status: string }>) => void) => void;
   'participant:act': (payload: z.input<typeof ParticipantAction>, ack: (res: Ack<{ done: true }>) => void) => void;
 }

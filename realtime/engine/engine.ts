@@ -15,14 +15,14 @@
  * in their sequence order rebuilds the same state (see rebuild.ts). The input state is never mutated.
  */
 import { type Action, type Automaton, libraryStrategy, LIBRARY, profileOf } from '#app/lib/automata';
+import type { ChoiceSource } from '#app/lib/choice-panel';
 import type { Design } from '#app/lib/design';
 import { describeDraw, drawSequence, supergameDraws } from '#app/lib/draws';
 import { matchSupergame } from '#app/lib/matching';
 import { normaliseSeed, type Seed } from '#app/lib/rng';
 import type {
   BatchScope,
-  ChoiceRow,
-  ChoiceSource,
+  StoredChoice,
   Effect,
   EngineError,
   EngineEvent,
@@ -122,7 +122,7 @@ class Draft {
   timers: Effect[] = [];
   touched = new Set<string>();
   touchAll = false;
-  row: ChoiceRow | undefined;
+  row: StoredChoice | undefined;
 
   constructor(
     state: EngineState,
@@ -242,10 +242,10 @@ function addRow(
   strategy: string | null,
   clientChoiceId: string | null,
   at: number,
-): ChoiceRow {
+): StoredChoice {
   const participantId = pair.seats[seat].participantId;
   const elapsed = at - pair.openedAt - pair.pausedMs - (d.s.pausedAt !== null ? at - Math.max(d.s.pausedAt, pair.openedAt) : 0);
-  const row: ChoiceRow = {
+  const row: StoredChoice = {
     sessionId: d.s.sessionId,
     seq: d.nextSeq(),
     supergame: pair.supergame,
@@ -307,7 +307,7 @@ function reveal(d: Draft, pair: PairState, fromRound: number, toRound: number): 
 }
 
 function resolveRound(d: Draft, pair: PairState): number {
-  const [a, b] = pair.pending as [ChoiceRow, ChoiceRow];
+  const [a, b] = pair.pending as [StoredChoice, StoredChoice];
   const sg = d.s.supergame!;
   const design = d.s.design;
   const actions: [Action, Action] = [a.action, b.action];
@@ -604,7 +604,7 @@ function applyTimeout(d: Draft, pairId: string, round: number): EngineError | nu
   return null;
 }
 
-function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: ChoiceRow } | null {
+function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: StoredChoice } | null {
   const s = d.s;
   switch (e.type) {
     case 'open': {

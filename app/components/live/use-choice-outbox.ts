@@ -1,7 +1,7 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import type { Action } from '#app/lib/automata';
 import type { Ack } from '#realtime/protocol';
-import type { ChoiceRow, ParticipantView } from '#realtime/engine/types';
+import type { StoredChoice, ParticipantView } from '#realtime/engine/types';
 import { backoffMs, loadOutbox, newChoiceId, type OutboxEntry, outcomeOf, sameRound, saveOutbox } from './outbox';
 
 type Emit = (event: 'choice:submit', payload: OutboxEntry) => Promise<Ack<unknown>>;
@@ -96,7 +96,7 @@ export function useChoiceOutbox({
     const attempt = Date.now() + Math.random();
     inflight.current = attempt;
     void emit('choice:submit', e).then((raw) => {
-      const res = raw as Ack<ChoiceRow>;
+      const res = raw as Ack<StoredChoice>;
       const current = inflight.current === attempt;
       if (current) inflight.current = null;
       if (entryRef.current?.clientChoiceId !== e.clientChoiceId) return;
