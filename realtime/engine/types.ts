@@ -262,6 +262,8 @@ export interface EngineState {
 }
 
 export interface ParticipantView {
+  /** the tag every view carries: `session:watch` answers any of the three */
+  kind: 'participant';
   sessionId: string;
   participantId: string;
   pseudonym: string;
@@ -316,6 +318,7 @@ export interface FloorSeatView {
 }
 
 export interface FloorView {
+  kind: 'floor';
   sessionId: string;
   status: SessionStatus;
   supergame: number;
@@ -347,6 +350,7 @@ export interface FloorView {
 }
 
 export interface BigScreenView {
+  kind: 'big-screen';
   sessionId: string;
   status: SessionStatus;
   joined: number;
