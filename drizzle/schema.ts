@@ -14,6 +14,7 @@ import {
   varchar,
 } from 'drizzle-orm/mysql-core';
 
+import { CHOICE_SOURCES } from '#app/lib/choice-panel';
 import { COURSE_ROLES } from '#app/utils/roles';
 
 export { COURSE_ROLES, type CourseRole } from '#app/utils/roles';
@@ -230,7 +231,6 @@ export const courseStrategies = mysqlTable(
 );
 
 export const SESSION_STATUSES = ['draft', 'open', 'running', 'paused', 'complete', 'archived', 'cancelled'] as const;
-export const CHOICE_SOURCES = ['player', 'timeout', 'computer'] as const;
 
 /**
  * A session: one live run of a design (product.md). The design is frozen into `params` when the
@@ -301,7 +301,7 @@ export const sessionParticipants = mysqlTable(
 );
 
 /**
- * One row per seat × round: the engine's ChoiceRow. The unique key on (session, supergame, round,
+ * One row per seat × round: the engine's StoredChoice. The unique key on (session, supergame, round,
  * pair, seat) is what makes a repeated submission write nothing more, whichever process races.
  */
 export const choices = mysqlTable(

@@ -20,14 +20,13 @@ import type { EngineEvent } from './engine/types';
 import { bigScreenView, floorView, participantView } from './engine/views';
 import {
   type Ack,
+  type AckData,
   type AckErrorCode,
-  ChoiceSubmit,
+  type ClientEvent,
   type ClientToServerEvents,
-  MeGet,
-  ParticipantAction,
-  SessionControl,
+  EVENT_PAYLOADS,
+  type InputOf,
   type ServerToClientEvents,
-  SessionWatch,
   type SocketData,
   UNAUTHORIZED,
 } from './protocol';
@@ -35,7 +34,7 @@ import { EventLimiter } from './rate-limit';
 import { SessionRunner } from './runner';
 import { StorageUnavailable } from './storage-health';
 
-export type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
+type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
 
 class Refusal extends Error {
   constructor(
@@ -56,11 +55,13 @@ export function attachHub(httpServer: HttpServer) {
   });
   const runner = new SessionRunner({
     listening: (room) => (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
-    send: (room, event, payload) => {
-      // socket.io's emit is typed per event; the runner's `send` is the same contract in one signature
-      const target = room === null ? io : io.to(room);
-      (target.emit as (e: typeof event, p: typeof payload) => boolean)(event, payload);
+    view: (room, view) => {
+      const to = io.to(room);
+      if (view.kind === 'participant') to.emit('view:participant', view);
+      else if (view.kind === 'floor') to.emit('view:floor', view);
+      else to.emit('view:big-screen', view);
     },
+    storage: (ok) => io.emit('storage:status', { ok }),
   });
   setRunner(runner);
 
@@ -115,115 +116,102 @@ export function attachHub(httpServer: HttpServer) {
     // Before handle(): a flood is answered `rate-limited` without validating or running anything.
     socket.use(rateLimit(new EventLimiter()));
 
-    socket.on('me:get', (payload, ack) => handle(MeGet, payload, ack, async () => ({ userId })));
+    /** Every event is registered here, so each handler's result is checked against its ack type. */
+    const on = <E extends ClientEvent>(event: E, run: (input: InputOf<E>) => Promise<AckData[E]>) =>
+      listen(socket, event, (args) => handle(event, args, run));
 
-    socket.on('session:watch', (payload, ack) =>
-      handle(SessionWatch, payload, ack, async ({ sessionId, as }) => {
-        if (as === 'participant') {
-          const session = await sessionFor(sessionId);
-          const state = await runner.state(sessionId);
-          if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
-          // In a roster session, a member removed from the course keeps no seat, whatever the
-          // session's state says. (Open sessions admit people who are not members.)
-          if (session.admission === 'roster' && !(await roleFor(userId, session.courseId))) {
-            throw new Refusal('forbidden', 'You are no longer a member of this course.');
-          }
-          await socket.join(roomOf('participant', String(sessionId), me));
-          playing.add(sessionId);
-          let res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
-          // Handed to a computer while away, now back: plays again from the next supergame.
-          if (res.state.participants[me]?.status === 'handed' && (res.state.status === 'running' || res.state.status === 'paused')) {
-            const back = await runner.dispatch(sessionId, { type: 'join', participantId: me });
-            if (!back.error) res = back;
-          }
-          return participantView(res.state, me);
+    on('me:get', async () => ({ userId }));
+
+    on('session:watch', async ({ sessionId, as }) => {
+      if (as === 'participant') {
+        const session = await sessionFor(sessionId);
+        const state = await runner.state(sessionId);
+        if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
+        // In a roster session, a member removed from the course keeps no seat, whatever the
+        // session's state says. (Open sessions admit people who are not members.)
+        if (session.admission === 'roster' && !(await roleFor(userId, session.courseId))) {
+          throw new Refusal('forbidden', 'You are no longer a member of this course.');
         }
-        const { role } = await requireStaff(
-          userId,
-          sessionId,
-          as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher'],
+        await socket.join(roomOf('participant', String(sessionId), me));
+        playing.add(sessionId);
+        let res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
+        // Handed to a computer while away, now back: plays again from the next supergame.
+        if (res.state.participants[me]?.status === 'handed' && (res.state.status === 'running' || res.state.status === 'paused')) {
+          const back = await runner.dispatch(sessionId, { type: 'join', participantId: me });
+          if (!back.error) res = back;
+        }
+        return participantView(res.state, me);
+      }
+      await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);
+      const state = (await runner.state(sessionId))!;
+      if (as === 'floor') {
+        await socket.join(roomOf('staff', String(sessionId)));
+        return floorView(state, Date.now());
+      }
+      await socket.join(roomOf('session', String(sessionId)));
+      return bigScreenView(state);
+    });
+
+    on('choice:submit', async (c) => {
+      await sessionFor(c.sessionId);
+      // Only a socket that was admitted to this session as a participant (session:watch checks
+      // membership) may choose; a removal closes the socket, so its replacement must ask again.
+      if (!playing.has(c.sessionId)) throw new Refusal('forbidden', 'Open the session on this device first.');
+      const res = await runner.dispatch(c.sessionId, {
+        type: 'choose',
+        participantId: me,
+        supergame: c.supergame,
+        round: c.round,
+        action: c.action,
+        clientChoiceId: c.clientChoiceId,
+      });
+      if (res.error) {
+        // A retry of a stored choice (double tap, resend after reconnect): the same answer again.
+        if (res.error.code === 'already-chosen' && res.row?.clientChoiceId === c.clientChoiceId) return res.row;
+        throw new Refusal(res.error.code, res.error.message);
+      }
+      return res.row!;
+    });
+
+    on('session:control', async ({ sessionId, command }) => {
+      // product.md "Roles": assistants may pause and resume only.
+      const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
+      await requireStaff(userId, sessionId, roles);
+      const event: EngineEvent =
+        command === 'end-after-supergame' ? { type: 'endAfterSupergame' } : command === 'end-now' ? { type: 'endNow' } : { type: command };
+      const res = await runner.dispatch(sessionId, event, { userId });
+      if (res.error) throw new Refusal(res.error.code, res.error.message);
+      return { status: res.state.status };
+    });
+
+    on('participant:act', async ({ sessionId, participantId, action, strategy }) => {
+      const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
+      const state = (await runner.state(sessionId))!;
+      if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
+      // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
+      if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
+        throw new Refusal(
+          'session-not-running',
+          `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`,
         );
-        const state = (await runner.state(sessionId))!;
-        if (as === 'floor') {
-          await socket.join(roomOf('staff', String(sessionId)));
-          return floorView(state, Date.now());
-        }
-        void role;
-        await socket.join(roomOf('session', String(sessionId)));
-        return bigScreenView(state);
-      }),
-    );
-
-    socket.on('choice:submit', (payload, ack) =>
-      handle(ChoiceSubmit, payload, ack, async (c) => {
-        await sessionFor(c.sessionId);
-        // Only a socket that was admitted to this session as a participant (session:watch checks
-        // membership) may choose; a removal closes the socket, so its replacement must ask again.
-        if (!playing.has(c.sessionId)) throw new Refusal('forbidden', 'Open the session on this device first.');
-        const res = await runner.dispatch(c.sessionId, {
-          type: 'choose',
-          participantId: me,
-          supergame: c.supergame,
-          round: c.round,
-          action: c.action,
-          clientChoiceId: c.clientChoiceId,
+      }
+      if (action === 'nudge') {
+        io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', {
+          message: 'Your partner is waiting: please choose.',
         });
-        if (res.error) {
-          // A retry of a stored choice (double tap, resend after reconnect): the same answer again.
-          if (res.error.code === 'already-chosen' && res.row?.clientChoiceId === c.clientChoiceId) return res.row;
-          throw new Refusal(res.error.code, res.error.message);
-        }
-        return res.row!;
-      }),
-    );
-
-    socket.on('session:control', (payload, ack) =>
-      handle(SessionControl, payload, ack, async ({ sessionId, command }) => {
-        // product.md "Roles": assistants may pause and resume only.
-        const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
-        await requireStaff(userId, sessionId, roles);
-        const event: EngineEvent =
-          command === 'end-after-supergame'
-            ? { type: 'endAfterSupergame' }
-            : command === 'end-now'
-              ? { type: 'endNow' }
-              : { type: command };
-        const res = await runner.dispatch(sessionId, event, { userId });
-        if (res.error) throw new Refusal(res.error.code, res.error.message);
-        return { status: res.state.status };
-      }),
-    );
-
-    socket.on('participant:act', (payload, ack) =>
-      handle(ParticipantAction, payload, ack, async ({ sessionId, participantId, action, strategy }) => {
-        const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
-        const state = (await runner.state(sessionId))!;
-        if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
-        // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
-        if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
-          throw new Refusal(
-            'session-not-running',
-            `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`,
-          );
-        }
-        if (action === 'nudge') {
-          io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', {
-            message: 'Your partner is waiting: please choose.',
-          });
-          return { done: true as const };
-        }
-        const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
-        const chosen = strategy ?? fallback;
-        if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
-        const res = await runner.dispatch(
-          sessionId,
-          action === 'remove' ? { type: 'remove', participantId } : { type: 'handToComputer', participantId, strategy: chosen },
-          { userId },
-        );
-        if (res.error) throw new Refusal(res.error.code, res.error.message);
-        return { done: true as const };
-      }),
-    );
+        return { done: true };
+      }
+      const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
+      const chosen = strategy ?? fallback;
+      if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
+      const res = await runner.dispatch(
+        sessionId,
+        action === 'remove' ? { type: 'remove', participantId } : { type: 'handToComputer', participantId, strategy: chosen },
+        { userId },
+      );
+      if (res.error) throw new Refusal(res.error.code, res.error.message);
+      return { done: true };
+    });
 
     socket.on('disconnect', () => {
       for (const sessionId of playing) void runner.dispatch(sessionId, { type: 'disconnect', participantId: me }).catch(() => undefined);
@@ -248,11 +236,39 @@ function rateLimit(limiter: EventLimiter) {
   };
 }
 
-/** Validate, run, acknowledge: every event goes through here so no payload skips zod. */
-async function handle<S extends z.ZodType, T>(schema: S, payload: unknown, ack: unknown, run: (input: z.output<S>) => Promise<T>) {
-  if (typeof ack !== 'function') return;
-  const reply = ack as (res: Ack<T>) => void;
-  const parsed = schema.safeParse(payload ?? {});
+/**
+ * The payload schemas as a table indexed by event: the same objects as EVENT_PAYLOADS, typed so
+ * that `SCHEMAS[event]` for a generic event yields that event's input type (TypeScript checks
+ * each entry here, where the event is known).
+ */
+const SCHEMAS: { [E in ClientEvent]: z.ZodType<InputOf<E>> } = EVENT_PAYLOADS;
+
+/**
+ * socket.io calls a listener with whatever the client sent: the payload, any extra arguments, and
+ * the acknowledgement callback last (if the client asked for one). The listener takes them as
+ * they come; handle() decides what they mean.
+ */
+function listen(socket: HubSocket, event: ClientEvent, listener: (args: unknown[]) => void) {
+  socket.on(event, (...args: unknown[]) => listener(args));
+}
+
+/**
+ * Validate, run, acknowledge: every event goes through here so no payload skips zod. The ack is
+ * the last argument when it is a function (an extra argument before it must not hide it); an
+ * event with more than a payload and an ack is answered `bad-payload` and runs nothing.
+ */
+async function handle<E extends ClientEvent>(event: E, args: unknown[], run: (input: InputOf<E>) => Promise<AckData[E]>) {
+  const last = args.at(-1);
+  if (typeof last !== 'function') return;
+  const reply = (res: Ack<AckData[E]>) => {
+    last(res);
+  };
+  const rest = args.slice(0, -1);
+  if (rest.length > 1) {
+    reply({ ok: false, code: 'bad-payload', message: `${event} takes one payload; ${rest.length} arguments were sent.` });
+    return;
+  }
+  const parsed = SCHEMAS[event].safeParse(rest[0] ?? {});
   if (!parsed.success) {
     reply({
       ok: false,

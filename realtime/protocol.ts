@@ -1,7 +1,10 @@
 // The socket contract shared by the hub and the browser: event names `entity:verb`, payloads
 // validated with zod, every acknowledgement `{ ok: true, data } | { ok: false, code, message }`.
+// One table per direction: EVENT_PAYLOADS (what the hub validates) and AckData (what it answers);
+// ClientToServerEvents is made from both, so the hub's handlers and the browser's calls are
+// checked against the same declaration.
 import { z } from 'zod';
-import type { BigScreenView, ChoiceRow, ErrorCode, FloorView, ParticipantView } from './engine/types';
+import type { BigScreenView, ErrorCode, FloorView, ParticipantView, SessionStatus, StoredChoice } from './engine/types';
 
 /**
  * `rate-limited`: the socket sent this kind of event faster than realtime/rate-limit.ts allows.
@@ -20,7 +23,8 @@ export const ACK_ERROR_CODES = [
 ] as const;
 export type AckErrorCode = (typeof ACK_ERROR_CODES)[number] | ErrorCode;
 
-export type Ack<T> = { ok: true; data: T } | { ok: false; code: AckErrorCode; message: string };
+export type AckFailure = { ok: false; code: AckErrorCode; message: string };
+export type Ack<T> = { ok: true; data: T } | AckFailure;
 
 const SessionId = z.number().int().positive();
 
@@ -63,13 +67,37 @@ export const ParticipantAction = z
   })
   .strict();
 
-export interface ClientToServerEvents {
-  'me:get': (payload: z.input<typeof MeGet>, ack: (res: Ack<{ userId: number }>) => void) => void;
-  'session:watch': (payload: z.input<typeof SessionWatch>, ack: (res: Ack<ParticipantView | FloorView | BigScreenView>) => void) => void;
-  'choice:submit': (payload: z.input<typeof ChoiceSubmit>, ack: (res: Ack<ChoiceRow>) => void) => void;
-  'session:control': (payload: z.input<typeof SessionControl>, ack: (res: Ack<{ status: string }>) => void) => void;
-  'participant:act': (payload: z.input<typeof ParticipantAction>, ack: (res: Ack<{ done: true }>) => void) => void;
+/** Each event's payload schema: the hub validates with it; the browser's payload type is its input. */
+export const EVENT_PAYLOADS = {
+  'me:get': MeGet,
+  'session:watch': SessionWatch,
+  'choice:submit': ChoiceSubmit,
+  'session:control': SessionControl,
+  'participant:act': ParticipantAction,
+} as const;
+
+export type ClientEvent = keyof typeof EVENT_PAYLOADS;
+/** What the browser sends with an event. */
+export type PayloadOf<E extends ClientEvent> = z.input<(typeof EVENT_PAYLOADS)[E]>;
+/** What a handler receives: the payload after validation. */
+export type InputOf<E extends ClientEvent> = z.output<(typeof EVENT_PAYLOADS)[E]>;
+
+/** The view `session:watch` answers with: tagged by `kind`, the same view its broadcasts carry. */
+export type WatchedView = ParticipantView | FloorView | BigScreenView;
+
+/** What each event's acknowledgement carries on success. */
+export interface AckData {
+  'me:get': { userId: number };
+  'session:watch': WatchedView;
+  /** the stored choice (a retry with the same client choice id gets the same row) */
+  'choice:submit': StoredChoice;
+  'session:control': { status: SessionStatus };
+  'participant:act': { done: true };
 }
+
+export type ClientToServerEvents = {
+  [E in ClientEvent]: (payload: PayloadOf<E>, ack: (res: Ack<AckData[E]>) => void) => void;
+};
 
 export interface ServerToClientEvents {
   'view:participant': (view: ParticipantView) => void;

@@ -14,13 +14,15 @@ import { sessions } from '#drizzle/schema';
 import { newBatchScope, resumeEffects, roomOf, step } from './engine/engine';
 import type { Effect, EngineEvent, EngineState, StepResult } from './engine/types';
 import { bigScreenView, floorView, participantView } from './engine/views';
-import type { ServerToClientEvents } from './protocol';
+import type { WatchedView } from './protocol';
 import { isStorageError, StorageHealth, StorageUnavailable } from './storage-health';
 
-/** What the runner needs of socket.io: who listens where, and sending to a room (or to all). */
+/** What the runner needs of socket.io: who listens where, a view to its room, storage news to all. */
 export interface Broadcaster {
   listening(room: string): boolean;
-  send<E extends keyof ServerToClientEvents>(room: string | null, event: E, payload: Parameters<ServerToClientEvents[E]>[0]): void;
+  /** the view goes out as its kind's event (`view:participant`, `view:floor`, `view:big-screen`) */
+  view(room: string, view: WatchedView): void;
+  storage(ok: boolean): void;
 }
 
 interface Waiter {
@@ -180,7 +182,7 @@ export class SessionRunner {
         ? '[parley] database answers again: every waiting round gets its full time'
         : '[parley] database not answering: choices are refused until it does',
     );
-    this.out?.send(null, 'storage:status', { ok });
+    this.out?.storage(ok);
     if (ok) {
       void this.graceAll();
       return;
@@ -274,7 +276,7 @@ export class SessionRunner {
       const sid = String(id);
       for (const p of touched) {
         const room = roomOf('participant', sid, p);
-        if (this.out.listening(room)) this.out.send(room, 'view:participant', participantView(live.state, p));
+        if (this.out.listening(room)) this.out.view(room, participantView(live.state, p));
       }
     }
     if (changed) this.staffChanged(live);
@@ -312,8 +314,8 @@ export class SessionRunner {
     const floor = roomOf('staff', sid);
     const screen = roomOf('session', sid);
     // Nobody watching: nothing is built (socket.io would encode the frame before it looks at the room).
-    if (this.out.listening(floor)) this.out.send(floor, 'view:floor', floorView(live.state, s.last));
-    if (this.out.listening(screen)) this.out.send(screen, 'view:big-screen', bigScreenView(live.state));
+    if (this.out.listening(floor)) this.out.view(floor, floorView(live.state, s.last));
+    if (this.out.listening(screen)) this.out.view(screen, bigScreenView(live.state));
   }
 
   private applyTimers(sessionId: number, effects: readonly Effect[]) {
@@ -363,11 +365,6 @@ export class SessionRunner {
       this.loading.set(sessionId, pending);
     }
     return pending;
-  }
-
-  /** A new session was created (draft): nothing to load yet, but forget any stale copy. */
-  forget(sessionId: number) {
-    this.live.delete(sessionId);
   }
 
   /** A safety net for a lost timer: due rounds are filled in by the timeout rule. */

@@ -8,7 +8,7 @@
  */
 import { designSchema } from '#app/lib/design';
 import { rebuild } from '#realtime/engine/rebuild';
-import type { ChoiceRow, LogRow, ParticipantRow } from '#realtime/engine/types';
+import type { StoredChoice, LogRow, ParticipantRow } from '#realtime/engine/types';
 import { simulateSession } from '../seeds/simulate';
 
 const N = Number(process.env.PARLEY_BENCH_REBUILD_N ?? 1000);
@@ -23,7 +23,7 @@ const sim = simulateSession({
   startMs: Date.UTC(2026, 11, 2, 9),
 });
 const participants: ParticipantRow[] = [];
-const choices: ChoiceRow[] = [];
+const choices: StoredChoice[] = [];
 const logs: LogRow[] = [];
 for (const e of sim.effects) {
   if (e.type === 'persist-participant') participants.push(e.row);

@@ -18,7 +18,9 @@ import type { Action } from './automata';
 import type { ChoiceRow } from './panel';
 import { stagePayoff, type StageGame } from './stage-game';
 
-export type ChoiceSource = 'player' | 'timeout' | 'computer';
+/** Who made a stored choice: the participant, the design's timeout rule, or a computer seat. */
+export const CHOICE_SOURCES = ['player', 'timeout', 'computer'] as const;
+export type ChoiceSource = (typeof CHOICE_SOURCES)[number];
 
 /** Where a choice came from; `own` is the participant's own choice in a paid round. */
 export const ORIGINS = ['own', 'timeout', 'computer_seat', 'unpaid_round'] as const;

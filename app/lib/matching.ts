@@ -23,7 +23,7 @@
  * fewest times) gets a disclosed computer partner, or sits out, as the design says.
  */
 import maxWeightMatching from 'edmonds-blossom-fixed';
-import { randomInt, rngFor, shuffleInPlace, type Seed } from './rng';
+import { type RandomStream, randomInt, rngFor, shuffleInPlace, type Seed } from './rng';
 
 export type OddCountPolicy = { kind: 'computer'; strategy: string } | { kind: 'sit-out' };
 
@@ -329,13 +329,7 @@ function allowing(p: Prepared, dummy: number, ok: Adjacency): Adjacency {
 const isPerfect = (match: Int32Array) => match.every((m) => m !== -1);
 
 /** A random greedy matching: on the dense graphs of a class it leaves very few vertices to augment. */
-function greedyStart(
-  V: number,
-  adj: Adjacency,
-  order: readonly number[],
-  rng: ReturnType<typeof rngFor>,
-  match = new Int32Array(V).fill(-1),
-) {
+function greedyStart(V: number, adj: Adjacency, order: readonly number[], rng: RandomStream, match = new Int32Array(V).fill(-1)) {
   for (const v of order) {
     if (match[v] !== -1) continue;
     const offset = V > 0 ? randomInt(rng, 0, V - 1) : 0;

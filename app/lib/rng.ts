@@ -10,7 +10,8 @@ import { xoroshiro128plus } from 'pure-rand/generator/xoroshiro128plus';
 import type { JumpableRandomGenerator } from 'pure-rand/types/JumpableRandomGenerator';
 
 export type Seed = string | number;
-export type Rng = JumpableRandomGenerator;
+/** one seeded stream of integers (pure-rand's jumpable generator); prng.ts's `Rng` is a uniform [0, 1) function */
+export type RandomStream = JumpableRandomGenerator;
 
 const UINT32 = 0x1_0000_0000;
 
@@ -56,7 +57,7 @@ export type RngDomain = keyof typeof DOMAINS;
  * Stream `index` (≥ 0) of a domain: the domain's generator jumped `index + 1` times (each jump of
  * xoroshiro128+ skips 2^64 numbers, so the streams never overlap in practice).
  */
-export function rngFor(seed: Seed, domain: RngDomain, index: number): Rng {
+export function rngFor(seed: Seed, domain: RngDomain, index: number): RandomStream {
   if (!Number.isInteger(index) || index < 0) throw new RangeError(`Bad stream index ${index}`);
   const rng = xoroshiro128plus(mix32(normaliseSeed(seed) ^ DOMAINS[domain]) | 0);
   // xoroshiro128+ seeded from 32 bits starts in a sparse state; a few outputs fill it out.
@@ -66,12 +67,12 @@ export function rngFor(seed: Seed, domain: RngDomain, index: number): Rng {
 }
 
 /** Unbiased integer in [from, to] (rejection sampling inside pure-rand). */
-export function randomInt(rng: Rng, from: number, to: number): number {
+export function randomInt(rng: RandomStream, from: number, to: number): number {
   return uniformInt(rng, from, to);
 }
 
 /** Fisher–Yates shuffle, in place; returns the same array. */
-export function shuffleInPlace<T>(rng: Rng, items: T[]): T[] {
+export function shuffleInPlace<T>(rng: RandomStream, items: T[]): T[] {
   for (let i = items.length - 1; i > 0; i--) {
     const j = uniformInt(rng, 0, i);
     const t = items[i];

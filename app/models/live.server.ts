@@ -5,7 +5,7 @@ import { type Design, designSchema } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { choices, sessionLog, sessionPairs, sessionParticipants, sessions, supergameDraws } from '#drizzle/schema';
 import { rebuild } from '#realtime/engine/rebuild';
-import type { ChoiceRow, Effect, EngineState, LogRow, ParticipantRow } from '#realtime/engine/types';
+import type { StoredChoice, Effect, EngineState, LogRow, ParticipantRow } from '#realtime/engine/types';
 
 /** No 0/O and no 1/I: codes are read off a projector and typed on phones. */
 export const JOIN_ALPHABET = 'ABCDEFGHJKLMNPQRSTUVWXYZ23456789';
@@ -157,7 +157,7 @@ export async function writeEffects(
   if (choiceRows.length) await w.insert(choices).values(choiceRows);
 }
 
-function choiceInsert(sessionId: number, r: ChoiceRow): typeof choices.$inferInsert {
+function choiceInsert(sessionId: number, r: StoredChoice): typeof choices.$inferInsert {
   return {
     sessionId,
     seq: r.seq,
@@ -217,7 +217,7 @@ export async function loadRows(sessionId: number) {
     joinedAt: r.joinedAtMs,
     seq: r.seq,
   }));
-  const choiceRows: ChoiceRow[] = c.map((r) => ({
+  const choiceRows: StoredChoice[] = c.map((r) => ({
     sessionId: String(sessionId),
     seq: r.seq,
     supergame: r.supergame,

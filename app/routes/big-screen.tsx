@@ -53,8 +53,7 @@ function Stat({ label, value, of, testId }: { label: string; value: number; of?:
 
 export default function BigScreen({ loaderData }: Route.ComponentProps) {
   const { session, qr, joinHost, labelC, initial } = loaderData;
-  const { view, connected } = useSessionView(session.id, 'big-screen', initial);
-  const screen = view && 'cooperationByRound' in view ? view : null;
+  const { view: screen, connected } = useSessionView(session.id, 'big-screen', initial);
   const status = screen?.status ?? session.status;
   const lobby = status === 'open' || status === 'draft';
   const live = status === 'running' || status === 'paused';

@@ -12,7 +12,7 @@
 import type { Design } from '#app/lib/design';
 import type { Seed } from '#app/lib/rng';
 import { createSession, newBatchScope, step } from './engine';
-import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow } from './types';
+import type { StoredChoice, Effect, EngineEvent, EngineState, LogRow, ParticipantRow } from './types';
 
 export class RebuildError extends Error {
   constructor(
@@ -27,7 +27,7 @@ export class RebuildError extends Error {
 type Item =
   | { seq: number; kind: 'participant'; row: ParticipantRow }
   | { seq: number; kind: 'log'; row: LogRow }
-  | { seq: number; kind: 'choice'; row: ChoiceRow };
+  | { seq: number; kind: 'choice'; row: StoredChoice };
 
 /** JSON with sorted keys, so rows read back from a database compare by content, not key order. */
 function canonical(value: unknown): string {
@@ -43,7 +43,7 @@ export function rebuild(
   design: Design,
   seed: Seed,
   participants: readonly ParticipantRow[],
-  storedChoices: readonly ChoiceRow[],
+  storedChoices: readonly StoredChoice[],
   staffEvents: readonly LogRow[],
   opts: { sessionId: string },
 ): EngineState {

@@ -3,16 +3,16 @@
  * "Shape of the house"). Nothing here does IO; the hub persists, broadcasts and keeps the timers.
  */
 import type { Action } from '#app/lib/automata';
+import type { ChoiceSource } from '#app/lib/choice-panel';
 import type { Design } from '#app/lib/design';
 import type { SupergameDraws } from '#app/lib/draws';
 import type { Matching } from '#app/lib/matching';
 
 /** cancelled: opened, then called off before it started (its join code no longer works) */
 export type SessionStatus = 'draft' | 'open' | 'running' | 'paused' | 'complete' | 'archived' | 'cancelled';
-export type ChoiceSource = 'player' | 'timeout' | 'computer';
 
 /** One stored choice: one seat of one pair in one round. */
-export interface ChoiceRow {
+export interface StoredChoice {
   sessionId: string;
   /** the engine's sequence number (shared with participant and log rows): the replay order */
   seq: number;
@@ -200,7 +200,7 @@ export interface PairState {
   remainingMs: number | null;
   /** paused time accumulated in the open round (for decision times) */
   pausedMs: number;
-  pending: [ChoiceRow | null, ChoiceRow | null];
+  pending: [StoredChoice | null, StoredChoice | null];
   rounds: RoundRecord[];
   done: boolean;
   doneAt: number | null;
@@ -252,7 +252,7 @@ export interface EngineState {
   pastPairs: [string, string][];
   summaries: SupergameSummary[];
   /** each participant's rows of the current and the previous supergame — for idempotent resubmission */
-  recentChoices: Record<string, ChoiceRow[]>;
+  recentChoices: Record<string, StoredChoice[]>;
   endAfterSupergame: boolean;
   pausedAt: number | null;
   startedAt: number | null;
@@ -262,6 +262,8 @@ export interface EngineState {
 }
 
 export interface ParticipantView {
+  /** the tag every view carries: `session:watch` answers any of the three */
+  kind: 'participant';
   sessionId: string;
   participantId: string;
   pseudonym: string;
@@ -316,6 +318,7 @@ export interface FloorSeatView {
 }
 
 export interface FloorView {
+  kind: 'floor';
   sessionId: string;
   status: SessionStatus;
   supergame: number;
@@ -347,6 +350,7 @@ export interface FloorView {
 }
 
 export interface BigScreenView {
+  kind: 'big-screen';
   sessionId: string;
   status: SessionStatus;
   joined: number;
@@ -396,7 +400,7 @@ export type BroadcastPayload =
 
 export type Effect =
   /** write the row; acknowledge the choice only after the commit */
-  | { type: 'persist-choice'; row: ChoiceRow }
+  | { type: 'persist-choice'; row: StoredChoice }
   | { type: 'persist-participant'; row: ParticipantRow }
   /** `by`: the user who caused it, when the runner writes a batch of several users' events */
   | { type: 'persist-log'; row: LogRow; by?: number | null }
@@ -446,7 +450,7 @@ export interface StepResult {
   effects: Effect[];
   error?: EngineError;
   /** the stored row for a choice (new, or the earlier one on 'already-chosen') */
-  row?: ChoiceRow;
+  row?: StoredChoice;
   /** participants whose own view changed in this step (empty on an error or a quiet tick) */
   touched: readonly string[];
 }

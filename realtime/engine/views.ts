@@ -92,6 +92,7 @@ export function participantView(s: EngineState, participantId: string): Particip
 
   const open = pair && !pair.done && !finished;
   return {
+    kind: 'participant',
     sessionId: s.sessionId,
     participantId,
     pseudonym: p.pseudonym,
@@ -193,6 +194,7 @@ export function floorView(s: EngineState, now: number): FloorView {
   }
   const present = s.joinOrder.filter((id) => s.participants[id].status === 'active').length;
   return {
+    kind: 'floor',
     sessionId: s.sessionId,
     status: s.status,
     supergame: sgNumber,
@@ -296,6 +298,7 @@ export function bigScreenView(s: EngineState): BigScreenView {
   const rate = (c: number, n: number): number | null => (n > 0 ? c / n : null);
   const rule = drawRule(s.design.delta);
   return {
+    kind: 'big-screen',
     sessionId: s.sessionId,
     status: s.status,
     joined: s.joinOrder.length,

@@ -11,9 +11,16 @@ afterAll(closeTestDb);
 
 interface Seat {
   email: string;
-  client: Client;
+  /** signed in once the users exist (beforeAll) */
+  client?: Client;
   socket?: TestSocket;
 }
+
+/** A seat's signed-in client (beforeAll signs every seat in). */
+const clientOf = (s: Seat): Client => {
+  if (!s.client) throw new Error(`${s.email} is not signed in`);
+  return s.client;
+};
 
 async function storedFor(sessionId: number) {
   return testDb().select().from(choices).where(eq(choices.sessionId, sessionId));
@@ -33,7 +40,7 @@ describe('a live session over real sockets', () => {
     for (let i = 0; i < 4; i++) {
       const email = uniqueEmail(`live-p${i}`);
       ids.push(await createUser(email));
-      seats.push({ email, client: undefined as unknown as Client });
+      seats.push({ email });
     }
     courseId = await createCourse('Live course', [
       { userId: instructorId, role: 'instructor' },
@@ -48,8 +55,8 @@ describe('a live session over real sockets', () => {
     const designId = await createDesign(courseId, instructorId, over);
     const { sessionId, code } = await openSession(instructor, courseId, designId);
     for (const s of seats) {
-      expect(await join(s.client, code)).toBe(`/play/${sessionId}`);
-      s.socket = await connect(s.client.cookieHeader());
+      expect(await join(clientOf(s), code)).toBe(`/play/${sessionId}`);
+      s.socket = await connect(clientOf(s).cookieHeader());
       const ack = await s.socket.emitWithAck('session:watch', { sessionId, as: 'participant' });
       expect(ack.ok).toBe(true);
     }
@@ -176,11 +183,11 @@ describe('a live session over real sockets', () => {
     });
     expect(ack.ok).toBe(true);
     s.socket!.close();
-    const again = await connect(s.client.cookieHeader());
+    const again = await connect(clientOf(s).cookieHeader());
     const back = await again.emitWithAck('session:watch', { sessionId, as: 'participant' });
-    expect(back.ok).toBe(true);
-    if (back.ok) {
-      const view = back.data as ParticipantView;
+    expect(back.ok && back.data.kind).toBe('participant');
+    if (back.ok && back.data.kind === 'participant') {
+      const view = back.data;
       expect([view.supergame, view.round]).toEqual([v.supergame, v.round]);
       expect(view.ownChoice).toBe('D');
     }
@@ -225,7 +232,7 @@ describe('a live session over real sockets', () => {
     const v = await first;
     const state = await staff.emitWithAck('session:watch', { sessionId, as: 'floor' });
     expect(state.ok).toBe(true);
-    const floor = state.ok ? (state.data as import('#realtime/engine/types').FloorView) : null;
+    const floor = state.ok && state.data.kind === 'floor' ? state.data : null;
     const pair = floor!.pairs.find((p) => p.pairId === v.pairId)!;
     const me = seats[0];
     const [partnerSeat] = pair.seats.filter((s) => s.participantId && s.pseudonym !== v.pseudonym);
@@ -244,7 +251,9 @@ describe('a live session over real sockets', () => {
     const views = await Promise.all(
       seats.filter((x) => x.socket).map((x) => x.socket!.emitWithAck('session:watch', { sessionId, as: 'participant' })),
     );
-    const back = views.map((r) => (r.ok ? (r.data as ParticipantView) : null)).find((x) => x?.pseudonym === partnerSeat.pseudonym);
+    const back = views
+      .map((r) => (r.ok && r.data.kind === 'participant' ? r.data : null))
+      .find((x) => x?.pseudonym === partnerSeat.pseudonym);
     expect(back?.notice).toBe('handed-to-computer');
     const log = await testDb().select().from(sessionLog).where(eq(sessionLog.sessionId, sessionId));
     expect(log.map((l) => l.event)).toContainEqual({ type: 'join', participantId: partnerSeat.participantId });
@@ -268,15 +277,15 @@ describe('a live session over real sockets', () => {
   it('a late joiner enters at the next supergame', async () => {
     const designId = await createDesign(courseId, instructorId, { supergames: 3, delta: 0.5 });
     const { sessionId, code } = await openSession(instructor, courseId, designId);
-    for (const s of seats.slice(0, 2)) await join(s.client, code);
+    for (const s of seats.slice(0, 2)) await join(clientOf(s), code);
     const staff = await connect(instructor.cookieHeader());
     await staff.emitWithAck('session:control', { sessionId, command: 'start' });
-    const page = await (await seats[3].client.get(`/join/${code}`)).text();
+    const page = await (await clientOf(seats[3]).get(`/join/${code}`)).text();
     expect(page).toContain('you will be paired from the next supergame on');
-    await join(seats[3].client, code);
-    const late = await connect(seats[3].client.cookieHeader());
+    await join(clientOf(seats[3]), code);
+    const late = await connect(clientOf(seats[3]).cookieHeader());
     const ack = await late.emitWithAck('session:watch', { sessionId, as: 'participant' });
-    expect(ack.ok && (ack.data as ParticipantView).notice).toBe('waiting-to-enter');
+    expect(ack.ok && ack.data.kind === 'participant' && ack.data.notice).toBe('waiting-to-enter');
   });
 
   it('assistants may pause and resume, but not start or end a session', async () => {

@@ -6,15 +6,22 @@
 // error code, and no row is written.
 import { count, eq } from 'drizzle-orm';
 import fc from 'fast-check';
+import type { Socket } from 'socket.io-client';
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
 import { choices, sessionLog, sessionParticipants } from '#drizzle/schema';
 import { ChoiceSubmit, MeGet, ParticipantAction, SessionControl, SessionWatch } from '#realtime/protocol';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { baseUrl, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, nextView, openSession, type TestSocket } from '#tests/helpers/live';
+import { classOf, closeSockets, connect, createDesign, join, nextView, openSession, type TestSocket } from '#tests/helpers/live';
 
 afterEach(closeSockets);
 afterAll(closeTestDb);
+
+/**
+ * The same socket without the protocol's types (socket.io's default map: any event, any
+ * arguments), to send what a hostile client can send.
+ */
+const untyped = (s: TestSocket): Socket => s;
 
 /** Codes a malformed payload may get: refused by validation, by role, or by the per-socket rate limit. */
 const ERROR_CODES = new Set(['bad-payload', 'forbidden', 'rate-limited']);
@@ -177,17 +184,17 @@ describe('malformed socket payloads', () => {
       const unanswered: string[] = [];
       const badShape: unknown[] = [];
       const BATCH = 100;
+      const fuzzers = sockets.map(untyped);
       for (let i = 0; i < plan.length; i += BATCH) {
         await Promise.all(
           plan.slice(i, i + BATCH).map(async ({ event, payload, ack }, k) => {
             // Spread over the sockets (per-socket rate limits), the instructor's included.
-            const s = sockets[(i + k) % sockets.length] as unknown as {
-              emit: (e: string, p: unknown) => void;
-              timeout: (ms: number) => { emitWithAck: (e: string, p: unknown) => Promise<unknown> };
-            };
-            if (!ack) return s.emit(event, payload);
+            const s = fuzzers[(i + k) % fuzzers.length];
+            if (!ack) return void s.emit(event, payload);
             try {
-              const res = (await s.timeout(15_000).emitWithAck(event, payload)) as { ok?: unknown; code?: unknown; message?: unknown };
+              const res: { ok?: unknown; code?: unknown; message?: unknown } | null | undefined = await s
+                .timeout(15_000)
+                .emitWithAck(event, payload);
               if (res?.ok !== false || typeof res.code !== 'string' || typeof res.message !== 'string') badShape.push(res);
               else codes.set(res.code, (codes.get(res.code) ?? 0) + 1);
             } catch {
@@ -225,9 +232,35 @@ describe('malformed socket payloads', () => {
     const big = await connect(a.cookieHeader());
     const other = await connect(a.cookieHeader());
     const closed = new Promise<string>((resolve) => big.on('disconnect', (reason) => resolve(reason)));
-    (big as unknown as { emit: (e: string, p: unknown) => void }).emit('me:get', { pad: 'x'.repeat(40_000) });
+    untyped(big).emit('me:get', { pad: 'x'.repeat(40_000) });
     expect(await closed).toBe('transport close');
     expect(await healthy()).toBe(true);
     expect(await other.emitWithAck('me:get', {})).toMatchObject({ ok: true });
+  });
+
+  it('an extra argument before the ack is answered bad-payload and changes nothing; an ack alone reads as an empty payload', async () => {
+    const { sessionId, instructor, players } = await classOf(2, { supergames: 1, roundSeconds: 600 }, 'fuzz-extra');
+    const staff = untyped(await connect(instructor.cookieHeader()));
+    const phone = untyped(await connect(players[0].cookieHeader()));
+    expect(await phone.timeout(5000).emitWithAck('session:watch', { sessionId, as: 'participant' })).toMatchObject({ ok: true });
+    const before = await rowsOf(sessionId);
+    // socket.io hands the listener every argument, the ack last: the hub took the second argument
+    // as the ack, so these went unanswered (and the phone waited for nothing).
+    expect(await staff.timeout(5000).emitWithAck('session:control', { sessionId, command: 'start' }, 'extra')).toMatchObject({
+      ok: false,
+      code: 'bad-payload',
+    });
+    const choice = { sessionId, supergame: 1, round: 1, action: 'C', clientChoiceId: 'extra-arg-0001' };
+    expect(await phone.timeout(5000).emitWithAck('choice:submit', choice, { more: 1 }, 2)).toMatchObject({
+      ok: false,
+      code: 'bad-payload',
+    });
+    expect(await rowsOf(sessionId)).toEqual(before);
+    // Still open: the same command without the extra argument is what starts it.
+    expect(await staff.timeout(5000).emitWithAck('session:control', { sessionId, command: 'start' })).toEqual({
+      ok: true,
+      data: { status: 'running' },
+    });
+    expect(await phone.timeout(5000).emitWithAck('me:get')).toMatchObject({ ok: true });
   });
 });

@@ -5,7 +5,7 @@ import type { Design, DesignInput } from '#app/lib/design';
 import { drawSequence, supergameDraws } from '#app/lib/draws';
 import { createSession, newBatchScope, resumeEffects, step } from '#realtime/engine/engine';
 import { RebuildError, rebuild } from '#realtime/engine/rebuild';
-import type { ChoiceRow, Effect, EngineEvent, EngineState } from '#realtime/engine/types';
+import type { StoredChoice, Effect, EngineEvent, EngineState } from '#realtime/engine/types';
 import { bigScreenView, floorView, participantView } from '#realtime/engine/views';
 import { TestHub, T0, joinAll, logical, makeDesign, play, rngOf } from './harness';
 
@@ -20,7 +20,7 @@ function payoff(d: Design, own: Action, partner: Action): number {
 /** Paid points per participant recomputed from the stored rows alone. */
 function pointsFromRows(hub: TestHub): Record<string, number> {
   const draws = drawSequence(hub.seed, hub.design.delta, hub.design.supergames, hub.design.termination).supergames;
-  const byRound = new Map<string, ChoiceRow[]>();
+  const byRound = new Map<string, StoredChoice[]>();
   for (const r of hub.choices) {
     const k = `${r.pairId}:${r.round}`;
     byRound.set(k, [...(byRound.get(k) ?? []), r]);
@@ -351,7 +351,7 @@ describe('timers', () => {
 
 describe('timeout rules fill the missing choice and flag the row', () => {
   /** round 1: first seat C, second seat D by hand; round 2: both time out */
-  function round2Timeouts(over: Partial<DesignInput>): { r1: ChoiceRow[]; r2: ChoiceRow[]; hub: TestHub } {
+  function round2Timeouts(over: Partial<DesignInput>): { r1: StoredChoice[]; r2: StoredChoice[]; hub: TestHub } {
     const { hub } = startSession(2, { supergames: 1, delta: 0.9, ...over }, seedWithLength(0.9, 3));
     const [a, b] = hub.state.pairs['s1-p1'].seats.map((x) => x.participantId!);
     hub.ok({ type: 'choose', participantId: a, supergame: 1, round: 1, action: 'C', clientChoiceId: 'a1' }, hub.now + SEC);
@@ -518,7 +518,7 @@ describe('rebuild from stored rows', () => {
     const { hub } = startSession(3, { supergames: 2 }, 'tamper');
     play(hub, rngOf(79));
     const computerRow = hub.choices.findIndex((r) => r.source === 'computer');
-    const flipped = hub.choices.map((r, i) => (i === computerRow ? { ...r, action: r.action === 'C' ? 'D' : 'C' } : r)) as ChoiceRow[];
+    const flipped = hub.choices.map((r, i) => (i === computerRow ? { ...r, action: r.action === 'C' ? 'D' : 'C' } : r)) as StoredChoice[];
     expect(() => rebuild(hub.design, hub.seed, hub.participants, flipped, hub.log, { sessionId: hub.sessionId })).toThrow(/differs/);
     // a row missing from the middle: later rows cannot be replayed (a missing LAST row is not an
     // error — it is what a crash before that choice looks like)

@@ -8,7 +8,7 @@ import { xoroshiro128plus } from 'pure-rand/generator/xoroshiro128plus';
 import type { RandomGenerator } from 'pure-rand/types/RandomGenerator';
 import { type Design, type DesignInput, designSchema } from '#app/lib/design';
 import { createSession, step } from '#realtime/engine/engine';
-import type { ChoiceRow, Effect, EngineEvent, EngineState, LogRow, ParticipantRow, StepResult } from '#realtime/engine/types';
+import type { StoredChoice, Effect, EngineEvent, EngineState, LogRow, ParticipantRow, StepResult } from '#realtime/engine/types';
 
 export const T0 = Date.UTC(2025, 0, 15, 10, 0, 0);
 
@@ -26,7 +26,7 @@ export class TestHub {
   state: EngineState;
   now = T0;
   participants: ParticipantRow[] = [];
-  choices: ChoiceRow[] = [];
+  choices: StoredChoice[] = [];
   log: LogRow[] = [];
   timers = new Map<string, { at: number; event: EngineEvent }>();
   effects: Effect[] = [];

@@ -2,7 +2,7 @@
 // back-off between sends, and the copy kept in sessionStorage across a reload.
 import { describe, expect, it } from 'vitest';
 import { backoffMs, loadOutbox, newChoiceId, type OutboxEntry, outcomeOf, saveOutbox } from '#app/components/live/outbox';
-import type { ChoiceRow } from '#realtime/engine/types';
+import type { StoredChoice } from '#realtime/engine/types';
 import type { Ack, AckErrorCode } from '#realtime/protocol';
 
 /** sessionStorage as the browser has it, in memory. */
@@ -28,7 +28,7 @@ class MemoryStorage implements Storage {
   }
 }
 
-const refused = (code: AckErrorCode): Ack<ChoiceRow> => ({ ok: false, code, message: code });
+const refused = (code: AckErrorCode): Ack<StoredChoice> => ({ ok: false, code, message: code });
 const entry: OutboxEntry = { sessionId: 7, supergame: 2, round: 3, action: 'D', clientChoiceId: 'abc-12345678' };
 
 describe('the outbox', () => {
@@ -39,7 +39,7 @@ describe('the outbox', () => {
   });
 
   it('drops it on a definitive answer, and says which', () => {
-    expect(outcomeOf({ ok: true, data: {} as ChoiceRow })).toBe('stored');
+    expect(outcomeOf({ ok: true, data: {} as StoredChoice })).toBe('stored');
     expect(outcomeOf(refused('round-closed'))).toBe('closed');
     expect(outcomeOf(refused('already-chosen'))).toBe('taken');
     for (const code of ['bad-payload', 'not-found', 'not-a-participant', 'handed-to-computer', 'not-your-pair'] as const)

@@ -8,7 +8,7 @@
  */
 import type { Action } from '#app/lib/automata';
 import type { Ack, AckErrorCode } from '#realtime/protocol';
-import type { ChoiceRow } from '#realtime/engine/types';
+import type { StoredChoice } from '#realtime/engine/types';
 
 export interface OutboxEntry {
   sessionId: number;
@@ -40,7 +40,7 @@ const RETRY: readonly AckErrorCode[] = [
   'session-not-running',
 ];
 
-export function outcomeOf(res: Ack<ChoiceRow>): Outcome {
+export function outcomeOf(res: Ack<StoredChoice>): Outcome {
   if (res.ok) return 'stored';
   if (RETRY.includes(res.code)) return 'retry';
   if (res.code === 'round-closed') return 'closed';

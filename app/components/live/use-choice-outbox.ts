@@ -1,10 +1,8 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import type { Action } from '#app/lib/automata';
-import type { Ack } from '#realtime/protocol';
-import type { ChoiceRow, ParticipantView } from '#realtime/engine/types';
+import type { ParticipantView } from '#realtime/engine/types';
 import { backoffMs, loadOutbox, newChoiceId, type OutboxEntry, outcomeOf, sameRound, saveOutbox } from './outbox';
-
-type Emit = (event: 'choice:submit', payload: OutboxEntry) => Promise<Ack<unknown>>;
+import type { Ask } from './use-session';
 
 export interface OutboxNote {
   tone: 'info' | 'error';
@@ -21,13 +19,13 @@ export function useChoiceOutbox({
   view,
   ready,
   storageOk,
-  emit,
+  ask,
 }: {
   sessionId: number;
   view: ParticipantView;
   ready: boolean;
   storageOk: boolean;
-  emit: Emit;
+  ask: Ask;
 }) {
   const [entry, setEntry] = useState<OutboxEntry | null>(null);
   const [confirmed, setConfirmed] = useState<Pick<OutboxEntry, 'supergame' | 'round' | 'action'> | null>(null);
@@ -95,8 +93,7 @@ export function useChoiceOutbox({
     if (!sameRound(e, view.supergame, view.round) || view.ownChoice !== null) return;
     const attempt = Date.now() + Math.random();
     inflight.current = attempt;
-    void emit('choice:submit', e).then((raw) => {
-      const res = raw as Ack<ChoiceRow>;
+    void ask((s) => s.emitWithAck('choice:submit', e)).then((res) => {
       const current = inflight.current === attempt;
       if (current) inflight.current = null;
       if (entryRef.current?.clientChoiceId !== e.clientChoiceId) return;
@@ -128,7 +125,7 @@ export function useChoiceOutbox({
           setNote({ tone: 'error', text: `${labelsRef.current[e.action]} was not recorded: ${res.ok ? '' : res.message}` });
       }
     });
-  }, [entry, ready, storageOk, view.paused, view.supergame, view.round, view.ownChoice, retryTick, emit, put]);
+  }, [entry, ready, storageOk, view.paused, view.supergame, view.round, view.ownChoice, retryTick, ask, put]);
 
   // A new round starts clean.
   useEffect(() => {

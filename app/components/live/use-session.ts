@@ -1,10 +1,21 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { io, type Socket } from 'socket.io-client';
-import type { Ack, ClientToServerEvents, ServerToClientEvents } from '#realtime/protocol';
-import type { BigScreenView, FloorView, ParticipantView } from '#realtime/engine/types';
+import type { AckFailure, ClientToServerEvents, ServerToClientEvents, WatchedView } from '#realtime/protocol';
 
-type ViewOf = { participant: ParticipantView; floor: FloorView; 'big-screen': BigScreenView };
 export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
+/** The view of one kind: `kind` tags every view, so a page watching as floor or big screen narrows by it. */
+export type ViewOf<K extends WatchedView['kind']> = Extract<WatchedView, { kind: K }>;
+/** The socket with an acknowledgement deadline: `emitWithAck` rejects when no answer comes in time. */
+export type TimedSocket = ReturnType<LiveSocket['timeout']>;
+/**
+ * Send one event and wait for its acknowledgement: `ask((s) => s.emitWithAck('session:control', payload))`.
+ * The event name is written at the call, so socket.io's types give the payload and the answer
+ * their protocol types. Never rejects: not connected, or no answer in time, is a failed ack.
+ */
+export type Ask = <T>(send: (socket: TimedSocket) => Promise<T>) => Promise<T | AckFailure>;
+
+const ACK_WAIT_MS = 8000;
+const isKind = <K extends WatchedView['kind']>(view: WatchedView, kind: K): view is ViewOf<K> => view.kind === kind;
 
 /**
  * The live view of a session over socket.io: connects with the sign-in cookie, watches the
@@ -17,8 +28,8 @@ export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
  * while the server has lost its database ('storage:status'): the phone treats both like a lost
  * connection.
  */
-export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K, initial: ViewOf[K] | null) {
-  const [view, setView] = useState<ViewOf[K] | null>(initial);
+export function useSessionView<K extends WatchedView['kind']>(sessionId: number, as: K, initial: ViewOf<K> | null) {
+  const [view, setView] = useState<ViewOf<K> | null>(initial);
   const [connected, setConnected] = useState(false);
   const [ready, setReady] = useState(false);
   const [online, setOnline] = useState(true);
@@ -31,11 +42,10 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
     socketRef.current = socket;
     const watch = () => {
       socket.emit('session:watch', { sessionId, as }, (res) => {
-        if (res.ok) {
-          setView(res.data as ViewOf[K]);
-          setError(null);
-          setReady(socket.connected);
-        } else setError(res.message);
+        if (!res.ok) return setError(res.message);
+        if (isKind(res.data, as)) setView(res.data);
+        setError(null);
+        setReady(socket.connected);
       });
     };
     const down = () => {
@@ -49,9 +59,13 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
     socket.on('disconnect', down);
     socket.on('connect_error', down);
     socket.on('storage:status', ({ ok }) => setStorageOk(ok));
-    const eventName = as === 'participant' ? 'view:participant' : as === 'floor' ? 'view:floor' : 'view:big-screen';
-    const onView = (v: ViewOf[K]) => setView(v);
-    socket.on(eventName as 'view:participant', onView as (v: ParticipantView) => void);
+    // The hub puts this socket in one kind's room only; the tag keeps the type honest.
+    const onView = (v: WatchedView) => {
+      if (isKind(v, as)) setView(v);
+    };
+    socket.on('view:participant', onView);
+    socket.on('view:floor', onView);
+    socket.on('view:big-screen', onView);
 
     const onOnline = () => {
       setOnline(true);
@@ -71,24 +85,17 @@ export function useSessionView<K extends keyof ViewOf>(sessionId: number, as: K,
     };
   }, [sessionId, as]);
 
-  const emit = useCallback(
-    <E extends keyof ClientToServerEvents>(event: E, payload: Parameters<ClientToServerEvents[E]>[0]) =>
-      new Promise<Ack<unknown>>((resolve) => {
-        const s = socketRef.current;
-        if (!s || !s.connected) {
-          resolve({ ok: false, code: 'server-error', message: 'Not connected. Trying again…' });
-          return;
-        }
-        (s.timeout(8000).emit as (e: string, p: unknown, cb: (err: Error | null, res: Ack<unknown>) => void) => void)(
-          event,
-          payload,
-          (err, res) => resolve(err ? { ok: false, code: 'server-error', message: 'No answer from the server. Try again.' } : res),
-        );
-      }),
-    [],
-  );
+  const ask: Ask = useCallback(async (send) => {
+    const s = socketRef.current;
+    if (!s || !s.connected) return { ok: false, code: 'server-error', message: 'Not connected. Trying again…' };
+    try {
+      return await send(s.timeout(ACK_WAIT_MS));
+    } catch {
+      return { ok: false, code: 'server-error', message: 'No answer from the server. Try again.' };
+    }
+  }, []);
 
-  return { view, connected, ready, online, storageOk, error, emit, socket: socketRef };
+  return { view, connected, ready, online, storageOk, error, ask, socket: socketRef };
 }
 
 /**

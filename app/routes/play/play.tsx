@@ -52,14 +52,14 @@ export default function Play({ loaderData }: Route.ComponentProps) {
     ready,
     online,
     storageOk,
-    emit,
+    ask,
     socket,
   } = useSessionView(loaderData.sessionId, 'participant', loaderData.view);
-  const view = (live ?? loaderData.view) as ParticipantView;
+  const view = live ?? loaderData.view;
   const offset = useRef(loaderData.serverNow - Date.now()).current;
   const left = useCountdown(view.status === 'choosing' ? view.deadline : null, offset, loaderData.roundMs);
   const [nudge, setNudge] = useState<string | null>(null);
-  const outbox = useChoiceOutbox({ sessionId: loaderData.sessionId, view, ready, storageOk, emit });
+  const outbox = useChoiceOutbox({ sessionId: loaderData.sessionId, view, ready, storageOk, ask });
   // The first connection takes a moment after the page loads: no alarm until there was one.
   const [everConnected, setEverConnected] = useState(false);
   useEffect(() => {

@@ -56,7 +56,7 @@ const DONE: Record<Command, string> = {
 export default function Conductor({ loaderData }: Route.ComponentProps) {
   const { course, role, session, design, joinUrl } = loaderData;
   const canSeeFloor = role === 'instructor' || role === 'assistant';
-  const { view, connected, error, emit } = useSessionView(session.id, canSeeFloor ? 'floor' : 'big-screen', null);
+  const { view, connected, error, ask } = useSessionView(session.id, canSeeFloor ? 'floor' : 'big-screen', null);
   // A command's own result, shown while the session is still in the state the command left it
   // in: once the state moves on (the supergame ends, the session completes) the line goes.
   const [message, setMessage] = useState<{ ok: boolean; text: string; status: SessionStatus } | null>(null);
@@ -65,14 +65,10 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
 
   const command = async (c: Command, confirmText?: string) => {
     if (confirmText && !window.confirm(confirmText)) return;
-    const res = await emit('session:control', { sessionId: session.id, command: c });
-    setMessage(
-      res.ok
-        ? { ok: true, text: DONE[c], status: (res.data as { status: SessionStatus }).status }
-        : { ok: false, text: res.message, status },
-    );
+    const res = await ask((s) => s.emitWithAck('session:control', { sessionId: session.id, command: c }));
+    setMessage(res.ok ? { ok: true, text: DONE[c], status: res.data.status } : { ok: false, text: res.message, status });
   };
-  const floor = view && 'counts' in view ? view : null;
+  const floor = view?.kind === 'floor' ? view : null;
   const shown = message && message.status === status ? message : null;
 
   return (

@@ -21,7 +21,7 @@ type Names = Record<string, { name: string | null; email: string }>;
 
 export default function Floor({ loaderData }: Route.ComponentProps) {
   const { course, role, session, fallback } = loaderData;
-  const { view, connected, error, emit } = useSessionView(session.id, 'floor', null);
+  const { view: floor, connected, error, ask } = useSessionView(session.id, 'floor', null);
   const [names, setNames] = useState<Names | null>(null);
   const [strategy, setStrategy] = useState(fallback);
   const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
@@ -31,7 +31,6 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
     const t = setInterval(() => setTick((x) => x + 1), 1000);
     return () => clearInterval(t);
   }, []);
-  const floor = view && 'counts' in view ? view : null;
   const now = Date.now() + offset;
   // Nudges and hand-overs mean something only while rounds are being played.
   const live = floor?.status === 'running' || floor?.status === 'paused';
@@ -43,12 +42,14 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
   };
   const act = async (participantId: string, action: 'nudge' | 'hand-to-computer' | 'remove', label: string) => {
     if (action !== 'nudge' && !window.confirm(`${label}? The participant is told.`)) return;
-    const res = await emit('participant:act', {
-      sessionId: session.id,
-      participantId,
-      action,
-      ...(action === 'hand-to-computer' ? { strategy } : {}),
-    });
+    const res = await ask((s) =>
+      s.emitWithAck('participant:act', {
+        sessionId: session.id,
+        participantId,
+        action,
+        ...(action === 'hand-to-computer' ? { strategy } : {}),
+      }),
+    );
     setMessage(res.ok ? { ok: true, text: `${label}: done.` } : { ok: false, text: res.message });
   };
   const who = (s: FloorSeatView) => {
