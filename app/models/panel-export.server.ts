@@ -43,12 +43,10 @@ export interface PanelSession {
   completedAt: Date | null;
 }
 
-/** One session of a course, or a 404 (an id of another course is as unknown as a wrong one). */
-export async function requirePanelSession(courseId: number, rawId: string | undefined): Promise<PanelSession> {
-  const id = Number(rawId);
-  const [s] = Number.isSafeInteger(id) && id > 0 ? await panelSessions(courseId, [id]) : [];
-  if (!s) throw new Response('No such session in this course.', { status: 404 });
-  return s;
+/** One session of a course, or null (an id of another course is as unknown as a wrong one). */
+export async function findPanelSession(courseId: number, id: number): Promise<PanelSession | null> {
+  const [s] = await panelSessions(courseId, [id]);
+  return s ?? null;
 }
 
 /** A stored session row (with its frozen design) as the reader's session. */

@@ -3,6 +3,7 @@ import { courseMembers, courses, type CourseRole, users } from '#drizzle/schema'
 import { type CurrentUser, requireUser } from './auth.server';
 import { db } from './db.server';
 import { env } from './env.server';
+import { parseId, respondUnless } from './http.server';
 
 export const STAFF_ROLES = ['instructor', 'assistant', 'researcher'] as const satisfies readonly CourseRole[];
 
@@ -11,12 +12,6 @@ export interface CourseAccess {
   course: { id: number; title: string; institution: string | null; term: string | null; isDemo: boolean; archivedAt: Date | null };
   /** the caller's role; site admins act as instructors everywhere */
   role: CourseRole;
-}
-
-export function parseId(raw: string | undefined): number {
-  const id = Number(raw);
-  if (!raw || !Number.isSafeInteger(id) || id <= 0) throw new Response('No such course.', { status: 404 });
-  return id;
 }
 
 /** Role of a user in a course, or null. */
@@ -38,7 +33,7 @@ export async function requireCourseRole(
   roles: readonly CourseRole[],
 ): Promise<CourseAccess> {
   const user = await requireUser(request);
-  const courseId = parseId(courseIdParam);
+  const courseId = parseId(courseIdParam, 'course');
   const [course] = await db()
     .select({
       id: courses.id,
@@ -50,13 +45,10 @@ export async function requireCourseRole(
     })
     .from(courses)
     .where(eq(courses.id, courseId));
-  if (!course) throw new Response('No such course.', { status: 404 });
+  respondUnless(course, 404, 'No such course.');
   const role: CourseRole | null = user.isAdmin ? 'instructor' : await roleIn(courseId, user.id);
-  if (!role || !roles.includes(role)) {
-    throw new Response(role ? `Your role in this course (${role}) does not open this page.` : 'You are not a member of this course.', {
-      status: 403,
-    });
-  }
+  respondUnless(role, 403, 'You are not a member of this course.');
+  respondUnless(roles.includes(role), 403, `Your role in this course (${role}) does not open this page.`);
   return { user, course: { ...course, isDemo: course.isDemo === 1 }, role };
 }
 
@@ -77,8 +69,6 @@ export async function mayCreateCourses(user: CurrentUser): Promise<boolean> {
 /** Guard of course creation: 403 with the way to get the right. */
 export async function requireCourseCreator(request: Request): Promise<CurrentUser> {
   const user = await requireUser(request);
-  if (!(await mayCreateCourses(user))) {
-    throw new Response('Your account may not create courses. Ask a site administrator of Parley to allow it.', { status: 403 });
-  }
+  respondUnless(await mayCreateCourses(user), 403, 'Your account may not create courses. Ask a site administrator of Parley to allow it.');
   return user;
 }

@@ -181,7 +181,7 @@ describe('a session of 1,001 participants with every kind of row', () => {
     for await (const piece of panelCsvPieces(list)) csv += piece;
     expect(csv.trimEnd().split('\n')).toHaveLength(pure.length + 1);
 
-    const research = await loadDebrief(courseId, [sessionId], { research: true });
+    const research = (await loadDebrief(courseId, [sessionId], { research: true }))!;
     const own = pure.filter((r) => r.origin === 'own');
     expect(research.sessions[0].debrief.counts).toEqual({
       used: own.length,
@@ -191,7 +191,7 @@ describe('a session of 1,001 participants with every kind of row', () => {
     });
     expect(research.sessions[0].unfinished).toBe(sessionPanel(await stored(sessionId)).unfinished.length);
     // the class's own view keeps those who declined; downloads and estimation do not
-    const page = await loadDebrief(courseId, [sessionId]);
+    const page = (await loadDebrief(courseId, [sessionId]))!;
     expect(page.sessions[0].debrief.participants).toBe(N);
     expect(research.sessions[0].debrief.participants).toBe(N - 143);
     const est = estimationRows((await loadSessionPanel(courseId, sessionId))!.rows, 'own');

@@ -6,13 +6,15 @@ import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { describeCreditRule, formatCredit } from '#app/lib/credit';
 import { creditSheet } from '#app/models/exports.server';
-import { requirePanelSession } from '#app/models/panel-export.server';
+import { findPanelSession } from '#app/models/panel-export.server';
 import { resultMailStatus } from '#app/models/result-mails.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
-  const session = await requirePanelSession(course.id, params.sessionId);
+  const session = await findPanelSession(course.id, parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, 'No such session in this course.');
   const [lines, mails] = await Promise.all([creditSheet(session), resultMailStatus(session.id)]);
   return {
     course,
