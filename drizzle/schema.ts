@@ -2,6 +2,7 @@ import { relations, sql } from 'drizzle-orm';
 import {
   type AnyMySqlColumn,
   bigint,
+  boolean,
   customType,
   datetime,
   index,
@@ -29,9 +30,9 @@ export const users = mysqlTable('users', {
   name: varchar('name', { length: 120 }),
   createdAt: createdAt(),
   lastSignInAt: datetime('last_sign_in_at', { mode: 'date', fsp: 3 }),
-  /** 1 when a site admin granted this account the right to create courses
+  /** a site admin granted this account the right to create courses
    * (docs/decisions/023-who-creates-courses.md) */
-  mayCreateCourses: int('may_create_courses').notNull().default(0),
+  mayCreateCourses: boolean('may_create_courses').notNull().default(false),
 });
 
 export const courses = mysqlTable('courses', {
@@ -40,7 +41,7 @@ export const courses = mysqlTable('courses', {
   institution: varchar('institution', { length: 160 }),
   term: varchar('term', { length: 60 }),
   /** marks demo data, so every page that shows it can say it is invented */
-  isDemo: int('is_demo').notNull().default(0),
+  isDemo: boolean('is_demo').notNull().default(false),
   createdBy: int('created_by')
     .notNull()
     .references(() => users.id),
@@ -263,7 +264,7 @@ export const sessions = mysqlTable(
     admission: mysqlEnum('admission', ['roster', 'open']).notNull().default('roster'),
     emailDomain: varchar('email_domain', { length: 120 }),
     /** demo sessions whose choices were simulated, labelled as such everywhere */
-    simulated: int('simulated').notNull().default(0),
+    simulated: boolean('simulated').notNull().default(false),
     createdBy: int('created_by')
       .notNull()
       .references(() => users.id),

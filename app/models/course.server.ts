@@ -36,7 +36,6 @@ export async function listCoursesForUser(userId: number, isAdmin: boolean) {
     .orderBy(asc(courses.title));
   return rows.map((r) => ({
     ...r,
-    isDemo: r.isDemo === 1,
     members: Number(r.members ?? 0),
     role: r.role ?? (isAdmin ? ('admin' as const) : null),
   }));
@@ -228,7 +227,7 @@ export async function listCourseCreators() {
   return db()
     .select({ id: users.id, email: users.email, name: users.name })
     .from(users)
-    .where(eq(users.mayCreateCourses, 1))
+    .where(eq(users.mayCreateCourses, true))
     .orderBy(asc(users.email));
 }
 
@@ -237,13 +236,13 @@ export async function grantCourseCreation(email: string) {
   const normalised = email.trim().toLowerCase();
   await db()
     .insert(users)
-    .values({ email: normalised, mayCreateCourses: 1 })
-    .onDuplicateKeyUpdate({ set: { mayCreateCourses: 1 } });
+    .values({ email: normalised, mayCreateCourses: true })
+    .onDuplicateKeyUpdate({ set: { mayCreateCourses: true } });
 }
 
 /** Courses already made stay with their instructors; only new ones are refused. */
 export async function revokeCourseCreation(userId: number) {
-  const [res] = await db().update(users).set({ mayCreateCourses: 0 }).where(eq(users.id, userId));
+  const [res] = await db().update(users).set({ mayCreateCourses: false }).where(eq(users.id, userId));
   return res.affectedRows > 0;
 }
 

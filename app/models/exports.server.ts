@@ -63,7 +63,7 @@ export async function listExportableSessions(courseId: number) {
     id: s.id,
     treatment: s.treatment,
     status: s.status,
-    simulated: s.simulated === 1,
+    simulated: s.simulated,
     delta: designSchema.parse(s.params).delta,
     completedAt: s.completedAt,
     rows: Number(rowsOf.get(s.id) ?? 0),

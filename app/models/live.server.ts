@@ -200,7 +200,7 @@ export async function getSession(sessionId: number): Promise<StoredSession | nul
     status: s.status,
     joinCode: s.joinCode,
     admission: s.admission,
-    simulated: s.simulated === 1,
+    simulated: s.simulated,
   };
 }
 

@@ -55,7 +55,7 @@ export function panelSessionOf(s: {
   courseId: number;
   treatment: string;
   status: PanelSession['status'];
-  simulated: number | boolean;
+  simulated: boolean;
   params: unknown;
   completedAt: Date | null;
 }): PanelSession {
@@ -65,7 +65,7 @@ export function panelSessionOf(s: {
     courseId: s.courseId,
     treatment: s.treatment,
     status: s.status,
-    simulated: s.simulated === 1 || s.simulated === true,
+    simulated: s.simulated,
     payoffs: design.payoffs,
     delta: design.delta,
     credit: design.credit,

@@ -36,11 +36,11 @@ function toInfo(s: {
   treatment: string;
   params: unknown;
   status: SessionInfo['status'];
-  simulated: number;
+  simulated: boolean;
   startedAt: Date | null;
   completedAt: Date | null;
 }): SessionInfo {
-  return { ...s, design: designSchema.parse(s.params), simulated: s.simulated === 1 };
+  return { ...s, design: designSchema.parse(s.params),  };
 }
 
 /** Sessions of a course (scoped: another course's session is not found). */

@@ -37,7 +37,6 @@ export async function listSessions(courseId: number) {
   return rows.map((r) => ({
     ...r,
     joinCode: admitting.has(r.status) ? r.joinCode : null,
-    simulated: r.simulated === 1,
     participants: Number(r.participants ?? 0),
   }));
 }

@@ -69,7 +69,7 @@ export async function requireApiCourse(caller: ApiCaller, courseId: number) {
   const role: CourseRole | null = caller.isAdmin ? 'instructor' : await roleIn(courseId, caller.userId);
   if (!role || !(API_ROLES as readonly string[]).includes(role))
     apiFail(403, 'forbidden', 'The token’s owner is no longer an instructor or researcher of that course.');
-  return { ...course, isDemo: course.isDemo === 1, role };
+  return { ...course, role };
 }
 
 const Page = z.object({
@@ -120,7 +120,7 @@ export function sessionJson(s: SessionRow) {
     treatment_key: treatmentOf(design).key,
     treatment_parameters: treatmentOf(design).label,
     status: s.status,
-    simulated: s.simulated === 1,
+    simulated: s.simulated,
     payoffs: design.payoffs,
     delta: design.delta,
     supergames: design.supergames,

@@ -49,7 +49,7 @@ export async function requireCourseRole(
   const role: CourseRole | null = user.isAdmin ? 'instructor' : await roleIn(courseId, user.id);
   respondUnless(role, 403, 'You are not a member of this course.');
   respondUnless(roles.includes(role), 403, `Your role in this course (${role}) does not open this page.`);
-  return { user, course: { ...course, isDemo: course.isDemo === 1 }, role };
+  return { user, course, role };
 }
 
 /** The part of an address after the last @, lower-cased. */
@@ -63,7 +63,7 @@ export const emailDomain = (email: string) => email.slice(email.lastIndexOf('@')
 export async function mayCreateCourses(user: CurrentUser): Promise<boolean> {
   if (user.isAdmin || env().INSTRUCTOR_DOMAINS.includes(emailDomain(user.email))) return true;
   const [u] = await db().select({ granted: users.mayCreateCourses }).from(users).where(eq(users.id, user.id));
-  return u?.granted === 1;
+  return u?.granted === true;
 }
 
 /** Guard of course creation: 403 with the way to get the right. */

@@ -68,11 +68,11 @@ afterAll(async () => {
 });
 
 it('the demo session: the reader and the pure rule agree row for row', async () => {
-  const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+  const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, true));
   const [s] = await testDb()
     .select({ id: sessions.id })
     .from(sessions)
-    .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
+    .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, true)));
   const pure = sessionPanel(await stored(s.id));
   expect(pure.rows.length).toBeGreaterThan(100);
   // pages of two rows: every page boundary inside a participant's supergames is crossed

@@ -24,7 +24,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   for (const c of rows) {
     const role = caller.isAdmin ? 'instructor' : await roleIn(c.id, caller.userId);
     if (!role || !(API_ROLES as readonly string[]).includes(role)) continue;
-    data.push({ id: c.id, title: c.title, institution: c.institution, term: c.term, is_demo: c.isDemo === 1, role });
+    data.push({ id: c.id, title: c.title, institution: c.institution, term: c.term, is_demo: c.isDemo, role });
     if (data.length === limit + 1) break;
   }
   const more = data.length > limit;
