@@ -15,6 +15,7 @@ import {
   varchar,
 } from 'drizzle-orm/mysql-core';
 
+import { type Design, designSchema } from '#app/lib/design';
 import { COURSE_ROLES } from '#app/utils/roles';
 
 export { COURSE_ROLES, type CourseRole } from '#app/utils/roles';
@@ -181,6 +182,19 @@ const jsonText = <T>(name: string) =>
   })(name);
 
 /**
+ * A design (app/lib/design.ts) kept as JSON text, validated by the design schema whenever a row is
+ * read: every select of `designs.params` or `sessions.params` gets a valid Design (defaults added
+ * since the row was written are filled in), and no model parses it again. Not Drizzle's `json()`:
+ * MariaDB's JSON is LONGTEXT, so mysql2 hands back the text and `json()` would not parse it.
+ */
+const designJson = (name: string) =>
+  customType<{ data: Design; driverData: string }>({
+    dataType: () => 'longtext',
+    toDriver: (value) => JSON.stringify(value),
+    fromDriver: (value) => designSchema.parse(JSON.parse(value)),
+  })(name);
+
+/**
  * A design: a saved parameter set of a course (product.md "Design"); exports call it treatment.
  * `params` holds the validated design (app/lib/design.ts); sessions copy it when they open.
  */
@@ -192,7 +206,7 @@ export const designs = mysqlTable(
       .notNull()
       .references(() => courses.id, { onDelete: 'cascade' }),
     name: varchar('name', { length: 120 }).notNull(),
-    params: jsonText<unknown>('params').notNull(),
+    params: designJson('params').notNull(),
     /** the design this one is a new version of (a design used by a session is read-only:
      * editing it makes a new version; docs/decisions/027-treatment-identity.md) */
     previousId: int('previous_id').references((): AnyMySqlColumn => designs.id, { onDelete: 'set null' }),
@@ -248,7 +262,7 @@ export const sessions = mysqlTable(
     designId: int('design_id').references(() => designs.id, { onDelete: 'set null' }),
     /** the design's name when the session was made: the treatment in exports */
     treatment: varchar('treatment', { length: 120 }).notNull(),
-    params: jsonText<unknown>('params').notNull(),
+    params: designJson('params').notNull(),
     seed: bigint('seed', { mode: 'number', unsigned: true }).notNull(),
     /** short and unambiguous (no 0/O, 1/I); null once archived */
     joinCode: varchar('join_code', { length: 8 }).unique(),

@@ -133,7 +133,7 @@ async function seedDemoSessions(db: Db, courseId: number, instructorId: number) 
       .select({ id: designs.id, params: designs.params })
       .from(designs)
       .where(and(eq(designs.courseId, courseId), eq(designs.name, run.design.name)));
-    const params = designSchema.parse(design.params);
+    const { params } = design;
     await db.transaction(async (tx) => {
       const [res] = await tx.insert(sessions).values({
         courseId,

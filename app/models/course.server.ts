@@ -319,3 +319,19 @@ export async function changeMemberRole(courseId: number, memberId: number, role:
     return { ok: true, userId: m.userId };
   });
 }
+
+/** Courses among `ids` with ids after `afterId`, ascending (the research API's list of a token's courses). */
+export async function coursesAfter(ids: readonly number[], afterId: number) {
+  if (ids.length === 0) return [];
+  return db()
+    .select({ id: courses.id, title: courses.title, institution: courses.institution, term: courses.term, isDemo: courses.isDemo })
+    .from(courses)
+    .where(and(inArray(courses.id, [...ids]), gt(courses.id, afterId)))
+    .orderBy(asc(courses.id));
+}
+
+/** Accounts on this Parley (the site admin's overview). */
+export async function countUsers(): Promise<number> {
+  const [{ n }] = await db().select({ n: count() }).from(users);
+  return n;
+}

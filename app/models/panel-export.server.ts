@@ -14,10 +14,11 @@ import { alias } from 'drizzle-orm/mysql-core';
 import { Zip, ZipDeflate } from 'fflate';
 import { csvLines } from '#app/lib/csv';
 import { comparePseudonyms, type PanelContext, type PanelRow, panelRowOf, seatKey, type UnfinishedRound } from '#app/lib/choice-panel';
-import { type CreditRule, designSchema } from '#app/lib/design';
+import type { CreditRule } from '#app/lib/design';
 import { codebookCsv, panelCsvColumns, panelReadme } from '#app/lib/panel-codebook';
 import { db } from '#app/utils/db.server';
 import { memberName } from '#app/models/course.server';
+import { type Session, sessionColumns, toSession } from '#app/models/session-row.server';
 import { choices, courseMembers, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
 
 export type { PanelRow } from '#app/lib/choice-panel';
@@ -34,7 +35,7 @@ export interface PanelSession {
   id: number;
   courseId: number;
   treatment: string;
-  status: (typeof sessions.$inferSelect)['status'];
+  status: Session['status'];
   simulated: boolean;
   payoffs: { R: number; S: number; T: number; P: number };
   delta: number;
@@ -49,17 +50,9 @@ export async function findPanelSession(courseId: number, id: number): Promise<Pa
   return s ?? null;
 }
 
-/** A stored session row (with its frozen design) as the reader's session. */
-export function panelSessionOf(s: {
-  id: number;
-  courseId: number;
-  treatment: string;
-  status: PanelSession['status'];
-  simulated: boolean;
-  params: unknown;
-  completedAt: Date | null;
-}): PanelSession {
-  const design = designSchema.parse(s.params);
+/** A session (with its frozen design) as the reader's session. */
+export function panelSessionOf(s: Session): PanelSession {
+  const { design } = s;
   return {
     id: s.id,
     courseId: s.courseId,
@@ -77,19 +70,11 @@ export function panelSessionOf(s: {
 export async function panelSessions(courseId: number, ids?: readonly number[]): Promise<PanelSession[]> {
   if (ids && ids.length === 0) return [];
   const rows = await db()
-    .select({
-      id: sessions.id,
-      courseId: sessions.courseId,
-      treatment: sessions.treatment,
-      status: sessions.status,
-      simulated: sessions.simulated,
-      params: sessions.params,
-      completedAt: sessions.completedAt,
-    })
+    .select(sessionColumns)
     .from(sessions)
     .where(and(eq(sessions.courseId, courseId), ids ? inArray(sessions.id, [...ids]) : undefined))
     .orderBy(asc(sessions.id));
-  return rows.map(panelSessionOf);
+  return rows.map((r) => panelSessionOf(toSession(r)));
 }
 
 export interface PanelOptions {

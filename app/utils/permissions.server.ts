@@ -23,6 +23,11 @@ export async function roleIn(courseId: number, userId: number): Promise<CourseRo
   return m?.role ?? null;
 }
 
+/** A user's role in a course: site admins act as instructors in every course (product.md "Roles"). */
+export async function courseRoleOf(courseId: number, user: { id: number; isAdmin: boolean }): Promise<CourseRole | null> {
+  return user.isAdmin ? 'instructor' : roleIn(courseId, user.id);
+}
+
 /**
  * Guard for every course page: unknown course → 404; signed-in but not in one of `roles` → 403.
  * Throws, so the happy path reads straight down.
@@ -46,7 +51,7 @@ export async function requireCourseRole(
     .from(courses)
     .where(eq(courses.id, courseId));
   respondUnless(course, 404, 'No such course.');
-  const role: CourseRole | null = user.isAdmin ? 'instructor' : await roleIn(courseId, user.id);
+  const role = await courseRoleOf(courseId, user);
   respondUnless(role, 403, 'You are not a member of this course.');
   respondUnless(roles.includes(role), 403, `Your role in this course (${role}) does not open this page.`);
   return { user, course, role };

@@ -15,10 +15,11 @@
  * in their sequence order rebuilds the same state (see rebuild.ts). The input state is never mutated.
  */
 import { type Action, type Automaton, libraryStrategy, LIBRARY, profileOf } from '#app/lib/automata';
-import type { Design } from '#app/lib/design';
+import { computerStrategyOf, type Design } from '#app/lib/design';
 import { describeDraw, drawSequence, supergameDraws } from '#app/lib/draws';
 import { matchSupergame } from '#app/lib/matching';
 import { normaliseSeed, type Seed } from '#app/lib/rng';
+import { profilePoints } from '#app/lib/stage-game';
 import type {
   BatchScope,
   ChoiceRow,
@@ -76,23 +77,11 @@ export function roomOf(kind: 'session' | 'staff' | 'participant', sessionId: str
   return kind === 'participant' ? `participant:${sessionId}:${participantId}` : `${kind}:${sessionId}`;
 }
 
-function payoffOf(d: Design, own: Action, partner: Action): number {
-  // methods.md §0: u(C,C)=R, u(C,D)=S, u(D,C)=T, u(D,D)=P
-  const { R, S, T, P } = d.payoffs;
-  if (own === 'C') return partner === 'C' ? R : S;
-  return partner === 'C' ? T : P;
-}
-
 /** The state an automaton reaches after a history, following observed actions (methods.md §3). */
 export function automatonStateAfter(a: Automaton, own: readonly Action[], partner: readonly Action[]): number {
   let s = 0;
   for (let t = 0; t < own.length; t++) s = a.states[s].next[profileOf(own[t], partner[t])];
   return s;
-}
-
-/** Strategy of the computer that takes over a removed participant's seat. */
-function defaultComputerStrategy(d: Design): string {
-  return d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT';
 }
 
 const isStrategy = (id: string): boolean => LIBRARY.some((a) => a.id === id);
@@ -285,7 +274,7 @@ function timeoutAction(d: Draft, pair: PairState, seat: 0 | 1): { action: Action
       return { action: last ? last.actions[seat] : 'C', strategy: null };
     }
     case 'computer-strategy': {
-      const a = libraryStrategy(defaultComputerStrategy(d.s.design));
+      const a = libraryStrategy(computerStrategyOf(d.s.design));
       const h = ownHistory(pair, seat);
       return { action: a.states[automatonStateAfter(a, h.own, h.partner)].action, strategy: a.id };
     }
@@ -318,7 +307,7 @@ function resolveRound(d: Draft, pair: PairState): number {
     round: pair.round,
     actions,
     sources: [a.source, b.source],
-    payoffs: [payoffOf(design, actions[0], actions[1]), payoffOf(design, actions[1], actions[0])],
+    payoffs: profilePoints(design.payoffs, actions[0], actions[1]),
     draw,
     paid: pair.round <= sg.draws.length,
     revealed: false,
@@ -771,7 +760,7 @@ function handle(d: Draft, e: EngineEvent): EngineError | { alreadyChosen: Choice
       d.p(p.id).status = 'removed';
       d.log({ type: 'remove', participantId: p.id });
       // the partner finishes the supergame against a disclosed computer
-      handOver(d, p.id, defaultComputerStrategy(s.design));
+      handOver(d, p.id, computerStrategyOf(s.design));
       settle(d);
       return null;
     }

@@ -9,7 +9,7 @@ import { Notice } from '#app/components/ui';
 import { getSession, participantKeyOf } from '#app/models/live.server';
 import { requireUser } from '#app/utils/auth.server';
 import { parseId, respond, respondUnless } from '#app/utils/http.server';
-import { roleIn, STAFF_ROLES } from '#app/utils/permissions.server';
+import { courseRoleOf, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import type { Action } from '#app/lib/automata';
 import { strategyInWords } from '#app/lib/strategy-words';
@@ -26,7 +26,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const state = await runner().state(session.id);
   const me = participantKeyOf(user.id);
   if (!state?.participants[me]) {
-    const role = user.isAdmin ? 'instructor' : await roleIn(session.courseId, user.id);
+    const role = await courseRoleOf(session.courseId, user);
     const staff = role !== null && (STAFF_ROLES as readonly string[]).includes(role);
     // Staff of the course see the join code on the big screen anyway.
     if (staff && session.joinCode) throw redirect(`/join/${session.joinCode}`);

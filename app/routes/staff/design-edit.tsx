@@ -7,7 +7,7 @@ import { StrategyChecker } from '#app/components/strategy-checker';
 import { TheoryPanel, type TheoryDraft } from '#app/components/theory-panel';
 import { Button, FieldError, Notice, SelectField, TextField } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
-import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
+import { computerStrategyOf, DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
 import {
   fillInstructions,
   generateInstructions,
@@ -172,7 +172,7 @@ function formValues(name: string, d: Design): Record<string, string> {
     'termination.kind': d.termination.kind,
     'termination.k': d.termination.kind === 'block' ? String(d.termination.k) : '5',
     'oddCount.kind': d.oddCount.kind,
-    'oddCount.strategy': d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT',
+    'oddCount.strategy': computerStrategyOf(d),
     timeout: d.timeout,
     'credit.kind': d.credit.kind,
     consent: d.consent ? 'on' : '',

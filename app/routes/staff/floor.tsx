@@ -4,6 +4,7 @@ import { useSessionView } from '#app/components/live/use-session';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, Notice } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
+import { computerStrategyOf } from '#app/lib/design';
 import { getSession } from '#app/models/live.server';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
@@ -14,7 +15,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, ['instructor', 'assistant']);
   const session = await getSession(parseId(params.sessionId, 'session'));
   respondUnless(session?.courseId === course.id, 404, 'No such session in this course.');
-  const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
+  const fallback = computerStrategyOf(session.design);
   return { course, role, session: { id: session.id, treatment: session.treatment }, fallback, serverNow: Date.now() };
 }
 

@@ -53,7 +53,8 @@ const creditColumns = (paid: boolean) =>
     creditCol.accessor('credit', { header: paid ? 'Payout' : 'Credit', meta: { align: 'right' } }),
   ]);
 
-const STATUS_WORDS = {
+/** A results e-mail's state (not a session's: app/utils/session-words.ts). */
+const MAIL_STATUS_WORDS = {
   queued: ['◷', 'Waiting'],
   sending: ['➜', 'Sending'],
   sent: ['✓', 'Sent'],
@@ -67,7 +68,7 @@ const mailColumns = mailCol.columns([
   mailCol.accessor('status', {
     header: 'Status',
     cell: (i) => {
-      const [icon, word] = STATUS_WORDS[i.getValue()];
+      const [icon, word] = MAIL_STATUS_WORDS[i.getValue()];
       return (
         <span className="inline-flex items-center gap-1 font-semibold">
           <span aria-hidden="true">{icon}</span> {word}
