@@ -1,6 +1,7 @@
 // Issue 13 item 2: an error inside the staff shell keeps the staff navigation; an error on a
 // participant's phone page keeps the phone shell; a malformed id names what was not found.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { CourseRole } from '#app/utils/roles';
 import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { createDesign, openSession } from '#tests/helpers/live';
@@ -15,98 +16,107 @@ const STAFF_NAV = 'aria-label="Main"';
 /** The phone shell's header (ParticipantShell); a bare error page has none. */
 const PHONE_HEADER = '<header';
 
+type Person = 'instructor' | 'researcher' | 'participant' | 'outsider';
+
+const CASES: {
+  what: string;
+  who: Person;
+  path: (ids: { course: number; session: number }) => string;
+  status: number;
+  says: string;
+  shell: 'staff' | 'phone' | 'none';
+}[] = [
+  {
+    what: 'a 404 inside the staff shell keeps the staff navigation and says what was not found',
+    who: 'instructor',
+    path: ({ course }) => `/courses/${course}/designs/999999999`,
+    status: 404,
+    says: 'No such design in this course.',
+    shell: 'staff',
+  },
+  {
+    what: 'a 403 inside the staff shell keeps the staff navigation',
+    who: 'researcher',
+    path: ({ course }) => `/courses/${course}/roster`,
+    status: 403,
+    says: 'Your role in this course (researcher) does not open this page.',
+    shell: 'staff',
+  },
+  // parseId used to say "No such course." whatever the id named
+  {
+    what: 'a malformed design id',
+    who: 'instructor',
+    path: ({ course }) => `/courses/${course}/designs/abc`,
+    status: 404,
+    says: 'No such design.',
+    shell: 'staff',
+  },
+  {
+    what: 'a malformed dataset id',
+    who: 'instructor',
+    path: ({ course }) => `/courses/${course}/datasets/0/estimate`,
+    status: 404,
+    says: 'No such dataset.',
+    shell: 'staff',
+  },
+  { what: 'a malformed course id', who: 'instructor', path: () => '/courses/abc', status: 404, says: 'No such course.', shell: 'staff' },
+  {
+    what: 'a 403 on a participant page (not in the course) keeps the phone shell',
+    who: 'outsider',
+    path: ({ course, session }) => `/courses/${course}/debrief/${session}/mine`,
+    status: 403,
+    says: 'You are not a member of this course.',
+    shell: 'phone',
+  },
+  {
+    what: 'a 404 on a participant page (did not take part) keeps the phone shell',
+    who: 'participant',
+    path: ({ course, session }) => `/courses/${course}/debrief/${session}/mine`,
+    status: 404,
+    says: 'You did not take part in this session, so it has no summary for you.',
+    shell: 'phone',
+  },
+  {
+    what: 'an unknown address has the error page alone',
+    who: 'participant',
+    path: () => '/no/such/page',
+    status: 404,
+    says: 'There is no page at this address',
+    shell: 'none',
+  },
+];
+
 describe('error pages keep their shell', () => {
-  let courseId: number;
-  let sessionId: number;
-  let instructor: Client;
-  let researcher: Client;
-  let participant: Client;
-  let outsider: Client;
+  const ids = { course: 0, session: 0 };
+  const clients = {} as Record<Person, Client>;
 
   beforeAll(async () => {
-    const emails = {
-      inst: uniqueEmail('err-inst'),
-      res: uniqueEmail('err-res'),
-      part: uniqueEmail('err-part'),
-      out: uniqueEmail('err-out'),
+    const roles: Record<Exclude<Person, 'outsider'>, CourseRole> = {
+      instructor: 'instructor',
+      researcher: 'researcher',
+      participant: 'participant',
     };
-    const instId = await createUser(emails.inst);
-    const resId = await createUser(emails.res);
-    const partId = await createUser(emails.part);
-    courseId = await createCourse('Error pages course', [
-      { userId: instId, role: 'instructor' },
-      { userId: resId, role: 'researcher' },
-      { userId: partId, role: 'participant' },
-    ]);
-    await createUser(emails.out);
-    [instructor, researcher, participant, outsider] = await Promise.all([
-      signIn(emails.inst),
-      signIn(emails.res),
-      signIn(emails.part),
-      signIn(emails.out),
-    ]);
+    const userIds = {} as Record<Person, number>;
+    for (const who of [...Object.keys(roles), 'outsider'] as Person[]) {
+      const email = uniqueEmail(`err-${who}`);
+      userIds[who] = await createUser(email);
+      clients[who] = await signIn(email);
+    }
+    ids.course = await createCourse(
+      'Error pages course',
+      Object.entries(roles).map(([who, role]) => ({ userId: userIds[who as Person], role })),
+    );
     // an open session nobody has joined yet
-    ({ sessionId } = await openSession(instructor, courseId, await createDesign(courseId, instId)));
+    ({ sessionId: ids.session } = await openSession(clients.instructor, ids.course, await createDesign(ids.course, userIds.instructor)));
   });
 
-  it('a 404 inside the staff shell still has the staff navigation and says what was not found', async () => {
-    const res = await instructor.get(`/courses/${courseId}/designs/999999999`);
-    expect(res.status).toBe(404);
+  it.each(CASES)('$what', async ({ who, path, status, says, shell }) => {
+    const res = await clients[who].get(path(ids));
+    expect(res.status).toBe(status);
     const html = await page(res);
-    expect(html).toContain(STAFF_NAV);
-    expect(html).toContain('Sign out');
-    expect(html).toContain('Error 404');
-    expect(html).toContain('No such design in this course.');
-  });
-
-  it('a 403 inside the staff shell still has the staff navigation', async () => {
-    const res = await researcher.get(`/courses/${courseId}/roster`);
-    expect(res.status).toBe(403);
-    const html = await page(res);
-    expect(html).toContain(STAFF_NAV);
-    expect(html).toContain('Error 403');
-    expect(html).toContain('Your role in this course (researcher) does not open this page.');
-  });
-
-  it('a malformed id is "No such <that thing>", not "No such course."', async () => {
-    const design = await instructor.get(`/courses/${courseId}/designs/abc`);
-    expect(design.status).toBe(404);
-    expect(await page(design)).toContain('No such design.');
-    const dataset = await instructor.get(`/courses/${courseId}/datasets/0/estimate`);
-    expect(dataset.status).toBe(404);
-    expect(await page(dataset)).toContain('No such dataset.');
-    const course = await instructor.get('/courses/abc');
-    expect(course.status).toBe(404);
-    expect(await page(course)).toContain('No such course.');
-  });
-
-  it('a 403 on a participant page keeps the phone shell, without the staff navigation', async () => {
-    // someone signed in who is not in the course, at a participant's own summary
-    const res = await outsider.get(`/courses/${courseId}/debrief/${sessionId}/mine`);
-    expect(res.status).toBe(403);
-    const html = await page(res);
-    expect(html).toContain('Error 403');
-    expect(html).toContain('You are not a member of this course.');
-    expect(html).toContain(PHONE_HEADER);
-    expect(html).not.toContain(STAFF_NAV);
-  });
-
-  it('a 404 on a participant page keeps the phone shell', async () => {
-    const res = await participant.get(`/courses/${courseId}/debrief/${sessionId}/mine`);
-    expect(res.status).toBe(404);
-    const html = await page(res);
-    expect(html).toContain('Error 404');
-    expect(html).toContain('You did not take part in this session, so it has no summary for you.');
-    expect(html).toContain(PHONE_HEADER);
-    expect(html).not.toContain(STAFF_NAV);
-  });
-
-  it('outside both shells (an unknown address) the error page stands alone', async () => {
-    const res = await participant.get('/no/such/page');
-    expect(res.status).toBe(404);
-    const html = await page(res);
-    expect(html).toContain('Error 404');
-    expect(html).not.toContain(PHONE_HEADER);
-    expect(html).not.toContain(STAFF_NAV);
+    expect(html).toContain(`Error ${status}`);
+    expect(html).toContain(says);
+    expect(html.includes(STAFF_NAV), 'staff navigation').toBe(shell === 'staff');
+    expect(html.includes(PHONE_HEADER), 'a shell header').toBe(shell !== 'none');
   });
 });
