@@ -35,7 +35,9 @@ export default tseslint.config(
     },
   },
   {
-    files: ['app/components/**', 'app/lib/**'],
+    // The browser bundle (components, pure code) must not import the schema; routes reach the
+    // database through models (DEVELOPERS.md, Layout: thin route modules).
+    files: ['app/components/**', 'app/lib/**', 'app/routes/**'],
     ignores: ['app/**/*.server.ts', 'app/**/*.test.ts'],
     rules: {
       'no-restricted-imports': [
@@ -46,7 +48,10 @@ export default tseslint.config(
               regex: '^(\\.\\./)+(app|realtime|drizzle|tests)(/|$)',
               message: 'Import across top-level folders with #app/*, #realtime/*, #drizzle/* or #tests/* (tsconfig paths).',
             },
-            { regex: '^#drizzle/', message: 'The browser bundle must not import the database schema; go through a .server.ts model.' },
+            {
+              regex: '^#drizzle/',
+              message: 'Components, app/lib and routes never import the database schema; go through a model (app/models/*.server.ts).',
+            },
           ],
         },
       ],

@@ -55,10 +55,9 @@ export default [
     route('*', 'routes/api/not-found.ts'),
   ]),
 
-  // Debrief outside the staff shell: the projector (full screen), a participant's own summary,
-  // and resource routes (chart data as CSV, estimations started and polled as JSON).
+  // Debrief outside the staff shell: the projector (full screen) and resource routes (chart data
+  // as CSV, estimations started and polled as JSON).
   route('courses/:courseId/debrief/projector', 'routes/debrief/projector.tsx'),
-  route('courses/:courseId/debrief/:sessionId/mine', 'routes/debrief/mine.tsx'),
   route('courses/:courseId/debrief/csv/:chart', 'routes/debrief/csv.ts'),
   route('courses/:courseId/estimates', 'routes/debrief/estimates.ts'),
   route('courses/:courseId/estimates/:estimateId', 'routes/debrief/estimate-status.ts'),
@@ -69,12 +68,17 @@ export default [
 
   // The projector page (dark, large type) and the participants' phone pages.
   route('screen/:sessionId', 'routes/big-screen.tsx'),
-  route('join', 'routes/play/join.tsx'),
-  route('join/:code', 'routes/play/join-code.tsx'),
-  // Before the lobby, when the design asks for them (issue 12): the comprehension check, a practice supergame.
-  route('join/:code/check', 'routes/play/join-check.tsx'),
-  route('join/:code/practice', 'routes/play/join-practice.tsx'),
-  route('play/:sessionId', 'routes/play/play.tsx'),
+  // Phone pages share a layout only for its error boundary: an error keeps the phone shell.
+  layout('routes/play/layout.tsx', [
+    route('join', 'routes/play/join.tsx'),
+    route('join/:code', 'routes/play/join-code.tsx'),
+    // Before the lobby, when the design asks for them (issue 12): the comprehension check, a practice supergame.
+    route('join/:code/check', 'routes/play/join-check.tsx'),
+    route('join/:code/practice', 'routes/play/join-practice.tsx'),
+    route('play/:sessionId', 'routes/play/play.tsx'),
+    // A participant's own summary of a session (outside the staff shell).
+    route('courses/:courseId/debrief/:sessionId/mine', 'routes/debrief/mine.tsx'),
+  ]),
 
   route('*', 'routes/not-found.tsx'),
 ] satisfies RouteConfig;

@@ -2,6 +2,7 @@ import { relations, sql } from 'drizzle-orm';
 import {
   type AnyMySqlColumn,
   bigint,
+  boolean,
   customType,
   datetime,
   index,
@@ -15,6 +16,7 @@ import {
 } from 'drizzle-orm/mysql-core';
 
 import { CHOICE_SOURCES } from '#app/lib/choice-panel';
+import { type Design, designSchema } from '#app/lib/design';
 import { COURSE_ROLES } from '#app/utils/roles';
 
 export { COURSE_ROLES, type CourseRole } from '#app/utils/roles';
@@ -30,9 +32,9 @@ export const users = mysqlTable('users', {
   name: varchar('name', { length: 120 }),
   createdAt: createdAt(),
   lastSignInAt: datetime('last_sign_in_at', { mode: 'date', fsp: 3 }),
-  /** 1 when a site admin granted this account the right to create courses
+  /** a site admin granted this account the right to create courses
    * (docs/decisions/023-who-creates-courses.md) */
-  mayCreateCourses: int('may_create_courses').notNull().default(0),
+  mayCreateCourses: boolean('may_create_courses').notNull().default(false),
 });
 
 export const courses = mysqlTable('courses', {
@@ -41,7 +43,7 @@ export const courses = mysqlTable('courses', {
   institution: varchar('institution', { length: 160 }),
   term: varchar('term', { length: 60 }),
   /** marks demo data, so every page that shows it can say it is invented */
-  isDemo: int('is_demo').notNull().default(0),
+  isDemo: boolean('is_demo').notNull().default(false),
   createdBy: int('created_by')
     .notNull()
     .references(() => users.id),
@@ -181,6 +183,19 @@ const jsonText = <T>(name: string) =>
   })(name);
 
 /**
+ * A design (app/lib/design.ts) kept as JSON text, validated by the design schema whenever a row is
+ * read: every select of `designs.params` or `sessions.params` gets a valid Design (defaults added
+ * since the row was written are filled in), and no model parses it again. Not Drizzle's `json()`:
+ * MariaDB's JSON is LONGTEXT, so mysql2 hands back the text and `json()` would not parse it.
+ */
+const designJson = (name: string) =>
+  customType<{ data: Design; driverData: string }>({
+    dataType: () => 'longtext',
+    toDriver: (value) => JSON.stringify(value),
+    fromDriver: (value) => designSchema.parse(JSON.parse(value)),
+  })(name);
+
+/**
  * A design: a saved parameter set of a course (product.md "Design"); exports call it treatment.
  * `params` holds the validated design (app/lib/design.ts); sessions copy it when they open.
  */
@@ -192,7 +207,7 @@ export const designs = mysqlTable(
       .notNull()
       .references(() => courses.id, { onDelete: 'cascade' }),
     name: varchar('name', { length: 120 }).notNull(),
-    params: jsonText<unknown>('params').notNull(),
+    params: designJson('params').notNull(),
     /** the design this one is a new version of (a design used by a session is read-only:
      * editing it makes a new version; docs/decisions/027-treatment-identity.md) */
     previousId: int('previous_id').references((): AnyMySqlColumn => designs.id, { onDelete: 'set null' }),
@@ -247,7 +262,7 @@ export const sessions = mysqlTable(
     designId: int('design_id').references(() => designs.id, { onDelete: 'set null' }),
     /** the design's name when the session was made: the treatment in exports */
     treatment: varchar('treatment', { length: 120 }).notNull(),
-    params: jsonText<unknown>('params').notNull(),
+    params: designJson('params').notNull(),
     seed: bigint('seed', { mode: 'number', unsigned: true }).notNull(),
     /** short and unambiguous (no 0/O, 1/I); null once archived */
     joinCode: varchar('join_code', { length: 8 }).unique(),
@@ -263,7 +278,7 @@ export const sessions = mysqlTable(
     admission: mysqlEnum('admission', ['roster', 'open']).notNull().default('roster'),
     emailDomain: varchar('email_domain', { length: 120 }),
     /** demo sessions whose choices were simulated, labelled as such everywhere */
-    simulated: int('simulated').notNull().default(0),
+    simulated: boolean('simulated').notNull().default(false),
     createdBy: int('created_by')
       .notNull()
       .references(() => users.id),

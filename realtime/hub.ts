@@ -6,11 +6,12 @@ import { eq } from 'drizzle-orm';
 import { Server, type Socket } from 'socket.io';
 import type { z } from 'zod';
 import { LIBRARY } from '#app/lib/automata';
+import { computerStrategyOf } from '#app/lib/design';
 import { isAdminEmail, signedInFromCookie } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { allowSocketOrigin } from '#app/utils/origin.server';
-import { roleIn } from '#app/utils/permissions.server';
+import { courseRoleOf } from '#app/utils/permissions.server';
 import type { CourseRole } from '#app/utils/roles';
 import { setRunner } from '#app/utils/runner.server';
 import { setSocketControl } from '#app/utils/sockets.server';
@@ -89,8 +90,7 @@ export function attachHub(httpServer: HttpServer) {
   /** The caller's role in the course of a session (site admins act as instructors). */
   async function roleFor(userId: number, courseId: number): Promise<CourseRole | null> {
     const [u] = await db().select({ email: users.email }).from(users).where(eq(users.id, userId));
-    if (u && isAdminEmail(u.email)) return 'instructor';
-    return roleIn(courseId, userId);
+    return courseRoleOf(courseId, { id: userId, isAdmin: Boolean(u && isAdminEmail(u.email)) });
   }
 
   async function sessionFor(sessionId: number) {
@@ -201,7 +201,7 @@ export function attachHub(httpServer: HttpServer) {
         });
         return { done: true };
       }
-      const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
+      const fallback = computerStrategyOf(session.design);
       const chosen = strategy ?? fallback;
       if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
       const res = await runner.dispatch(

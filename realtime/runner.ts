@@ -89,7 +89,7 @@ export class SessionRunner {
     const rows = await db()
       .select({ id: sessions.id })
       .from(sessions)
-      .where(and(inArray(sessions.status, ['open', 'running', 'paused']), eq(sessions.simulated, 0)));
+      .where(and(inArray(sessions.status, ['open', 'running', 'paused']), eq(sessions.simulated, false)));
     this.recovering = true;
     try {
       for (const r of rows) await this.graceOne(r.id);

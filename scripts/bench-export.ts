@@ -53,7 +53,7 @@ async function measure(label: string, body: ReadableStream<Uint8Array>, countLin
 const [u] = await db()
   .insert(users)
   .values({ email: `bench-${process.pid}@bench.parley.test`, name: 'Bench (synthetic)' });
-const [c] = await db().insert(courses).values({ title: 'Export benchmark (synthetic)', isDemo: 1, createdBy: u.insertId });
+const [c] = await db().insert(courses).values({ title: 'Export benchmark (synthetic)', isDemo: true, createdBy: u.insertId });
 let removeSession: (() => Promise<void>) | null = null;
 try {
   const t0 = performance.now();

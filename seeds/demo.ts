@@ -76,14 +76,14 @@ export async function seedDemo(db: Db) {
   for (const s of DEMO_STAFF) staffIds.set(s.email, await upsertUser(db, s.email, s.name));
   const instructorId = staffIds.get(DEMO_STAFF[0].email)!;
   // The demo instructor may create courses (docs/decisions/023-who-creates-courses.md).
-  await db.update(users).set({ mayCreateCourses: 1 }).where(eq(users.id, instructorId));
+  await db.update(users).set({ mayCreateCourses: true }).where(eq(users.id, instructorId));
 
   let [course] = await db
     .select({ id: courses.id })
     .from(courses)
-    .where(and(eq(courses.title, DEMO_COURSE.title), eq(courses.isDemo, 1)));
+    .where(and(eq(courses.title, DEMO_COURSE.title), eq(courses.isDemo, true)));
   if (!course) {
-    const [res] = await db.insert(courses).values({ ...DEMO_COURSE, isDemo: 1, createdBy: instructorId });
+    const [res] = await db.insert(courses).values({ ...DEMO_COURSE, isDemo: true, createdBy: instructorId });
     course = { id: res.insertId };
   }
   const member = async (userId: number, role: schema.CourseRole, studentId: string | null = null) =>
@@ -127,13 +127,13 @@ async function seedDemoSessions(db: Db, courseId: number, instructorId: number) 
     const [exists] = await db
       .select({ id: sessions.id })
       .from(sessions)
-      .where(and(eq(sessions.courseId, courseId), eq(sessions.treatment, run.design.name), eq(sessions.simulated, 1)));
+      .where(and(eq(sessions.courseId, courseId), eq(sessions.treatment, run.design.name), eq(sessions.simulated, true)));
     if (exists) continue;
     const [design] = await db
       .select({ id: designs.id, params: designs.params })
       .from(designs)
       .where(and(eq(designs.courseId, courseId), eq(designs.name, run.design.name)));
-    const params = designSchema.parse(design.params);
+    const { params } = design;
     await db.transaction(async (tx) => {
       const [res] = await tx.insert(sessions).values({
         courseId,
@@ -142,7 +142,7 @@ async function seedDemoSessions(db: Db, courseId: number, instructorId: number) 
         params,
         seed: run.seed,
         status: 'draft',
-        simulated: 1,
+        simulated: true,
         createdBy: instructorId,
         createdAt: new Date(run.start - 3600_000),
       });

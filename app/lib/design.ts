@@ -55,6 +55,9 @@ export const terminationSchema = z.discriminatedUnion('kind', [
   }),
 ]);
 
+/** The library strategy a computer partner plays where the design names none: tit-for-tat (common practice). */
+export const DEFAULT_COMPUTER_STRATEGY = 'TFT';
+
 export const oddCountSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('computer'), strategy: strategyId }),
   z.object({ kind: z.literal('sit-out') }),
@@ -105,7 +108,7 @@ export const designSchema = z
       .max(600, 'The round timer is at most 600 seconds'),
     termination: terminationSchema.default({ kind: 'standard' }),
     matching: z.literal('random-rematch').default('random-rematch'),
-    oddCount: oddCountSchema.default({ kind: 'computer', strategy: 'TFT' }),
+    oddCount: oddCountSchema.default({ kind: 'computer', strategy: DEFAULT_COMPUTER_STRATEGY }),
     timeout: timeoutRuleSchema.default('repeat-last'),
     credit: creditRuleSchema.default({ kind: 'participation', credit: 1 }),
     consent: z.boolean().default(false),
@@ -132,6 +135,14 @@ export type DesignInput = z.input<typeof designSchema>;
 export type Payoffs = Design['payoffs'];
 export type TimeoutRule = z.output<typeof timeoutRuleSchema>;
 export type OddCountRule = z.output<typeof oddCountSchema>;
+
+/**
+ * The strategy of the design's computer partner (the odd participant's partner, a seat handed to
+ * the computer, the practice partner): its odd-count rule's, or the default where it has none.
+ */
+export function computerStrategyOf(d: { oddCount: OddCountRule }): string {
+  return d.oddCount.kind === 'computer' ? d.oddCount.strategy : DEFAULT_COMPUTER_STRATEGY;
+}
 export type CreditRule = z.output<typeof creditRuleSchema>;
 
 export interface DesignWarning {

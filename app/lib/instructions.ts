@@ -6,6 +6,7 @@
  */
 import type { Design } from './design';
 import { drawRule } from './draws';
+import { profilePoints } from './stage-game';
 import { strategyInWords } from './strategy-words';
 
 const num = (x: number) => String(Number(x.toFixed(2)));
@@ -246,11 +247,9 @@ export function instructionContradictions(d: Design, text: string = fillInstruct
   const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
   const label = `(${escape(d.labels.C)}|${escape(d.labels.D)})`;
   const pay = new RegExp(`You ${label}, partner ${label}: you get (−?-?\\d+(?:[.,]\\d+)?), your partner gets (−?-?\\d+(?:[.,]\\d+)?)`, 'g');
-  const { R, S, T, P } = d.payoffs;
-  const points = { CC: [R, R], CD: [S, T], DC: [T, S], DD: [P, P] } as const;
   const actionOf = (l: string) => (l === d.labels.C ? 'C' : 'D');
   for (const m of text.matchAll(pay)) {
-    const [own, partner] = points[`${actionOf(m[1])}${actionOf(m[2])}` as keyof typeof points];
+    const [own, partner] = profilePoints(d.payoffs, actionOf(m[1]), actionOf(m[2]));
     if (!same(readNumber(m[3]), own) || !same(readNumber(m[4]), partner)) {
       out.push(
         `The instructions say “${m[0]}”, but the payoffs give you ${num(own)} and your partner ${num(partner)}. Write the points as {R}, {S}, {T} and {P}.`,

@@ -6,6 +6,7 @@
 import { type Action, type Automaton, profileOf } from './automata';
 import type { Design } from './design';
 import { drawRule } from './draws';
+import { profilePoints } from './stage-game';
 
 /** A practice supergame stops here even if the draws would go on: it is a rehearsal, not a game. */
 export const PRACTICE_MAX_ROUNDS = 5;
@@ -43,9 +44,7 @@ export function playPracticeRound(
     history.map((r) => r.computer),
     history.map((r) => r.own),
   );
-  const { R, S, T, P } = d.payoffs;
-  const points: Record<string, [number, number]> = { CC: [R, R], CD: [S, T], DC: [T, S], DD: [P, P] };
-  const [ownPoints, computerPoints] = points[`${own}${c}`];
+  const [ownPoints, computerPoints] = profilePoints(d.payoffs, own, c);
   const round = history.length + 1;
   const another = draw <= drawRule(d.delta).cutoff;
   return { round, own, computer: c, ownPoints, computerPoints, draw, another, goesOn: another && round < PRACTICE_MAX_ROUNDS };

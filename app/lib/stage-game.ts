@@ -88,11 +88,24 @@ export function normalised(game: StageGame): { g: number; l: number } {
   return { g: (T - R) / (R - P), l: (P - S) / (R - P) };
 }
 
-/** Row player's stage payoff. */
+/** Row player's stage payoff: the one place actions become points (engine, views, practice, instructions, panel). */
 export function stagePayoff(game: StageGame, own: Action, partner: Action): number {
   if (own === 'C') return partner === 'C' ? game.R : game.S;
   return partner === 'C' ? game.T : game.P;
 }
+
+/** Both players' points for a pair of actions: [own, partner]. */
+export function profilePoints(game: StageGame, own: Action, partner: Action): [number, number] {
+  return [stagePayoff(game, own, partner), stagePayoff(game, partner, own)];
+}
+
+/** The four action profiles in the order a payoff table lists them: CC, CD, DC, DD. */
+export const ACTION_PROFILES: readonly (readonly [Action, Action])[] = [
+  ['C', 'C'],
+  ['C', 'D'],
+  ['D', 'C'],
+  ['D', 'D'],
+];
 
 /**
  * Payoffs indexed by profile code own*2 + partner with C = 0, D = 1: [R, S, T, P].

@@ -36,7 +36,6 @@ export async function listCoursesForUser(userId: number, isAdmin: boolean) {
     .orderBy(asc(courses.title));
   return rows.map((r) => ({
     ...r,
-    isDemo: r.isDemo === 1,
     members: Number(r.members ?? 0),
     role: r.role ?? (isAdmin ? ('admin' as const) : null),
   }));
@@ -228,7 +227,7 @@ export async function listCourseCreators() {
   return db()
     .select({ id: users.id, email: users.email, name: users.name })
     .from(users)
-    .where(eq(users.mayCreateCourses, 1))
+    .where(eq(users.mayCreateCourses, true))
     .orderBy(asc(users.email));
 }
 
@@ -237,13 +236,13 @@ export async function grantCourseCreation(email: string) {
   const normalised = email.trim().toLowerCase();
   await db()
     .insert(users)
-    .values({ email: normalised, mayCreateCourses: 1 })
-    .onDuplicateKeyUpdate({ set: { mayCreateCourses: 1 } });
+    .values({ email: normalised, mayCreateCourses: true })
+    .onDuplicateKeyUpdate({ set: { mayCreateCourses: true } });
 }
 
 /** Courses already made stay with their instructors; only new ones are refused. */
 export async function revokeCourseCreation(userId: number) {
-  const [res] = await db().update(users).set({ mayCreateCourses: 0 }).where(eq(users.id, userId));
+  const [res] = await db().update(users).set({ mayCreateCourses: false }).where(eq(users.id, userId));
   return res.affectedRows > 0;
 }
 
@@ -319,4 +318,20 @@ export async function changeMemberRole(courseId: number, memberId: number, role:
     else await tx.update(courseMembers).set({ role }).where(eq(courseMembers.id, memberId));
     return { ok: true, userId: m.userId };
   });
+}
+
+/** Courses among `ids` with ids after `afterId`, ascending (the research API's list of a token's courses). */
+export async function coursesAfter(ids: readonly number[], afterId: number) {
+  if (ids.length === 0) return [];
+  return db()
+    .select({ id: courses.id, title: courses.title, institution: courses.institution, term: courses.term, isDemo: courses.isDemo })
+    .from(courses)
+    .where(and(inArray(courses.id, [...ids]), gt(courses.id, afterId)))
+    .orderBy(asc(courses.id));
+}
+
+/** Accounts on this Parley (the site admin's overview). */
+export async function countUsers(): Promise<number> {
+  const [{ n }] = await db().select({ n: count() }).from(users);
+  return n;
 }

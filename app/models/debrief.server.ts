@@ -50,13 +50,13 @@ export interface DebriefOptions {
   research?: boolean;
 }
 
-/** Throws 404 when a session is not in the course (another course's session is not found either). */
-export async function loadDebrief(courseId: number, sessionIds: readonly number[], opts: DebriefOptions = {}): Promise<DebriefData> {
+/** null when one of the sessions is not in the course (another course's session is not found either). */
+export async function loadDebrief(courseId: number, sessionIds: readonly number[], opts: DebriefOptions = {}): Promise<DebriefData | null> {
   const include = opts.include ?? 'own';
   const sessions: DebriefSession[] = [];
   for (const id of sessionIds) {
     const s = await loadSessionPanel(courseId, id, { keepDeclined: !opts.research });
-    if (!s) throw new Response(`No session ${id} in this course.`, { status: 404 });
+    if (!s) return null;
     const d = s.session.design;
     sessions.push({
       id,
@@ -99,29 +99,6 @@ export function debriefGrouping(sessions: readonly DebriefSession[], url: URL) {
       { separate },
     ),
   };
-}
-
-/** `?sessions=3,4` → [3, 4]; a malformed list is a 400, an empty one a 400 as well. */
-export function sessionIdsParam(url: URL, max = 20): number[] {
-  // `?sessions=3,4` from links, `?sessions=3&sessions=4` from the list's checkboxes
-  const raw = url.searchParams.getAll('sessions').join(',');
-  const parts = raw
-    .split(',')
-    .map((s) => s.trim())
-    .filter(Boolean);
-  const ids = parts.map(Number);
-  if (parts.length === 0 || ids.some((n) => !Number.isSafeInteger(n) || n <= 0)) {
-    throw new Response('Name the sessions as ?sessions=1,2 (session numbers of this course).', { status: 400 });
-  }
-  if (ids.length > max) throw new Response(`At most ${max} sessions at once.`, { status: 400 });
-  return [...new Set(ids)];
-}
-
-/** The session id in the URL; anything but a positive whole number is a 404. */
-export function sessionIdParam(raw: string | undefined): number {
-  const id = Number(raw);
-  if (!raw || !Number.isSafeInteger(id) || id <= 0) throw new Response('No such session.', { status: 404 });
-  return id;
 }
 
 /** `?estimate=ID` when it is one of these sessions' estimations, else the newest. */

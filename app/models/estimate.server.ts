@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import { and, desc, eq, ne } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, ne } from 'drizzle-orm';
 import { libraryStrategy } from '#app/lib/automata';
 import { FairQueue } from '#app/lib/fair-queue';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
@@ -416,4 +416,14 @@ export function workerUrl(): URL | undefined {
   const fromCwd = path.resolve(rel);
   if (existsSync(fromCwd)) return pathToFileURL(fromCwd);
   throw new Error(`The bootstrap worker's entry ${rel} was not found beside the build.`);
+}
+
+/** The research API's page of a course's estimations: ids after `afterId`, ascending, at most `limit`. */
+export async function estimatesAfter(courseId: number, afterId: number, limit: number) {
+  return db()
+    .select()
+    .from(estimates)
+    .where(and(eq(estimates.courseId, courseId), gt(estimates.id, afterId)))
+    .orderBy(asc(estimates.id))
+    .limit(limit);
 }

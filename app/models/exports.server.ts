@@ -2,10 +2,11 @@
 import { and, count, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
 import { type Credit, creditFor } from '#app/lib/credit';
 import { type CsvColumn, csvLines } from '#app/lib/csv';
-import { type CreditRule, designSchema } from '#app/lib/design';
+import type { CreditRule } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { choices, exportLog, sessionParticipants, sessions, users } from '#drizzle/schema';
 import { type PanelSession, panelPages, panelParticipants } from './panel-export.server';
+import { sessionColumns, toSession } from './session-row.server';
 
 export type ExportKind = 'panel-identified' | 'credit-sheet';
 
@@ -26,18 +27,13 @@ export async function listExportLog(courseId: number, limit = 20) {
 
 /** The course's completed sessions, and how much each holds. */
 export async function listExportableSessions(courseId: number) {
-  const list = await db()
-    .select({
-      id: sessions.id,
-      treatment: sessions.treatment,
-      status: sessions.status,
-      simulated: sessions.simulated,
-      params: sessions.params,
-      completedAt: sessions.completedAt,
-    })
-    .from(sessions)
-    .where(and(eq(sessions.courseId, courseId), inArray(sessions.status, ['complete', 'archived'])))
-    .orderBy(desc(sessions.id));
+  const list = (
+    await db()
+      .select(sessionColumns)
+      .from(sessions)
+      .where(and(eq(sessions.courseId, courseId), inArray(sessions.status, ['complete', 'archived'])))
+      .orderBy(desc(sessions.id))
+  ).map(toSession);
   if (list.length === 0) return [];
   const ids = list.map((s) => s.id);
   // counted for these sessions only (the choices table holds every course's)
@@ -63,8 +59,8 @@ export async function listExportableSessions(courseId: number) {
     id: s.id,
     treatment: s.treatment,
     status: s.status,
-    simulated: s.simulated === 1,
-    delta: designSchema.parse(s.params).delta,
+    simulated: s.simulated,
+    delta: s.design.delta,
     completedAt: s.completedAt,
     rows: Number(rowsOf.get(s.id) ?? 0),
     participants: Number(peopleOf.get(s.id)?.n ?? 0),

@@ -1,10 +1,10 @@
 // Persistence of live sessions: the engine's effects in, the rows that rebuild it out.
 import { randomInt } from 'node:crypto';
 import { and, asc, eq, sql } from 'drizzle-orm';
-import { type Design, designSchema } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { choices, sessionLog, sessionPairs, sessionParticipants, sessions, supergameDraws } from '#drizzle/schema';
 import { rebuild } from '#realtime/engine/rebuild';
+import { type Session, sessionColumns, toSession } from './session-row.server';
 import type { StoredChoice, Effect, EngineState, LogRow, ParticipantRow } from '#realtime/engine/types';
 
 /** No 0/O and no 1/I: codes are read off a projector and typed on phones. */
@@ -175,33 +175,12 @@ function choiceInsert(sessionId: number, r: StoredChoice): typeof choices.$infer
   };
 }
 
-export interface StoredSession {
-  id: number;
-  courseId: number;
-  treatment: string;
-  design: Design;
-  seed: number;
-  status: (typeof sessions.$inferSelect)['status'];
-  joinCode: string | null;
-  /** roster: course members only; open: anyone signed in (within the e-mail domain, if set) */
-  admission: 'roster' | 'open';
-  simulated: boolean;
-}
+/** The session the runner keeps live (app/models/session-row.server.ts). */
+export type StoredSession = Session;
 
 export async function getSession(sessionId: number): Promise<StoredSession | null> {
-  const [s] = await db().select().from(sessions).where(eq(sessions.id, sessionId));
-  if (!s) return null;
-  return {
-    id: s.id,
-    courseId: s.courseId,
-    treatment: s.treatment,
-    design: designSchema.parse(s.params),
-    seed: s.seed,
-    status: s.status,
-    joinCode: s.joinCode,
-    admission: s.admission,
-    simulated: s.simulated === 1,
-  };
+  const [s] = await db().select(sessionColumns).from(sessions).where(eq(sessions.id, sessionId));
+  return s ? toSession(s) : null;
 }
 
 /** Every stored row of a session, in the engine's shapes. */

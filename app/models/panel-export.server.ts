@@ -14,10 +14,11 @@ import { alias } from 'drizzle-orm/mysql-core';
 import { Zip, ZipDeflate } from 'fflate';
 import { csvLines } from '#app/lib/csv';
 import { comparePseudonyms, type PanelContext, type PanelRow, panelRowOf, seatKey, type UnfinishedRound } from '#app/lib/choice-panel';
-import { type CreditRule, designSchema } from '#app/lib/design';
+import type { CreditRule } from '#app/lib/design';
 import { codebookCsv, panelCsvColumns, panelReadme } from '#app/lib/panel-codebook';
 import { db } from '#app/utils/db.server';
 import { memberName } from '#app/models/course.server';
+import { type Session, sessionColumns, toSession } from '#app/models/session-row.server';
 import { choices, courseMembers, sessionParticipants, sessions, supergameDraws, users } from '#drizzle/schema';
 
 export type { PanelRow } from '#app/lib/choice-panel';
@@ -34,7 +35,7 @@ export interface PanelSession {
   id: number;
   courseId: number;
   treatment: string;
-  status: (typeof sessions.$inferSelect)['status'];
+  status: Session['status'];
   simulated: boolean;
   payoffs: { R: number; S: number; T: number; P: number };
   delta: number;
@@ -43,31 +44,21 @@ export interface PanelSession {
   completedAt: Date | null;
 }
 
-/** One session of a course, or a 404 (an id of another course is as unknown as a wrong one). */
-export async function requirePanelSession(courseId: number, rawId: string | undefined): Promise<PanelSession> {
-  const id = Number(rawId);
-  const [s] = Number.isSafeInteger(id) && id > 0 ? await panelSessions(courseId, [id]) : [];
-  if (!s) throw new Response('No such session in this course.', { status: 404 });
-  return s;
+/** One session of a course, or null (an id of another course is as unknown as a wrong one). */
+export async function findPanelSession(courseId: number, id: number): Promise<PanelSession | null> {
+  const [s] = await panelSessions(courseId, [id]);
+  return s ?? null;
 }
 
-/** A stored session row (with its frozen design) as the reader's session. */
-export function panelSessionOf(s: {
-  id: number;
-  courseId: number;
-  treatment: string;
-  status: PanelSession['status'];
-  simulated: number | boolean;
-  params: unknown;
-  completedAt: Date | null;
-}): PanelSession {
-  const design = designSchema.parse(s.params);
+/** A session (with its frozen design) as the reader's session. */
+export function panelSessionOf(s: Session): PanelSession {
+  const { design } = s;
   return {
     id: s.id,
     courseId: s.courseId,
     treatment: s.treatment,
     status: s.status,
-    simulated: s.simulated === 1 || s.simulated === true,
+    simulated: s.simulated,
     payoffs: design.payoffs,
     delta: design.delta,
     credit: design.credit,
@@ -79,19 +70,11 @@ export function panelSessionOf(s: {
 export async function panelSessions(courseId: number, ids?: readonly number[]): Promise<PanelSession[]> {
   if (ids && ids.length === 0) return [];
   const rows = await db()
-    .select({
-      id: sessions.id,
-      courseId: sessions.courseId,
-      treatment: sessions.treatment,
-      status: sessions.status,
-      simulated: sessions.simulated,
-      params: sessions.params,
-      completedAt: sessions.completedAt,
-    })
+    .select(sessionColumns)
     .from(sessions)
     .where(and(eq(sessions.courseId, courseId), ids ? inArray(sessions.id, [...ids]) : undefined))
     .orderBy(asc(sessions.id));
-  return rows.map(panelSessionOf);
+  return rows.map((r) => panelSessionOf(toSession(r)));
 }
 
 export interface PanelOptions {

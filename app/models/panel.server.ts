@@ -3,50 +3,17 @@
 // app/models/panel-export.server.ts, always scoped by course; this file builds no rows itself.
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { PanelRow, UnfinishedRound } from '#app/lib/choice-panel';
-import { designSchema, type Design } from '#app/lib/design';
 import { db } from '#app/utils/db.server';
 import { sessionParticipants, sessions } from '#drizzle/schema';
 import { panelPages, panelSessionOf } from './panel-export.server';
+import { type Session, sessionColumns, toSession } from './session-row.server';
 
-export interface SessionInfo {
-  id: number;
-  courseId: number;
-  treatment: string;
-  design: Design;
-  status: (typeof sessions.$inferSelect)['status'];
-  simulated: boolean;
-  startedAt: Date | null;
-  completedAt: Date | null;
-}
-
-const sessionColumns = {
-  id: sessions.id,
-  courseId: sessions.courseId,
-  treatment: sessions.treatment,
-  params: sessions.params,
-  status: sessions.status,
-  simulated: sessions.simulated,
-  startedAt: sessions.startedAt,
-  completedAt: sessions.completedAt,
-};
-
-function toInfo(s: {
-  id: number;
-  courseId: number;
-  treatment: string;
-  params: unknown;
-  status: SessionInfo['status'];
-  simulated: number;
-  startedAt: Date | null;
-  completedAt: Date | null;
-}): SessionInfo {
-  return { ...s, design: designSchema.parse(s.params), simulated: s.simulated === 1 };
-}
+export type SessionInfo = Session;
 
 /** Sessions of a course (scoped: another course's session is not found). */
 export async function listCourseSessions(courseId: number): Promise<SessionInfo[]> {
   const rows = await db().select(sessionColumns).from(sessions).where(eq(sessions.courseId, courseId)).orderBy(asc(sessions.id));
-  return rows.map(toInfo);
+  return rows.map(toSession);
 }
 
 export async function getCourseSessions(courseId: number, sessionIds: readonly number[]): Promise<SessionInfo[]> {
@@ -56,7 +23,7 @@ export async function getCourseSessions(courseId: number, sessionIds: readonly n
     .from(sessions)
     .where(and(eq(sessions.courseId, courseId), inArray(sessions.id, [...sessionIds])))
     .orderBy(asc(sessions.id));
-  return rows.map(toInfo);
+  return rows.map(toSession);
 }
 
 export interface SessionPanel {
@@ -82,7 +49,7 @@ export async function loadSessionPanel(
   if (!session) return null;
   const rows: PanelRow[] = [];
   const unfinished: UnfinishedRound[] = [];
-  const list = [panelSessionOf({ ...session, params: session.design })];
+  const list = [panelSessionOf(session)];
   for await (const page of panelPages(list, { keepDeclined: opts.keepDeclined, participantKeys: opts.participantKeys })) {
     rows.push(...page.rows);
     unfinished.push(...page.unfinished);

@@ -1,5 +1,4 @@
-import { and, count, desc, eq, inArray } from 'drizzle-orm';
-import { designSchema } from '#app/lib/design';
+import { and, asc, count, desc, eq, gt, inArray } from 'drizzle-orm';
 import { instructionProblems } from '#app/lib/instructions';
 import { normaliseSeed } from '#app/lib/rng';
 import { versionedName } from '#app/lib/treatment';
@@ -7,6 +6,7 @@ import { db } from '#app/utils/db.server';
 import { courseMembers, designs, sessionParticipants, sessions, users } from '#drizzle/schema';
 import { memberName } from './course.server';
 import { newJoinCode, newSeed } from './live.server';
+import { type Session, sessionColumns, toSession } from './session-row.server';
 
 export async function listSessions(courseId: number) {
   const joined = db()
@@ -37,7 +37,6 @@ export async function listSessions(courseId: number) {
   return rows.map((r) => ({
     ...r,
     joinCode: admitting.has(r.status) ? r.joinCode : null,
-    simulated: r.simulated === 1,
     participants: Number(r.participants ?? 0),
   }));
 }
@@ -73,7 +72,7 @@ export async function createSessionFromDesign(opts: {
         if (d.archivedAt) return { ok: false, field: 'designId', message: 'That design is archived; restore it first.' };
         // Instructions that say another δ or other points than the design plays would mislead the
         // room (docs/decisions/028): refused here, inside the lock, so a save in between cannot slip past.
-        const problems = instructionProblems(designSchema.parse(d.params));
+        const problems = instructionProblems(d.params);
         if (problems.length) {
           return {
             ok: false,
@@ -85,7 +84,7 @@ export async function createSessionFromDesign(opts: {
           courseId: opts.courseId,
           designId: opts.designId,
           treatment: versionedName(d.name, d.version).slice(0, 120),
-          params: designSchema.parse(d.params),
+          params: d.params,
           seed,
           joinCode: newJoinCode(),
           status: 'draft',
@@ -156,4 +155,15 @@ export async function sessionsOfParticipant(userId: number) {
     .where(eq(sessionParticipants.userId, userId))
     .orderBy(desc(sessions.createdAt))
     .limit(20);
+}
+
+/** A course's sessions with ids after `afterId`, ascending, at most `limit` (the research API's pages). */
+export async function sessionsAfter(courseId: number, afterId: number, limit: number): Promise<Session[]> {
+  const rows = await db()
+    .select(sessionColumns)
+    .from(sessions)
+    .where(and(eq(sessions.courseId, courseId), gt(sessions.id, afterId)))
+    .orderBy(asc(sessions.id))
+    .limit(limit);
+  return rows.map(toSession);
 }

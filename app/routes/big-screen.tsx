@@ -7,7 +7,8 @@ import { CancelledSlide, ClosingSlide } from '#app/components/big-screen/slides'
 import { useSessionView } from '#app/components/live/use-session';
 import { getSession } from '#app/models/live.server';
 import { env } from '#app/utils/env.server';
-import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
+import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
 import { bigScreenView } from '#realtime/engine/views';
@@ -16,8 +17,8 @@ import { bigScreenView } from '#realtime/engine/views';
 // may still join and play; progress, the round's draw and the room's cooperation while running; a
 // closing slide at the end. Aggregates only: no pseudonym, no individual choice.
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const session = await getSession(parseId(params.sessionId));
-  if (!session) throw new Response('No such session.', { status: 404 });
+  const session = await getSession(parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, 'No such session.');
   await requireCourseRole(request, String(session.courseId), STAFF_ROLES);
   const joinUrl = session.joinCode ? new URL(`/join/${session.joinCode}`, env().APP_URL).toString() : null;
   const qr = joinUrl ? await QRCode.toString(joinUrl, { type: 'svg', margin: 1, color: { dark: '#0f172a', light: '#ffffff' } }) : null;

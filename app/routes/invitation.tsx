@@ -4,11 +4,12 @@ import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { acceptInvitation, findInvitation } from '#app/models/course.server';
 import { getUser, requireUser } from '#app/utils/auth.server';
+import { respondUnless } from '#app/utils/http.server';
 import { ROLE_WORDS } from '#app/utils/format';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const inv = await findInvitation(params.token);
-  if (!inv) throw new Response('This invitation link is not valid. Check that you opened the whole link from the e-mail.', { status: 404 });
+  respondUnless(inv, 404, 'This invitation link is not valid. Check that you opened the whole link from the e-mail.');
   const user = await getUser(request);
   const problem = inv.revokedAt
     ? 'This invitation was withdrawn or replaced by a newer one.'

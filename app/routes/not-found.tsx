@@ -1,7 +1,8 @@
 import { ErrorPage } from '#app/components/error-page';
+import { respond } from '#app/utils/http.server';
 
 export function loader() {
-  throw new Response('There is no page at this address.', { status: 404 });
+  respond(404, 'There is no page at this address.');
 }
 
 export default function NotFound() {

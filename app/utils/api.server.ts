@@ -3,13 +3,13 @@
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { API_ROLES, findApiToken, touchApiToken } from '#app/models/api-tokens.server';
-import { designSchema } from '#app/lib/design';
 import { treatmentOf } from '#app/lib/treatment';
-import { courses, sessions, users } from '#drizzle/schema';
+import { getSession } from '#app/models/live.server';
+import type { Session } from '#app/models/session-row.server';
+import { courses, users } from '#drizzle/schema';
 import { isAdminEmail } from './auth.server';
 import { db } from './db.server';
-import { roleIn } from './permissions.server';
-import type { CourseRole } from './roles';
+import { courseRoleOf } from './permissions.server';
 
 export function apiJson(body: unknown, init: ResponseInit = {}) {
   return new Response(JSON.stringify(body), {
@@ -66,10 +66,10 @@ export async function requireApiCourse(caller: ApiCaller, courseId: number) {
     .where(eq(courses.id, courseId));
   if (!course) apiFail(404, 'not_found', 'No such course.');
   if (!caller.courseIds.includes(courseId)) apiFail(403, 'out_of_scope', 'This token is not scoped to that course.');
-  const role: CourseRole | null = caller.isAdmin ? 'instructor' : await roleIn(courseId, caller.userId);
+  const role = await courseRoleOf(courseId, { id: caller.userId, isAdmin: caller.isAdmin });
   if (!role || !(API_ROLES as readonly string[]).includes(role))
     apiFail(403, 'forbidden', 'The token’s owner is no longer an instructor or researcher of that course.');
-  return { ...course, isDemo: course.isDemo === 1, role };
+  return { ...course, role };
 }
 
 const Page = z.object({
@@ -108,10 +108,8 @@ export function notAllowed() {
   return apiError(405, 'method_not_allowed', 'The API is read-only: use GET.', { allow: 'GET' });
 }
 
-type SessionRow = typeof sessions.$inferSelect;
-
-export function sessionJson(s: SessionRow) {
-  const design = designSchema.parse(s.params);
+export function sessionJson(s: Session) {
+  const { design } = s;
   return {
     id: s.id,
     course_id: s.courseId,
@@ -120,7 +118,7 @@ export function sessionJson(s: SessionRow) {
     treatment_key: treatmentOf(design).key,
     treatment_parameters: treatmentOf(design).label,
     status: s.status,
-    simulated: s.simulated === 1,
+    simulated: s.simulated,
     payoffs: design.payoffs,
     delta: design.delta,
     supergames: design.supergames,
@@ -134,7 +132,7 @@ export function sessionJson(s: SessionRow) {
 /** The session if the token may read its course (unknown → 404, out of scope → 403). */
 export async function requireApiSession(caller: ApiCaller, raw: string | undefined) {
   const id = parseApiId(raw, 'session');
-  const [s] = await db().select().from(sessions).where(eq(sessions.id, id));
+  const s = await getSession(id);
   if (!s) apiFail(404, 'not_found', 'No such session.');
   await requireApiCourse(caller, s.courseId);
   return s;

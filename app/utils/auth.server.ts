@@ -9,6 +9,7 @@ import { createCookieSessionStorage, redirect } from 'react-router';
 import { authEvents, authSessions, users } from '#drizzle/schema';
 import { db } from './db.server';
 import { env } from './env.server';
+import { respondUnless } from './http.server';
 import { sockets } from './sockets.server';
 
 const AUTH_DAYS = 30;
@@ -130,7 +131,7 @@ export async function requireUser(request: Request): Promise<CurrentUser> {
 
 export async function requireAdmin(request: Request) {
   const user = await requireUser(request);
-  if (!user.isAdmin) throw new Response('Only site administrators open this page.', { status: 403 });
+  respondUnless(user.isAdmin, 403, 'Only site administrators open this page.');
   return user;
 }
 

@@ -1,7 +1,7 @@
 // Form fields of the design editor ↔ the design schema (app/lib/design.ts). Shared by the
 // action (server) and the live theory panel (browser). Field names are the schema's paths, so
 // zod's issue paths land beside the right inputs.
-import type { DesignInput } from '#app/lib/design';
+import { DEFAULT_COMPUTER_STRATEGY, type DesignInput } from '#app/lib/design';
 
 type Source = FormData | Map<string, string>;
 
@@ -24,7 +24,7 @@ export function designInputFromForm(f: Source): DesignInput {
   const oddCount =
     get(f, 'oddCount.kind') === 'sit-out'
       ? { kind: 'sit-out' as const }
-      : { kind: 'computer' as const, strategy: get(f, 'oddCount.strategy') ?? 'TFT' };
+      : { kind: 'computer' as const, strategy: get(f, 'oddCount.strategy') ?? DEFAULT_COMPUTER_STRATEGY };
   const credit =
     get(f, 'credit.kind') === 'paid'
       ? {

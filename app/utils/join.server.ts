@@ -11,6 +11,7 @@ import { getSession, participantKeyOf } from '#app/models/live.server';
 import { findByJoinCode, setConsent } from '#app/models/session.server';
 import { type CurrentUser } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
+import { respondUnless } from '#app/utils/http.server';
 import { roleIn } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import { courses, sessions, users } from '#drizzle/schema';
@@ -18,7 +19,7 @@ import { courses, sessions, users } from '#drizzle/schema';
 /** Who may join: roster sessions admit course members; open ones anyone (by e-mail domain if set). */
 export async function admission(code: string, user: CurrentUser) {
   const found = await findByJoinCode(code);
-  if (!found) throw new Response('There is no session with this code. Check the code on the big screen.', { status: 404 });
+  respondUnless(found, 404, 'There is no session with this code. Check the code on the big screen.');
   const session = (await getSession(found.id))!;
   if (found.status === 'complete') return { session, refusal: 'This session has ended.' };
   if (found.admission === 'roster' && !(await roleIn(found.courseId, user.id))) {

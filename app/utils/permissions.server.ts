@@ -3,6 +3,7 @@ import { courseMembers, courses, type CourseRole, users } from '#drizzle/schema'
 import { type CurrentUser, requireUser } from './auth.server';
 import { db } from './db.server';
 import { env } from './env.server';
+import { parseId, respondUnless } from './http.server';
 
 export const STAFF_ROLES = ['instructor', 'assistant', 'researcher'] as const satisfies readonly CourseRole[];
 
@@ -13,12 +14,6 @@ export interface CourseAccess {
   role: CourseRole;
 }
 
-export function parseId(raw: string | undefined): number {
-  const id = Number(raw);
-  if (!raw || !Number.isSafeInteger(id) || id <= 0) throw new Response('No such course.', { status: 404 });
-  return id;
-}
-
 /** Role of a user in a course, or null. */
 export async function roleIn(courseId: number, userId: number): Promise<CourseRole | null> {
   const [m] = await db()
@@ -26,6 +21,11 @@ export async function roleIn(courseId: number, userId: number): Promise<CourseRo
     .from(courseMembers)
     .where(and(eq(courseMembers.courseId, courseId), eq(courseMembers.userId, userId)));
   return m?.role ?? null;
+}
+
+/** A user's role in a course: site admins act as instructors in every course (product.md "Roles"). */
+export async function courseRoleOf(courseId: number, user: { id: number; isAdmin: boolean }): Promise<CourseRole | null> {
+  return user.isAdmin ? 'instructor' : roleIn(courseId, user.id);
 }
 
 /**
@@ -38,7 +38,7 @@ export async function requireCourseRole(
   roles: readonly CourseRole[],
 ): Promise<CourseAccess> {
   const user = await requireUser(request);
-  const courseId = parseId(courseIdParam);
+  const courseId = parseId(courseIdParam, 'course');
   const [course] = await db()
     .select({
       id: courses.id,
@@ -50,14 +50,11 @@ export async function requireCourseRole(
     })
     .from(courses)
     .where(eq(courses.id, courseId));
-  if (!course) throw new Response('No such course.', { status: 404 });
-  const role: CourseRole | null = user.isAdmin ? 'instructor' : await roleIn(courseId, user.id);
-  if (!role || !roles.includes(role)) {
-    throw new Response(role ? `Your role in this course (${role}) does not open this page.` : 'You are not a member of this course.', {
-      status: 403,
-    });
-  }
-  return { user, course: { ...course, isDemo: course.isDemo === 1 }, role };
+  respondUnless(course, 404, 'No such course.');
+  const role = await courseRoleOf(courseId, user);
+  respondUnless(role, 403, 'You are not a member of this course.');
+  respondUnless(roles.includes(role), 403, `Your role in this course (${role}) does not open this page.`);
+  return { user, course, role };
 }
 
 /** The part of an address after the last @, lower-cased. */
@@ -71,14 +68,12 @@ export const emailDomain = (email: string) => email.slice(email.lastIndexOf('@')
 export async function mayCreateCourses(user: CurrentUser): Promise<boolean> {
   if (user.isAdmin || env().INSTRUCTOR_DOMAINS.includes(emailDomain(user.email))) return true;
   const [u] = await db().select({ granted: users.mayCreateCourses }).from(users).where(eq(users.id, user.id));
-  return u?.granted === 1;
+  return u?.granted === true;
 }
 
 /** Guard of course creation: 403 with the way to get the right. */
 export async function requireCourseCreator(request: Request): Promise<CurrentUser> {
   const user = await requireUser(request);
-  if (!(await mayCreateCourses(user))) {
-    throw new Response('Your account may not create courses. Ask a site administrator of Parley to allow it.', { status: 403 });
-  }
+  respondUnless(await mayCreateCourses(user), 403, 'Your account may not create courses. Ask a site administrator of Parley to allow it.');
   return user;
 }

@@ -3,20 +3,10 @@
  * event type, checks before it writes, and answers null (applied), an EngineError (nothing
  * changes) or the stored row of a choice already made.
  */
+import { computerStrategyOf } from '#app/lib/design';
 import { drawSequence } from '#app/lib/draws';
 import { type Draft, fail, openPairIds, playing, roundMs, transition } from './draft';
-import {
-  advancePair,
-  applyTimeout,
-  cancelTimer,
-  defaultComputerStrategy,
-  findParticipant,
-  handOver,
-  isStrategy,
-  reveal,
-  addRow,
-  scheduleTimer,
-} from './rounds';
+import { advancePair, applyTimeout, cancelTimer, findParticipant, handOver, isStrategy, reveal, addRow, scheduleTimer } from './rounds';
 import { beginSupergame, completeSession, settle, summarise } from './supergames';
 import type { EngineError, EngineEvent, EngineState, StoredChoice } from './types';
 
@@ -197,7 +187,7 @@ const HANDLERS: Handlers = {
     d.p(p.id).status = 'removed';
     d.log({ type: 'remove', participantId: p.id });
     // the partner finishes the supergame against a disclosed computer
-    handOver(d, p.id, defaultComputerStrategy(s.design));
+    handOver(d, p.id, computerStrategyOf(s.design));
     settle(d);
     return null;
   },

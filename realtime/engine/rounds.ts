@@ -4,31 +4,20 @@
  */
 import { type Action, type Automaton, libraryStrategy, LIBRARY, profileOf } from '#app/lib/automata';
 import type { ChoiceSource } from '#app/lib/choice-panel';
-import type { Design } from '#app/lib/design';
+import { computerStrategyOf } from '#app/lib/design';
 import { describeDraw } from '#app/lib/draws';
+import { profilePoints } from '#app/lib/stage-game';
 import { type Draft, fail, roundMs, timerKey } from './draft';
 import type { EngineError, PairState, ParticipantState, RoundRecord, StoredChoice } from './types';
 
 /** A timer may fire this much early (clock granularity) and still count. */
 const TIMER_TOLERANCE_MS = 100;
 
-function payoffOf(d: Design, own: Action, partner: Action): number {
-  // methods.md §0: u(C,C)=R, u(C,D)=S, u(D,C)=T, u(D,D)=P
-  const { R, S, T, P } = d.payoffs;
-  if (own === 'C') return partner === 'C' ? R : S;
-  return partner === 'C' ? T : P;
-}
-
 /** The state an automaton reaches after a history, following observed actions (methods.md §3). */
 export function automatonStateAfter(a: Automaton, own: readonly Action[], partner: readonly Action[]): number {
   let s = 0;
   for (let t = 0; t < own.length; t++) s = a.states[s].next[profileOf(own[t], partner[t])];
   return s;
-}
-
-/** Strategy of the computer that takes over a removed participant's seat. */
-export function defaultComputerStrategy(d: Design): string {
-  return d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT';
 }
 
 export const isStrategy = (id: string): boolean => LIBRARY.some((a) => a.id === id);
@@ -113,7 +102,7 @@ function timeoutAction(d: Draft, pair: PairState, seat: 0 | 1): { action: Action
       return { action: last ? last.actions[seat] : 'C', strategy: null };
     }
     case 'computer-strategy': {
-      const a = libraryStrategy(defaultComputerStrategy(d.s.design));
+      const a = libraryStrategy(computerStrategyOf(d.s.design));
       const h = ownHistory(pair, seat);
       return { action: a.states[automatonStateAfter(a, h.own, h.partner)].action, strategy: a.id };
     }
@@ -146,7 +135,7 @@ function resolveRound(d: Draft, pair: PairState): number {
     round: pair.round,
     actions,
     sources: [a.source, b.source],
-    payoffs: [payoffOf(design, actions[0], actions[1]), payoffOf(design, actions[1], actions[0])],
+    payoffs: profilePoints(design.payoffs, actions[0], actions[1]),
     draw,
     paid: pair.round <= sg.draws.length,
     revealed: false,

@@ -2,22 +2,17 @@
  * What each screen sees (product.md, "Play", "Floor and Conductor", "Big screen").
  * Participants never see their partner's pseudonym; the big screen shows aggregates only.
  */
-import type { Action } from '#app/lib/automata';
 import { describeBlock, describeDraw, drawRule, formatCutoff, supergameDraws } from '#app/lib/draws';
+import { ACTION_PROFILES, profilePoints } from '#app/lib/stage-game';
 import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
 
 const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);
 
 function payoffTable(s: EngineState): ParticipantView['payoffTable'] {
-  // methods.md §0: u(C,C)=R, u(C,D)=S, u(D,C)=T, u(D,D)=P
-  const { R, S, T, P } = s.design.payoffs;
-  const rows: [Action, Action, number, number][] = [
-    ['C', 'C', R, R],
-    ['C', 'D', S, T],
-    ['D', 'C', T, S],
-    ['D', 'D', P, P],
-  ];
-  return rows.map(([own, partner, ownPoints, partnerPoints]) => ({ own, partner, ownPoints, partnerPoints }));
+  return ACTION_PROFILES.map(([own, partner]) => {
+    const [ownPoints, partnerPoints] = profilePoints(s.design.payoffs, own, partner);
+    return { own, partner, ownPoints, partnerPoints };
+  });
 }
 
 /** The latest end-of-block announcement of a pair's supergame (block termination only). */

@@ -232,7 +232,7 @@ describe('the big screen on a 1920×1080 projector', () => {
       await testDb()
         .select()
         .from(sessions)
-        .where(and(eq(sessions.simulated, 1), eq(sessions.status, 'complete')))
+        .where(and(eq(sessions.simulated, true), eq(sessions.status, 'complete')))
     ).find((x) => designSchema.parse(x.params).supergames === 20)!;
     const design = designSchema.parse(demo.params);
     const page = await screenPage(await signIn('r.okafor@halvorsen.example'), demo.id, PROJECTOR);

@@ -35,6 +35,6 @@ export async function createCourse(title: string, members: { userId: number; rol
 
 /** An account allowed to create courses, as a site admin would grant it (docs/decisions/023). */
 export async function createCourseCreator(email: string) {
-  const [res] = await testDb().insert(schema.users).values({ email, mayCreateCourses: 1 });
+  const [res] = await testDb().insert(schema.users).values({ email, mayCreateCourses: true });
   return res.insertId;
 }

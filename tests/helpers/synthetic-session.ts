@@ -66,7 +66,7 @@ export async function insertSyntheticSession(db: Db, opts: SyntheticOptions) {
     params: design,
     seed: opts.seed ?? 7,
     status: 'complete',
-    simulated: 1,
+    simulated: true,
     createdBy: opts.createdBy,
     createdAt: new Date(start - 3600_000),
     startedAt: new Date(start),

@@ -206,7 +206,7 @@ describe('site admin', () => {
   it('admins open the admin page and every course; others get 403', async () => {
     const admin = await signIn('admin@halvorsen.example');
     expect((await admin.get('/admin')).status).toBe(200);
-    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, true));
     expect((await admin.get(`/courses/${demo.id}/members`)).status).toBe(200);
     const someone = await signIn(uniqueEmail('plain'));
     expect((await someone.get('/admin')).status).toBe(403);

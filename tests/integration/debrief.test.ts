@@ -34,7 +34,7 @@ async function simulatedSession(courseId: number, createdBy: number, players: nu
   const treatment = `Test δ = ${delta} (${seed})`;
   const [res] = await testDb()
     .insert(sessions)
-    .values({ courseId, treatment, params: design, seed, status: 'draft', simulated: 1, createdBy });
+    .values({ courseId, treatment, params: design, seed, status: 'draft', simulated: true, createdBy });
   const sim = simulateSession({
     sessionId: String(res.insertId),
     design,
@@ -277,11 +277,11 @@ describe('estimation through the real server', () => {
 
 describe('realised lengths of the demo’s simulated sessions against the geometric law', () => {
   it('δ = 1/2: the Debrief’s χ² equals Pearson’s χ² recomputed here with jStat’s p-value; δ = 7/8: a simulated p-value', async () => {
-    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, true));
     const demoSessions = await testDb()
       .select()
       .from(sessions)
-      .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
+      .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, true)));
     const admin = await signIn('admin@halvorsen.example');
     for (const s of demoSessions) {
       const delta = (s.params as { delta: number }).delta;

@@ -13,11 +13,11 @@ afterAll(async () => {
 describe('the demo’s two completed sessions (simulated, invented)', () => {
   it('are stored as the engine would store a live session, and rebuild from their rows', async () => {
     // other tests add simulated sessions to their own courses: look at the demo course only
-    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+    const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, true));
     const rows = await testDb()
       .select()
       .from(sessions)
-      .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
+      .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, true)));
     expect(rows.map((r) => [r.status, (r.params as { delta: number }).delta])).toEqual([
       ['complete', 0.5],
       ['complete', 0.875],

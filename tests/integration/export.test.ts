@@ -121,7 +121,7 @@ beforeAll(async () => {
     .select({ id: sessions.id })
     .from(sessions)
     .innerJoin(courses, eq(courses.id, sessions.courseId))
-    .where(and(eq(courses.isDemo, 1), eq(sessions.simulated, 1)))
+    .where(and(eq(courses.isDemo, true), eq(sessions.simulated, true)))
     .orderBy(asc(sessions.id));
   demoSessionId = demo.id;
   [instructor, researcher, assistant] = await Promise.all([signIn(emails.instructor), signIn(emails.researcher), signIn(emails.assistant)]);

@@ -68,11 +68,11 @@ afterAll(async () => {
 });
 
 it('the demo session: the reader and the pure rule agree row for row', async () => {
-  const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, 1));
+  const [demo] = await testDb().select({ id: courses.id }).from(courses).where(eq(courses.isDemo, true));
   const [s] = await testDb()
     .select({ id: sessions.id })
     .from(sessions)
-    .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, 1)));
+    .where(and(eq(sessions.courseId, demo.id), eq(sessions.simulated, true)));
   const pure = sessionPanel(await stored(s.id));
   expect(pure.rows.length).toBeGreaterThan(100);
   // pages of two rows: every page boundary inside a participant's supergames is crossed
@@ -181,7 +181,7 @@ describe('a session of 1,001 participants with every kind of row', () => {
     for await (const piece of panelCsvPieces(list)) csv += piece;
     expect(csv.trimEnd().split('\n')).toHaveLength(pure.length + 1);
 
-    const research = await loadDebrief(courseId, [sessionId], { research: true });
+    const research = (await loadDebrief(courseId, [sessionId], { research: true }))!;
     const own = pure.filter((r) => r.origin === 'own');
     expect(research.sessions[0].debrief.counts).toEqual({
       used: own.length,
@@ -191,7 +191,7 @@ describe('a session of 1,001 participants with every kind of row', () => {
     });
     expect(research.sessions[0].unfinished).toBe(sessionPanel(await stored(sessionId)).unfinished.length);
     // the class's own view keeps those who declined; downloads and estimation do not
-    const page = await loadDebrief(courseId, [sessionId]);
+    const page = (await loadDebrief(courseId, [sessionId]))!;
     expect(page.sessions[0].debrief.participants).toBe(N);
     expect(research.sessions[0].debrief.participants).toBe(N - 143);
     const est = estimationRows((await loadSessionPanel(courseId, sessionId))!.rows, 'own');

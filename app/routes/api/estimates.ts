@@ -1,21 +1,14 @@
 // GET /api/v1/courses/:courseId/estimates — stored strategy-frequency estimations, newest last
 // by id; ?limit (≤ 100) &cursor.
-import { and, asc, eq, gt } from 'drizzle-orm';
 import type { Route } from './+types/estimates';
+import { estimatesAfter } from '#app/models/estimate.server';
 import { idCursor, idPage, notAllowed, pageParams, parseApiId, requireApiCourse, requireApiToken } from '#app/utils/api.server';
-import { db } from '#app/utils/db.server';
-import { estimates } from '#drizzle/schema';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const caller = await requireApiToken(request);
   const course = await requireApiCourse(caller, parseApiId(params.courseId, 'course'));
   const { limit, cursor } = pageParams(request, { limit: 20, max: 100 });
-  const rows = await db()
-    .select()
-    .from(estimates)
-    .where(and(eq(estimates.courseId, course.id), gt(estimates.id, idCursor.decode(cursor))))
-    .orderBy(asc(estimates.id))
-    .limit(limit + 1);
+  const rows = await estimatesAfter(course.id, idCursor.decode(cursor), limit + 1);
   return idPage(rows, limit, (e) => ({
     id: e.id,
     status: e.status,

@@ -4,6 +4,7 @@ import { z } from 'zod';
 import type { Route } from './+types/panel';
 import { logExport } from '#app/models/exports.server';
 import { type PanelSession, panelCsvStream, panelJsonStream, panelSessions, panelZipStream } from '#app/models/panel-export.server';
+import { respond, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 const Query = z.object({
@@ -13,10 +14,6 @@ const Query = z.object({
 const Identified = Query.extend({
   confirm: z.literal('yes', { error: 'Confirm that you will handle the personal data under your institution’s rules.' }),
 });
-
-function fail(status: number, message: string): never {
-  throw new Response(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
-}
 
 function fields(entries: Iterable<[string, FormDataEntryValue]>) {
   const out: Record<string, unknown> = { session: [] as string[] };
@@ -29,7 +26,7 @@ function fields(entries: Iterable<[string, FormDataEntryValue]>) {
 
 async function sessionsOf(courseId: number, ids: number[]): Promise<PanelSession[]> {
   const list = await panelSessions(courseId, ids);
-  if (list.length !== new Set(ids).size) fail(404, 'One of the sessions is not in this course.');
+  respondUnless(list.length === new Set(ids).size, 404, 'One of the sessions is not in this course.');
   return list;
 }
 
@@ -49,7 +46,7 @@ function download(course: { id: number; title: string }, list: PanelSession[], f
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor', 'researcher']);
   const parsed = Query.safeParse(fields(new URL(request.url).searchParams));
-  if (!parsed.success) fail(400, parsed.error.issues[0].message);
+  if (!parsed.success) respond(400, parsed.error.issues[0].message);
   const list = await sessionsOf(course.id, parsed.data.session);
   return download(course, list, parsed.data.format, false);
 }
@@ -57,7 +54,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['instructor']);
   const parsed = Identified.safeParse(fields(await request.formData()));
-  if (!parsed.success) fail(400, parsed.error.issues[0].message);
+  if (!parsed.success) respond(400, parsed.error.issues[0].message);
   const list = await sessionsOf(course.id, parsed.data.session);
   for (const s of list) await logExport(course.id, s.id, user.id, 'panel-identified');
   return download(course, list, parsed.data.format, true);

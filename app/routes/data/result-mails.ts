@@ -3,7 +3,7 @@
 import { data } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/result-mails';
-import { requirePanelSession } from '#app/models/panel-export.server';
+import { findPanelSession } from '#app/models/panel-export.server';
 import {
   queueResultMails,
   resultMailLoopRunning,
@@ -11,13 +11,15 @@ import {
   retryFailedMails,
   startResultMailLoop,
 } from '#app/models/result-mails.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 const Intent = z.object({ intent: z.enum(['send', 'retry'], 'Choose send or retry.') });
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
-  const session = await requirePanelSession(course.id, params.sessionId);
+  const session = await findPanelSession(course.id, parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, 'No such session in this course.');
   const status = await resultMailStatus(session.id);
   // queued mails with no loop (the server restarted): carry on
   if (status.busy && !resultMailLoopRunning(session.id)) startResultMailLoop(session);
@@ -26,7 +28,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
-  const session = await requirePanelSession(course.id, params.sessionId);
+  const session = await findPanelSession(course.id, parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, 'No such session in this course.');
   const parsed = Intent.safeParse(Object.fromEntries(await request.formData()));
   if (!parsed.success) return data({ ok: false as const, message: parsed.error.issues[0].message }, { status: 400 });
   if (session.status !== 'complete' && session.status !== 'archived') {

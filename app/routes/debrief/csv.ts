@@ -5,8 +5,9 @@ import { z } from 'zod';
 import type { Route } from './+types/csv';
 import { csvLines } from '#app/lib/csv';
 import { CHART_IDS, chartTable, type Table, tableColumns } from '#app/lib/debrief-tables';
-import { includeParam, loadDebrief, sessionIdsParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief } from '#app/models/debrief.server';
 import { getEstimate } from '#app/models/estimate.server';
+import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 const chartSchema = z.enum(CHART_IDS as [string, ...string[]]);
@@ -14,15 +15,15 @@ const chartSchema = z.enum(CHART_IDS as [string, ...string[]]);
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const chart = chartSchema.safeParse(params.chart);
-  if (!chart.success) throw new Response(`No chart "${params.chart}". Charts: ${CHART_IDS.join(', ')}.`, { status: 404 });
+  respondUnless(chart.success, 404, `No chart "${params.chart}". Charts: ${CHART_IDS.join(', ')}.`);
   const url = new URL(request.url);
   let rows: Table;
   let name: string;
   if (chart.data === 'strategies') {
     const id = Number(url.searchParams.get('estimate'));
     const e = Number.isSafeInteger(id) && id > 0 ? await getEstimate(course.id, id) : null;
-    if (!e) throw new Response('No such estimation in this course.', { status: 404 });
-    if (!e.result) throw new Response('This estimation has not finished yet.', { status: 409 });
+    respondUnless(e, 404, 'No such estimation in this course.');
+    respondUnless(e.result, 409, 'This estimation has not finished yet.');
     rows = e.result.groups.flatMap((g) =>
       g.strategies.map((s, k) => ({
         treatment: g.group,
@@ -47,7 +48,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     const ids = sessionIdsParam(url);
     // A download leaves Parley: participants who declined research use are left out
     // (docs/decisions/026); the page's switch (`include`) decides which choices count.
-    const { sessions } = await loadDebrief(course.id, ids, { include: includeParam(url), research: true });
+    const debrief = await loadDebrief(course.id, ids, { include: includeParam(url), research: true });
+    respondUnless(debrief, 404, 'One of the sessions is not in this course.');
+    const { sessions } = debrief;
     rows = chartTable(chart.data as Exclude<(typeof CHART_IDS)[number], 'strategies'>, sessions);
     name = `sessions-${ids.join('-')}-${chart.data}`;
   }

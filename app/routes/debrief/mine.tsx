@@ -3,17 +3,17 @@
 import { Link } from 'react-router';
 import type { Route } from './+types/mine';
 import { ParticipantShell } from '#app/components/shells';
-import { sessionIdParam } from '#app/models/debrief.server';
 import { getCourseSessions, loadSessionPanel, participantOf } from '#app/models/panel.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['participant', 'instructor', 'assistant', 'researcher']);
-  const sessionId = sessionIdParam(params.sessionId);
+  const sessionId = parseId(params.sessionId, 'session');
   const [session] = await getCourseSessions(course.id, [sessionId]);
-  if (!session) throw new Response('No such session in this course.', { status: 404 });
+  respondUnless(session, 404, 'No such session in this course.');
   const me = await participantOf(sessionId, user.id);
-  if (!me) throw new Response('You did not take part in this session, so it has no summary for you.', { status: 404 });
+  respondUnless(me, 404, 'You did not take part in this session, so it has no summary for you.');
   const { pseudonym } = me;
   // Their own rows only, consent or not (it is their own play); a round their partner has not
   // chosen in yet is not a row.

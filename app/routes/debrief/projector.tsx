@@ -5,8 +5,9 @@ import { Link } from 'react-router';
 import type { Route } from './+types/projector';
 import { debriefCharts } from '#app/components/debrief';
 import { ChartFrame } from '#app/components/debrief-charts';
-import { includeParam, loadDebrief, pickEstimate, sessionIdsParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';
 import { estimateIncludedWords } from '#app/components/estimation-panel';
+import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { windowWords } from '#app/utils/estimate-form';
 
@@ -15,7 +16,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const url = new URL(request.url);
   const ids = sessionIdsParam(url);
   const include = includeParam(url);
-  const { sessions, estimates } = await loadDebrief(course.id, ids, { include });
+  const debrief = await loadDebrief(course.id, ids, { include });
+  respondUnless(debrief, 404, 'One of the sessions is not in this course.');
+  const { sessions, estimates } = debrief;
   const done = estimates.filter((e) => e.status === 'done');
   const e = pickEstimate(done, url);
   return {

@@ -8,6 +8,7 @@ import { PayoffTable } from '#app/components/live/payoff-table';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice } from '#app/components/ui';
 import { type Action, libraryStrategy } from '#app/lib/automata';
+import { computerStrategyOf } from '#app/lib/design';
 import { drawRule } from '#app/lib/draws';
 import { payoffRows } from '#app/lib/instructions';
 import { strategyInWords } from '#app/lib/strategy-words';
@@ -33,7 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const consent = carriedConsent(d, new URL(request.url).searchParams.get('consent'));
   if (consent === 'missing') throw redirect(`/join/${code}`);
   // The practice partner plays the design's computer rule, or tit-for-tat where the design has none.
-  const strategy = d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT';
+  const strategy = computerStrategyOf(d);
   return {
     email: user.email,
     consent,

@@ -8,7 +8,8 @@ import { ParticipantShell } from '#app/components/shells';
 import { Notice } from '#app/components/ui';
 import { getSession, participantKeyOf } from '#app/models/live.server';
 import { requireUser } from '#app/utils/auth.server';
-import { parseId, roleIn, STAFF_ROLES } from '#app/utils/permissions.server';
+import { parseId, respond, respondUnless } from '#app/utils/http.server';
+import { courseRoleOf, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
 import type { Action } from '#app/lib/automata';
 import { strategyInWords } from '#app/lib/strategy-words';
@@ -19,18 +20,18 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   // One answer for "no such session" and "not yours": session ids are sequential, so anything
   // else tells a stranger which sessions exist, and a redirect would hand over the join code.
-  const nothingHere = () => new Response('Nothing here.', { status: 404 });
-  const session = await getSession(parseId(params.sessionId));
-  if (!session) throw nothingHere();
+  const nothingHere = 'Nothing here.';
+  const session = await getSession(parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, nothingHere);
   const state = await runner().state(session.id);
   const me = participantKeyOf(user.id);
   if (!state?.participants[me]) {
-    const role = user.isAdmin ? 'instructor' : await roleIn(session.courseId, user.id);
+    const role = await courseRoleOf(session.courseId, user);
     const staff = role !== null && (STAFF_ROLES as readonly string[]).includes(role);
     // Staff of the course see the join code on the big screen anyway.
     if (staff && session.joinCode) throw redirect(`/join/${session.joinCode}`);
-    if (staff) throw new Response('You did not take part in this session.', { status: 403 });
-    throw nothingHere();
+    if (staff) respond(403, 'You did not take part in this session.');
+    respond(404, nothingHere);
   }
   return {
     email: user.email,

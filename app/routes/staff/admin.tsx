@@ -1,24 +1,17 @@
-import { count } from 'drizzle-orm';
 import { data, Form, Link } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/admin';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { PageHeader } from '#app/components/shells';
 import { Button, DemoBadge, Notice, RowAction, TextField, EmailAddress } from '#app/components/ui';
-import { grantCourseCreation, listCourseCreators, listCoursesForUser, revokeCourseCreation } from '#app/models/course.server';
-import { users } from '#drizzle/schema';
+import { countUsers, grantCourseCreation, listCourseCreators, listCoursesForUser, revokeCourseCreation } from '#app/models/course.server';
 import { requireAdmin } from '#app/utils/auth.server';
-import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { fieldErrors } from '#app/utils/forms';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const admin = await requireAdmin(request);
-  const [courses, [{ n }], creators] = await Promise.all([
-    listCoursesForUser(admin.id, true),
-    db().select({ n: count() }).from(users),
-    listCourseCreators(),
-  ]);
+  const [courses, n, creators] = await Promise.all([listCoursesForUser(admin.id, true), countUsers(), listCourseCreators()]);
   return {
     courses: courses.map(({ id, title, institution, term, members, isDemo }) => ({ id, title, institution, term, members, isDemo })),
     users: n,

@@ -8,14 +8,15 @@ import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, ButtonLink, Notice } from '#app/components/ui';
 import { getSession } from '#app/models/live.server';
 import { env } from '#app/utils/env.server';
-import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
+import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
 import type { SessionStatus } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
-  const session = await getSession(parseId(params.sessionId));
-  if (!session || session.courseId !== course.id) throw new Response('No such session in this course.', { status: 404 });
+  const session = await getSession(parseId(params.sessionId, 'session'));
+  respondUnless(session?.courseId === course.id, 404, 'No such session in this course.');
   const d = session.design;
   return {
     course,

@@ -3,16 +3,17 @@ import { EstimateProgress, EstimateResults, EstimationForm, StoredEstimates, use
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { listDatasets } from '#app/models/datasets.server';
 import { estimatesForDataset, getEstimate } from '#app/models/estimate.server';
-import { parseId, requireCourseRole } from '#app/utils/permissions.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
+import { requireCourseRole } from '#app/utils/permissions.server';
 
 // Strategy-frequency estimation on an uploaded choice panel (another lab's, a published one),
 // through the same request, workers and storage as the Debrief's.
 export async function loader({ request, params }: Route.LoaderArgs) {
   // the roles that may upload panels (the datasets page) may estimate on them
   const { course } = await requireCourseRole(request, params.courseId, ['instructor', 'researcher']);
-  const datasetId = parseId(params.datasetId);
+  const datasetId = parseId(params.datasetId, 'dataset');
   const dataset = (await listDatasets(course.id)).find((d) => d.id === datasetId);
-  if (!dataset) throw new Response('No such dataset in this course.', { status: 404 });
+  respondUnless(dataset, 404, 'No such dataset in this course.');
   const estimates = await estimatesForDataset(course.id, datasetId);
   const wanted = Number(new URL(request.url).searchParams.get('estimate'));
   const current = (wanted && (await getEstimate(course.id, wanted))) || estimates[0] || null;

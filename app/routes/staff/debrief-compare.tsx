@@ -3,7 +3,8 @@ import type { Route } from './+types/debrief-compare';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { ButtonLink, Notice } from '#app/components/ui';
-import { debriefGrouping, includeParam, loadDebrief, pickEstimate, sessionIdsParam } from '#app/models/debrief.server';
+import { debriefGrouping, includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';
+import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -11,7 +12,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const url = new URL(request.url);
   const ids = sessionIdsParam(url);
   const include = includeParam(url);
-  const { sessions, estimates } = await loadDebrief(course.id, ids, { include });
+  const debrief = await loadDebrief(course.id, ids, { include });
+  respondUnless(debrief, 404, 'One of the sessions is not in this course.');
+  const { sessions, estimates } = debrief;
   const { separate, grouping } = debriefGrouping(sessions, url);
   if (!grouping.ok) {
     // Pooling sessions that ran different games under one name would mislead: refuse, and offer

@@ -1,14 +1,17 @@
 import type { Route } from './+types/debrief-session';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { includeParam, loadDebrief, pickEstimate, sessionIdParam } from '#app/models/debrief.server';
+import { includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
-  const sessionId = sessionIdParam(params.sessionId);
+  const sessionId = parseId(params.sessionId, 'session');
   const include = includeParam(new URL(request.url));
-  const { sessions, estimates } = await loadDebrief(course.id, [sessionId], { include });
+  const debrief = await loadDebrief(course.id, [sessionId], { include });
+  respondUnless(debrief, 404, 'No such session in this course.');
+  const { sessions, estimates } = debrief;
   return { course, sessions, estimates, include, current: pickEstimate(estimates, new URL(request.url)) };
 }
 

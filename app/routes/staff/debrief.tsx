@@ -8,6 +8,7 @@ import { participantCounts } from '#app/models/debrief.server';
 import { listCourseSessions } from '#app/models/panel.server';
 import { formatDate } from '#app/utils/format';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { STATUS_WORDS } from '#app/utils/session-words';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
@@ -29,8 +30,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 type Row = Route.ComponentProps['loaderData']['sessions'][number];
-
-const STATUS_WORDS: Record<string, string> = { running: '▶ Running', paused: '❚❚ Paused', complete: '✓ Complete', archived: '▣ Archived' };
 
 function columnsFor(courseId: number) {
   const col = staffColumnHelper<Row>();
@@ -64,7 +63,15 @@ function columnsFor(courseId: number) {
     col.accessor('delta', { header: 'δ', cell: (i) => String(Number(i.getValue().toFixed(4))), meta: { align: 'right' } }),
     col.accessor('supergames', { header: 'Supergames', meta: { align: 'right' } }),
     col.accessor('participants', { header: 'Participants', meta: { align: 'right' } }),
-    col.accessor('status', { header: 'Status', cell: (i) => STATUS_WORDS[i.getValue()] ?? i.getValue() }),
+    col.accessor('status', {
+      header: 'Status',
+      cell: (i) => (
+        <>
+          <span aria-hidden="true">{STATUS_WORDS[i.getValue()].icon} </span>
+          {STATUS_WORDS[i.getValue()].word}
+        </>
+      ),
+    }),
     col.accessor((r) => (r.completedAt ? formatDate(r.completedAt) : '–'), { id: 'completed', header: 'Completed' }),
     col.accessor((r) => (r.simulated ? '◇ simulated (demo)' : 'live'), { id: 'kind', header: 'Choices' }),
   ]);

@@ -7,7 +7,7 @@ import { StrategyChecker } from '#app/components/strategy-checker';
 import { TheoryPanel, type TheoryDraft } from '#app/components/theory-panel';
 import { Button, FieldError, Notice, SelectField, TextField } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
-import { DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
+import { computerStrategyOf, DEFAULT_LABELS, type Design, type DesignInput, designSchema } from '#app/lib/design';
 import {
   fillInstructions,
   generateInstructions,
@@ -31,7 +31,8 @@ import {
 } from '#app/models/design.server';
 import { designInputFromForm } from '#app/utils/design-form';
 import { fieldErrors } from '#app/utils/forms';
-import { parseId, requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
+import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
 const Name = z.string().trim().min(2, 'Name the design (at least 2 characters).').max(120, 'At most 120 characters.');
 
@@ -52,11 +53,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const madeVersion = url.searchParams.get('version') === 'new';
   const isInstructor = role === 'instructor';
   if (!params.designId) {
-    if (!isInstructor) throw new Response('Only instructors create designs.', { status: 403 });
+    respondUnless(isInstructor, 403, 'Only instructors create designs.');
     return { course, design: null, name: '', params: NEW_DESIGN, canEdit: true, isInstructor, courseStrategies, saved, madeVersion };
   }
-  const design = await getDesign(course.id, parseId(params.designId));
-  if (!design) throw new Response('No such design in this course.', { status: 404 });
+  const design = await getDesign(course.id, parseId(params.designId, 'design'));
+  respondUnless(design, 404, 'No such design in this course.');
   const [previous, later] = await Promise.all([previousVersion(course.id, design), laterVersions(course.id, design.id)]);
   return {
     course,
@@ -86,9 +87,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['instructor']);
   const form = await request.formData();
   if (form.get('intent') === 'new-version') {
-    if (!params.designId) throw new Response('Save the design first.', { status: 400 });
-    const id = await newDesignVersion(course.id, parseId(params.designId), user.id);
-    if (!id) throw new Response('No such design in this course.', { status: 404 });
+    respondUnless(params.designId, 400, 'Save the design first.');
+    const id = await newDesignVersion(course.id, parseId(params.designId, 'design'), user.id);
+    respondUnless(id, 404, 'No such design in this course.');
     throw redirect(`/courses/${course.id}/designs/${id}?version=new`);
   }
   const values = Object.fromEntries([...form].map(([k, v]) => [k, String(v)]));
@@ -120,9 +121,9 @@ export async function action({ request, params }: Route.ActionArgs) {
     const id = await createDesign(course.id, user.id, name.data, params_);
     throw redirect(`/courses/${course.id}/designs/${id}?saved=1`);
   }
-  const designId = parseId(params.designId);
+  const designId = parseId(params.designId, 'design');
   const existing = await getDesign(course.id, designId);
-  if (!existing) throw new Response('No such design in this course.', { status: 404 });
+  respondUnless(existing, 404, 'No such design in this course.');
   if (existing.archivedAt)
     return data(
       { ok: false as const, errors: {}, values, message: 'This design is archived; restore it before editing.' },
@@ -171,7 +172,7 @@ function formValues(name: string, d: Design): Record<string, string> {
     'termination.kind': d.termination.kind,
     'termination.k': d.termination.kind === 'block' ? String(d.termination.k) : '5',
     'oddCount.kind': d.oddCount.kind,
-    'oddCount.strategy': d.oddCount.kind === 'computer' ? d.oddCount.strategy : 'TFT',
+    'oddCount.strategy': computerStrategyOf(d),
     timeout: d.timeout,
     'credit.kind': d.credit.kind,
     consent: d.consent ? 'on' : '',

@@ -4,16 +4,18 @@ import { useSessionView } from '#app/components/live/use-session';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, Notice } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
+import { computerStrategyOf } from '#app/lib/design';
 import { getSession } from '#app/models/live.server';
-import { parseId, requireCourseRole } from '#app/utils/permissions.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
+import { requireCourseRole } from '#app/utils/permissions.server';
 import { STATUS_WORDS } from '#app/utils/session-words';
 import type { FloorSeatView } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course, role } = await requireCourseRole(request, params.courseId, ['instructor', 'assistant']);
-  const session = await getSession(parseId(params.sessionId));
-  if (!session || session.courseId !== course.id) throw new Response('No such session in this course.', { status: 404 });
-  const fallback = session.design.oddCount.kind === 'computer' ? session.design.oddCount.strategy : 'TFT';
+  const session = await getSession(parseId(params.sessionId, 'session'));
+  respondUnless(session?.courseId === course.id, 404, 'No such session in this course.');
+  const fallback = computerStrategyOf(session.design);
   return { course, role, session: { id: session.id, treatment: session.treatment }, fallback, serverNow: Date.now() };
 }
 

@@ -6,13 +6,15 @@ import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, Notice, EmailAddress } from '#app/components/ui';
 import { describeCreditRule, formatCredit } from '#app/lib/credit';
 import { creditSheet } from '#app/models/exports.server';
-import { requirePanelSession } from '#app/models/panel-export.server';
+import { findPanelSession } from '#app/models/panel-export.server';
 import { resultMailStatus } from '#app/models/result-mails.server';
+import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
-  const session = await requirePanelSession(course.id, params.sessionId);
+  const session = await findPanelSession(course.id, parseId(params.sessionId, 'session'));
+  respondUnless(session, 404, 'No such session in this course.');
   const [lines, mails] = await Promise.all([creditSheet(session), resultMailStatus(session.id)]);
   return {
     course,
@@ -51,7 +53,8 @@ const creditColumns = (paid: boolean) =>
     creditCol.accessor('credit', { header: paid ? 'Payout' : 'Credit', meta: { align: 'right' } }),
   ]);
 
-const STATUS_WORDS = {
+/** A results e-mail's state (not a session's: app/utils/session-words.ts). */
+const MAIL_STATUS_WORDS = {
   queued: ['◷', 'Waiting'],
   sending: ['➜', 'Sending'],
   sent: ['✓', 'Sent'],
@@ -65,7 +68,7 @@ const mailColumns = mailCol.columns([
   mailCol.accessor('status', {
     header: 'Status',
     cell: (i) => {
-      const [icon, word] = STATUS_WORDS[i.getValue()];
+      const [icon, word] = MAIL_STATUS_WORDS[i.getValue()];
       return (
         <span className="inline-flex items-center gap-1 font-semibold">
           <span aria-hidden="true">{icon}</span> {word}

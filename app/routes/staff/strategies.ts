@@ -4,6 +4,7 @@ import type { Route } from './+types/strategies';
 import { LIBRARY, PROFILES } from '#app/lib/automata';
 import { validateAutomaton } from '#app/lib/automaton-check';
 import { saveCourseStrategy } from '#app/models/design.server';
+import { respond } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 const StateSchema = z.object({
@@ -44,5 +45,5 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export function loader() {
-  throw new Response('Not found', { status: 404 });
+  respond(404, 'Not found');
 }
