@@ -9,6 +9,7 @@ import { createCookieSessionStorage, redirect } from 'react-router';
 import { authEvents, authSessions, users } from '#drizzle/schema';
 import { db } from './db.server';
 import { env } from './env.server';
+import { remember } from './remember.server';
 import { sockets } from './sockets.server';
 
 const AUTH_DAYS = 30;
@@ -21,12 +22,6 @@ export interface AuthCookieData {
   /** where to go after signing in (kept while the code is on its way) */
   redirectTo: string;
 }
-
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyAuthStorage: ReturnType<typeof makeStorage> | undefined;
-}
-const g = globalThis;
 
 function makeStorage() {
   return createCookieSessionStorage<AuthCookieData>({
@@ -43,8 +38,7 @@ function makeStorage() {
 }
 
 export function authSessionStorage() {
-  g.__parleyAuthStorage ??= makeStorage();
-  return g.__parleyAuthStorage;
+  return remember('auth-cookie-storage', makeStorage);
 }
 
 export async function getAuthSession(request: Request) {
