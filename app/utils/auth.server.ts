@@ -185,9 +185,13 @@ export async function signOut(request: Request, { everywhere = false } = {}) {
   return authSessionStorage().destroySession(session);
 }
 
-/** Forgets expired sign-ins and old sign-in events (scheduled by server.ts). */
+/** Forgets expired sign-ins (a periodic job: app/jobs/all.server.ts). */
 export async function pruneAuthSessions() {
   await db().delete(authSessions).where(lt(authSessions.expiresAt, new Date()));
+}
+
+/** Forgets sign-in events older than a day (a periodic job: app/jobs/all.server.ts). */
+export async function pruneAuthEvents() {
   await db()
     .delete(authEvents)
     .where(lt(authEvents.createdAt, new Date(Date.now() - 24 * 3600_000)));

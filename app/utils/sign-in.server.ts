@@ -209,7 +209,7 @@ async function claimCode(pending: PendingCode, email: string) {
   return res.affectedRows === 1;
 }
 
-/** Forgets codes a day after they expired (scheduled by server.ts). */
+/** Forgets codes a day after they expired (a periodic job: app/jobs/all.server.ts). */
 export async function pruneSignInCodes() {
   await db()
     .delete(signInCodes)

@@ -1,17 +1,14 @@
 // Issue 9, finding 12 (second half): one estimation queue for all courses and no cap per user,
 // so one person could fill the machine's queue. Each user may have at most ESTIMATES_PER_USER
 // (default 3) estimations queued or running; one more is refused with a 429 and nothing stored.
-// (The queue's fairness between courses is a pure unit: app/lib/fair-queue.test.ts.)
+// (The queue's fairness between courses: tests/integration/jobs.test.ts.)
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { libraryStrategy, STRATEGY_SETS } from '#app/lib/automata';
-import { simulatePanel } from '#app/lib/simulate-panel';
-import { createDataset } from '#app/models/datasets.server';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import { closeDb } from '#app/utils/db.server';
 import { estimates } from '#drizzle/schema';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { waitEstimate } from '#tests/helpers/estimates';
+import { simulatedDataset, waitEstimate } from '#tests/helpers/estimates';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 
 const CAP = Number(process.env.ESTIMATES_PER_USER ?? 3);
@@ -31,17 +28,7 @@ beforeAll(async () => {
     { userId: await createUser(b), role: 'researcher' },
   ]);
   // 400 simulated subjects: a bootstrap of 2,000 replicates keeps the first job busy for a while
-  const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
-  const sim = simulatePanel({
-    strategies,
-    shares: strategies.map(() => 1 / strategies.length),
-    beta: 0.9,
-    subjects: 400,
-    supergames: 10,
-    delta: 0.75,
-    seed: 12,
-  });
-  datasetId = await createDataset(courseId, aId, 'Simulated (cap test)', sim.rows);
+  datasetId = await simulatedDataset(courseId, aId, 'Simulated (cap test)', { subjects: 400, supergames: 10, seed: 12 });
   [first, second] = await Promise.all([signIn(a), signIn(b)]);
 });
 

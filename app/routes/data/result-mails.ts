@@ -4,13 +4,7 @@ import { data } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/result-mails';
 import { requirePanelSession } from '#app/models/panel-export.server';
-import {
-  queueResultMails,
-  resultMailLoopRunning,
-  resultMailStatus,
-  retryFailedMails,
-  startResultMailLoop,
-} from '#app/models/result-mails.server';
+import { queueResultMails, resultMailStatus, retryFailedMails, sendQueuedResultMails } from '#app/models/result-mails.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
 const Intent = z.object({ intent: z.enum(['send', 'retry'], 'Choose send or retry.') });
@@ -18,10 +12,8 @@ const Intent = z.object({ intent: z.enum(['send', 'retry'], 'Choose send or retr
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
   const session = await requirePanelSession(course.id, params.sessionId);
-  const status = await resultMailStatus(session.id);
-  // queued mails with no loop (the server restarted): carry on
-  if (status.busy && !resultMailLoopRunning(session.id)) startResultMailLoop(session);
-  return status;
+  // (queued mails are a job's to send, resumed after a restart: app/jobs)
+  return resultMailStatus(session.id);
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -33,7 +25,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     return data({ ok: false as const, message: 'Results can be e-mailed once the session is complete.' }, { status: 409 });
   }
   const n = parsed.data.intent === 'send' ? await queueResultMails(session.id) : await retryFailedMails(session.id);
-  startResultMailLoop(session);
+  await sendQueuedResultMails(session);
   const message =
     parsed.data.intent === 'send'
       ? n === 0
