@@ -68,7 +68,7 @@ runner
   .catch((error) => console.error('[parley] could not resume live sessions', error));
 // Background jobs (estimations, results e-mails, the hourly pruning of sign-in records), queued in
 // MariaDB: this process takes its share, including what a stopped process left (app/jobs).
-startJobs();
+if (config.PARLEY_JOBS === 'on') startJobs();
 
 httpServer.listen(config.PORT, config.HOST, () => {
   console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);
