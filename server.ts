@@ -9,9 +9,9 @@ import express from 'express';
 import type { ServerBuild } from 'react-router';
 import { closeDb } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
-import { resumeResultMails } from '#app/models/result-mails.server';
-import { pruneAuthSessions, signedInFromCookie } from '#app/utils/auth.server';
-import { pruneSignInCodes } from '#app/utils/sign-in.server';
+import { startJobs } from '#app/jobs/all.server';
+import { stopJobWorker } from '#app/jobs/queue.server';
+import { signedInFromCookie } from '#app/utils/auth.server';
 import { cspNonce } from '#app/utils/csp-nonce.server';
 import { requireSameOrigin } from '#app/utils/origin.server';
 import { capBodies, withReadBody } from '#app/utils/request-limits.server';
@@ -66,16 +66,9 @@ runner
   .recoverAll()
   .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
   .catch((error) => console.error('[parley] could not resume live sessions', error));
-// …and every results e-mail still queued when it stopped.
-resumeResultMails()
-  .then((n) => n && console.log(`[parley] resumed results e-mails of ${n} session(s)`))
-  .catch((error) => console.error('[parley] could not resume results e-mails', error));
-
-// Expired sign-ins, old sign-in codes and sign-in events are forgotten every hour.
-const prune = () =>
-  Promise.all([pruneAuthSessions(), pruneSignInCodes()]).catch((error) => console.error('[parley] could not prune sign-in records', error));
-void prune();
-setInterval(prune, 3600_000).unref();
+// Background jobs (estimations, results e-mails, the hourly pruning of sign-in records), queued in
+// MariaDB: this process takes its share, including what a stopped process left (app/jobs).
+if (config.PARLEY_JOBS === 'on') startJobs();
 
 httpServer.listen(config.PORT, config.HOST, () => {
   console.log(`[parley] serving http://${config.HOST}:${config.PORT} (${production ? 'production' : 'development'})`);
@@ -89,6 +82,7 @@ async function shutdown(signal: string) {
   const force = setTimeout(() => process.exit(1), 8000);
   force.unref();
   runner.close();
+  await stopJobWorker().catch(() => undefined);
   await new Promise<void>((resolve) => io.close(() => resolve()));
   httpServer.closeAllConnections();
   await new Promise<void>((resolve) => httpServer.close(() => resolve()));

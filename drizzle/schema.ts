@@ -547,6 +547,44 @@ export const comprehensionAttempts = mysqlTable(
   (t) => [uniqueIndex('comprehension_attempts_user').on(t.sessionId, t.userId)],
 );
 
+/**
+ * Background work (app/jobs/queue.server.ts): estimations, results e-mails, pruning. A process takes
+ * a ready job by a conditional UPDATE that writes its lease (owner and expiry) and renews the lease
+ * while it works; a job whose lease ran out (its process died) is ready again. Fair per course: the
+ * next job comes from the course served least recently (docs/decisions/031).
+ */
+export const jobs = mysqlTable(
+  'jobs',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    kind: varchar('kind', { length: 40 }).notNull(),
+    /** whose turn it is: jobs are taken fairly between courses (null: the site's own jobs) */
+    courseId: int('course_id').references(() => courses.id, { onDelete: 'cascade' }),
+    /** validated by the kind's zod schema when queued and again when taken */
+    payload: jsonText<unknown>('payload').notNull(),
+    state: mysqlEnum('state', ['queued', 'running', 'done', 'failed']).notNull().default('queued'),
+    /** set while queued or running: at most one such job per key (null once finished) */
+    activeKey: varchar('active_key', { length: 100 }),
+    /** asked for again while running: queued once more when this run ends */
+    again: boolean('again').notNull().default(false),
+    attempts: int('attempts').notNull().default(0),
+    leaseOwner: varchar('lease_owner', { length: 80 }),
+    leaseUntil: datetime('lease_until', { mode: 'date', fsp: 3 }),
+    runAfter: datetime('run_after', { mode: 'date', fsp: 3 })
+      .notNull()
+      .default(sql`CURRENT_TIMESTAMP(3)`),
+    error: varchar('error', { length: 500 }),
+    createdAt: createdAt(),
+    startedAt: datetime('started_at', { mode: 'date', fsp: 3 }),
+    finishedAt: datetime('finished_at', { mode: 'date', fsp: 3 }),
+  },
+  (t) => [
+    uniqueIndex('jobs_active_key').on(t.activeKey),
+    index('jobs_ready').on(t.kind, t.state, t.runAfter),
+    index('jobs_served').on(t.kind, t.courseId, t.startedAt),
+  ],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));
 export const coursesRelations = relations(courses, ({ many }) => ({ members: many(courseMembers) }));
 export const courseMembersRelations = relations(courseMembers, ({ one }) => ({

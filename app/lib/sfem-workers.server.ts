@@ -4,8 +4,10 @@
  * result does not depend on the number of workers or the chunk size.
  * This same file is the workers' entry point (see the bottom).
  */
+import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { estimateReplicates, summariseReplicates } from './sfem';
 import type { BootstrapSummary, CountsTable, Replicate, ReplicateOptions } from './sfem';
@@ -30,10 +32,7 @@ export interface WorkerBootstrapOptions {
   chunk?: number;
   onProgress?: (done: number, total: number) => void;
   replicate?: ReplicateOptions;
-  /**
-   * The worker entry (default: this file). A bundled server passes the URL of its built copy;
-   * when the entry is TypeScript the workers load it through tsx.
-   */
+  /** The worker entry (default: workerUrl()); when it is TypeScript the workers load it through tsx. */
   workerUrl?: URL;
 }
 
@@ -52,7 +51,7 @@ export async function bootstrapOnWorkers(
     seed,
     options: options.replicate ?? {},
   };
-  const url = options.workerUrl ?? new URL(import.meta.url);
+  const url = options.workerUrl ?? workerUrl();
   // Node 20 does not pass loader hooks (nor `--import` in execArgv) on to workers, so a TypeScript
   // entry is started by a small script that registers tsx inside the worker first.
   const tsEntry = url.pathname.endsWith('.ts');
@@ -99,6 +98,25 @@ export async function bootstrapOnWorkers(
     await Promise.all(workers.map((w) => w.terminate()));
   }
   return { ...summariseReplicates(replicates, seed), replicates };
+}
+
+/**
+ * The bootstrap workers' entry. From source (tsx, Vite in development, vitest) it is this file. In
+ * the production build this code is bundled into build/server, whose files must not be a worker's
+ * entry (they would load the whole app), so the source file is used through tsx, which the server
+ * runs with anyway (docs/decisions/010).
+ */
+export function workerUrl(): URL {
+  if (import.meta.url.endsWith('.ts')) return new URL(import.meta.url);
+  const rel = path.join('app', 'lib', 'sfem-workers.server.ts');
+  let dir = path.dirname(fileURLToPath(import.meta.url));
+  for (let i = 0; i < 5; i++) {
+    if (existsSync(path.join(dir, rel))) return pathToFileURL(path.join(dir, rel));
+    dir = path.dirname(dir);
+  }
+  const fromCwd = path.resolve(rel);
+  if (existsSync(fromCwd)) return pathToFileURL(fromCwd);
+  throw new Error(`The bootstrap worker's entry ${rel} was not found beside the build.`);
 }
 
 /** tsx's ESM register API (its `--import` entry registers in the main thread only). */

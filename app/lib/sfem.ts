@@ -298,6 +298,28 @@ function summarise(table: CountsTable, r: EmResult): SfemEstimate {
   };
 }
 
+/**
+ * Subjects by strategy from their posteriors: `assigned[k]` counts subjects whose highest posterior
+ * is strategy k (a tie within 1e-12 goes to the earlier strategy), `expected[k]` = Σ_i P(k | i),
+ * the expected number of subjects using k.
+ */
+export function posteriorCounts(
+  posteriors: readonly { probabilities: readonly number[] }[],
+  K: number,
+): { assigned: number[]; expected: number[] } {
+  const assigned = new Array<number>(K).fill(0);
+  const expected = new Array<number>(K).fill(0);
+  for (const p of posteriors) {
+    let best = 0;
+    p.probabilities.forEach((v, k) => {
+      expected[k] += v;
+      if (v > p.probabilities[best] + 1e-12) best = k;
+    });
+    assigned[best]++;
+  }
+  return { assigned, expected };
+}
+
 // ---------------------------------------------------------------------------------------------
 // Bootstrap over subjects (methods.md §5: resample subjects with replacement within the group,
 // seeded; report seed and B). Replicate r draws from its own substream of the seed, so any split

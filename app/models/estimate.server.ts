@@ -1,23 +1,22 @@
 // Strategy-frequency estimations of a course, stored in `estimates` so a Debrief reloads
-// instantly and the same request is answered from the stored row. Runs in this process, one at a
-// time, taking turns between courses (app/lib/fair-queue.ts), at most ESTIMATES_PER_USER queued
-// or running per person; the bootstrap goes to worker threads (app/lib/sfem-workers.server.ts),
-// progress is written to the row as replicates come back, so any page can poll it.
+// instantly and the same request is answered from the stored row. Each runs as a job (app/jobs:
+// queued in MariaDB, one at a time per process, taking turns between courses), at most
+// ESTIMATES_PER_USER queued or running per person; the bootstrap goes to worker threads
+// (app/lib/sfem-workers.server.ts), progress is written to the row as replicates come back, so any
+// page can poll it.
 import { createHash } from 'node:crypto';
-import { existsSync } from 'node:fs';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
-import { and, asc, desc, eq, gt, ne } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gt, inArray, ne } from 'drizzle-orm';
+import { z } from 'zod';
+import { defineJob, enqueue, kickJobs } from '#app/jobs/queue.server';
 import { libraryStrategy } from '#app/lib/automata';
-import { FairQueue } from '#app/lib/fair-queue';
 import { buildPanel, parseWindow, type ChoiceRow } from '#app/lib/panel';
-import { estimateGroups } from '#app/lib/sfem';
+import { estimateGroups, posteriorCounts } from '#app/lib/sfem';
 import { groupByTreatment, treatmentTitles, type TreatmentSession } from '#app/lib/treatment';
 import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { canonicalRequest, estimateRequestSchema, type EstimateRequest } from '#app/utils/estimate-form';
-import { datasets, estimates } from '#drizzle/schema';
+import { datasets, estimates, users } from '#drizzle/schema';
 import { datasetChoiceRows } from './datasets.server';
 import { estimationRows, type OriginCounts } from '#app/lib/choice-panel';
 import { getCourseSessions, loadSessionPanel, type SessionInfo } from './panel.server';
@@ -105,16 +104,13 @@ const toStatus = (r: Row): EstimateStatus => ({
   createdAt: r.createdAt.toISOString(),
 });
 
+/** One estimation of the course (a read: a cut-off run is the jobs queue's to resume). */
 export async function getEstimate(courseId: number, id: number): Promise<EstimateStatus | null> {
   const [r] = await db()
     .select()
     .from(estimates)
     .where(and(eq(estimates.courseId, courseId), eq(estimates.id, id)));
-  if (!r) return null;
-  // A queued or running row nobody in this process works on was cut off by a restart: run it again.
-  if ((r.status === 'queued' || r.status === 'running') && !jobs().known.has(r.id))
-    enqueue({ id: r.id, courseId: r.courseId, userId: r.createdBy });
-  return toStatus(r);
+  return r ? toStatus(r) : null;
 }
 
 /** The course's estimations on exactly these sessions (any window), newest first. */
@@ -179,103 +175,58 @@ export async function startEstimate(
     const estimate = (await getEstimate(courseId, existing.id))!;
     return { ok: true, estimate, reused: true };
   }
-  // The cap is checked and a place taken in one synchronous step, so two requests at once cannot
-  // both take the last place; the place is the queue's entry once the row exists.
-  const j = jobs();
+  // The user's row is locked while the cap is checked and the estimation queued, so two requests at
+  // once (to this process or another) cannot both take the last place.
   const cap = env().ESTIMATES_PER_USER;
-  const held = liveOf(userId) + (j.admitting.get(userId) ?? 0);
-  if (held >= cap) {
+  const queued = await db().transaction(async (tx) => {
+    await tx.select({ id: users.id }).from(users).where(eq(users.id, userId)).for('update');
+    const [{ held }] = await tx
+      .select({ held: count() })
+      .from(estimates)
+      .where(and(eq(estimates.createdBy, userId), inArray(estimates.status, ['queued', 'running'])));
+    if (held >= cap) return { ok: false as const, held };
+    const [res] = await tx
+      .insert(estimates)
+      .values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
+    await enqueue(estimateJob, { estimateId: res.insertId }, { courseId, key: jobKey(res.insertId), tx });
+    return { ok: true as const, id: res.insertId };
+  });
+  if (!queued.ok) {
     return {
       ok: false,
       status: 429,
       code: 'too_many_estimations',
-      message: `You have ${held} estimations queued or running, the most one person may have at a time (${cap}). Start this one when one of them has finished.`,
+      message: `You have ${queued.held} estimations queued or running, the most one person may have at a time (${cap}). Start this one when one of them has finished.`,
     };
   }
-  j.admitting.set(userId, (j.admitting.get(userId) ?? 0) + 1);
-  let id: number;
-  try {
-    const [res] = await db()
-      .insert(estimates)
-      .values({ courseId, request, requestKey: key, status: 'queued', progress: 0, total: request.bootstrap, createdBy: userId });
-    id = res.insertId;
-    enqueue({ id, courseId, userId });
-  } finally {
-    const left = j.admitting.get(userId)! - 1;
-    if (left > 0) j.admitting.set(userId, left);
-    else j.admitting.delete(userId);
-  }
-  return { ok: true, estimate: (await getEstimate(courseId, id))!, reused: false };
+  kickJobs();
+  return { ok: true, estimate: (await getEstimate(courseId, queued.id))!, reused: false };
 }
 
 // ---------------------------------------------------------------------------------------------
-// The runner: one estimation at a time in this process (two bootstrap workers already fill the
-// machine's two cores), the next one taken from the course served least recently, so one
-// course's batch of estimations does not hold up another course's. Kept on globalThis so a
-// development reload does not start a second queue.
+// The job: one estimation at a time per process (two bootstrap workers already fill the
+// machine's two cores); the queue takes turns between courses.
 
-interface Job {
-  id: number;
-  courseId: number;
-  userId: number;
-}
+const jobKey = (estimateId: number) => `estimate:${estimateId}`;
 
-interface Runner {
-  /** every job queued or running in this process, by estimate id */
-  known: Map<number, Job>;
-  queue: FairQueue<number, Job>;
-  running: boolean;
-  /** places taken by requests between the cap check and their queue entry, per user */
-  admitting: Map<number, number>;
-}
-
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyEstimatesFair: Runner | undefined;
-}
-const g = globalThis;
-function jobs(): Runner {
-  g.__parleyEstimatesFair ??= { known: new Map(), queue: new FairQueue(), running: false, admitting: new Map() };
-  return g.__parleyEstimatesFair;
-}
-
-/** A user's estimations queued or running in this process. */
-function liveOf(userId: number): number {
-  let n = 0;
-  for (const job of jobs().known.values()) if (job.userId === userId) n++;
-  return n;
-}
-
-function enqueue(job: Job) {
-  const j = jobs();
-  if (j.known.has(job.id)) return;
-  j.known.set(job.id, job);
-  j.queue.push(job.courseId, job);
-  if (!j.running) void drain(j);
-}
-
-async function drain(j: Runner) {
-  j.running = true;
-  try {
-    for (let job = j.queue.shift(); job; job = j.queue.shift()) {
-      const { id } = job;
-      try {
-        await run(id);
-      } catch (e: unknown) {
-        const message = (e instanceof Error ? e.message : String(e)).slice(0, 480);
-        await db()
-          .update(estimates)
-          .set({ status: 'failed', error: message, finishedAt: new Date() })
-          .where(eq(estimates.id, id))
-          .catch(() => undefined);
-      } finally {
-        j.known.delete(id);
-      }
-    }
-  } finally {
-    j.running = false;
-  }
-}
+export const estimateJob = defineJob({
+  kind: 'estimate',
+  payload: z.object({ estimateId: z.number().int().positive() }),
+  concurrency: 1,
+  run: ({ estimateId }) => run(estimateId),
+  failed: async ({ estimateId }, message) => {
+    await db().update(estimates).set({ status: 'failed', error: message, finishedAt: new Date() }).where(eq(estimates.id, estimateId));
+  },
+  // Rows queued or running with no job (queued before the jobs table existed): queue them.
+  recover: async () => {
+    const open = await db()
+      .select({ id: estimates.id, courseId: estimates.courseId })
+      .from(estimates)
+      .where(inArray(estimates.status, ['queued', 'running']));
+    for (const e of open) await enqueue(estimateJob, { estimateId: e.id }, { courseId: e.courseId, key: jobKey(e.id) });
+    return open.length;
+  },
+});
 
 async function loadRows(courseId: number, request: EstimateRequest): Promise<{ rows: ChoiceRow[]; leftOut: LeftOut | null }> {
   if (request.source.kind === 'sessions') {
@@ -350,21 +301,10 @@ async function run(id: number) {
             B,
             seed: request.seed,
             workers: 2,
-            workerUrl: workerUrl(),
             onProgress: (done) => report(i * B + done),
           })
         : null;
-    const K = e.strategies.length;
-    const assigned = new Array<number>(K).fill(0);
-    const expected = new Array<number>(K).fill(0);
-    for (const p of e.posteriors) {
-      let best = 0;
-      p.probabilities.forEach((v, k) => {
-        expected[k] += v;
-        if (v > p.probabilities[best] + 1e-12) best = k;
-      });
-      assigned[best]++;
-    }
+    const { assigned, expected } = posteriorCounts(e.posteriors, e.strategies.length);
     results.push({
       group: gEst.group,
       sessions: [...new Set(gEst.table.subjects.map((s) => s.slice(0, s.indexOf('/'))))],
@@ -397,25 +337,6 @@ async function run(id: number) {
     groups: results,
   };
   await db().update(estimates).set({ status: 'done', progress: total, result, finishedAt: new Date() }).where(eq(estimates.id, id));
-}
-
-/**
- * The bootstrap workers' entry. From source (tsx, Vite in development, vitest) the module's own
- * file is right (undefined = the default). In the production build this code is bundled into
- * build/server, whose files must not be a worker's entry (they would load the whole app), so the
- * source file is used through tsx, which the server runs with anyway (docs/decisions/010).
- */
-export function workerUrl(): URL | undefined {
-  if (import.meta.url.endsWith('.ts')) return undefined;
-  const rel = path.join('app', 'lib', 'sfem-workers.server.ts');
-  let dir = path.dirname(fileURLToPath(import.meta.url));
-  for (let i = 0; i < 5; i++) {
-    if (existsSync(path.join(dir, rel))) return pathToFileURL(path.join(dir, rel));
-    dir = path.dirname(dir);
-  }
-  const fromCwd = path.resolve(rel);
-  if (existsSync(fromCwd)) return pathToFileURL(fromCwd);
-  throw new Error(`The bootstrap worker's entry ${rel} was not found beside the build.`);
 }
 
 /** The research API's page of a course's estimations: ids after `afterId`, ascending, at most `limit`. */

@@ -1,10 +1,12 @@
 /**
  * The summary e-mail each participant can receive after a session (product.md, "E-mail"): their
- * supergames, points and credit. One `result_mails` row per recipient holds its status; a
- * background loop in this process sends the queued ones at a bounded rate (RESULT_MAILS_PER_MINUTE)
- * and records failures, which the instructor can queue again.
+ * supergames, points and credit. One `result_mails` row per recipient holds its status; a job per
+ * session (app/jobs) sends the queued ones at a bounded rate (RESULT_MAILS_PER_MINUTE) and records
+ * failures, which the instructor can queue again.
  */
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
+import { z } from 'zod';
+import { defineJob, enqueue } from '#app/jobs/queue.server';
 import { creditFor, describeCreditRule, formatCredit } from '#app/lib/credit';
 import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
@@ -204,55 +206,38 @@ export async function drainResultMails(session: PanelSession, opts: DrainOptions
   }
 }
 
-// One background loop per session in this process; started (or resumed) by the results page.
-interface Loop {
-  again: boolean;
-}
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyResultMailLoops: Map<number, Loop> | undefined;
-}
-const g = globalThis;
-
-export function startResultMailLoop(session: PanelSession): void {
-  const loops = (g.__parleyResultMailLoops ??= new Map());
-  const running = loops.get(session.id);
-  if (running) {
-    // mails queued while the loop was finishing are picked up by one more pass
-    running.again = true;
-    return;
-  }
-  const loop: Loop = { again: false };
-  loops.set(session.id, loop);
-  void (async () => {
-    // A mail left "sending" by a stopped process was never confirmed: send it again.
+// One job per session sends its queued mails; asked again while it runs, it makes one more pass,
+// so mails queued while it was finishing are not left behind.
+export const resultMailsJob = defineJob({
+  kind: 'result-mails',
+  payload: z.object({ sessionId: z.number().int().positive() }),
+  concurrency: 4,
+  run: async ({ sessionId }) => {
+    const [s] = await db().select({ courseId: sessions.courseId }).from(sessions).where(eq(sessions.id, sessionId));
+    const [session] = s ? await panelSessions(s.courseId, [sessionId]) : [];
+    if (!session) return;
+    // A mail left "sending" by a run whose process stopped was never confirmed: send it again.
     await db()
       .update(resultMails)
       .set({ status: 'queued' })
-      .where(and(eq(resultMails.sessionId, session.id), inArray(resultMails.status, ['sending'])));
-    do {
-      loop.again = false;
-      await drainResultMails(session);
-    } while (loop.again);
-  })()
-    .catch((error) => console.error('[parley] results e-mails:', error))
-    .finally(() => loops.delete(session.id));
-}
+      .where(and(eq(resultMails.sessionId, sessionId), eq(resultMails.status, 'sending')));
+    await drainResultMails(session);
+  },
+  recover: () => resumeResultMails(),
+});
 
-export function resultMailLoopRunning(sessionId: number): boolean {
-  return g.__parleyResultMailLoops?.has(sessionId) ?? false;
+/** Sends the session's queued results e-mails in the background (after queueing or a retry). */
+export async function sendQueuedResultMails(session: { id: number; courseId: number }): Promise<void> {
+  await enqueue(resultMailsJob, { sessionId: session.id }, { courseId: session.courseId, key: `result-mails:${session.id}`, again: true });
 }
 
 /** After a restart: carry on sending every session's queued (or unconfirmed) results e-mails. */
 export async function resumeResultMails(): Promise<number> {
   const pending = await db()
-    .selectDistinct({ sessionId: resultMails.sessionId, courseId: sessions.courseId })
+    .selectDistinct({ id: resultMails.sessionId, courseId: sessions.courseId })
     .from(resultMails)
     .innerJoin(sessions, eq(sessions.id, resultMails.sessionId))
     .where(inArray(resultMails.status, ['queued', 'sending']));
-  for (const p of pending) {
-    const [session] = await panelSessions(p.courseId, [p.sessionId]);
-    if (session) startResultMailLoop(session);
-  }
+  for (const session of pending) await sendQueuedResultMails(session);
   return pending.length;
 }

@@ -10,6 +10,7 @@ import { authEvents, authSessions, users } from '#drizzle/schema';
 import { db } from './db.server';
 import { env } from './env.server';
 import { respondUnless } from './http.server';
+import { remember } from './remember.server';
 import { sockets } from './sockets.server';
 
 const AUTH_DAYS = 30;
@@ -22,12 +23,6 @@ export interface AuthCookieData {
   /** where to go after signing in (kept while the code is on its way) */
   redirectTo: string;
 }
-
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyAuthStorage: ReturnType<typeof makeStorage> | undefined;
-}
-const g = globalThis;
 
 function makeStorage() {
   return createCookieSessionStorage<AuthCookieData>({
@@ -44,8 +39,7 @@ function makeStorage() {
 }
 
 export function authSessionStorage() {
-  g.__parleyAuthStorage ??= makeStorage();
-  return g.__parleyAuthStorage;
+  return remember('auth-cookie-storage', makeStorage);
 }
 
 export async function getAuthSession(request: Request) {
@@ -192,9 +186,13 @@ export async function signOut(request: Request, { everywhere = false } = {}) {
   return authSessionStorage().destroySession(session);
 }
 
-/** Forgets expired sign-ins and old sign-in events (scheduled by server.ts). */
+/** Forgets expired sign-ins (a periodic job: app/jobs/all.server.ts). */
 export async function pruneAuthSessions() {
   await db().delete(authSessions).where(lt(authSessions.expiresAt, new Date()));
+}
+
+/** Forgets sign-in events older than a day (a periodic job: app/jobs/all.server.ts). */
+export async function pruneAuthEvents() {
   await db()
     .delete(authEvents)
     .where(lt(authEvents.createdAt, new Date(Date.now() - 24 * 3600_000)));

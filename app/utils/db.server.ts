@@ -2,37 +2,31 @@ import { drizzle, type MySql2Database } from 'drizzle-orm/mysql2';
 import mysql from 'mysql2/promise';
 import * as schema from '#drizzle/schema';
 import { env } from './env.server';
+import { forget, remember, remembered } from './remember.server';
 
 export type Db = MySql2Database<typeof schema>;
 
-// One pool per process, kept across Vite's reloads of this module in development.
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyPool: mysql.Pool | undefined;
-  var __parleyDb: Db | undefined;
-}
-const g = globalThis;
-
+// One pool per process (remember.server.ts says why it lives on globalThis).
 export function pool(): mysql.Pool {
-  g.__parleyPool ??= mysql.createPool({
-    uri: env().DATABASE_URL,
-    connectionLimit: 20,
-    timezone: 'Z',
-    dateStrings: false,
-    supportBigNumbers: true,
-  });
-  return g.__parleyPool;
+  return remember('db-pool', () =>
+    mysql.createPool({
+      uri: env().DATABASE_URL,
+      connectionLimit: 20,
+      timezone: 'Z',
+      dateStrings: false,
+      supportBigNumbers: true,
+    }),
+  );
 }
 
 export function db(): Db {
-  g.__parleyDb ??= drizzle(pool(), { schema, mode: 'default' });
-  return g.__parleyDb;
+  return remember('db', () => drizzle(pool(), { schema, mode: 'default' }));
 }
 
 export async function closeDb() {
-  const p = g.__parleyPool;
-  g.__parleyPool = undefined;
-  g.__parleyDb = undefined;
+  const p = remembered<mysql.Pool>('db-pool');
+  forget('db-pool');
+  forget('db');
   await p?.end();
 }
 

@@ -49,6 +49,10 @@ const schema = z.object({
   RESULT_MAILS_PER_MINUTE: z.coerce.number().int().min(1).max(6000).default(300),
   /** strategy-frequency estimations one person may have queued or running at a time */
   ESTIMATES_PER_USER: z.coerce.number().int().min(1).max(100).default(3),
+  /** off: this process takes no background jobs (estimations, results e-mails, pruning) and
+   * leaves them to the other processes on the same database (a test's second server that runs
+   * with another environment, e.g. a dead mail server) */
+  PARLEY_JOBS: z.enum(['on', 'off']).default('on'),
   /** behind a reverse proxy, read the client address from X-Forwarded-For */
   TRUST_PROXY: z
     .enum(['0', '1', 'true', 'false'])

@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import nodemailer, { type Transporter } from 'nodemailer';
 import { env } from './env.server';
+import { remember } from './remember.server';
 
 export interface Mail {
   to: string;
@@ -38,15 +39,8 @@ export function createMailTransport(url: string = env().SMTP_URL, timeoutMs: num
   });
 }
 
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyMailer: Transporter | undefined;
-}
-const g = globalThis;
-
 function transport() {
-  g.__parleyMailer ??= createMailTransport();
-  return g.__parleyMailer;
+  return remember('mail-transport', createMailTransport);
 }
 
 /** The test seam: is this address listed in PARLEY_TEST_MAIL_FAULTS (read on every send)? */

@@ -1,23 +1,21 @@
 import type { SessionRunner } from '#realtime/runner';
+import { rememberSlot } from './remember.server';
 
 // server.ts creates the one SessionRunner of this process and leaves it here; route modules come
-// from the build bundle, which holds its own copies of modules, so they reach it through globalThis.
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyRunner: SessionRunner | undefined;
-}
-const g = globalThis;
+// from the build bundle, which holds its own copies of modules, so they reach it through remember().
+const slot = () => rememberSlot<SessionRunner>('session-runner');
 
 export function setRunner(r: SessionRunner | undefined) {
-  g.__parleyRunner = r;
+  slot().current = r;
 }
 
 export function runner(): SessionRunner {
-  if (!g.__parleyRunner) throw new Error('The session runner is not started (server.ts starts it).');
-  return g.__parleyRunner;
+  const r = slot().current;
+  if (!r) throw new Error('The session runner is not started (server.ts starts it).');
+  return r;
 }
 
 /** The runner when this process has one (the production server), else undefined. */
 export function runnerIfStarted(): SessionRunner | undefined {
-  return g.__parleyRunner;
+  return slot().current;
 }

@@ -16,6 +16,7 @@ import { signInCodes } from '#drizzle/schema';
 import { recordAuthEvent, signInAs } from './auth.server';
 import { db } from './db.server';
 import { env } from './env.server';
+import { remember } from './remember.server';
 import { sendMail, signInCodeMail } from './mail.server';
 
 export const CODE_MINUTES = 10;
@@ -208,7 +209,7 @@ async function claimCode(pending: PendingCode, email: string) {
   return res.affectedRows === 1;
 }
 
-/** Forgets codes a day after they expired (scheduled by server.ts). */
+/** Forgets codes a day after they expired (a periodic job: app/jobs/all.server.ts). */
 export async function pruneSignInCodes() {
   await db()
     .delete(signInCodes)
@@ -217,14 +218,11 @@ export async function pruneSignInCodes() {
 
 // ── The strategy ─────────────────────────────────────────────────────────────────────────────────
 
-declare global {
-  // one per process: kept across Vite's reloads of this module, shared by server.ts and the built bundle
-  var __parleyAuthenticator: Authenticator<number> | undefined;
-}
-const g = globalThis;
-
 export function authenticator() {
-  if (g.__parleyAuthenticator) return g.__parleyAuthenticator;
+  return remember('authenticator', makeAuthenticator);
+}
+
+function makeAuthenticator() {
   const a = new Authenticator<number>();
   const e = env();
   a.use(
@@ -267,6 +265,5 @@ export function authenticator() {
     ),
     'TOTP',
   );
-  g.__parleyAuthenticator = a;
   return a;
 }

@@ -1,6 +1,21 @@
-// Polls an estimation's status through the real server until it is done or failed.
+// Polls an estimation's status through the real server until it is done or failed; stores a
+// simulated panel (the dbf2011 strategies in equal shares, β = 0.9, δ = 0.75) as a dataset.
+import { libraryStrategy, STRATEGY_SETS } from '#app/lib/automata';
+import { simulatePanel } from '#app/lib/simulate-panel';
+import { createDataset } from '#app/models/datasets.server';
 import type { EstimateStatus } from '#app/models/estimate.server';
 import type { Client } from './http';
+
+export async function simulatedDataset(
+  courseId: number,
+  userId: number,
+  name: string,
+  size: { subjects: number; supergames: number; seed: number },
+): Promise<number> {
+  const strategies = STRATEGY_SETS.dbf2011.map(libraryStrategy);
+  const sim = simulatePanel({ strategies, shares: strategies.map(() => 1 / strategies.length), beta: 0.9, delta: 0.75, ...size });
+  return createDataset(courseId, userId, name, sim.rows);
+}
 
 export async function waitEstimate(c: Client, courseId: number, id: number, timeoutMs = 60_000): Promise<EstimateStatus> {
   for (const until = Date.now() + timeoutMs; ;) {

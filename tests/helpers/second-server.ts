@@ -18,7 +18,9 @@ export class SecondServer {
   /** Starts it (its APP_URL is its own address, so forms posted to it pass the Origin check) and waits until /healthz answers. */
   async start() {
     this.process = spawn(process.execPath, ['--import', 'tsx', 'server.ts'], {
-      env: { ...process.env, APP_URL: this.base, ...this.env, PORT: String(this.port) },
+      // It takes no background jobs unless a test asks: with its own environment (a dead mail
+      // server) or killed mid-run, it would fail or hold other tests' estimations and mails.
+      env: { ...process.env, APP_URL: this.base, PARLEY_JOBS: 'off', ...this.env, PORT: String(this.port) },
       stdio: 'ignore',
     });
     const until = Date.now() + 30_000;

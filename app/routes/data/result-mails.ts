@@ -4,13 +4,7 @@ import { data } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/result-mails';
 import { findPanelSession } from '#app/models/panel-export.server';
-import {
-  queueResultMails,
-  resultMailLoopRunning,
-  resultMailStatus,
-  retryFailedMails,
-  startResultMailLoop,
-} from '#app/models/result-mails.server';
+import { queueResultMails, resultMailStatus, retryFailedMails, sendQueuedResultMails } from '#app/models/result-mails.server';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
@@ -20,10 +14,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, ['instructor']);
   const session = await findPanelSession(course.id, parseId(params.sessionId, 'session'));
   respondUnless(session, 404, 'No such session in this course.');
-  const status = await resultMailStatus(session.id);
-  // queued mails with no loop (the server restarted): carry on
-  if (status.busy && !resultMailLoopRunning(session.id)) startResultMailLoop(session);
-  return status;
+  // (queued mails are a job's to send, resumed after a restart: app/jobs)
+  return resultMailStatus(session.id);
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -36,7 +28,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     return data({ ok: false as const, message: 'Results can be e-mailed once the session is complete.' }, { status: 409 });
   }
   const n = parsed.data.intent === 'send' ? await queueResultMails(session.id) : await retryFailedMails(session.id);
-  startResultMailLoop(session);
+  await sendQueuedResultMails(session);
   const message =
     parsed.data.intent === 'send'
       ? n === 0
