@@ -36,7 +36,7 @@ export default tseslint.config(
   },
   {
     files: ['app/components/**', 'app/lib/**'],
-    ignores: ['app/**/*.server.ts', 'app/**/*.test.ts'],
+    ignores: ['app/**/*.server.ts'],
     rules: {
       'no-restricted-imports': [
         'error',

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { FairQueue } from './fair-queue';
+import { FairQueue } from '#app/lib/fair-queue';
 
 const drain = <K, J>(q: FairQueue<K, J>) => {
   const out: J[] = [];
