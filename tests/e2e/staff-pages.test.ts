@@ -145,6 +145,16 @@ describe('the Floor', () => {
       expect([who, Math.abs((await centreY(seat)) - (await centreY(nudge))) <= 6]).toEqual([who, true]);
     }
     await page.screenshot({ path: path.join(SHOTS, 'floor-desktop.png'), fullPage: true });
+
+    // The names behind the pseudonyms, on demand (the session-names route, through a fetcher).
+    const named = () => page.getByTestId('seat-name').filter({ hasText: '@' }).count();
+    expect(await named()).toBe(0);
+    await page.getByRole('button', { name: 'Show names' }).click();
+    await expect.poll(named).toBe(2);
+    expect((await page.getByTestId('seat-name').first().textContent())?.trim()).toMatch(/^P-00[12] · floor-p[01]-.+@tests\.parley\.test$/);
+    await page.screenshot({ path: path.join(SHOTS, 'floor-names-desktop.png'), fullPage: true });
+    await page.getByRole('button', { name: 'Hide names' }).click();
+    await expect.poll(named).toBe(0);
     expect(pageErrors).toEqual([]);
   });
 });
