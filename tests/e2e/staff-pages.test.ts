@@ -96,7 +96,10 @@ describe('the Debrief', () => {
 
 describe('the Floor', () => {
   it('says "Pair 1", puts each seat’s buttons on its own row, and counts "Waiting" from the pair’s first choice', async () => {
-    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'floor');
+    const { courseId, sessionId, instructor, players } = await classOf(2, {
+      design: { supergames: 2, delta: 0.9, roundSeconds: 120 },
+      tag: 'floor',
+    });
     const sockets = [];
     for (const p of players) {
       const s = await connect(p.cookieHeader());

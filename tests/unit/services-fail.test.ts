@@ -4,6 +4,7 @@
 import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { alive } from '#tests/helpers/processes';
 
 const services = path.resolve('scripts/lib/services.mjs');
 
@@ -21,15 +22,6 @@ ${body}`;
     child.on('exit', (code) => resolve({ code, stdout, stderr }));
   });
 }
-
-const alive = (pid: number) => {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-};
 
 describe('fail()', () => {
   it('stops a plain (synchronous) caller: the next line never runs', async () => {
