@@ -7,21 +7,7 @@
  * ratio to it says how the matching scales on this machine, whatever the machine's speed.
  */
 import { type MatchingInput, type OddCountPolicy, matchMinimisingRepeats, matchSupergame } from '#app/lib/matching';
-import { rngFor, shuffleInPlace } from '#app/lib/rng';
-
-const ids = (n: number): string[] => Array.from({ length: n }, (_, i) => `p${String(i + 1).padStart(4, '0')}`);
-
-/** `supergames` rounds of random pairs of n people: the history a long session leaves. */
-function history(n: number, supergames: number, seed: number): [string, string][] {
-  const people = ids(n);
-  const rng = rngFor(seed, 'draws', 1);
-  const out: [string, string][] = [];
-  for (let s = 0; s < supergames; s++) {
-    const order = shuffleInPlace(rng, [...people]);
-    for (let i = 0; i + 1 < order.length; i += 2) out.push([order[i], order[i + 1]]);
-  }
-  return out;
-}
+import { ids, randomHistory as history } from '#tests/helpers/pairs';
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 

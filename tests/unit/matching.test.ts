@@ -3,8 +3,8 @@ import { describe, expect, it } from 'vitest';
 import jstat from 'jstat';
 import { type Matching, type MatchingInput, type OddCountPolicy, matchMinimisingRepeats, matchSupergame } from '#app/lib/matching';
 import { randomInt, rngFor, shuffleInPlace } from '#app/lib/rng';
+import { ids, randomHistory as history } from '#tests/helpers/pairs';
 
-const ids = (n: number): string[] => Array.from({ length: n }, (_, i) => `p${String(i + 1).padStart(4, '0')}`);
 const key = (a: string, b: string): string => (a < b ? `${a}|${b}` : `${b}|${a}`);
 
 /** Run supergames 1..count with a fixed group, feeding history and odd counts back in. */
@@ -162,17 +162,6 @@ describe('fewest repeats, exactly', () => {
 
 // How fast these run is measured by `npm run bench:matching` (scripts/bench-matching.ts), not here.
 describe('large groups', () => {
-  const history = (n: number, supergames: number, seed: number): [string, string][] => {
-    const people = ids(n);
-    const rng = rngFor(seed, 'draws', 1);
-    const out: [string, string][] = [];
-    for (let s = 0; s < supergames; s++) {
-      const order = shuffleInPlace(rng, [...people]);
-      for (let i = 0; i + 1 < order.length; i += 2) out.push([order[i], order[i + 1]]);
-    }
-    return out;
-  };
-
   it('n = 40 after 11 supergames: no repeated pair', () => {
     const input: MatchingInput = { supergame: 12, participants: ids(40), pastPairs: history(40, 11, 1), policy: computer, seed: 1 };
     const m = matchMinimisingRepeats(input);
