@@ -43,7 +43,7 @@ if (production) {
   // Loaders and actions get the client's address and the CSP nonce in their load context.
   app.use(noStore, reactRouterHandler({ build, mode: 'production', getLoadContext: loadContext }));
 } else {
-  const vite = await import('vite').then((v) => v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }));
+  const vite = await import('vite').then((v) => v.createServer({ server: { middlewareMode: true, ws: { server: httpServer } } }));
   app.use(vite.middlewares);
   app.use(noStore, async (req, res, next) => {
     try {
