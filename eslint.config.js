@@ -38,7 +38,7 @@ export default tseslint.config(
     // The browser bundle (components, pure code) must not import the schema; routes reach the
     // database through models (DEVELOPERS.md, Layout: thin route modules).
     files: ['app/components/**', 'app/lib/**', 'app/routes/**'],
-    ignores: ['app/**/*.server.ts', 'app/**/*.test.ts'],
+    ignores: ['app/**/*.server.ts'],
     rules: {
       'no-restricted-imports': [
         'error',

@@ -3,7 +3,6 @@
 import { createServer } from 'node:http';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { createRequestHandler } from '@react-router/express';
 import compression from 'compression';
 import express from 'express';
 import type { ServerBuild } from 'react-router';
@@ -14,7 +13,9 @@ import { stopJobWorker } from '#app/jobs/queue.server';
 import { signedInFromCookie } from '#app/utils/auth.server';
 import { cspNonce } from '#app/utils/csp-nonce.server';
 import { requireSameOrigin } from '#app/utils/origin.server';
-import { capBodies, withReadBody } from '#app/utils/request-limits.server';
+import { loadContext } from '#app/utils/load-context.server';
+import { reactRouterHandler } from '#app/utils/react-router-express.server';
+import { capBodies } from '#app/utils/request-limits.server';
 import { noStore, securityHeaders } from '#app/utils/security-headers.server';
 import { attachHub } from '#realtime/hub';
 
@@ -26,11 +27,6 @@ app.disable('x-powered-by');
 app.set('trust proxy', config.TRUST_PROXY);
 const httpServer = createServer(app);
 
-// The client's address for rate limits, set here so no client can forge it.
-app.use((req, _res, next) => {
-  req.headers['x-parley-client-ip'] = (config.TRUST_PROXY ? req.ip : req.socket.remoteAddress) ?? 'unknown';
-  next();
-});
 // Security headers on every response: a per-request CSP nonce, no framing, no sniffing.
 app.use(cspNonce, securityHeaders(config.APP_URL, config.NODE_ENV === 'development'));
 // Anything that may change state must come from our own pages (same-site CSRF).
@@ -44,15 +40,15 @@ if (production) {
   app.use('/assets', express.static(path.join(buildDir, 'client/assets'), { immutable: true, maxAge: '1y' }));
   app.use(express.static(path.join(buildDir, 'client'), { maxAge: '1h' }));
   const build = (await import(pathToFileURL(path.join(buildDir, 'server/index.js')).href)) as ServerBuild;
-  const handler = createRequestHandler({ build, mode: 'production' });
-  app.use(noStore, (req, res, next) => handler(withReadBody(req), res, next));
+  // Loaders and actions get the client's address and the CSP nonce in their load context.
+  app.use(noStore, reactRouterHandler({ build, mode: 'production', getLoadContext: loadContext }));
 } else {
-  const vite = await import('vite').then((v) => v.createServer({ server: { middlewareMode: true, hmr: { server: httpServer } } }));
+  const vite = await import('vite').then((v) => v.createServer({ server: { middlewareMode: true, ws: { server: httpServer } } }));
   app.use(vite.middlewares);
   app.use(noStore, async (req, res, next) => {
     try {
       const build = (await vite.ssrLoadModule('virtual:react-router/server-build')) as ServerBuild;
-      await createRequestHandler({ build, mode: 'development' })(withReadBody(req), res, next);
+      await reactRouterHandler({ build, mode: 'development', getLoadContext: loadContext })(req, res, next);
     } catch (error) {
       if (error instanceof Error) vite.ssrFixStacktrace(error);
       next(error);

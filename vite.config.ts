@@ -20,7 +20,9 @@ export default defineConfig({
       'zod',
       'recharts',
       'papaparse',
-      'pure-rand',
+      // pure-rand 8 exports only subpaths (no "."): name the ones app/lib/rng.ts imports.
+      'pure-rand/distribution/uniformInt',
+      'pure-rand/generator/xoroshiro128plus',
     ],
     exclude: ['mysql2', 'drizzle-orm', 'nodemailer', 'remix-auth', 'remix-auth-totp'],
   },

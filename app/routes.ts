@@ -33,9 +33,9 @@ export default [
     route('courses/:courseId/sessions/:sessionId/results', 'routes/staff/session-results.tsx'),
     route('settings/tokens', 'routes/staff/tokens.tsx'),
     // Debrief (staff): choose sessions, one session, several side by side.
-    route('courses/:courseId/debrief', 'routes/staff/debrief.tsx'),
-    route('courses/:courseId/debrief/compare', 'routes/staff/debrief-compare.tsx'),
-    route('courses/:courseId/debrief/:sessionId', 'routes/staff/debrief-session.tsx'),
+    route('courses/:courseId/debrief', 'routes/debrief/choose.tsx'),
+    route('courses/:courseId/debrief/compare', 'routes/debrief/compare.tsx'),
+    route('courses/:courseId/debrief/:sessionId', 'routes/debrief/session.tsx'),
     // How the Debrief's figures are computed; every chart caption links to its section.
     route('methods', 'routes/staff/methods.tsx'),
   ]),

@@ -15,6 +15,7 @@
 import fs from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import mysql from 'mysql2/promise';
+import type { RowDataPacket } from 'mysql2/promise';
 import { io, type Socket } from 'socket.io-client';
 import { Client } from '#tests/helpers/http';
 import { connectPhone, type CrowdResult, type Phone, playCrowd, quantile } from '#tests/helpers/crowd';
@@ -334,13 +335,13 @@ async function main() {
   // server may still be storing choices that were in flight: wait until the count stands still.
   const conn = await mysql.createConnection({ uri: DATABASE_URL });
   const ids = sessions.map((s) => s.sessionId);
-  type Stored = { id: string | null; source: string; n: number };
+  type Stored = RowDataPacket & { id: string | null; source: string; n: number };
   const storedRows = async () =>
     (
-      (await conn.query(
+      await conn.query<Stored[]>(
         `SELECT client_choice_id AS id, source, COUNT(*) AS n FROM choices WHERE session_id IN (?) GROUP BY client_choice_id, source`,
         [ids],
-      )) as unknown as [Stored[]]
+      )
     )[0];
   let stored = await storedRows();
   for (let i = 0; i < 60 && !result.complete; i++) {
@@ -349,10 +350,10 @@ async function main() {
     if (again.length === stored.length) break;
     stored = again;
   }
-  const [draws] = (await conn.query(
+  const [draws] = await conn.query<(RowDataPacket & { supergame: number; rounds: number })[]>(
     `SELECT supergame, rounds_played AS rounds FROM supergame_draws WHERE session_id = ? ORDER BY supergame`,
     [ids[0]],
-  )) as unknown as [{ supergame: number; rounds: number }[]];
+  );
   await conn.end();
   const roundsPlayed = draws.map((d) => Number(d.rounds));
   const bySource: Record<string, number> = {};

@@ -5,18 +5,17 @@ import { useFetcher } from 'react-router';
 import { LIBRARY } from '#app/lib/automata';
 import type { Include } from '#app/lib/choice-panel';
 import type { EstimateResult, EstimateStatus, GroupResult } from '#app/models/estimate.server';
+import type { loader as statusLoader } from '#app/routes/debrief/estimate-status';
+import type { action as startAction } from '#app/routes/debrief/estimates';
 import { MAX_BOOTSTRAP, STRATEGY_ORDER, STRATEGY_PRESETS, windowWords } from '#app/utils/estimate-form';
 import { DataTable, staffColumnHelper } from './data-table';
 import { ChartFrame, pct, StrategiesChart } from './debrief-charts';
 import { Button, cx, FieldError, Notice, SelectField, TextField } from './ui';
 
-type StartAnswer =
-  { ok: true; estimate: EstimateStatus; reused: boolean } | { ok: false; errors?: Record<string, string>; message?: string };
-
 /** The estimate shown on the page: the stored one at first, then whatever the form started, kept fresh by polling. */
 export function useEstimateRun(courseId: number, initial: EstimateStatus | null) {
-  const start = useFetcher<StartAnswer>();
-  const poll = useFetcher<EstimateStatus>();
+  const start = useFetcher<typeof startAction>();
+  const poll = useFetcher<typeof statusLoader>();
   const [current, setCurrent] = useState<EstimateStatus | null>(initial);
   // Another stored estimate from the loader replaces the shown one (React's "adjusting state when a
   // prop changes"); a revalidated copy of the same one does not overwrite fresher polled status.
@@ -29,7 +28,8 @@ export function useEstimateRun(courseId: number, initial: EstimateStatus | null)
     if (start.data?.ok) setCurrent(start.data.estimate);
   }, [start.data]);
   useEffect(() => {
-    if (poll.data && poll.data.id === current?.id) setCurrent(poll.data);
+    // An estimation gone from the course answers { ok: false, message }: the shown one stays.
+    if (poll.data && 'id' in poll.data && poll.data.id === current?.id) setCurrent(poll.data);
   }, [poll.data, current?.id]);
   const activeId = current && (current.status === 'queued' || current.status === 'running') ? current.id : null;
   const { load, state: pollState } = poll;
@@ -106,8 +106,10 @@ export function EstimationForm({
 }) {
   const [windowKind, setWindowKind] = useState('all');
   const [preset, setPreset] = useState('dbf2011');
-  const errors = start.data && !start.data.ok ? (start.data.errors ?? {}) : {};
-  const message = start.data && !start.data.ok ? start.data.message : undefined;
+  // Refused: the fields' errors (bad form), or why it cannot start (course limit, mixed treatments…).
+  const refused = start.data && !start.data.ok ? start.data : null;
+  const errors = refused && 'errors' in refused ? refused.errors : {};
+  const message = refused && 'message' in refused ? refused.message : undefined;
   const groupId = useId();
   return (
     <start.Form

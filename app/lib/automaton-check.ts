@@ -14,9 +14,9 @@ export interface AutomatonIssue {
 }
 
 /** Checks an automaton that may come straight from a form or JSON. Empty list = valid. */
-export function validateAutomaton(a: Automaton): AutomatonIssue[] {
+export function validateAutomaton(a: unknown): AutomatonIssue[] {
   const issues: AutomatonIssue[] = [];
-  const states = (a as { states?: unknown }).states;
+  const states = a !== null && typeof a === 'object' && 'states' in a ? a.states : undefined;
   if (!Array.isArray(states) || states.length === 0) {
     return [{ path: 'states', message: 'A strategy needs at least one state.' }];
   }

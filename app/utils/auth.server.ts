@@ -59,7 +59,11 @@ export interface SignedIn {
  * handshake alike). A valid signature is not enough: the row must exist and not have expired.
  */
 export async function signedInFromCookie(cookieHeader: string | null | undefined): Promise<SignedIn | null> {
-  const s = await authSessionStorage().getSession(cookieHeader ?? null);
+  return signedInFromSession(await authSessionStorage().getSession(cookieHeader ?? null));
+}
+
+/** The same, for an auth session cookie already read (signOut reads it once for both uses). */
+async function signedInFromSession(s: Awaited<ReturnType<typeof getAuthSession>>): Promise<SignedIn | null> {
   const token = s.get('token');
   if (typeof token !== 'string' || token.length < 32) return null;
   const authKey = sha256(token);
@@ -129,18 +133,15 @@ export async function requireAdmin(request: Request) {
   return user;
 }
 
-export function clientIp(request: Request) {
-  // server.ts sets this header from the socket (or X-Forwarded-For behind a trusted proxy) and
-  // overwrites whatever a client sent.
-  return request.headers.get('x-parley-client-ip') ?? 'unknown';
-}
-
 export async function recordAuthEvent(kind: 'code-failure' | 'sign-in', email: string, ip: string) {
   await db().insert(authEvents).values({ kind, email: email.toLowerCase(), ip });
 }
 
-/** Starts a sign-in for a verified e-mail: the user (created if new), a server-side row, the cookie. */
-export async function signInAs(request: Request, email: string) {
+/**
+ * Starts a sign-in for a verified e-mail: the user (created if new), a server-side row, the cookie.
+ * `ip` is the load context's clientIp.
+ */
+export async function signInAs(request: Request, email: string, ip: string) {
   const normalised = email.trim().toLowerCase();
   await db()
     .insert(users)
@@ -156,14 +157,14 @@ export async function signInAs(request: Request, email: string) {
       userId: u.id,
       lastSeenAt: now,
       expiresAt: new Date(now.getTime() + AUTH_DAYS * 24 * 3600_000),
-      ip: clientIp(request),
+      ip,
       userAgent: (request.headers.get('user-agent') ?? '').slice(0, 255) || null,
     });
   const session = await getAuthSession(request);
   const to = safeRedirect(session.get('redirectTo'));
   session.unset('redirectTo');
   session.set('token', token);
-  await recordAuthEvent('sign-in', normalised, clientIp(request));
+  await recordAuthEvent('sign-in', normalised, ip);
   return { to, cookie: await authSessionStorage().commitSession(session) };
 }
 
@@ -173,7 +174,7 @@ export async function signInAs(request: Request, email: string) {
  */
 export async function signOut(request: Request, { everywhere = false } = {}) {
   const session = await getAuthSession(request);
-  const signedIn = await signedInFromCookie(request.headers.get('Cookie'));
+  const signedIn = await signedInFromSession(session);
   if (signedIn) {
     if (everywhere) {
       await db().delete(authSessions).where(eq(authSessions.userId, signedIn.userId));

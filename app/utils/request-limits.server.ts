@@ -1,7 +1,6 @@
 // Request bodies are capped in server.ts before React Router (or any action) sees them, counting
 // bytes as they stream: a chunked body carries no Content-Length for an action to check, and
 // `request.formData()` reads whatever arrives. Issue 9, finding 3.
-import { Readable } from 'node:stream';
 import type { NextFunction, Request as ExpressRequest, Response as ExpressResponse } from 'express';
 import getRawBody from 'raw-body';
 import { ROSTER_LIMITS } from '#app/lib/roster-csv';
@@ -91,25 +90,7 @@ export function capBodies(isSignedIn: (cookieHeader: string | undefined) => Prom
   };
 }
 
-/**
- * The request as React Router's Express adapter reads it, with the body capBodies already read
- * (the original stream is consumed). The adapter (@react-router/express, pinned) reads exactly
- * these fields and the stream; integration tests of every form go through here. The one cast
- * left in app/: a replayed stream is not an Express request, and the adapter only takes one; the
- * alternative is to drop the adapter and build the fetch Request ourselves.
- */
-export function withReadBody(req: ExpressRequest): ExpressRequest {
-  const body = (req as WithBody)[BODY];
-  if (!body) return req;
-  const stream = Readable.from(body.length ? [body] : []);
-  return Object.assign(stream, {
-    method: req.method,
-    headers: req.headers,
-    url: req.url,
-    originalUrl: req.originalUrl,
-    protocol: req.protocol,
-    hostname: req.hostname,
-    app: req.app,
-    get: req.get.bind(req),
-  }) as unknown as ExpressRequest;
+/** The body capBodies read from a request (the stream itself is consumed by then). */
+export function readBody(req: ExpressRequest): Buffer | undefined {
+  return (req as WithBody)[BODY];
 }

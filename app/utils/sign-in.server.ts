@@ -10,13 +10,11 @@
 import { createHash } from 'node:crypto';
 import { and, count, eq, gt, isNull, lt, min, sql } from 'drizzle-orm';
 import { redirect } from 'react-router';
-import { Authenticator } from 'remix-auth';
 import { TOTPStrategy } from 'remix-auth-totp';
 import { signInCodes } from '#drizzle/schema';
 import { recordAuthEvent, signInAs } from './auth.server';
 import { db } from './db.server';
 import { env } from './env.server';
-import { remember } from './remember.server';
 import { sendMail, signInCodeMail } from './mail.server';
 
 export const CODE_MINUTES = 10;
@@ -131,7 +129,7 @@ export type Issue = { sent: true } | { sent: false; message: string };
  */
 export async function issueCode(forStrategy: Request, email: string, ip: string): Promise<{ issue: Issue; response: unknown }> {
   try {
-    await authenticator().authenticate('TOTP', forStrategy);
+    await totpStrategy(noCodeExpected).authenticate(forStrategy);
   } catch (thrown) {
     if (!(thrown instanceof Response)) throw thrown;
     const pending = pendingSetBy(thrown);
@@ -218,52 +216,64 @@ export async function pruneSignInCodes() {
 
 // ── The strategy ─────────────────────────────────────────────────────────────────────────────────
 
-export function authenticator() {
-  return remember('authenticator', makeAuthenticator);
+/**
+ * remix-auth-totp's strategy, made per use (it holds only its options): `verified` is what a code
+ * that passed the library's check does next. The strategy answers everything else by throwing a
+ * redirect with its cookie.
+ */
+function totpStrategy(verified: (email: string) => Promise<never>) {
+  const e = env();
+  return new TOTPStrategy(
+    {
+      secret: e.TOTP_SECRET,
+      emailSentRedirect: '/sign-in/code',
+      magicLinkPath: '/sign-in/link',
+      successRedirect: '/',
+      failureRedirect: '/sign-in/code',
+      // Digits only: phones then show the number pad. The library's own attempt counter lives in
+      // the cookie the client holds; Parley counts wrong tries per code in MariaDB instead.
+      totpGeneration: { digits: 6, charSet: '0123456789', period: CODE_MINUTES * 60, maxAttempts: 5 },
+      cookieOptions: { maxAge: CODE_MINUTES * 60, path: '/', ...(e.APP_URL.startsWith('https://') ? { secure: true as const } : {}) },
+      customErrors: {
+        invalidTotp: MESSAGES.invalidTotp,
+        expiredTotp: MESSAGES.expiredTotp,
+        rateLimitExceeded: MESSAGES.rateLimitExceeded,
+        missingSessionEmail: MESSAGES.missingSessionEmail,
+        missingSessionTotp: MESSAGES.missingSessionTotp,
+      },
+      sendTOTP: async ({ email, code, magicLink }) => {
+        // Links in the e-mail must point at the public address, not the one the request came in on.
+        const link = new URL(magicLink);
+        const publicLink = new URL(link.pathname + link.search, e.APP_URL).toString();
+        try {
+          await sendMail(signInCodeMail(email, code, publicLink, CODE_MINUTES));
+        } catch (error) {
+          // The strategy shows an error's message to the user: never the mail server's own words
+          // (sendMail has logged the cause).
+          throw new Error(MESSAGES.mailFailed, { cause: error });
+        }
+      },
+    },
+    async ({ email }) => verified(email),
+  );
 }
 
-function makeAuthenticator() {
-  const a = new Authenticator<number>();
-  const e = env();
-  a.use(
-    new TOTPStrategy(
-      {
-        secret: e.TOTP_SECRET,
-        emailSentRedirect: '/sign-in/code',
-        magicLinkPath: '/sign-in/link',
-        successRedirect: '/',
-        failureRedirect: '/sign-in/code',
-        // Digits only: phones then show the number pad. The library's own attempt counter lives in
-        // the cookie the client holds; Parley counts wrong tries per code in MariaDB instead.
-        totpGeneration: { digits: 6, charSet: '0123456789', period: CODE_MINUTES * 60, maxAttempts: 5 },
-        cookieOptions: { maxAge: CODE_MINUTES * 60, path: '/', ...(e.APP_URL.startsWith('https://') ? { secure: true as const } : {}) },
-        customErrors: {
-          invalidTotp: MESSAGES.invalidTotp,
-          expiredTotp: MESSAGES.expiredTotp,
-          rateLimitExceeded: MESSAGES.rateLimitExceeded,
-          missingSessionEmail: MESSAGES.missingSessionEmail,
-          missingSessionTotp: MESSAGES.missingSessionTotp,
-        },
-        sendTOTP: async ({ email, code, magicLink }) => {
-          // Links in the e-mail must point at the public address, not the one the request came in on.
-          const link = new URL(magicLink);
-          const publicLink = new URL(link.pathname + link.search, e.APP_URL).toString();
-          try {
-            await sendMail(signInCodeMail(email, code, publicLink, CODE_MINUTES));
-          } catch (error) {
-            // The strategy shows an error's message to the user: never the mail server's own words
-            // (sendMail has logged the cause).
-            throw new Error(MESSAGES.mailFailed, { cause: error });
-          }
-        },
-      },
-      async ({ email, request }) => {
-        if (!(await claimCode(pendingCode(request), email))) throw new Error(MESSAGES.unknown);
-        const { to, cookie } = await signInAs(request, email);
-        throw redirect(to, { headers: { 'Set-Cookie': cookie } });
-      },
-    ),
-    'TOTP',
-  );
-  return a;
+/** A code request never reaches verification (no code in it); should it, it is refused. */
+async function noCodeExpected(): Promise<never> {
+  throw new Error(MESSAGES.unknown);
+}
+
+/**
+ * Checks a typed code or a magic link (`forStrategy`) with the strategy; when it passes, Parley's
+ * record of the pending code (read once by the caller) decides, then the sign-in starts. Always
+ * throws: a redirect into the app with the sign-in cookie, or the strategy's redirect back to the
+ * code page with its message (see strategyFailed).
+ */
+export async function verifyCode(forStrategy: Request, pending: PendingCode, signIn: { request: Request; ip: string }): Promise<never> {
+  await totpStrategy(async (email) => {
+    if (!(await claimCode(pending, email))) throw new Error(MESSAGES.unknown);
+    const { to, cookie } = await signInAs(signIn.request, email, signIn.ip);
+    throw redirect(to, { headers: { 'Set-Cookie': cookie } });
+  }).authenticate(forStrategy);
+  throw new Error('the sign-in strategy returned without a redirect');
 }

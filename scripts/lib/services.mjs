@@ -15,9 +15,31 @@ export function say(line) {
   process.stdout.write(`[parley] ${line}\n`);
 }
 
+/** What fail() throws so that nothing after it runs; never caught by our scripts, only ignored. */
+export class Stopping extends Error {
+  name = 'Stopping';
+}
+
+let failed = false;
+
+/**
+ * Says what went wrong, stops what was started (then exits 1), and throws `Stopping`, so nothing
+ * after the call runs — in a plain function, an async one or an event handler alike.
+ */
 export function fail(message, hint) {
-  process.stderr.write(`\n[parley] ✗ ${message}\n${hint ? `[parley]   ${hint.split('\n').join('\n[parley]   ')}\n` : ''}`);
-  stopAll().finally(() => process.exit(1));
+  if (!failed) {
+    failed = true;
+    process.stderr.write(`\n[parley] ✗ ${message}\n${hint ? `[parley]   ${hint.split('\n').join('\n[parley]   ')}\n` : ''}`);
+    // Our own throw reaches the top as an uncaught exception (or a rejection of top-level await):
+    // expected, so it is not printed; the exit waits for stopAll().
+    const quiet = (error) => {
+      if (!(error instanceof Stopping)) console.error(error);
+    };
+    process.on('uncaughtException', quiet);
+    process.on('unhandledRejection', quiet);
+    stopAll().finally(() => process.exit(1));
+  }
+  throw new Stopping(message);
 }
 
 function run(cmd, args, opts = {}) {
@@ -126,7 +148,7 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
     // cannot be reused (the app would connect to `port` and find nothing) nor joined by a second.
     const running = Number(client('SELECT @@port').stdout?.match(/\d+\s*$/)?.[0]);
     if (running !== port) {
-      await failNow(
+      fail(
         `MariaDB is already running from ${path.relative(root, datadir)} (pid ${oldPid}) on port ${running}, not on port ${port} as asked`,
         `Use its port (PARLEY_DB_PORT=${running} for npm start, PARLEY_TEST_DB_PORT=${running} for npm test), or stop it first:\n  mariadb-admin --no-defaults --socket=${sock} -uroot shutdown`,
       );
@@ -136,7 +158,7 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
   } else {
     if (!isInitialised(datadir)) await initialise(datadir);
     if (!(await portIsFree(port))) {
-      await failNow(
+      fail(
         `port ${port} on 127.0.0.1 is taken, so Parley's MariaDB cannot start`,
         `Stop whatever listens there (ss -ltnp 'sport = :${port}'), or pick another port:\n  PARLEY_DB_PORT=3407 npm start`,
       );
@@ -174,7 +196,7 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
     }
     if (!ready) {
       const tail = fs.existsSync(errLog) ? fs.readFileSync(errLog, 'utf8').split('\n').slice(-8).join('\n') : '';
-      await failNow('MariaDB did not start', `Its log (${path.relative(root, errLog)}) ends with:\n${tail}`);
+      fail('MariaDB did not start', `Its log (${path.relative(root, errLog)}) ends with:\n${tail}`);
     }
   }
   const sql = [
@@ -188,7 +210,7 @@ export async function startMariadb({ dir, port, databases, user, password, fresh
     ]),
   ].join(' ');
   const r = client(sql);
-  if (r.status !== 0) await failNow('could not create the database and its user', r.stderr);
+  if (r.status !== 0) fail('could not create the database and its user', r.stderr);
   return { sock, reused };
 }
 
@@ -229,15 +251,9 @@ async function initialise(datadir) {
     ['--no-defaults', `--datadir=${partial}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'],
     { encoding: 'utf8' },
   );
-  if (init.status !== 0) await failNow('mariadb-install-db could not create the data folder', init.stderr || init.stdout);
+  if (init.status !== 0) fail('mariadb-install-db could not create the data folder', init.stderr || init.stdout);
   fs.writeFileSync(path.join(partial, READY), 'made by mariadb-install-db\n');
   fs.renameSync(partial, datadir);
-}
-
-/** fail(), and nothing after it runs: fail() stops what was started asynchronously. */
-function failNow(message, hint) {
-  fail(message, hint);
-  return new Promise(() => {});
 }
 
 /** maildev on loopback: catches every e-mail; web page and REST API on `web`. */

@@ -4,7 +4,7 @@
 import { createRequire } from 'node:module';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
+import { contextAs, DESKTOP, launch, pageErrors, PHONE } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createCourseCreator, createUser } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, createDesign, join, openSession } from '#tests/helpers/live';
@@ -87,19 +87,15 @@ async function audit(client: Client | null, paths: string[]): Promise<Violation[
   const found: Violation[] = [];
   for (const [size, sizeName] of SIZES) {
     // axe is injected as a script tag: the pages' CSP (nonces) would refuse it.
-    const ctx = await newContext(browser, size, { bypassCSP: true });
-    if (client) await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+    const ctx = await contextAs(browser, client, size, { bypassCSP: true });
     const page = await ctx.newPage();
     for (const path of paths) {
       await page.goto(path);
       await settle(page);
       await page.addScriptTag({ path: AXE });
       const violations = await page.evaluate(async (tags) => {
-        const axe = (
-          window as unknown as {
-            axe: { run: (ctx: Document, opts: object) => Promise<{ violations: { id: string; nodes: { target: string[] }[] }[] }> };
-          }
-        ).axe;
+        const axe = window.axe;
+        if (!axe) throw new Error('axe-core did not load');
         const r = await axe.run(document, { runOnly: { type: 'tag', values: tags }, resultTypes: ['violations'] });
         return r.violations.map((v) => ({
           rule: v.id,

@@ -7,13 +7,13 @@ import { and, eq } from 'drizzle-orm';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { supergameDraws } from '#app/lib/draws';
-import { designSchema } from '#app/lib/design';
+import { type DesignInput, designSchema } from '#app/lib/design';
 import { sessions } from '#drizzle/schema';
 import type { ParticipantView } from '#realtime/engine/types';
-import { launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
-import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, openSession, type TestSocket } from '#tests/helpers/live';
+import { contextAs, launch, pageErrors, PHONE } from '#tests/helpers/browser';
+import { closeTestDb, testDb } from '#tests/helpers/db';
+import { type Client, signIn } from '#tests/helpers/http';
+import { classOf, closeSockets, connect, join, type TestSocket } from '#tests/helpers/live';
 
 const PROJECTOR = { viewport: { width: 1920, height: 1080 } };
 
@@ -33,9 +33,7 @@ async function shot(page: Page, name: string) {
 }
 
 async function screenPage(client: Client, sessionId: number, size: typeof PROJECTOR | typeof PHONE): Promise<Page> {
-  const ctx = await newContext(browser, size);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
-  const page = await ctx.newPage();
+  const page = await (await contextAs(browser, client, size)).newPage();
   await page.goto(`/screen/${sessionId}`);
   return page;
 }
@@ -66,21 +64,9 @@ const overflows = (page: Page) =>
     y: document.documentElement.scrollHeight > window.innerHeight,
   }));
 
-async function classOf(n: number, design: Parameters<typeof createDesign>[2], seed: number) {
-  const instructorEmail = uniqueEmail('bs-inst');
-  const instructorId = await createUser(instructorEmail, 'Instructor');
-  const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`bs-p${i}`));
-  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Lecture hall', [
-    { userId: instructorId, role: 'instructor' },
-    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
-  ]);
-  const designId = await createDesign(courseId, instructorId, design);
-  const instructor = await signIn(instructorEmail);
-  const { sessionId, code } = await openSession(instructor, courseId, designId, { seed: String(seed) });
-  const players = await Promise.all(playerEmails.map((e) => signIn(e)));
-  return { sessionId, code, instructor, players };
-}
+/** This file's class: a course called Lecture hall, a session opened with `seed`; the phones join in phones(). */
+const hallClass = (n: number, design: Partial<DesignInput>, seed: number) =>
+  classOf(n, { design, open: { seed: String(seed) }, join: false, tag: 'bs', title: 'Lecture hall' });
 
 /** Phones over sockets, each with the latest view it was sent. */
 async function phones(players: Client[], code: string, sessionId: number) {
@@ -120,7 +106,7 @@ describe('the big screen on a 1920×1080 projector', () => {
     let seed = 1;
     while (!(supergameDraws(seed, delta, 1).length >= 2 && supergameDraws(seed, delta, 1).length <= 4)) seed++;
     const sg1 = supergameDraws(seed, delta, 1);
-    const { sessionId, code, instructor, players } = await classOf(4, { supergames: 3, delta, roundSeconds: 120 }, seed);
+    const { sessionId, code, instructor, players } = await hallClass(4, { supergames: 3, delta, roundSeconds: 120 }, seed);
     const staff = await connect(instructor.cookieHeader());
     const control = async (command: 'start' | 'pause' | 'resume' | 'end-now') =>
       expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command })).ok).toBe(true);
@@ -210,7 +196,7 @@ describe('the big screen on a 1920×1080 projector', () => {
   });
 
   it('cancelled: a plain slide that says so, without the code', async () => {
-    const { sessionId, code, instructor } = await classOf(0, { supergames: 2 }, 11);
+    const { sessionId, code, instructor } = await hallClass(0, { supergames: 2 }, 11);
     const page = await screenPage(instructor, sessionId, PROJECTOR);
     expect(await page.getByTestId('big-join-code').textContent()).toBe(code);
     const staff = await connect(instructor.cookieHeader());

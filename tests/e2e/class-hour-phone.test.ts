@@ -2,10 +2,11 @@
 // and the countdown at the start of a round.
 import type { Browser, BrowserContext, Page, Route } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
-import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
+import type { DesignInput } from '#app/lib/design';
+import { contextAs, launch, pageErrors, PHONE } from '#tests/helpers/browser';
+import { closeTestDb } from '#tests/helpers/db';
+import { type Client } from '#tests/helpers/http';
+import { classOf, closeSockets, connect, join } from '#tests/helpers/live';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -17,26 +18,13 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-/** A course with an instructor and `n` participants, all signed in over HTTP. */
-async function classOf(n: number, design: Parameters<typeof createDesign>[2]) {
-  const emails = { instructor: uniqueEmail('ch-inst'), players: Array.from({ length: n }, (_, i) => uniqueEmail(`ch-p${i}`)) };
-  const instructorId = await createUser(emails.instructor, 'Instructor');
-  const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));
-  const courseId = await createCourse('Class hour', [
-    { userId: instructorId, role: 'instructor' },
-    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
-  ]);
-  const designId = await createDesign(courseId, instructorId, design);
-  const instructor = await signIn(emails.instructor);
-  const players = await Promise.all(emails.players.map((e) => signIn(e)));
-  const { sessionId, code } = await openSession(instructor, courseId, designId);
-  return { courseId, sessionId, code, instructor, players };
-}
+/** This file's class: named participants, signed in but not joined (the phones join in the browser). */
+const hourClass = (n: number, design: Partial<DesignInput>) =>
+  classOf(n, { design, join: false, tag: 'ch', title: 'Class hour', playerName: (i) => `Player ${i}` });
 
 /** A phone carrying a participant's sign-in cookie. */
 async function phoneOf(client: Client): Promise<{ ctx: BrowserContext; page: Page }> {
-  const ctx = await newContext(browser, PHONE);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  const ctx = await contextAs(browser, client, PHONE);
   return { ctx, page: await ctx.newPage() };
 }
 
@@ -60,7 +48,7 @@ async function hydrated(page: Page) {
 
 describe('the class hour on a phone', () => {
   it('keeps a consent tick made before the page has hydrated', async () => {
-    const { code, players } = await classOf(1, { consent: true });
+    const { code, players } = await hourClass(1, { consent: true });
     const { page } = await phoneOf(players[0]);
     const release = await holdScripts(page);
     await page.goto(`/join/${code}`, { waitUntil: 'domcontentloaded' });
@@ -88,7 +76,7 @@ describe('the class hour on a phone', () => {
   });
 
   it('joins with the consent tick when JavaScript is off', async () => {
-    const { code, players } = await classOf(1, { consent: true });
+    const { code, players } = await hourClass(1, { consent: true });
     const ctx = await browser.newContext({ ...PHONE, javaScriptEnabled: false, baseURL: process.env.PARLEY_TEST_URL });
     await ctx.addCookies([...players[0].cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
     const page = await ctx.newPage();
@@ -100,7 +88,7 @@ describe('the class hour on a phone', () => {
   });
 
   it('shows no more seconds than the round has when a 30 s round opens', async () => {
-    const { sessionId, code, instructor, players } = await classOf(2, { roundSeconds: 30, supergames: 1, delta: 0.5 });
+    const { sessionId, code, instructor, players } = await hourClass(2, { roundSeconds: 30, supergames: 1, delta: 0.5 });
     for (const p of players) await join(p, code);
     const { page } = await phoneOf(players[0]);
     // A slow phone: the page's script arrives two seconds after the page was made on the server.

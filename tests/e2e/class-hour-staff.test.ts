@@ -2,10 +2,10 @@
 // of a finished session, cancelling an opened session and the lobby's actions.
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
-import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
+import { launch, newContext, pageAs, pageErrors, PHONE } from '#tests/helpers/browser';
+import { closeTestDb } from '#tests/helpers/db';
+import { type Client } from '#tests/helpers/http';
+import { classOf, closeSockets, connect } from '#tests/helpers/live';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -17,36 +17,17 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-async function classOf(n: number) {
-  const instructorEmail = uniqueEmail('chs-inst');
-  const instructorId = await createUser(instructorEmail, 'Instructor');
-  const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`chs-p${i}`));
-  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Class hour', [
-    { userId: instructorId, role: 'instructor' },
-    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
-  ]);
-  const designId = await createDesign(courseId, instructorId, { supergames: 3, delta: 0.9, roundSeconds: 60 });
-  const instructor = await signIn(instructorEmail);
-  const { sessionId, code } = await openSession(instructor, courseId, designId);
-  const players = await Promise.all(playerEmails.map((e) => signIn(e)));
-  for (const p of players) await join(p, code);
-  return { courseId, sessionId, code, instructor, players };
-}
+const hourClass = (n: number) => classOf(n, { design: { supergames: 3, delta: 0.9, roundSeconds: 60 }, tag: 'chs', title: 'Class hour' });
 
 async function staffPage(client: Client, path: string): Promise<Page> {
-  const ctx = await newContext(browser, DESKTOP);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
-  const page = await ctx.newPage();
-  page.on('dialog', (d) => void d.accept());
-  await page.goto(path);
+  const page = await pageAs(browser, client, path);
   await expect.poll(async () => /\bLive\b/.test(await page.evaluate(() => document.body.innerText))).toBe(true);
   return page;
 }
 
 describe('the class hour, staff pages', () => {
   it("the Conductor shows each command's own result, and none once the session has moved on", async () => {
-    const { courseId, sessionId, instructor } = await classOf(2);
+    const { courseId, sessionId, instructor } = await hourClass(2);
     const page = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}`);
     const status = page.getByTestId('session-status');
 
@@ -69,7 +50,7 @@ describe('the class hour, staff pages', () => {
   });
 
   it('the Floor of a completed session offers no Nudge and no Hand to computer', async () => {
-    const { courseId, sessionId, instructor } = await classOf(2);
+    const { courseId, sessionId, instructor } = await hourClass(2);
     const staff = await connect(instructor.cookieHeader());
     expect((await staff.timeout(8000).emitWithAck('session:control', { sessionId, command: 'start' })).ok).toBe(true);
     const page = await staffPage(instructor, `/courses/${courseId}/sessions/${sessionId}/floor`);
@@ -84,7 +65,7 @@ describe('the class hour, staff pages', () => {
   });
 
   it('an opened session can be cancelled before the start: the code dies and the lobby is told; a lobby participant can be removed', async () => {
-    const { courseId, sessionId, code, instructor, players } = await classOf(3);
+    const { courseId, sessionId, code, instructor, players } = await hourClass(3);
     const phones: Page[] = [];
     for (const p of players) {
       const ctx = await newContext(browser, PHONE);

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, pageErrors, PHONE, SIZES, signedInPage } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
 import { insertSyntheticSession } from '#tests/helpers/synthetic-session';
@@ -21,9 +21,7 @@ afterAll(async () => {
 
 describe('Debrief, in Chromium', () => {
   it('the demo’s two completed sessions side by side, an estimation with a bootstrap run from the page, then projector mode', async () => {
-    const page = await (await newContext(browser, DESKTOP)).newPage();
-    await page.goto('/sign-in');
-    await signInInBrowser(page, 'm.achterberg@halvorsen.example');
+    const page = await signedInPage(browser, 'm.achterberg@halvorsen.example', DESKTOP);
     await page.getByRole('link', { name: 'ECON 214 Strategy and Markets' }).click();
     await page.getByRole('link', { name: 'Debrief' }).click();
     await page.getByRole('checkbox', { name: /Short horizon/ }).check();
@@ -71,9 +69,7 @@ describe('Debrief, in Chromium', () => {
       [DESKTOP, 'm.achterberg@halvorsen.example'],
       [PHONE, 'r.okafor@halvorsen.example'],
     ] as const) {
-      const page = await (await newContext(browser, size)).newPage();
-      await page.goto('/sign-in');
-      await signInInBrowser(page, email);
+      const page = await signedInPage(browser, email, size);
       // the demo course is course 1 (seeded first)
       await page.goto('/courses/1/debrief');
       await page.getByRole('link', { name: /Short horizon/ }).click();

@@ -5,7 +5,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { designSchema } from '#app/lib/design';
 import { designs, sessions } from '#drizzle/schema';
-import { DESKTOP, launch, newContext, pageErrors, SIZES, signedInPage, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, pageErrors, SIZES, signedInPage } from '#tests/helpers/browser';
 import { closeTestDb, createCourse, createCourseCreator, createUser, testDb } from '#tests/helpers/db';
 import { uniqueEmail } from '#tests/helpers/http';
 
@@ -27,11 +27,9 @@ const verdict = (page: Page, condition: string) =>
 
 describe('design editor, in Chromium', () => {
   it('an instructor creates a design, sees verdicts flip at the thresholds, builds and saves an automaton', async () => {
-    const page = await (await newContext(browser, DESKTOP)).newPage();
     const designer = uniqueEmail('designer');
     await createCourseCreator(designer);
-    await page.goto('/sign-in');
-    await signInInBrowser(page, designer);
+    const page = await signedInPage(browser, designer, DESKTOP);
     await page.goto('/courses/new');
     await page.getByLabel('Title').fill('Repeated games lab');
     await page.getByRole('button', { name: 'Create course' }).click();

@@ -1,6 +1,6 @@
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DESKTOP, launch, newContext, pageErrors, PHONE, signInInBrowser } from '#tests/helpers/browser';
+import { DESKTOP, launch, newContext, pageErrors, PHONE, signedInPage, signInInBrowser } from '#tests/helpers/browser';
 import { uniqueEmail } from '#tests/helpers/http';
 import { waitForMail } from '#tests/helpers/mail';
 
@@ -63,9 +63,7 @@ describe('foundation, in Chromium', () => {
   });
 
   it('a participant signs in on a 390×844 phone and gets 403 on staff pages', async () => {
-    const phone = await (await newContext(browser, PHONE)).newPage();
-    await phone.goto('/sign-in');
-    await signInInBrowser(phone, 'student01@halvorsen.example');
+    const phone = await signedInPage(browser, 'student01@halvorsen.example', PHONE);
     await expect.poll(() => phone.getByRole('heading', { name: 'Your courses' }).isVisible()).toBe(true);
     await expect.poll(() => phone.getByText('ECON 214 Strategy and Markets').isVisible()).toBe(true);
     // One thumb: the page does not scroll sideways.

@@ -45,7 +45,11 @@ describe('keyboard and screen readers', () => {
   it('the Conductor starts the session from the keyboard and its status is announced; the phone chooses from the keyboard and hears the round', async () => {
     // Seed 2: the first draw is 14, so supergame 1 has a round 2 (with a random seed it ends after
     // round 1 one time in ten at δ = 0.9, and round 2 never comes)
-    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'kb', { seed: '2' });
+    const { courseId, sessionId, instructor, players } = await classOf(2, {
+      design: { supergames: 2, delta: 0.9, roundSeconds: 120 },
+      tag: 'kb',
+      open: { seed: '2' },
+    });
     const [me, other] = players;
     const otherSocket = await connect(other.cookieHeader());
     expect((await otherSocket.emitWithAck('session:watch', { sessionId, as: 'participant' })).ok).toBe(true);

@@ -6,10 +6,11 @@ import { and, eq } from 'drizzle-orm';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { choices, sessionParticipants } from '#drizzle/schema';
-import { launch, newContext, pageErrors, PHONE } from '#tests/helpers/browser';
-import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, nextView, openSession } from '#tests/helpers/live';
+import { contextAs, launch, pageErrors, PHONE } from '#tests/helpers/browser';
+import type { DesignInput } from '#app/lib/design';
+import { closeTestDb, testDb } from '#tests/helpers/db';
+import type { Client } from '#tests/helpers/http';
+import { classOf, closeSockets, connect, nextView } from '#tests/helpers/live';
 
 // Screenshots to look at after a run (not compared by the test).
 const SHOTS = path.resolve('.data/test/screenshots');
@@ -25,27 +26,13 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-/** A course with an instructor and `n` participants, all signed in over HTTP and joined. */
-async function classOf(n: number, design: Parameters<typeof createDesign>[2], open: Record<string, string> = {}) {
-  const emails = { instructor: uniqueEmail('ob-inst'), players: Array.from({ length: n }, (_, i) => uniqueEmail(`ob-p${i}`)) };
-  const instructorId = await createUser(emails.instructor, 'Instructor');
-  const playerIds = await Promise.all(emails.players.map((e, i) => createUser(e, `Player ${i}`)));
-  const courseId = await createCourse('Outbox', [
-    { userId: instructorId, role: 'instructor' },
-    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
-  ]);
-  const designId = await createDesign(courseId, instructorId, design);
-  const instructor = await signIn(emails.instructor);
-  const players = await Promise.all(emails.players.map((e) => signIn(e)));
-  const { sessionId, code } = await openSession(instructor, courseId, designId, open);
-  for (const p of players) await join(p, code);
-  return { sessionId, instructor, players, playerIds };
-}
+/** This file's class: a course called Outbox whose participants have names, all joined. */
+const outboxClass = (n: number, design: Partial<DesignInput>, open: Record<string, string> = {}) =>
+  classOf(n, { design, open, tag: 'ob', title: 'Outbox', playerName: (i) => `Player ${i}` });
 
 /** A phone carrying a participant's sign-in cookie. */
 async function phoneOf(client: Client): Promise<{ ctx: BrowserContext; page: Page }> {
-  const ctx = await newContext(browser, PHONE);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  const ctx = await contextAs(browser, client, PHONE);
   return { ctx, page: await ctx.newPage() };
 }
 
@@ -62,7 +49,7 @@ async function participantKey(sessionId: number, userId: number) {
 describe('the phone during play', () => {
   it('keeps a tap made offline and sends it when the network is back; the round resolves with it', async () => {
     // Seed 2 draws 14 after round 1 (≤ 50): the supergame goes on, so the phone shows round 1's result.
-    const { sessionId, instructor, players, playerIds } = await classOf(
+    const { sessionId, instructor, players, playerIds } = await outboxClass(
       2,
       { roundSeconds: 40, supergames: 1, delta: 0.5, labels: { C: 'Cooperate', D: 'Defect' } },
       { seed: '2' },
@@ -128,7 +115,7 @@ describe('the phone during play', () => {
   });
 
   it('tells a partner in plain words what the computer that took the other seat does, and the handed-over participant that the supergame goes on', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+    const { sessionId, instructor, players, playerIds } = await outboxClass(2, {
       roundSeconds: 60,
       supergames: 2,
       delta: 0.9,
@@ -178,7 +165,7 @@ describe('the phone during play', () => {
   });
 
   it('holds a tap while the server has lost its database, and sends it again after an "unavailable" answer', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+    const { sessionId, instructor, players, playerIds } = await outboxClass(2, {
       roundSeconds: 60,
       supergames: 1,
       delta: 0.5,
@@ -242,7 +229,7 @@ describe('the phone during play', () => {
   });
 
   it('keeps a tap that could not be sent across a reload of the page, and sends it after', async () => {
-    const { sessionId, instructor, players, playerIds } = await classOf(2, {
+    const { sessionId, instructor, players, playerIds } = await outboxClass(2, {
       roundSeconds: 60,
       supergames: 1,
       delta: 0.5,
@@ -285,7 +272,7 @@ describe('the phone during play', () => {
   it('says plainly when the round closed before a kept tap could be sent, and what the timeout rule chose', async () => {
     // Seed 2 draws 14 after round 1 (≤ 50): the supergame goes on, round 1 stays in the history.
     const design = { roundSeconds: 8, supergames: 1, delta: 0.5, timeout: 'defect' as const, labels: { C: 'Cooperate', D: 'Defect' } };
-    const { sessionId, instructor, players, playerIds } = await classOf(2, design, { seed: '2' });
+    const { sessionId, instructor, players, playerIds } = await outboxClass(2, design, { seed: '2' });
     const { page } = await phoneOf(players[0]);
     const sent: string[] = [];
     let toPage: ((frame: string) => void) | null = null;

@@ -18,11 +18,11 @@ afterAll(async () => {
 /** Records every CSP violation the page reports, from the first script on. */
 async function recordViolations(page: Page) {
   await page.addInitScript(() => {
-    const w = window as unknown as { __violations: string[] };
-    w.__violations = [];
-    document.addEventListener('securitypolicyviolation', (e) => w.__violations.push(`${e.violatedDirective} ${e.blockedURI}`));
+    const violations: string[] = [];
+    window.__violations = violations;
+    document.addEventListener('securitypolicyviolation', (e) => violations.push(`${e.violatedDirective} ${e.blockedURI}`));
   });
-  return () => page.evaluate(() => (window as unknown as { __violations: string[] }).__violations);
+  return () => page.evaluate(() => window.__violations);
 }
 
 describe('Content-Security-Policy, in Chromium', () => {

@@ -96,7 +96,10 @@ describe('the Debrief', () => {
 
 describe('the Floor', () => {
   it('says "Pair 1", puts each seat’s buttons on its own row, and counts "Waiting" from the pair’s first choice', async () => {
-    const { courseId, sessionId, instructor, players } = await classOf(2, {}, 'floor');
+    const { courseId, sessionId, instructor, players } = await classOf(2, {
+      design: { supergames: 2, delta: 0.9, roundSeconds: 120 },
+      tag: 'floor',
+    });
     const sockets = [];
     for (const p of players) {
       const s = await connect(p.cookieHeader());
@@ -145,6 +148,16 @@ describe('the Floor', () => {
       expect([who, Math.abs((await centreY(seat)) - (await centreY(nudge))) <= 6]).toEqual([who, true]);
     }
     await page.screenshot({ path: path.join(SHOTS, 'floor-desktop.png'), fullPage: true });
+
+    // The names behind the pseudonyms, on demand (the session-names route, through a fetcher).
+    const named = () => page.getByTestId('seat-name').filter({ hasText: '@' }).count();
+    expect(await named()).toBe(0);
+    await page.getByRole('button', { name: 'Show names' }).click();
+    await expect.poll(named).toBe(2);
+    expect((await page.getByTestId('seat-name').first().textContent())?.trim()).toMatch(/^P-00[12] · floor-p[01]-.+@tests\.parley\.test$/);
+    await page.screenshot({ path: path.join(SHOTS, 'floor-names-desktop.png'), fullPage: true });
+    await page.getByRole('button', { name: 'Hide names' }).click();
+    await expect.poll(named).toBe(0);
     expect(pageErrors).toEqual([]);
   });
 });

@@ -68,10 +68,21 @@ export async function signInInBrowser(page: Page, email: string) {
   await expect.poll(() => page.url()).not.toContain('/sign-in');
 }
 
+/** A context at this size carrying a test client's sign-in cookies: that client's browser (none: signed out). */
+export async function contextAs(
+  browser: Browser,
+  client: Client | null,
+  size: typeof PHONE | typeof DESKTOP = DESKTOP,
+  extra: BrowserContextOptions = {},
+): Promise<BrowserContext> {
+  const ctx = await newContext(browser, size, extra);
+  if (client) await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  return ctx;
+}
+
 /** A new page at this size carrying a test client's sign-in cookies, opened at `url`. Dialogs are accepted. */
 export async function pageAs(browser: Browser, client: Client, url: string, size: typeof PHONE | typeof DESKTOP = DESKTOP): Promise<Page> {
-  const ctx = await newContext(browser, size);
-  await ctx.addCookies([...client.cookies].map(([name, value]) => ({ name, value, url: process.env.PARLEY_TEST_URL! })));
+  const ctx = await contextAs(browser, client, size);
   const page = await ctx.newPage();
   page.on('dialog', (d) => void d.accept());
   await page.goto(url);

@@ -102,20 +102,48 @@ export function nextView(s: TestSocket, test: (v: ParticipantView) => boolean, m
   });
 }
 
-/** A course with an instructor and `n` participants, a design and a session opened and joined by all. */
-export async function classOf(n: number, over: Partial<DesignInput> = {}, tag = 'class', sessionFields: Record<string, string> = {}) {
+export interface CourseSetUp {
+  /** the design's fields over createDesign's defaults */
+  design?: Partial<DesignInput>;
+  /** begins every e-mail address made (which test made it) */
+  tag?: string;
+  /** the course's title */
+  title?: string;
+  /** the participants' names (none by default) */
+  playerName?: (i: number) => string;
+}
+
+/**
+ * The set-up most live tests start from: a course with an instructor and `n` participants (users
+ * made, each signed in over HTTP through the real flow) and one design.
+ */
+export async function courseOf(n: number, o: CourseSetUp = {}) {
+  const tag = o.tag ?? 'class';
   const instructorEmail = uniqueEmail(`${tag}-inst`);
   const instructorId = await createUser(instructorEmail, 'Instructor');
   const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`${tag}-p${i}`));
-  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse(`Class ${tag}`, [
+  const playerIds = await Promise.all(playerEmails.map((e, i) => createUser(e, o.playerName?.(i) ?? null)));
+  const courseId = await createCourse(o.title ?? `Class ${tag}`, [
     { userId: instructorId, role: 'instructor' },
     ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
   ]);
-  const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.9, roundSeconds: 120, ...over });
+  const designId = await createDesign(courseId, instructorId, o.design);
   const instructor = await signIn(instructorEmail);
-  const { sessionId, code } = await openSession(instructor, courseId, designId, sessionFields);
   const players = await Promise.all(playerEmails.map((e) => signIn(e)));
-  for (const p of players) await join(p, code);
-  return { courseId, designId, sessionId, code, instructor, players };
+  return { courseId, designId, instructor, instructorId, players, playerIds, playerEmails };
+}
+
+export interface ClassSetUp extends CourseSetUp {
+  /** fields of the form that opens the session (seed, …) */
+  open?: Record<string, string>;
+  /** false: the participants do not join (the test joins them its own way) */
+  join?: boolean;
+}
+
+/** courseOf, then a session opened through the real page action and joined by every participant. */
+export async function classOf(n: number, o: ClassSetUp = {}) {
+  const course = await courseOf(n, o);
+  const { sessionId, code } = await openSession(course.instructor, course.courseId, course.designId, o.open);
+  if (o.join !== false) for (const p of course.players) await join(p, code);
+  return { ...course, sessionId, code };
 }

@@ -1,28 +1,16 @@
 // The class hour as an instructor runs it (issue 12): what the staff can still do to a finished
 // session, what the seed field accepts, and a mistyped join code caught before any sign-in.
 import { afterAll, describe, expect, it } from 'vitest';
-import { closeTestDb, createCourse, createUser } from '#tests/helpers/db';
-import { Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
+import { closeTestDb } from '#tests/helpers/db';
+import { Client, pageText } from '#tests/helpers/http';
+import { closeSockets, connect, courseOf, join, openSession } from '#tests/helpers/live';
 
 afterAll(async () => {
   closeSockets();
   await closeTestDb();
 });
 
-async function classOf(n: number) {
-  const instructorEmail = uniqueEmail('chi-inst');
-  const instructorId = await createUser(instructorEmail, 'Instructor');
-  const playerEmails = Array.from({ length: n }, (_, i) => uniqueEmail(`chi-p${i}`));
-  const playerIds = await Promise.all(playerEmails.map((e) => createUser(e)));
-  const courseId = await createCourse('Class hour', [
-    { userId: instructorId, role: 'instructor' },
-    ...playerIds.map((userId) => ({ userId, role: 'participant' as const })),
-  ]);
-  const designId = await createDesign(courseId, instructorId);
-  const instructor = await signIn(instructorEmail);
-  return { courseId, designId, instructor, players: await Promise.all(playerEmails.map((e) => signIn(e))), playerIds };
-}
+const classOf = (n: number) => courseOf(n, { tag: 'chi', title: 'Class hour' });
 
 describe('the class hour, staff side', () => {
   it('refuses to nudge a participant of a completed session', async () => {

@@ -4,6 +4,7 @@
 import { type ChildProcess, spawn, spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { alive } from '#tests/helpers/processes';
 
 const portOf = (url: string | undefined, fallback: number) => (url ? Number(new URL(url.replace(/^mysql:/, 'http:')).port) : fallback);
 const ports = {
@@ -45,14 +46,6 @@ function listener(port: string): number | null {
   return m ? Number(m[1]) : null;
 }
 
-const alive = (pid: number) => {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-};
 const healthy = async () => {
   try {
     return (await fetch(`${base}/healthz`, { signal: AbortSignal.timeout(2000) })).ok;

@@ -5,7 +5,11 @@ import { latestSignInCode, mailTo } from '#tests/helpers/mail';
 
 /** A Client whose requests leave from another loopback address (another "network"). */
 export class ClientFrom extends Client {
-  constructor(readonly localAddress: string) {
+  /** `headers`: sent with every request, as an attacker adds any header they like. */
+  constructor(
+    readonly localAddress: string,
+    readonly headers: Record<string, string> = {},
+  ) {
     super();
   }
 
@@ -18,6 +22,7 @@ export class ClientFrom extends Client {
           method,
           localAddress: this.localAddress,
           headers: {
+            ...this.headers,
             cookie: this.cookieHeader(),
             ...(body === undefined
               ? {}

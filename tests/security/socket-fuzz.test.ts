@@ -239,7 +239,7 @@ describe('malformed socket payloads', () => {
   });
 
   it('an extra argument before the ack is answered bad-payload and changes nothing; an ack alone reads as an empty payload', async () => {
-    const { sessionId, instructor, players } = await classOf(2, { supergames: 1, roundSeconds: 600 }, 'fuzz-extra');
+    const { sessionId, instructor, players } = await classOf(2, { design: { supergames: 1, roundSeconds: 600 }, tag: 'fuzz-extra' });
     const staff = untyped(await connect(instructor.cookieHeader()));
     const phone = untyped(await connect(players[0].cookieHeader()));
     expect(await phone.timeout(5000).emitWithAck('session:watch', { sessionId, as: 'participant' })).toMatchObject({ ok: true });

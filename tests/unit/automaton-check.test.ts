@@ -34,7 +34,7 @@ describe('validateAutomaton', () => {
         { action: 'X', next: { cc: 0, cd: 2, dc: 0.5 } },
         { action: 'D', next: { cc: 0, cd: 0, dc: 0, dd: -1 } },
       ],
-    } as unknown as Automaton;
+    };
     expect(validateAutomaton(a)).toEqual([
       { path: 'states[0].action', message: 'State 1 must play C or D (got "X").' },
       { path: 'states[0].next.cd', message: "State 1's transition after CD (own C, partner D) must point to a state 1–2 (got 2)." },

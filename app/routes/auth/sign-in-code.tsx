@@ -3,11 +3,10 @@ import { z } from 'zod';
 import type { Route } from './+types/sign-in-code';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice, TextField, EmailAddress } from '#app/components/ui';
-import { clientIp, getUser } from '#app/utils/auth.server';
+import { getUser } from '#app/utils/auth.server';
 import { formatWait } from '#app/utils/format';
 import { strategyRequest } from '#app/utils/http.server';
 import {
-  authenticator,
   checkCodeRequestLimits,
   CODE_MINUTES,
   codeState,
@@ -16,6 +15,7 @@ import {
   pendingCode,
   refusalMessage,
   strategyFailed,
+  verifyCode,
 } from '#app/utils/sign-in.server';
 
 const CodeForm = z.object({
@@ -35,12 +35,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { email: pending.email, error, minutes: CODE_MINUTES };
 }
 
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.clone().formData();
   const pending = pendingCode(request);
   const email = pending.email;
   if (!email) throw redirect('/sign-in');
-  const ip = clientIp(request);
+  const ip = context.clientIp;
   const refuse = (status: number, refused: Refused) =>
     data(
       { errors: {} as { code?: string }, refused },
@@ -67,13 +67,12 @@ export async function action({ request }: Route.ActionArgs) {
       retryAfterSeconds: null,
     });
   try {
-    await authenticator().authenticate('TOTP', strategyRequest(request, { code: parsed.data.code }));
+    return await verifyCode(strategyRequest(request, { code: parsed.data.code }), pending, { request, ip });
   } catch (thrown) {
     // The strategy answers a wrong or expired code with a redirect back to this page.
     if (strategyFailed(thrown)) await countWrongTry(pending, ip);
     throw thrown;
   }
-  throw new Error('the sign-in strategy returned without a redirect');
 }
 
 export default function SignInCode({ loaderData, actionData }: Route.ComponentProps) {

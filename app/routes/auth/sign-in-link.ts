@@ -1,21 +1,19 @@
 import { redirect } from 'react-router';
 import type { Route } from './+types/sign-in-link';
-import { clientIp } from '#app/utils/auth.server';
-import { authenticator, codeState, countWrongTry, pendingCode, strategyFailed } from '#app/utils/sign-in.server';
+import { codeState, countWrongTry, pendingCode, strategyFailed, verifyCode } from '#app/utils/sign-in.server';
 
 // The magic link in the sign-in e-mail: the strategy checks it (same device: it needs the
 // pending-code cookie), and Parley's record of the code decides whether it may sign in
 // (app/utils/sign-in.server.ts); then on to the app, or back to the code page with a message.
-export async function loader({ request }: Route.LoaderArgs) {
+export async function loader({ request, context }: Route.LoaderArgs) {
   const pending = pendingCode(request);
   if (!pending.email) throw redirect('/sign-in');
   const state = await codeState(pending);
   if (!state.ok) throw redirect(`/sign-in/code?refused=${state.reason}`);
   try {
-    await authenticator().authenticate('TOTP', request);
+    return await verifyCode(request, pending, { request, ip: context.clientIp });
   } catch (thrown) {
-    if (strategyFailed(thrown)) await countWrongTry(pending, clientIp(request));
+    if (strategyFailed(thrown)) await countWrongTry(pending, context.clientIp);
     throw thrown;
   }
-  throw new Error('the sign-in strategy returned without a redirect');
 }

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Route } from './+types/sign-in';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, Notice, TextField } from '#app/components/ui';
-import { authSessionStorage, clientIp, getAuthSession, getUser, safeRedirect } from '#app/utils/auth.server';
+import { authSessionStorage, getAuthSession, getUser, safeRedirect } from '#app/utils/auth.server';
 import { checkCodeRequestLimits, issueCode } from '#app/utils/sign-in.server';
 import { formatWait } from '#app/utils/format';
 import { strategyRequest, withCookie } from '#app/utils/http.server';
@@ -20,7 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { redirectTo };
 }
 
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.clone().formData();
   const parsed = SignInForm.safeParse({ email: String(form.get('email') ?? '').trim(), redirectTo: form.get('redirectTo') ?? undefined });
   if (!parsed.success) {
@@ -30,7 +30,7 @@ export async function action({ request }: Route.ActionArgs) {
     );
   }
   const email = parsed.data.email.toLowerCase();
-  const ip = clientIp(request);
+  const ip = context.clientIp;
   const limited = await checkCodeRequestLimits(email, ip);
   if (limited)
     return data(

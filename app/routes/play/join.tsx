@@ -4,7 +4,6 @@ import type { Route } from './+types/join';
 import { ParticipantShell } from '#app/components/shells';
 import { Button, TextField } from '#app/components/ui';
 import { findByJoinCode } from '#app/models/session.server';
-import { clientIp } from '#app/utils/auth.server';
 import { joinGuessWait, recordJoinMiss } from '#app/utils/join-guesses.server';
 
 const JoinCode = z
@@ -15,14 +14,14 @@ const JoinCode = z
 /** Sessions a phone can still join (or rejoin); any other code gets the same answer as a made-up one. */
 const JOINABLE = new Set(['open', 'running', 'paused']);
 
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.formData();
   const typed = String(form.get('code') ?? '');
   const parsed = JoinCode.safeParse(typed);
   if (!parsed.success) return data({ error: parsed.error.issues[0].message, code: typed }, { status: 400 });
   // Check the code before anyone types an e-mail address and waits for a sign-in code: a typo
   // should cost a second, not a whole sign-in. One answer only: open, or not.
-  const ip = clientIp(request);
+  const ip = context.clientIp;
   const wait = joinGuessWait(ip);
   if (wait !== null) {
     const minutes = Math.ceil(wait / 60);

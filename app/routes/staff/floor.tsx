@@ -1,5 +1,7 @@
 import { useEffect, useState } from 'react';
+import { useFetcher } from 'react-router';
 import type { Route } from './+types/floor';
+import type { loader as namesLoader } from './session-names';
 import { useSessionView } from '#app/components/live/use-session';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, Notice } from '#app/components/ui';
@@ -19,12 +21,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { course, role, session: { id: session.id, treatment: session.treatment }, fallback, serverNow: Date.now() };
 }
 
-type Names = Record<string, { name: string | null; email: string }>;
-
 export default function Floor({ loaderData }: Route.ComponentProps) {
   const { course, role, session, fallback } = loaderData;
   const { view: floor, connected, error, ask } = useSessionView(session.id, 'floor', null);
-  const [names, setNames] = useState<Names | null>(null);
+  // Names behind the pseudonyms, loaded on demand (the session-names resource route).
+  const namesFetcher = useFetcher<typeof namesLoader>();
+  const [namesShown, setNamesShown] = useState(false);
+  const names = namesShown && namesFetcher.data && 'names' in namesFetcher.data ? namesFetcher.data.names : null;
   const [strategy, setStrategy] = useState(fallback);
   const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
   const [, setTick] = useState(0);
@@ -37,10 +40,10 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
   // Nudges and hand-overs mean something only while rounds are being played.
   const live = floor?.status === 'running' || floor?.status === 'paused';
 
-  const showNames = async () => {
-    if (names) return setNames(null);
-    const res = await fetch(`/courses/${course.id}/sessions/${session.id}/names`);
-    if (res.ok) setNames(((await res.json()) as { names: Names }).names);
+  const showNames = () => {
+    if (names) return setNamesShown(false);
+    setNamesShown(true);
+    void namesFetcher.load(`/courses/${course.id}/sessions/${session.id}/names`);
   };
   const act = async (participantId: string, action: 'nudge' | 'hand-to-computer' | 'remove', label: string) => {
     if (action !== 'nudge' && !window.confirm(`${label}? The participant is told.`)) return;

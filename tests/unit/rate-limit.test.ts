@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { EVENT_LIMITS, EventLimiter, TokenBucket } from './rate-limit';
+import { EVENT_LIMITS, EventLimiter, TokenBucket } from '#realtime/rate-limit';
 
 describe('TokenBucket', () => {
   it('allows the burst at once, then the steady rate', () => {

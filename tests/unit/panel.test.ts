@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import type { Action } from './automata';
-import { buildPanel, countChoices, groupPanel, parseWindow, selectWindow, windowSupergames } from './panel';
-import type { ChoiceRow } from './panel';
+import type { Action } from '#app/lib/automata';
+import { buildPanel, countChoices, groupPanel, parseWindow, selectWindow, windowSupergames } from '#app/lib/panel';
+import type { ChoiceRow } from '#app/lib/panel';
 
 /** Rows of one pair playing `lengths[g]` rounds in supergame g + 1 of a session, all cooperating. */
 function pairRows(session: string, treatment: string, a: string, b: string, lengths: number[]): ChoiceRow[] {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { ROSTER_LIMITS } from '#app/lib/roster-csv';
 import { DATASET_LIMITS } from '#app/models/datasets.server';
-import { bodyLimitFor, PAGE_BODY_LIMIT } from './request-limits.server';
+import { bodyLimitFor, PAGE_BODY_LIMIT } from '#app/utils/request-limits.server';
 
 describe('bodyLimitFor', () => {
   it('gives pages and sign-in the small limit', () => {

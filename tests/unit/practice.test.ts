@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { libraryStrategy } from './automata';
-import { designSchema } from './design';
-import { automatonNext, playPracticeRound, PRACTICE_MAX_ROUNDS, type PracticeRound } from './practice';
+import { libraryStrategy } from '#app/lib/automata';
+import { designSchema } from '#app/lib/design';
+import { automatonNext, playPracticeRound, PRACTICE_MAX_ROUNDS, type PracticeRound } from '#app/lib/practice';
 
 const d = designSchema.parse({ payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 });
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { estimateFromCsv, parseChoiceCsv, parseColumnMap, parseStrategyList, readChoiceCsv } from './panel-csv';
+import { estimateFromCsv, parseChoiceCsv, parseColumnMap, parseStrategyList, readChoiceCsv } from '#app/lib/panel-csv';
 
 const HEADER = 'session,treatment,delta,supergame,round,pseudonym,partner,action,partner_action,payoff';
 

@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { Form, Link } from 'react-router';
-import type { Route } from './+types/debrief';
+import type { Route } from './+types/choose';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button } from '#app/components/ui';

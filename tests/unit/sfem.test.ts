@@ -1,13 +1,13 @@
 import fc from 'fast-check';
 import fmin from 'fmin';
 import { describe, expect, it } from 'vitest';
-import { STRATEGY_SETS, libraryStrategy } from './automata';
-import type { Action } from './automata';
-import { buildPanel } from './panel';
-import type { SubjectHistory } from './panel';
-import { betaOf, countsTable, estimate, gammaOf, logLikelihood, posteriors, runEm } from './sfem';
-import type { CountsTable } from './sfem';
-import { simulatePanel } from './simulate-panel';
+import { STRATEGY_SETS, libraryStrategy } from '#app/lib/automata';
+import type { Action } from '#app/lib/automata';
+import { buildPanel } from '#app/lib/panel';
+import type { SubjectHistory } from '#app/lib/panel';
+import { betaOf, countsTable, estimate, gammaOf, logLikelihood, posteriors, runEm } from '#app/lib/sfem';
+import type { CountsTable } from '#app/lib/sfem';
+import { simulatePanel } from '#app/lib/simulate-panel';
 
 const acts = (s: string) => s.split('') as Action[];
 const subject = (own: string, partner: string, id = 'P-1'): SubjectHistory => ({

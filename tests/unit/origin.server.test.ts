@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { requestOrigin } from './origin.server';
+import { requestOrigin } from '#app/utils/origin.server';
 
 const APP = 'https://parley.example.edu';
 

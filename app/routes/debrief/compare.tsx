@@ -1,5 +1,5 @@
 import { data } from 'react-router';
-import type { Route } from './+types/debrief-compare';
+import type { Route } from './+types/compare';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { ButtonLink, Notice } from '#app/components/ui';

@@ -2,7 +2,7 @@ import chi2gof from '@stdlib/stats-chi2gof';
 import fc from 'fast-check';
 import jstat from 'jstat';
 import { describe, expect, it } from 'vitest';
-import { chiSquareCdf, chiSquareSurvival, geometricLengthGof, regularizedGamma } from './gof';
+import { chiSquareCdf, chiSquareSurvival, geometricLengthGof, regularizedGamma } from '#app/lib/gof';
 
 const { jStat } = jstat;
 

@@ -1,4 +1,4 @@
-import type { Route } from './+types/debrief-session';
+import type { Route } from './+types/session';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';

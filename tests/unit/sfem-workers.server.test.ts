@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { STRATEGY_SETS, libraryStrategy } from './automata';
-import { buildPanel } from './panel';
-import { countsTable, estimate, estimateReplicates, summariseReplicates } from './sfem';
-import { bootstrapOnWorkers } from './sfem-workers.server';
-import { simulatePanel } from './simulate-panel';
+import { STRATEGY_SETS, libraryStrategy } from '#app/lib/automata';
+import { buildPanel } from '#app/lib/panel';
+import { countsTable, estimate, estimateReplicates, summariseReplicates } from '#app/lib/sfem';
+import { bootstrapOnWorkers } from '#app/lib/sfem-workers.server';
+import { simulatePanel } from '#app/lib/simulate-panel';
 
 describe('bootstrapOnWorkers', () => {
   it('spreads replicates over 2 workers in chunks, reports progress, and equals the in-thread bootstrap', async () => {

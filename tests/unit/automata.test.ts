@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { type Action, LIBRARY, libraryStrategy, prescribedActions } from './automata';
+import { type Action, LIBRARY, libraryStrategy, prescribedActions } from '#app/lib/automata';
 
 const acts = (s: string) => s.split('') as Action[];
 const matches = (id: string, own: string, partner: string) =>

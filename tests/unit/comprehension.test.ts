@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { comprehensionQuestions, gradeAnswers } from './comprehension';
-import { designSchema } from './design';
+import { comprehensionQuestions, gradeAnswers } from '#app/lib/comprehension';
+import { designSchema } from '#app/lib/design';
 
 const base = { payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 };
 

@@ -1,12 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { designSchema } from './design';
+import { designSchema } from '#app/lib/design';
 import {
   fillInstructions,
   generateInstructions,
   instructionContradictions,
   instructionProblems,
   instructionsTemplate,
-} from './instructions';
+} from '#app/lib/instructions';
 
 const base = { payoffs: { R: 40, S: 12, T: 50, P: 25 }, delta: 0.75, supergames: 10, roundSeconds: 20 };
 

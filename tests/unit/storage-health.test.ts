@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { isStorageError, StorageHealth, StorageUnavailable } from './storage-health';
+import { isStorageError, StorageHealth, StorageUnavailable } from '#realtime/storage-health';
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 

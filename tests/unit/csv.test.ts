@@ -1,6 +1,6 @@
 import Papa from 'papaparse';
 import { describe, expect, it } from 'vitest';
-import { type CsvColumn, csvLines, neutraliseCell } from './csv';
+import { type CsvColumn, csvLines, neutraliseCell } from '#app/lib/csv';
 
 // Source: OWASP, "CSV Injection" — cells beginning with = + - @ TAB (0x09) or CR (0x0D) are
 // prefixed with a single quote.
