@@ -21,7 +21,7 @@ afterAll(async () => {
 });
 
 describe('a server killed mid-round', () => {
-  it('rebuilds the session from the database, keeps every acknowledged choice, and finishes', async () => {
+  it('rebuilds the session from the database, keeps every acknowledged choice, and finishes', { timeout: 120_000 }, async () => {
     const instEmail = uniqueEmail('kill-inst');
     const instructorId = await createUser(instEmail);
     const emails = [uniqueEmail('kill-a'), uniqueEmail('kill-b')];
