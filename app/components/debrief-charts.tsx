@@ -84,6 +84,18 @@ function Patterns({ theme, count }: { theme: Theme; count: number }) {
 }
 const fillOf = (theme: Theme, i: number) => `url(#fill-${theme}-${i})`;
 
+/** The y axis of a share (0–100 %), as every share chart draws it. */
+function shareAxisProps(theme: Theme, big: boolean) {
+  return {
+    domain: [0, 1] as [number, number],
+    ticks: PCT_TICKS,
+    allowDataOverflow: true,
+    tickFormatter: (v: number) => pct(v),
+    width: big ? 80 : 52,
+    ...axisProps(theme, big),
+  };
+}
+
 function axisProps(theme: Theme, big: boolean) {
   return { tick: { fontSize: big ? 20 : 12, fill: PALETTE[theme].text }, stroke: PALETTE[theme].grid };
 }
@@ -219,14 +231,7 @@ export function CoopBySupergameChart({ sessions, theme = 'light', big = false }:
           {...axisProps(theme, big)}
           label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
         />
-        <YAxis
-          domain={[0, 1]}
-          ticks={PCT_TICKS}
-          allowDataOverflow
-          tickFormatter={(v) => pct(v)}
-          width={big ? 80 : 52}
-          {...axisProps(theme, big)}
-        />
+        <YAxis {...shareAxisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
         <Legend
           verticalAlign="top"
@@ -288,14 +293,7 @@ export function CoopByRoundChart({ sessions, theme = 'light', big = false }: Cha
           {...axisProps(theme, big)}
           label={{ value: 'round within the supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
         />
-        <YAxis
-          domain={[0, 1]}
-          ticks={PCT_TICKS}
-          allowDataOverflow
-          tickFormatter={(v) => pct(v)}
-          width={big ? 80 : 52}
-          {...axisProps(theme, big)}
-        />
+        <YAxis {...shareAxisProps(theme, big)} />
         <Tooltip
           formatter={(v, name) => (String(name).includes('supergames') ? String(v) : pct(Number(v), 1))}
           labelFormatter={(l) => `round ${l}`}
@@ -348,14 +346,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
             {...axisProps(theme, big)}
             label={{ value: 'supergame', position: 'insideBottom', offset: -12, fill: p.text, fontSize: big ? 20 : 12 }}
           />
-          <YAxis
-            domain={[0, 1]}
-            ticks={PCT_TICKS}
-            allowDataOverflow
-            tickFormatter={(v) => pct(v)}
-            width={big ? 80 : 52}
-            {...axisProps(theme, big)}
-          />
+          <YAxis {...shareAxisProps(theme, big)} />
           <Tooltip formatter={(v) => pct(Number(v), 1)} labelFormatter={(l) => `supergame ${l}`} {...tooltipProps(theme)} />
           <Legend
             verticalAlign="top"
@@ -394,14 +385,7 @@ export function OutcomesChart({ sessions, theme = 'light', big = false }: ChartP
         <Patterns theme={theme} count={sessions.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis
-          domain={[0, 1]}
-          ticks={PCT_TICKS}
-          allowDataOverflow
-          tickFormatter={(v) => pct(v)}
-          width={big ? 80 : 52}
-          {...axisProps(theme, big)}
-        />
+        <YAxis {...shareAxisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
         <Legend verticalAlign="top" {...keyLegend(sessionKeys(sessions, 'bar'), theme, big)} />
         {sessions.map((s, i) => (
@@ -663,14 +647,7 @@ export function StrategiesChart({ groups, theme = 'light', big = false }: { grou
         <Patterns theme={theme} count={groups.length} />
         <CartesianGrid stroke={p.grid} vertical={false} />
         <XAxis dataKey="x" {...axisProps(theme, big)} />
-        <YAxis
-          domain={[0, 1]}
-          ticks={PCT_TICKS}
-          allowDataOverflow
-          tickFormatter={(v) => pct(v)}
-          width={big ? 80 : 52}
-          {...axisProps(theme, big)}
-        />
+        <YAxis {...shareAxisProps(theme, big)} />
         <Tooltip formatter={(v) => pct(Number(v), 1)} {...tooltipProps(theme)} />
         <Legend
           verticalAlign="top"

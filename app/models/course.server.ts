@@ -5,6 +5,9 @@ import { db } from '#app/utils/db.server';
 import { env } from '#app/utils/env.server';
 import { INVITATION_DAYS } from '#app/utils/roles';
 
+/** An invitation neither accepted nor revoked. */
+const isPending = and(isNull(invitations.acceptedAt), isNull(invitations.revokedAt));
+
 export { INVITATION_DAYS };
 
 export async function listCoursesForUser(userId: number, isAdmin: boolean) {
@@ -97,14 +100,7 @@ export async function listPendingInvitations(courseId: number) {
       sentAt: invitations.sentAt,
     })
     .from(invitations)
-    .where(
-      and(
-        eq(invitations.courseId, courseId),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-        gt(invitations.expiresAt, new Date()),
-      ),
-    )
+    .where(and(eq(invitations.courseId, courseId), isPending, gt(invitations.expiresAt, new Date())))
     .orderBy(asc(invitations.email));
 }
 
@@ -131,14 +127,7 @@ export async function createInvitation(courseId: number, email: string, role: Co
     await tx
       .update(invitations)
       .set({ revokedAt: new Date() })
-      .where(
-        and(
-          eq(invitations.courseId, courseId),
-          eq(invitations.email, normalised),
-          isNull(invitations.acceptedAt),
-          isNull(invitations.revokedAt),
-        ),
-      );
+      .where(and(eq(invitations.courseId, courseId), eq(invitations.email, normalised), isPending));
     const [res] = await tx.insert(invitations).values({
       courseId,
       email: normalised,
@@ -163,14 +152,7 @@ export async function findPendingInvitation(courseId: number, invitationId: numb
   const [inv] = await db()
     .select({ id: invitations.id, email: invitations.email, role: invitations.role })
     .from(invitations)
-    .where(
-      and(
-        eq(invitations.id, invitationId),
-        eq(invitations.courseId, courseId),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-      ),
-    );
+    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isPending));
   return inv ?? null;
 }
 
@@ -183,14 +165,7 @@ export async function reissueInvitation(courseId: number, invitationId: number) 
   const [res] = await db()
     .update(invitations)
     .set({ tokenHash: hashToken(token), sentAt: null, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000) })
-    .where(
-      and(
-        eq(invitations.id, invitationId),
-        eq(invitations.courseId, courseId),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-      ),
-    );
+    .where(and(eq(invitations.id, invitationId), eq(invitations.courseId, courseId), isPending));
   return res.affectedRows === 1 ? token : null;
 }
 

@@ -3,18 +3,14 @@ import type { Route } from './+types/compare';
 import { DebriefView } from '#app/components/debrief-view';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { ButtonLink, Notice } from '#app/components/ui';
-import { debriefGrouping, includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';
-import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
+import { debriefGrouping, pickEstimate } from '#app/models/debrief.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { debriefFromUrl } from './from-url.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const url = new URL(request.url);
-  const ids = sessionIdsParam(url);
-  const include = includeParam(url);
-  const debrief = await loadDebrief(course.id, ids, { include });
-  respondUnless(debrief, 404, 'One of the sessions is not in this course.');
-  const { sessions, estimates } = debrief;
+  const { ids, include, sessions, estimates } = await debriefFromUrl(course.id, url);
   const { separate, grouping } = debriefGrouping(sessions, url);
   if (!grouping.ok) {
     // Pooling sessions that ran different games under one name would mislead: refuse, and offer

@@ -5,10 +5,10 @@ import { z } from 'zod';
 import type { Route } from './+types/csv';
 import { csvLines } from '#app/lib/csv';
 import { CHART_IDS, chartTable, type Table, tableColumns } from '#app/lib/debrief-tables';
-import { includeParam, loadDebrief } from '#app/models/debrief.server';
 import { getEstimate } from '#app/models/estimate.server';
-import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
+import { respondUnless } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
+import { debriefFromUrl } from './from-url.server';
 
 const chartSchema = z.enum(CHART_IDS as [string, ...string[]]);
 
@@ -45,12 +45,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     );
     name = `estimate-${e.id}-strategies`;
   } else {
-    const ids = sessionIdsParam(url);
     // A download leaves Parley: participants who declined research use are left out
     // (docs/decisions/026); the page's switch (`include`) decides which choices count.
-    const debrief = await loadDebrief(course.id, ids, { include: includeParam(url), research: true });
-    respondUnless(debrief, 404, 'One of the sessions is not in this course.');
-    const { sessions } = debrief;
+    const { ids, sessions } = await debriefFromUrl(course.id, url, { research: true });
     rows = chartTable(chart.data as Exclude<(typeof CHART_IDS)[number], 'strategies'>, sessions);
     name = `sessions-${ids.join('-')}-${chart.data}`;
   }

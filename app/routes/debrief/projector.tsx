@@ -5,20 +5,16 @@ import { Link } from 'react-router';
 import type { Route } from './+types/projector';
 import { debriefCharts } from '#app/components/debrief';
 import { ChartFrame } from '#app/components/debrief-charts';
-import { includeParam, loadDebrief, pickEstimate } from '#app/models/debrief.server';
+import { pickEstimate } from '#app/models/debrief.server';
 import { estimateIncludedWords } from '#app/components/estimation-panel';
-import { respondUnless, sessionIdsParam } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { windowWords } from '#app/utils/estimate-form';
+import { debriefFromUrl } from './from-url.server';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
   const url = new URL(request.url);
-  const ids = sessionIdsParam(url);
-  const include = includeParam(url);
-  const debrief = await loadDebrief(course.id, ids, { include });
-  respondUnless(debrief, 404, 'One of the sessions is not in this course.');
-  const { sessions, estimates } = debrief;
+  const { include, sessions, estimates } = await debriefFromUrl(course.id, url);
   const done = estimates.filter((e) => e.status === 'done');
   const e = pickEstimate(done, url);
   return {

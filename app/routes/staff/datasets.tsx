@@ -52,21 +52,8 @@ const MB = 1024 * 1024;
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { course, user } = await requireCourseRole(request, params.courseId, ['instructor', 'researcher']);
-  const outcome = (o: Partial<UploadOutcome>, status = 400) =>
-    data(
-      {
-        ok: false,
-        message: null,
-        fileName: '',
-        header: null,
-        map: {},
-        errors: [],
-        errorCount: 0,
-        warnings: [],
-        ...o,
-      } satisfies UploadOutcome,
-      { status },
-    );
+  const blank: UploadOutcome = { ok: false, message: null, fileName: '', header: null, map: {}, errors: [], errorCount: 0, warnings: [] };
+  const outcome = (o: Partial<UploadOutcome>, status = 400) => data({ ...blank, ...o } satisfies UploadOutcome, { status });
   const tooBig = `The file is larger than ${DATASET_LIMITS.maxBytes / MB} MB. Split it by session, or leave out the columns estimation does not need.`;
   if (Number(request.headers.get('content-length') ?? 0) > DATASET_LIMITS.maxBytes + 64 * 1024) return outcome({ message: tooBig }, 413);
   const form = await request.formData();
@@ -75,16 +62,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     const parsed = Delete.safeParse(Object.fromEntries(form));
     if (!parsed.success) return outcome({ message: 'Unknown dataset.' });
     if (!(await deleteDataset(course.id, parsed.data.id))) return outcome({ message: 'That dataset is not in this course.' }, 404);
-    return {
-      ok: true,
-      message: 'Dataset deleted.',
-      fileName: '',
-      header: null,
-      map: {},
-      errors: [],
-      errorCount: 0,
-      warnings: [],
-    } satisfies UploadOutcome;
+    return { ...blank, ok: true, message: 'Dataset deleted.' } satisfies UploadOutcome;
   }
 
   const parsed = Upload.safeParse(Object.fromEntries([...form].filter(([, v]) => typeof v === 'string')));
