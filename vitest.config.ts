@@ -14,6 +14,9 @@ export default defineConfig({
           // Every unit test lives in tests/unit (tests/unit/layout.test.ts fails on one anywhere else).
           include: ['tests/unit/**/*.test.{ts,tsx}'],
           environment: 'node',
+          // npm test runs everything with NODE_ENV=production (the server under test); React's
+          // production build has no act(), which component tests (testing-library) need.
+          env: { NODE_ENV: 'test' },
           setupFiles: ['tests/setup/fail-on-console-error.ts'],
         },
       },
