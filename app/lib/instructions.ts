@@ -203,6 +203,18 @@ function creditWords(d: Design, v: (k: Placeholder) => string): string {
   return `Taking part earns ${v('credit')} course credit, whatever your points.`;
 }
 
+/** Words that make a percentage in the same sentence a chance of another round (or of the end). */
+const CHANCE_WORDS = /\b(chances?|probab\w*|likel\w*|another round|continu\w*|go(?:es)? on|end(?:s|ed|ing)?|stops?|δ|delta)\b|δ/i;
+
+/** The sentence of `text` that holds [index, index + length): from the last sentence end before it to the next after it. */
+function sentenceAround(text: string, index: number, length: number): string {
+  const before = text.slice(0, index);
+  const ends = [...before.matchAll(/[.!?](?=\s)|\n/g)];
+  const start = ends.length ? ends[ends.length - 1].index + 1 : 0;
+  const after = text.slice(index + length).search(/[.!?](?=\s|$)|\n/);
+  return text.slice(start, after < 0 ? undefined : index + length + after);
+}
+
 /** A number as written in text: "0,75" and "−5" read as 0.75 and -5. */
 const readNumber = (s: string) => Number(s.replace(',', '.').replace('−', '-'));
 const same = (a: number, b: number) => Math.abs(a - b) < 1e-9;
@@ -222,6 +234,9 @@ export function instructionContradictions(d: Design, text: string = fillInstruct
   const endPct = 100 - deltaPct;
   for (const m of text.matchAll(/(\d+(?:[.,]\d+)?)\s?(%|per ?cent\b)/gi)) {
     const p = readNumber(m[1]);
+    // Only a percentage in a sentence about going on or ending is a chance of another round;
+    // "you keep 100% of your points" is not.
+    if (!CHANCE_WORDS.test(sentenceAround(text, m.index, m[0].length))) continue;
     if (!same(p, deltaPct) && !same(p, endPct)) {
       out.push(
         `The instructions say “${m[0]}”, but δ = ${d.delta}: the chance of another round is ${v['delta%']} (and of the supergame ending ${v['end%']}). Write {delta%} or {end%} so the number follows δ.`,

@@ -108,6 +108,11 @@ describe('instruction templates', () => {
     expect(instructionContradictions(d, 'The chance of another round is 75 %.')).toHaveLength(1);
     expect(instructionContradictions(d, 'δ = 0.75 here.')).toHaveLength(1);
     expect(instructionContradictions(d, 'The chance of another round is 50 %; of ending, 50%.')).toEqual([]);
+    // a percentage that is not a chance of going on or ending is not checked against δ
+    expect(instructionContradictions(d, 'You keep 100% of the points you earn. The chance of another round is 50%.')).toEqual([]);
+    expect(instructionContradictions(d, 'Your credit is 10 percent of your points. Then the supergame ends with 75% chance.')).toHaveLength(
+      1,
+    );
   });
 
   it('refuse placeholders that are unknown or have no value in the design', () => {
