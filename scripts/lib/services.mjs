@@ -80,7 +80,10 @@ export function ensureDebian(needs) {
   const missing = needs.filter((n) => !which(n.bin));
   if (missing.length === 0) return;
   const pkgs = [...new Set(missing.flatMap((n) => n.packages))];
-  const cmd = `apt-get update && DEBIAN_FRONTEND=noninteractive apt-get install -y --no-install-recommends ${pkgs.join(' ')}`;
+  // Waits for dpkg's lock (unattended upgrades, another checkout's `npm test` installing the same
+  // packages) instead of failing at once.
+  const wait = '-o DPkg::Lock::Timeout=600';
+  const cmd = `apt-get ${wait} update && DEBIAN_FRONTEND=noninteractive apt-get ${wait} install -y --no-install-recommends ${pkgs.join(' ')}`;
   if (process.getuid?.() !== 0) {
     fail(
       `missing ${missing.map((n) => n.bin).join(', ')}`,
@@ -88,7 +91,8 @@ export function ensureDebian(needs) {
     );
   }
   say(`installing Debian packages: ${pkgs.join(' ')}…`);
-  if (!run('sh', ['-c', cmd], { env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } })) {
+  // flock: two of our own scripts starting at once take turns (apt-get update's list lock does not wait).
+  if (!run('flock', ['/tmp/parley-apt.lock', 'sh', '-c', cmd], { env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } })) {
     fail('apt-get could not install the packages', `Run by hand and read its error:\n  ${cmd}`);
   }
 }
