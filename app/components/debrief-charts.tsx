@@ -103,7 +103,11 @@ function tooltipProps(theme: Theme) {
   const p = PALETTE[theme];
   return { contentStyle: { background: p.tooltipBg, color: p.text, borderColor: p.grid }, labelStyle: { color: p.text } };
 }
-const legendProps = (theme: Theme, big: boolean) => ({ wrapperStyle: { fontSize: big ? 20 : 13, color: PALETTE[theme].text } });
+// The padding keeps a key that wraps to two lines on a phone clear of the top tick label, which
+// sticks out half its height above the plot.
+const legendProps = (theme: Theme, big: boolean) => ({
+  wrapperStyle: { fontSize: big ? 20 : 13, color: PALETTE[theme].text, paddingTop: big ? 6 : 4, paddingBottom: big ? 16 : 10 },
+});
 
 /**
  * One legend entry: a session (or group) in its colour, marker shape, dash or hatch, or, when

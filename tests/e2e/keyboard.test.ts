@@ -68,6 +68,11 @@ describe('keyboard and screen readers', () => {
     const result = conductor.getByText('Started: phones are being paired for supergame 1.');
     await result.waitFor();
     expect(await liveness(result)).not.toBe('off');
+    // Start is gone once the session runs; before the fix focus fell back to the page's top, so the
+    // next Tab started over at the skip link. Focus now rests on the status line.
+    await expect
+      .poll(() => conductor.evaluate(() => document.activeElement?.getAttribute('data-testid') ?? document.activeElement?.tagName))
+      .toBe('session-status');
 
     // The phone: the round's title and the prompt are announced, the ticking countdown is not.
     const title = phone.getByTestId('round-title');

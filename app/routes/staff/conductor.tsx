@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import { Link } from 'react-router';
 import type { Route } from './+types/conductor';
 import { MATCHING_RULE } from '#app/lib/matching-rule';
@@ -64,8 +64,18 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
   const status = view?.status ?? session.status;
   const isInstructor = role === 'instructor';
 
+  // A command usually removes the button that sent it (Start goes once the session runs), which
+  // drops keyboard focus to the page's top; the status line takes it instead, so Tab goes on
+  // from the controls and a screen reader stays where it was.
+  const statusLine = useRef<HTMLParagraphElement>(null);
+  const commanded = useRef(false);
+  useEffect(() => {
+    if (commanded.current && (document.activeElement === document.body || document.activeElement === null)) statusLine.current?.focus();
+  }, [status]);
+
   const command = async (c: Command, confirmText?: string) => {
     if (confirmText && !window.confirm(confirmText)) return;
+    commanded.current = true;
     const res = await ask((s) => s.emitWithAck('session:control', { sessionId: session.id, command: c }));
     setMessage(res.ok ? { ok: true, text: DONE[c], status: res.data.status } : { ok: false, text: res.message, status });
   };
@@ -106,7 +116,7 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
               {connected ? 'Live' : 'Connecting…'}
             </p>
           </div>
-          <p className="text-2xl font-semibold" data-testid="session-status" role="status">
+          <p ref={statusLine} tabIndex={-1} className="text-2xl font-semibold" data-testid="session-status" role="status">
             <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
             {STATUS_WORDS[status].word}
           </p>
