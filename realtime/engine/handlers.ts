@@ -7,7 +7,7 @@ import { computerStrategyOf } from '#app/lib/design';
 import { drawSequence } from '#app/lib/draws';
 import { type Draft, fail, openPairIds, playing, roundMs, transition } from './draft';
 import { advancePair, applyTimeout, cancelTimer, findParticipant, handOver, isStrategy, reveal, addRow, scheduleTimer } from './rounds';
-import { beginSupergame, completeSession, settle, summarise } from './supergames';
+import { beginSupergame, completeSession, lateEntryRefusal, settle, summarise } from './supergames';
 import type { EngineError, EngineEvent, EngineState, StoredChoice } from './types';
 
 export type Outcome = EngineError | { alreadyChosen: StoredChoice } | null;
@@ -49,6 +49,8 @@ const HANDLERS: Handlers = {
     }
     const entersAt = s.status === 'open' ? 1 : (s.supergame?.number ?? 0) + 1;
     const known = s.participants[e.participantId];
+    const full = known ? null : lateEntryRefusal(s);
+    if (full) return fail('session-not-joinable', full);
     if (known) {
       if (known.status === 'removed') return fail('not-a-participant', 'This participant was removed from the session');
       if (known.status === 'active') {

@@ -175,3 +175,21 @@ export function settle(d: Draft): void {
     beginSupergame(d, sg.number + 1, boundary);
   }
 }
+
+/** The supergame a new joiner would enter, or null when none is left: the join handler refuses
+ * them then, and the big screen hides the join code. */
+export function lateEntry(s: EngineState): number | null {
+  if (s.status === 'open') return 1;
+  if (s.status !== 'running' && s.status !== 'paused') return null;
+  // a late joiner enters at the next supergame; with none left, joining now only means waiting
+  const next = (s.supergame?.number ?? 0) + 1;
+  return next <= s.design.supergames && !s.endAfterSupergame ? next : null;
+}
+
+/** Why a new joiner is turned away while the session runs (no supergame left to enter), or null. */
+export function lateEntryRefusal(s: EngineState): string | null {
+  if ((s.status !== 'running' && s.status !== 'paused') || lateEntry(s) !== null) return null;
+  return s.endAfterSupergame
+    ? 'This session ends after the current supergame, so a new player could not play any more rounds.'
+    : 'This session is in its last supergame, so a new player could not play any more rounds.';
+}

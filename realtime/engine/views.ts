@@ -4,6 +4,7 @@
  */
 import { describeBlock, describeDraw, drawRule, formatCutoff, supergameDraws } from '#app/lib/draws';
 import { ACTION_PROFILES, profilePoints } from '#app/lib/stage-game';
+import { lateEntry } from './supergames';
 import type { BigScreenView, EngineState, FloorSeatView, FloorView, PairState, ParticipantView } from './types';
 
 const other = (seat: 0 | 1): 0 | 1 => (seat === 0 ? 1 : 0);
@@ -215,15 +216,6 @@ export function floorView(s: EngineState, now: number): FloorView {
 function revealedRounds(pair: PairState): number {
   for (let i = pair.rounds.length - 1; i >= 0; i--) if (pair.rounds[i].revealed) return i + 1;
   return 0;
-}
-
-/** Who may still join and play: the engine admits joins while open, running and paused. */
-function lateEntry(s: EngineState): number | null {
-  if (s.status === 'open') return 1;
-  if (s.status !== 'running' && s.status !== 'paused') return null;
-  // a late joiner enters at the next supergame; with none left, joining now only means waiting
-  const next = (s.supergame?.number ?? 0) + 1;
-  return next <= s.design.supergames && !s.endAfterSupergame ? next : null;
 }
 
 /** The latest draw every pair has seen (`shown`: the fewest revealed rounds of any pair now). */

@@ -1,9 +1,9 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { choices, courseMembers, sessionLog } from '#drizzle/schema';
+import { choices, courseMembers, sessionLog, sessionParticipants } from '#drizzle/schema';
 import type { ParticipantView } from '#realtime/engine/types';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
-import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
+import { type Client, pageText, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, connect, createDesign, join, nextView, openSession, type TestSocket } from '#tests/helpers/live';
 
 afterEach(closeSockets);
@@ -286,6 +286,22 @@ describe('a live session over real sockets', () => {
     const late = await connect(clientOf(seats[3]).cookieHeader());
     const ack = await late.emitWithAck('session:watch', { sessionId, as: 'participant' });
     expect(ack.ok && ack.data.kind === 'participant' && ack.data.notice).toBe('waiting-to-enter');
+  });
+
+  it('nobody new joins the last supergame: the code page says so before the instructions, and a join changes nothing', async () => {
+    // Before the fix the late joiner read the instructions, joined, and waited for a supergame that never came.
+    const designId = await createDesign(courseId, instructorId, { supergames: 1, delta: 0.5 });
+    const { sessionId, code } = await openSession(instructor, courseId, designId);
+    for (const s of seats.slice(0, 2)) await join(clientOf(s), code);
+    const staff = await connect(instructor.cookieHeader());
+    await staff.emitWithAck('session:control', { sessionId, command: 'start' });
+    const page = pageText(await (await clientOf(seats[3]).get(`/join/${code}`)).text());
+    expect(page).toContain('This session is in its last supergame, so a new player could not play any more rounds.');
+    const res = await clientOf(seats[3]).post(`/join/${code}`, {});
+    expect(res.status).toBe(409);
+    expect(pageText(await res.text())).toContain('last supergame');
+    const rows = await testDb().select().from(sessionParticipants).where(eq(sessionParticipants.sessionId, sessionId));
+    expect(rows).toHaveLength(2);
   });
 
   it('assistants may pause and resume, but not start or end a session', async () => {

@@ -454,6 +454,23 @@ describe('hand to computer, remove, late joiners', () => {
     checkCompleted(hub);
     expect(hub.choices.some((r) => r.participantId === 'late' && r.supergame === 1)).toBe(false);
   });
+  it('nobody new joins once no supergame is left to enter: the last one is running, or the session ends after this one', () => {
+    // Before the fix the engine admitted them, and they waited for a supergame that never came.
+    const last = startSession(4, { supergames: 2 }, 23).hub;
+    play(last, rngOf(23), { stopWhen: (h) => h.state.supergame!.number === 2 });
+    const joined = step(last.state, { type: 'join', participantId: 'late' }, last.now + SEC);
+    expect(joined.error?.code).toBe('session-not-joinable');
+    expect(joined.error?.message).toMatch(/last supergame/);
+    expect(last.state.participants.late).toBeUndefined();
+    expect(bigScreenView(last.state).lateEntry).toBeNull();
+
+    const ending = startSession(4, { supergames: 5 }, 24).hub;
+    ending.ok({ type: 'endAfterSupergame' }, ending.now + SEC);
+    expect(step(ending.state, { type: 'join', participantId: 'late' }, ending.now + SEC).error?.code).toBe('session-not-joinable');
+    // someone already in the session who reconnects is not a new joiner
+    const p = ending.state.joinOrder[0];
+    expect(step(ending.state, { type: 'join', participantId: p }, ending.now + SEC).error).toBeUndefined();
+  });
 });
 
 describe('ending a session', () => {

@@ -7,11 +7,15 @@ import { Button, FieldError, Notice } from '#app/components/ui';
 import { fillInstructions, instructionSummary, payoffRows } from '#app/lib/instructions';
 import { requireUser } from '#app/utils/auth.server';
 import { admission, carriedConsent, joinNow, nextStep, sendJoinedToPlay, sessionHeading } from '#app/utils/join.server';
+import { lateEntryRefusal } from '#realtime/engine/supergames';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  const { session, refusal } = await admission(params.code, user);
-  const state = await sendJoinedToPlay(session, user, refusal);
+  const admitted = await admission(params.code, user);
+  const { session } = admitted;
+  const state = await sendJoinedToPlay(session, user, admitted.refusal);
+  // Said before the instructions are read, not after: nobody new can enter the last supergame.
+  const refusal = admitted.refusal ?? (state ? lateEntryRefusal(state) : null);
   const d = session.design;
   return {
     code: params.code.toUpperCase(),
