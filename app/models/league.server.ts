@@ -17,7 +17,7 @@
 // What participants see (a decision): every league of a course they are a participant of, in any
 // state, so an entrant knows their entry is in and entries have closed; results only once the
 // league is published. Staff pages reach leagues through requireCourseRole first.
-import { and, asc, count, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { defineJob, enqueue, kickJobs } from '#app/jobs/queue.server';
 import { type Automaton, libraryStrategy } from '#app/lib/automata';
@@ -111,13 +111,20 @@ export const acceptsEntries = (l: Pick<League, 'state' | 'deadline'>, now = new 
 // ---------------------------------------------------------------------------------------------
 // Staff
 
-export interface LeagueSummary extends League {
+/** A league in a list: everything but its results (they can be megabytes), whether it has them, and its entry counts. */
+export interface LeagueSummary extends Omit<League, 'results'> {
+  hasResults: boolean;
   entries: number;
   houseEntries: number;
 }
 
 export async function listLeagues(courseId: number): Promise<LeagueSummary[]> {
-  const rows = await db().select(leagueColumns).from(leagues).where(eq(leagues.courseId, courseId)).orderBy(desc(leagues.id));
+  const { results: _results, ...columns } = leagueColumns;
+  const rows = await db()
+    .select({ ...columns, hasResults: sql<number>`${leagues.results} IS NOT NULL`.mapWith(Number) })
+    .from(leagues)
+    .where(eq(leagues.courseId, courseId))
+    .orderBy(desc(leagues.id));
   if (rows.length === 0) return [];
   const counts = await db()
     .select({ leagueId: leagueEntries.leagueId, house: leagueEntries.house, n: count() })
@@ -132,7 +139,7 @@ export async function listLeagues(courseId: number): Promise<LeagueSummary[]> {
   return rows.map((r) => {
     const mine = counts.filter((c) => c.leagueId === r.id);
     const house = Number(mine.find((c) => c.house)?.n ?? 0);
-    return { ...toLeague(r), entries: mine.reduce((s, c) => s + Number(c.n), 0), houseEntries: house };
+    return { ...r, hasResults: r.hasResults === 1, entries: mine.reduce((s, c) => s + Number(c.n), 0), houseEntries: house };
   });
 }
 

@@ -198,6 +198,13 @@ describe('the run job, end to end', () => {
     const results = ran.results!;
     expect(results.entries.map((e) => e.name)).toEqual(LIBRARY.map((a) => a.name));
     expect(results.entries.every((e) => e.house)).toBe(true);
+    // the list says it has results without reading them
+    expect((await listLeagues(courseId)).find((x) => x.id === l.id)).toMatchObject({
+      hasResults: true,
+      entries: LIBRARY.length,
+      houseEntries: LIBRARY.length,
+    });
+    expect((await listLeagues(courseId)).find((x) => x.id === l.id)).not.toHaveProperty('results');
 
     // computed here from the lib directly, on the automata in the library's order (house entries
     // are listed in the order added). The lib's values are checked against an independent
