@@ -17,6 +17,16 @@ import {
 
 import { CHOICE_SOURCES } from '#app/lib/choice-panel';
 import { type Design, designSchema } from '#app/lib/design';
+import {
+  LEAGUE_RUN_STATUSES,
+  LEAGUE_STATES,
+  type LeagueDesign,
+  leagueDesignSchema,
+  type LeagueResults,
+  leagueResultsSchema,
+  leagueStrategySchema,
+} from '#app/lib/league-design';
+import type { StrategyFile } from '#app/lib/strategy-file';
 import { COURSE_ROLES } from '#app/utils/roles';
 
 export { COURSE_ROLES, type CourseRole } from '#app/utils/roles';
@@ -583,6 +593,75 @@ export const jobs = mysqlTable(
     index('jobs_ready').on(t.kind, t.state, t.runAfter),
     index('jobs_served').on(t.kind, t.courseId, t.startedAt),
   ],
+);
+
+/** A column whose JSON text is checked by a zod schema whenever a row is read (as `designJson`). */
+const checkedJson = <T>(name: string, schema: { parse(v: unknown): T }) =>
+  customType<{ data: T; driverData: string }>({
+    dataType: () => 'longtext',
+    toDriver: (value) => JSON.stringify(value),
+    fromDriver: (value) => schema.parse(JSON.parse(value)),
+  })(name);
+
+/**
+ * A strategy league of a course (issue 15; docs/decisions/033): participants enter automata until
+ * the deadline, the instructor closes entries, runs the round-robin and evolution (a job), and
+ * publishes the results. `design` and `results` are validated when read (app/lib/league-design.ts).
+ */
+export const leagues = mysqlTable(
+  'leagues',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    courseId: int('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    title: varchar('title', { length: 120 }).notNull(),
+    design: checkedJson<LeagueDesign>('design_json', leagueDesignSchema).notNull(),
+    /** entries are accepted until then (null: until closed) */
+    deadline: datetime('deadline', { mode: 'date', fsp: 3 }),
+    state: mysqlEnum('state', LEAGUE_STATES).notNull().default('open'),
+    /** the last run's numbers (null until run) */
+    results: checkedJson<LeagueResults>('results_json', leagueResultsSchema),
+    /** the run job, as the league page polls it (the estimate's shape: status, progress of total) */
+    runStatus: mysqlEnum('run_status', LEAGUE_RUN_STATUSES).notNull().default('none'),
+    runProgress: int('run_progress').notNull().default(0),
+    runTotal: int('run_total').notNull().default(0),
+    runError: varchar('run_error', { length: 500 }),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+    closedAt: datetime('closed_at', { mode: 'date', fsp: 3 }),
+    runAt: datetime('run_at', { mode: 'date', fsp: 3 }),
+    publishedAt: datetime('published_at', { mode: 'date', fsp: 3 }),
+    /** the session whose strategy estimate the results page compares with */
+    comparisonSessionId: int('comparison_session_id').references(() => sessions.id, { onDelete: 'set null' }),
+  },
+  (t) => [index('leagues_course').on(t.courseId)],
+);
+
+/**
+ * One entry of a league: a participant's (one per user and league) or a house entry the instructor
+ * added (user null, house true). The strategy is a parley-strategy v1 file (docs/formats/strategy.md).
+ */
+export const leagueEntries = mysqlTable(
+  'league_entries',
+  {
+    id: int('id').autoincrement().primaryKey(),
+    leagueId: int('league_id')
+      .notNull()
+      .references(() => leagues.id, { onDelete: 'cascade' }),
+    userId: int('user_id').references(() => users.id, { onDelete: 'cascade' }),
+    house: boolean('house').notNull().default(false),
+    /** shown in the results: the participant's display name by default, or a team name */
+    name: varchar('name', { length: 60 }).notNull(),
+    strategy: checkedJson<StrategyFile>('automaton_json', leagueStrategySchema).notNull(),
+    createdAt: createdAt(),
+    updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
+      .notNull()
+      .default(sql`CURRENT_TIMESTAMP(3)`),
+  },
+  (t) => [uniqueIndex('league_entries_user').on(t.leagueId, t.userId)],
 );
 
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(courseMembers) }));

@@ -2,6 +2,7 @@
 import { and, inArray, lt } from 'drizzle-orm';
 import { z } from 'zod';
 import { estimateJob } from '#app/models/estimate.server';
+import { leagueRunJob } from '#app/models/league.server';
 import { resultMailsJob } from '#app/models/result-mails.server';
 import { pruneAuthEvents, pruneAuthSessions } from '#app/utils/auth.server';
 import { db } from '#app/utils/db.server';
@@ -35,7 +36,7 @@ export const pruneJob = defineJob({
 
 export const PRUNE_KEY = 'prune';
 
-export const JOB_KINDS = [estimateJob, resultMailsJob, pruneJob];
+export const JOB_KINDS = [estimateJob, resultMailsJob, leagueRunJob, pruneJob];
 
 /** This process's worker: resumes what older processes left, then takes jobs as they come. */
 export function startJobs(): JobWorker {
