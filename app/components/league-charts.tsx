@@ -26,43 +26,60 @@ export interface EvolutionInput {
   shares: readonly (readonly number[])[];
 }
 
-export interface EvolutionSeries {
-  /** the entries drawn, largest final share first */
-  lines: { entry: number; name: string; final: number }[];
-  /** how many entries are folded into "all others" (0: none) */
-  othersCount: number;
-  /** chart rows: { g, e<k>: share, others: share } */
-  rows: Record<string, number>[];
+/**
+ * What the chart draws, small enough to send to a phone: a few lines and the generations kept.
+ * `shares[r]` holds one share per line, then (when `folded` > 0) the sum of the folded entries.
+ */
+export interface CompactEvolution {
+  /** the name of each line, largest final share first */
+  names: string[];
+  /** the entry (index in the league's list) each line is */
+  entries: number[];
+  /** the generation of each row kept */
+  generation: number[];
+  shares: number[][];
+  /** how many entries are summed in the last column (0: none) */
+  folded: number;
 }
+
+const isCompact = (e: EvolutionInput | CompactEvolution): e is CompactEvolution => 'folded' in e;
 
 /**
  * The entries worth a line of their own: the `max` largest final shares (those at or above
- * `threshold` at the end); the others summed into one line. Rows are thinned to at most `points`
- * generations (the first and the last always kept) so a long run draws quickly.
+ * `threshold` at the end; the largest always); the others summed into one column. Rows are
+ * thinned to at most about `points` generations, the first and the last always kept.
  */
-export function evolutionSeries({ names, shares }: EvolutionInput, max = 6, threshold = 1e-3, points = 200): EvolutionSeries {
+export function compactEvolution(input: EvolutionInput | CompactEvolution, max = 6, threshold = 1e-3, points = 200): CompactEvolution {
+  if (isCompact(input)) return input;
+  const { names, shares } = input;
   const last = shares[shares.length - 1] ?? [];
-  const ranked = last
-    .map((final, entry) => ({ entry, name: names[entry] ?? `Entry ${entry + 1}`, final }))
-    .sort((p, q) => q.final - p.final || p.entry - q.entry);
-  const lines = ranked.filter((r, k) => k < max && (r.final >= threshold || k === 0));
+  const lines = last
+    .map((final, entry) => ({ entry, final }))
+    .sort((p, q) => q.final - p.final || p.entry - q.entry)
+    .filter((r, k) => k < max && (r.final >= threshold || k === 0));
   const drawn = new Set(lines.map((l) => l.entry));
-  const othersCount = names.length - lines.length;
+  const folded = names.length - lines.length;
   const step = Math.max(1, Math.ceil(shares.length / points));
-  const rows: Record<string, number>[] = [];
+  const out: CompactEvolution = {
+    names: lines.map((l) => names[l.entry] ?? `Entry ${l.entry + 1}`),
+    entries: lines.map((l) => l.entry),
+    generation: [],
+    shares: [],
+    folded,
+  };
   shares.forEach((gen, g) => {
     if (g % step !== 0 && g !== shares.length - 1) return;
-    const row: Record<string, number> = { g };
-    let others = 0;
-    gen.forEach((x, k) => {
-      if (drawn.has(k)) row[`e${k}`] = x;
-      else others += x;
-    });
-    if (othersCount > 0) row.others = others;
-    rows.push(row);
+    const row = lines.map((l) => gen[l.entry]);
+    if (folded > 0) row.push(gen.reduce((s, x, k) => (drawn.has(k) ? s : s + x), 0));
+    out.generation.push(g);
+    out.shares.push(row);
   });
-  return { lines, othersCount, rows };
+  return out;
 }
+
+/** "TFT 61 %, Grim 39 %" for a list of survivors. */
+export const sharesInWords = (list: readonly { name: string; share: number }[]) =>
+  list.map((s) => `${s.name} ${sharePct(s.share)}`).join(', ');
 
 export function EvolutionChart({
   evolution,
@@ -71,21 +88,26 @@ export function EvolutionChart({
   highlight,
   height = 'h-72',
 }: {
-  evolution: EvolutionInput;
+  evolution: EvolutionInput | CompactEvolution;
   theme?: Theme;
   big?: boolean;
-  /** an entry drawn thicker (the participant's own) */
+  /** an entry (index in the league's list) drawn thicker: the participant's own */
   highlight?: number;
   height?: string;
 }) {
   const p = PALETTE[theme];
-  const { lines, othersCount, rows } = evolutionSeries(evolution);
-  const generations = evolution.shares.length - 1;
+  const c = compactEvolution(evolution);
+  const rows = c.generation.map((g, r) => {
+    const row: Record<string, number> = { g };
+    c.names.forEach((_, k) => (row[`l${k}`] = c.shares[r][k]));
+    if (c.folded) row.others = c.shares[r][c.names.length];
+    return row;
+  });
+  const generations = c.generation[c.generation.length - 1] ?? 0;
+  const final = c.shares[c.shares.length - 1] ?? [];
   const font = big ? 22 : 12;
-  const summary = `Population shares over ${generations} generations. At the end: ${lines.map((l) => `${l.name} ${sharePct(l.final)}`).join(', ')}${
-    othersCount
-      ? `; ${othersCount} other entr${othersCount === 1 ? 'y' : 'ies'} together ${sharePct(1 - lines.reduce((s, l) => s + l.final, 0))}`
-      : ''
+  const summary = `Population shares over ${generations} generations. At the end: ${sharesInWords(c.names.map((name, k) => ({ name, share: final[k] })))}${
+    c.folded ? `; ${c.folded} other entr${c.folded === 1 ? 'y' : 'ies'} together ${sharePct(final[c.names.length])}` : ''
   }.`;
   return (
     <div className={`w-full ${height}`} role="img" aria-label={summary} data-testid="evolution-chart">
@@ -114,23 +136,23 @@ export function EvolutionChart({
             contentStyle={{ background: theme === 'dark' ? '#0f172a' : '#fff', color: p.text, borderColor: p.grid }}
           />
           <Legend wrapperStyle={{ fontSize: big ? 24 : 13, color: p.text }} />
-          {lines.map((l, i) => (
+          {c.names.map((name, i) => (
             <Line
-              key={l.entry}
-              dataKey={`e${l.entry}`}
-              name={l.name}
+              key={c.entries[i]}
+              dataKey={`l${i}`}
+              name={name}
               type="monotone"
               dot={false}
               isAnimationActive={false}
               stroke={p.series[i % p.series.length]}
               strokeDasharray={DASHES[i % DASHES.length] || undefined}
-              strokeWidth={(big ? 4 : 2) + (l.entry === highlight ? 2 : 0)}
+              strokeWidth={(big ? 4 : 2) + (c.entries[i] === highlight ? 2 : 0)}
             />
           ))}
-          {othersCount > 0 ? (
+          {c.folded > 0 ? (
             <Line
               dataKey="others"
-              name={`all ${othersCount} others`}
+              name={`all ${c.folded} others`}
               type="monotone"
               dot={false}
               isAnimationActive={false}

@@ -99,6 +99,12 @@ export function LeagueEntryEditor({
         hint="Shown in the ranking and on the big screen, instead of your e-mail address. 1–60 characters."
       />
 
+      {errors.strategy ? (
+        <div role="alert" data-testid="strategy-error">
+          <FieldError>{errors.strategy}</FieldError>
+        </div>
+      ) : null}
+
       <details open={strategy === null} className="group rounded-lg border border-slate-200 bg-white">
         <summary className="flex min-h-12 cursor-pointer items-center justify-between gap-2 px-4 font-semibold">
           <span id={pickId}>{strategy ? 'Start again from…' : 'Start from…'}</span>
@@ -154,9 +160,8 @@ export function LeagueEntryEditor({
             Each state plays C or D. After every round the strategy moves to a next state, chosen by what was played in that round: your
             action first, then your partner&apos;s. State 1 starts. At most {LEAGUE_MAX_STATES} states.
           </p>
-          {whole.length || errors.strategy ? (
+          {whole.length ? (
             <div role="alert" className="flex flex-col gap-1">
-              {errors.strategy ? <FieldError>{errors.strategy}</FieldError> : null}
               {whole.map((x) => (
                 <FieldError key={`${x.path}-${x.message}`}>{x.message}</FieldError>
               ))}

@@ -1,10 +1,10 @@
 // @vitest-environment happy-dom
 import { act, cleanup, fireEvent, render, screen } from '@testing-library/react';
 import { afterEach, describe, expect, it } from 'vitest';
-import { LeagueReveal, REVEAL_ROWS, revealStep, survivorWords } from '#app/components/big-screen/league-reveal';
-import { evolutionSeries } from '#app/components/league-charts';
+import { LeagueReveal, REVEAL_ROWS, revealStep } from '#app/components/big-screen/league-reveal';
+import { compactEvolution, sharesInWords } from '#app/components/league-charts';
 import { libraryStrategy } from '#app/lib/automata';
-import { evolve, roundRobin, standings } from '#app/lib/league';
+import { evolve, roundRobin, standings, survivors } from '#app/lib/league';
 
 afterEach(cleanup);
 
@@ -17,14 +17,25 @@ const perRound = roundRobin(
   { game: AXELROD, delta: 0.9, epsilon: 0 },
 );
 const ranked = standings(perRound).map((s) => ({ rank: s.rank, name: IDS[s.entry], score: s.score }));
-const evolution = { names: IDS, ...evolve(perRound, 50) };
+const evo = evolve(perRound, 50);
+const evolution = { names: IDS, shares: evo.shares };
+const alive = survivors(evo).map((s) => ({ name: IDS[s.entry], share: s.share }));
 
 const key = (k: string) => act(() => void fireEvent.keyDown(window, { key: k }));
 const rows = () => screen.queryAllByTestId('reveal-row').map((r) => r.textContent);
 
 describe('LeagueReveal', () => {
   it('reveals the ranking from the bottom, one entry per key, then the evolution chart', () => {
-    render(<LeagueReveal title="Week 6 league" entries={ranked} evolution={evolution} settings="δ = 0.9, ε = 0" background={0} />);
+    render(
+      <LeagueReveal
+        title="Week 6 league"
+        entries={ranked}
+        evolution={evolution}
+        settings="δ = 0.9, ε = 0"
+        background={0}
+        survivors={alive}
+      />,
+    );
     expect(screen.getByRole('heading', { name: 'Week 6 league' })).toBeTruthy();
     expect(rows()).toEqual([]);
     key('ArrowRight');
@@ -52,13 +63,15 @@ describe('LeagueReveal', () => {
     key('ArrowRight');
     expect(screen.getByTestId('evolution-chart')).toBeTruthy();
     expect(screen.getByText(/background fitness of 0/)).toBeTruthy();
+    // ALLD dies out; the three that cooperate with each other remain.
+    expect(screen.getByText(/Still there at the end/).textContent).not.toContain('ALLD');
     // No step after the chart.
     key('ArrowRight');
     expect(screen.getByTestId('league-reveal').dataset.step).toBe('5');
   });
 
   it('the Next and Back buttons step as the keys do', () => {
-    render(<LeagueReveal title="L" entries={ranked} evolution={evolution} settings="" background={0} />);
+    render(<LeagueReveal title="L" entries={ranked} evolution={evolution} settings="" background={0} survivors={alive} />);
     const next = screen.getByRole('button', { name: /Next/ });
     fireEvent.click(next);
     fireEvent.click(next);
@@ -79,6 +92,7 @@ describe('LeagueReveal', () => {
         evolution={{ names: many.map((m) => m.name), shares: [many.map(() => 1 / 20)] }}
         settings=""
         background={0}
+        survivors={[]}
       />,
     );
     for (let k = 0; k < 12; k++) key('ArrowRight');
@@ -87,28 +101,37 @@ describe('LeagueReveal', () => {
   });
 });
 
-describe('evolution series', () => {
-  it('draws the largest final shares and folds the rest into one line', () => {
+describe('compact evolution', () => {
+  it('keeps the largest final shares as lines and sums the rest into one column', () => {
     const names = ['a', 'b', 'c', 'd'];
     const shares = [
       [0.25, 0.25, 0.25, 0.25],
       [0.4, 0.3, 0.2, 0.1],
       [0.6, 0.3, 0.0999, 0.0001],
     ];
-    const s = evolutionSeries({ names, shares }, 2);
-    expect(s.lines.map((l) => l.name)).toEqual(['a', 'b']);
-    expect(s.othersCount).toBe(2);
-    expect(s.rows[2].others).toBeCloseTo(0.1, 12);
+    const c = compactEvolution({ names, shares }, 2);
+    expect(c.names).toEqual(['a', 'b']);
+    expect(c.entries).toEqual([0, 1]);
+    expect(c.folded).toBe(2);
+    expect(c.shares[2][2]).toBeCloseTo(0.1, 12);
     // An entry below the threshold at the end gets no line even when there is room.
-    expect(evolutionSeries({ names, shares }, 6).lines.map((l) => l.name)).toEqual(['a', 'b', 'c']);
-    expect(survivorWords({ names, shares })).toBe('Still there at the end (share at least 0.1 %): a 60 %, b 30 %, c 10.0 %.');
+    expect(compactEvolution({ names, shares }, 6).names).toEqual(['a', 'b', 'c']);
+    // Already compact: returned as it is.
+    expect(compactEvolution(c)).toBe(c);
+    expect(
+      sharesInWords([
+        { name: 'a', share: 0.6 },
+        { name: 'c', share: 0.0999 },
+      ]),
+    ).toBe('a 60 %, c 10.0 %');
   });
 
-  it('thins long runs to a few hundred points, keeping the first and last generation', () => {
+  it('thins long runs to a few hundred generations, keeping the first and the last', () => {
     const shares = Array.from({ length: 1001 }, (_, g) => [1 - g / 2000, g / 2000]);
-    const s = evolutionSeries({ names: ['x', 'y'], shares }, 6, 1e-3, 200);
-    expect(s.rows.length).toBeLessThanOrEqual(202);
-    expect(s.rows[0].g).toBe(0);
-    expect(s.rows[s.rows.length - 1].g).toBe(1000);
+    const c = compactEvolution({ names: ['x', 'y'], shares }, 6, 1e-3, 200);
+    expect(c.generation.length).toBeLessThanOrEqual(202);
+    expect(c.generation[0]).toBe(0);
+    expect(c.generation.at(-1)).toBe(1000);
+    expect(c.shares.at(-1)).toEqual([0.5, 0.5]);
   });
 });

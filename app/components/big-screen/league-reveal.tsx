@@ -2,7 +2,14 @@
 // entry per step (→, PageDown, a clicker or the Next button; ← goes back), then the evolution
 // chart. Large type for the back row; aggregates only: entry names and scores, no e-mail address.
 import { useCallback, useEffect, useState } from 'react';
-import { EvolutionChart, type EvolutionInput, sharePct } from '#app/components/league-charts';
+import {
+  type CompactEvolution,
+  compactEvolution,
+  EvolutionChart,
+  type EvolutionInput,
+  sharePct,
+  sharesInWords,
+} from '#app/components/league-charts';
 import { cx } from '#app/components/ui';
 
 export interface RevealEntry {
@@ -33,12 +40,15 @@ export function LeagueReveal({
   evolution,
   settings,
   background,
+  survivors,
   simulated = false,
 }: {
   title: string;
   /** best first, as ranked */
   entries: readonly RevealEntry[];
-  evolution: EvolutionInput;
+  evolution: EvolutionInput | CompactEvolution;
+  /** entries with a share of at least 0.1 % in the last generation, largest first */
+  survivors: readonly { name: string; share: number }[];
   /** the league's settings in words: "δ = 0.75, ε = 0.05, payoffs R 48 · S 12 · T 50 · P 25" */
   settings: string;
   /** the replicator's background fitness, stated under the chart */
@@ -63,7 +73,7 @@ export function LeagueReveal({
     return () => window.removeEventListener('keydown', onKey);
   }, [go]);
   const view = revealStep(step, n);
-  const generations = evolution.shares.length - 1;
+  const generations = compactEvolution(evolution).generation.at(-1) ?? 0;
 
   return (
     <div className="flex min-h-dvh flex-col gap-[0.8em] px-[1em] py-[0.6em]" data-testid="league-reveal" data-step={step}>
@@ -154,21 +164,12 @@ export function LeagueReveal({
           <EvolutionChart evolution={evolution} theme="dark" big height="h-[60vh]" />
           <p className="text-[1.1em] text-slate-300">
             Each generation, an entry&apos;s share grows in proportion to its points per round against the population then (discrete
-            replicator dynamics; Taylor &amp; Jonker 1978), with a background fitness of {background}. {survivorWords(evolution)}
+            replicator dynamics; Taylor &amp; Jonker 1978), with a background fitness of {background}. Still there at the end (share at
+            least {sharePct(1e-3)}): {sharesInWords(survivors) || 'none'}.
           </p>
         </section>
       ) : null}
       <p className="text-slate-400">Keys: → next, ← back.</p>
     </div>
   );
-}
-
-/** "Survive (share ≥ 0.1 %): TFT 61 %, Grim 39 %." */
-export function survivorWords({ names, shares }: EvolutionInput, threshold = 1e-3) {
-  const last = shares[shares.length - 1] ?? [];
-  const alive = last
-    .map((x, k) => ({ name: names[k], x }))
-    .filter((s) => s.x >= threshold)
-    .sort((p, q) => q.x - p.x);
-  return `Still there at the end (share at least ${sharePct(threshold)}): ${alive.map((s) => `${s.name} ${sharePct(s.x)}`).join(', ') || 'none'}.`;
 }
