@@ -135,7 +135,7 @@ export function EvolutionChart({
             labelFormatter={(g) => `Generation ${g}`}
             contentStyle={{ background: theme === 'dark' ? '#0f172a' : '#fff', color: p.text, borderColor: p.grid }}
           />
-          <Legend wrapperStyle={{ fontSize: big ? 24 : 13, color: p.text }} />
+          <Legend verticalAlign="top" wrapperStyle={{ fontSize: big ? 24 : 13, color: p.text, paddingBottom: 8 }} />
           {c.names.map((name, i) => (
             <Line
               key={c.entries[i]}
@@ -152,7 +152,7 @@ export function EvolutionChart({
           {c.folded > 0 ? (
             <Line
               dataKey="others"
-              name={`all ${c.folded} others`}
+              name={c.folded === 1 ? '1 other entry' : `${c.folded} other entries together`}
               type="monotone"
               dot={false}
               isAnimationActive={false}

@@ -96,7 +96,7 @@ export function LeagueEntryEditor({
         maxLength={60}
         autoComplete="off"
         error={errors.name}
-        hint="Shown in the ranking and on the big screen, instead of your e-mail address. 1–60 characters."
+        hint="The class sees it in the ranking and on the big screen (never your e-mail address). Your name in the course is filled in; a nickname is fine. 1–60 characters."
       />
 
       {errors.strategy ? (
