@@ -36,6 +36,11 @@ export default [
     route('courses/:courseId/debrief', 'routes/debrief/choose.tsx'),
     route('courses/:courseId/debrief/compare', 'routes/debrief/compare.tsx'),
     route('courses/:courseId/debrief/:sessionId', 'routes/debrief/session.tsx'),
+    // Strategy leagues (issue 15): list, create, one league (entries, close, run, publish), results.
+    route('courses/:courseId/leagues', 'routes/staff/leagues.tsx'),
+    route('courses/:courseId/leagues/new', 'routes/staff/league-new.tsx'),
+    route('courses/:courseId/leagues/:leagueId', 'routes/staff/league.tsx'),
+    route('courses/:courseId/leagues/:leagueId/results', 'routes/staff/league-results.tsx'),
     // How the Debrief's figures are computed; every chart caption links to its section.
     route('methods', 'routes/staff/methods.tsx'),
   ]),
@@ -43,6 +48,8 @@ export default [
   route('courses/:courseId/data/codebook.csv', 'routes/data/codebook.ts'),
   route('courses/:courseId/sessions/:sessionId/credit.csv', 'routes/data/credit.ts'),
   route('courses/:courseId/sessions/:sessionId/result-mails', 'routes/data/result-mails.ts'),
+  route('courses/:courseId/leagues/:leagueId/status', 'routes/data/league-status.ts'),
+  route('courses/:courseId/leagues/:leagueId/export/:file', 'routes/data/league-export.ts'),
 
   // The research API (bearer tokens; JSON errors). Documented in README.md.
   ...prefix('api/v1', [
@@ -52,6 +59,8 @@ export default [
     route('courses/:courseId/estimates', 'routes/api/estimates.ts'),
     route('sessions/:sessionId', 'routes/api/session.ts'),
     route('sessions/:sessionId/panel', 'routes/api/panel.ts'),
+    route('leagues', 'routes/api/leagues.ts'),
+    route('leagues/:leagueId', 'routes/api/league.ts'),
     route('*', 'routes/api/not-found.ts'),
   ]),
 

@@ -5,9 +5,10 @@
 // Exported names (the participant side codes against these):
 //   types   League, LeagueEntry, LeagueSummary, ParticipantLeague, ParticipantLeagueSummary,
 //           SaveEntryResult, LeagueChange, LeagueStatus
-//   staff   listLeagues(courseId), getLeague(courseId, leagueId), createLeague, updateLeague,
+//   staff   listLeagues(courseId), getLeague(courseId, leagueId), leagueCourseId(leagueId) (API scope), createLeague, updateLeague,
 //           setLeagueState(courseId, leagueId, from[], to), startLeagueRun, leagueStatus,
-//           addHouseEntry, removeEntry, listEntries(leagueId), entryAutomaton(entry)
+//           addHouseEntry, removeEntry, listEntries(leagueId), entryAutomaton(entry),
+//           classEstimates(courseId), setComparisonSession
 //   phones  leaguesForParticipant(userId), participantLeague(leagueId, userId),
 //           saveEntry(leagueId, userId, { name, automaton })
 //   job     leagueRunJob (registered in app/jobs/all.server.ts), computeLeagueResults (pure, tested)
@@ -32,8 +33,11 @@ import {
 } from '#app/lib/league-design';
 import { readStrategyFile, type StrategyFile, toStrategyFile } from '#app/lib/strategy-file';
 import { db } from '#app/utils/db.server';
-import { courseMembers, courses, leagueEntries, leagues, users } from '#drizzle/schema';
+import { estimateRequestSchema } from '#app/utils/estimate-form';
+import { courseMembers, courses, estimates, leagueEntries, leagues, users } from '#drizzle/schema';
 import { memberName } from './course.server';
+import type { EstimateResult } from './estimate.server';
+import { getCourseSessions, listCourseSessions } from './panel.server';
 
 // ---------------------------------------------------------------------------------------------
 // Rows
@@ -140,6 +144,12 @@ export async function getLeague(courseId: number, leagueId: number): Promise<Lea
     .from(leagues)
     .where(and(eq(leagues.courseId, courseId), eq(leagues.id, leagueId)));
   return r ? toLeague(r) : null;
+}
+
+/** The course a league belongs to (the API checks the token's scope on it before reading the league). */
+export async function leagueCourseId(leagueId: number): Promise<number | null> {
+  const [r] = await db().select({ courseId: leagues.courseId }).from(leagues).where(eq(leagues.id, leagueId));
+  return r?.courseId ?? null;
 }
 
 export interface LeagueInput {
@@ -272,6 +282,74 @@ export async function removeEntry(
 }
 
 // ---------------------------------------------------------------------------------------------
+// The class beside the league: a session's strategy-frequency estimate
+
+export interface ClassEstimate {
+  sessionId: number;
+  sessionName: string;
+  simulated: boolean;
+  estimateId: number;
+  window: string;
+  strategies: string[];
+  shares: number[];
+  beta: number;
+  /** 1 − β, used as the execution error of the comparison */
+  errorProbability: number;
+  subjects: number;
+  /** the session's own payoffs and δ (the comparison values strategies at the league's) */
+  payoffs: { R: number; S: number; T: number; P: number };
+  delta: number;
+}
+
+/**
+ * Sessions of the course with a finished strategy-frequency estimate of that session alone, the
+ * newest estimate of each, newest session first.
+ */
+export async function classEstimates(courseId: number): Promise<ClassEstimate[]> {
+  const sessions = new Map((await listCourseSessions(courseId)).map((s) => [s.id, s]));
+  const rows = await db()
+    .select({ id: estimates.id, request: estimates.request, result: estimates.result })
+    .from(estimates)
+    .where(and(eq(estimates.courseId, courseId), eq(estimates.status, 'done')))
+    .orderBy(desc(estimates.id))
+    .limit(500);
+  const out = new Map<number, ClassEstimate>();
+  for (const r of rows) {
+    const req = estimateRequestSchema.safeParse(r.request);
+    if (!req.success || req.data.source.kind !== 'sessions' || req.data.source.sessionIds.length !== 1) continue;
+    const sessionId = req.data.source.sessionIds[0];
+    const s = sessions.get(sessionId);
+    const g = (r.result as EstimateResult | null)?.groups?.[0];
+    if (!s || !g || out.has(sessionId)) continue;
+    out.set(sessionId, {
+      sessionId,
+      sessionName: s.treatment,
+      simulated: s.simulated,
+      estimateId: r.id,
+      window: req.data.window,
+      strategies: g.strategies,
+      shares: g.shares,
+      beta: g.beta,
+      errorProbability: g.errorProbability,
+      subjects: g.subjects,
+      payoffs: s.design.payoffs,
+      delta: s.design.delta,
+    });
+  }
+  return [...out.values()].sort((a, b) => b.sessionId - a.sessionId);
+}
+
+/** Keeps the session the results page compares with (null: none). False: no such league or session in the course. */
+export async function setComparisonSession(courseId: number, leagueId: number, sessionId: number | null): Promise<boolean> {
+  if (sessionId !== null && (await getCourseSessions(courseId, [sessionId])).length === 0) return false;
+  const [res] = await db()
+    .update(leagues)
+    .set({ comparisonSessionId: sessionId })
+    .where(and(eq(leagues.courseId, courseId), eq(leagues.id, leagueId)));
+  return res.affectedRows === 1;
+}
+
+// ---------------------------------------------------------------------------------------------
 // Participants
 
 export interface ParticipantLeagueSummary {
@@ -397,7 +475,8 @@ export async function saveEntry(leagueId: number, userId: number, input: { name:
   if (issues.length) return { ok: false, reason: 'invalid', issues };
   // only the fields we know are kept (an automaton from a form may carry anything else)
   const automaton: Automaton = {
-    id: `entry-${userId}`,
+    // the file's id says nothing of the person; exports name it E<entry id> (app/lib/league-export.ts)
+    id: 'entry',
     name: name.data!,
     states: (states as Automaton['states']).map((s) => ({
       action: s.action,

@@ -40,6 +40,9 @@ export default function CoursePage({ loaderData }: Route.ComponentProps) {
         <ButtonLink to={`/courses/${course.id}/debrief`} variant="secondary">
           Debrief
         </ButtonLink>
+        <ButtonLink to={`/courses/${course.id}/leagues`} variant="secondary">
+          Strategy leagues
+        </ButtonLink>
         {canSeeMembers ? (
           <ButtonLink to={`/courses/${course.id}/members`} variant="secondary">
             Members

@@ -1,0 +1,190 @@
+// A league's results for staff: the ranking (TanStack Table), the pairwise per-round values as a
+// heat-map table (numbers always shown; colour is extra), the evolution chart (recharts) with the
+// background fitness in words, the survivors, and the class comparison. Sources in the captions:
+// Axelrod (1984) for the tournament, Taylor & Jonker (1978) for the replicator dynamics,
+// Dal Bó & Fréchette (2011) for strategy-frequency estimation.
+import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import { DataTable, staffColumnHelper } from './data-table';
+import { cx } from './ui';
+
+export interface RankedRow {
+  index: number;
+  rank: number;
+  name: string;
+  house: boolean;
+  score: number;
+  simScore: number | null;
+  simSe: number | null;
+  finalShare: number;
+}
+
+const fmt = (x: number, d = 3) => x.toFixed(d);
+const pct = (x: number, d = 1) => `${(100 * x).toFixed(d)} %`;
+
+export function RankingTable({ rows, simulated }: { rows: RankedRow[]; simulated: boolean }) {
+  const col = staffColumnHelper<RankedRow>();
+  const columns = col.columns([
+    col.accessor('rank', { header: 'Rank', meta: { align: 'right' } }),
+    col.accessor('name', {
+      header: 'Entry',
+      cell: (i) => (
+        <span className="font-semibold">
+          {i.getValue()}
+          {i.row.original.house ? (
+            <span className="ml-2 rounded border border-slate-300 bg-slate-50 px-1.5 py-0.5 text-xs font-semibold">
+              <span aria-hidden="true">⌂ </span>House
+            </span>
+          ) : null}
+        </span>
+      ),
+    }),
+    col.accessor('score', { header: 'Mean per round (exact)', cell: (i) => fmt(i.getValue()), meta: { align: 'right' } }),
+    ...(simulated
+      ? [
+          col.accessor((r) => r.simScore ?? 0, {
+            id: 'sim',
+            header: 'Simulated mean ± SE',
+            cell: (i) => `${fmt(i.row.original.simScore ?? 0)} ± ${fmt(i.row.original.simSe ?? 0)}`,
+            meta: { align: 'right' },
+          }),
+        ]
+      : []),
+    col.accessor('finalShare', { header: 'Share after evolution', cell: (i) => pct(i.getValue()), meta: { align: 'right' } }),
+  ]);
+  return (
+    <DataTable
+      columns={columns}
+      data={rows}
+      caption="Ranking of the entries"
+      filterLabel="Filter entries"
+      initialSorting={[{ id: 'rank', desc: false }]}
+    />
+  );
+}
+
+/** Background of a heat-map cell: darker teal for higher values; the number is always printed. */
+function heat(v: number, lo: number, hi: number) {
+  const t = hi > lo ? Math.min(1, Math.max(0, (v - lo) / (hi - lo))) : 0.5;
+  const lightness = 96 - 62 * t;
+  return { background: `hsl(183 45% ${lightness}%)`, color: lightness < 58 ? '#fff' : '#0f172a' };
+}
+
+export function HeatMapTable({
+  names,
+  order,
+  perRound,
+  lo,
+  hi,
+}: {
+  names: string[];
+  /** entry indices in the order shown (the ranking) */
+  order: number[];
+  perRound: number[][];
+  lo: number;
+  hi: number;
+}) {
+  return (
+    <div className="max-h-[36rem] overflow-auto rounded-lg border border-slate-200 bg-white">
+      <table className="border-collapse text-sm" data-testid="league-matrix">
+        <caption className="sr-only">
+          Per-round payoff of the row entry against the column entry; each entry also meets a copy of itself (the diagonal).
+        </caption>
+        <thead>
+          <tr>
+            <th scope="col" className="sticky top-0 left-0 z-20 bg-white px-2 py-1 text-left">
+              Row against column →
+            </th>
+            {order.map((j) => (
+              <th key={j} scope="col" className="sticky top-0 z-10 max-w-28 bg-white px-2 py-1 text-left align-bottom font-semibold">
+                <span className="line-clamp-2">{names[j]}</span>
+              </th>
+            ))}
+            <th scope="col" className="sticky top-0 z-10 bg-white px-2 py-1 text-right">
+              Mean
+            </th>
+          </tr>
+        </thead>
+        <tbody>
+          {order.map((i) => (
+            <tr key={i}>
+              <th scope="row" className="sticky left-0 z-10 max-w-48 bg-white px-2 py-1 text-left font-semibold whitespace-nowrap">
+                {names[i]}
+              </th>
+              {order.map((j) => (
+                <td
+                  key={j}
+                  className={cx('num px-2 py-1 text-right', i === j && 'outline outline-1 -outline-offset-2 outline-slate-500')}
+                  style={heat(perRound[i][j], lo, hi)}
+                >
+                  {fmt(perRound[i][j], 2)}
+                </td>
+              ))}
+              <td className="num px-2 py-1 text-right font-semibold">{fmt(perRound[i].reduce((s, v) => s + v, 0) / perRound.length, 3)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+const SERIES = ['#0e5357', '#475569', '#b45309', '#0a3639', '#7c3aed', '#be123c', '#15803d', '#1d4ed8', '#94a3b8'];
+const DASHES = ['', '8 4', '3 3', '12 4 3 4', '2 6', '10 2', '6 2 2 2', '1 3', '4 4'];
+
+/** Shares over generations; at most 8 named lines (the largest at the end), the rest as "all others". */
+export function EvolutionChart({ series, shares }: { series: { name: string; members: number[] }[]; shares: number[][] }) {
+  const data = shares.map((row, g) => {
+    const point: Record<string, number> = { g };
+    series.forEach((s, k) => (point[`s${k}`] = s.members.reduce((sum, m) => sum + row[m], 0)));
+    return point;
+  });
+  return (
+    <ResponsiveContainer width="100%" height="100%">
+      <LineChart data={data} margin={{ top: 8, right: 24, bottom: 8, left: 8 }}>
+        <CartesianGrid stroke="#e2e8f0" />
+        <XAxis
+          dataKey="g"
+          type="number"
+          domain={[0, 'dataMax']}
+          tick={{ fill: '#334155' }}
+          label={{ value: 'generation', position: 'insideBottom', offset: -4, fill: '#334155' }}
+        />
+        <YAxis
+          domain={[0, 1]}
+          ticks={[0, 0.25, 0.5, 0.75, 1]}
+          tickFormatter={(v: number) => `${Math.round(v * 100)} %`}
+          tick={{ fill: '#334155' }}
+        />
+        <Tooltip formatter={(v) => pct(Number(v))} labelFormatter={(g) => `Generation ${g}`} />
+        <Legend verticalAlign="top" />
+        {series.map((s, k) => (
+          <Line
+            key={s.name}
+            dataKey={`s${k}`}
+            name={s.name}
+            stroke={SERIES[k % SERIES.length]}
+            strokeDasharray={DASHES[k % DASHES.length]}
+            strokeWidth={2}
+            dot={false}
+            isAnimationActive={false}
+          />
+        ))}
+      </LineChart>
+    </ResponsiveContainer>
+  );
+}
+
+/** Up to `max` entries with the largest final share, then one series for all the others. */
+export function evolutionSeries(names: string[], finalShares: number[], max = 8) {
+  const order = finalShares.map((s, i) => ({ s, i })).sort((a, b) => b.s - a.s || a.i - b.i);
+  const top = order.slice(0, max).map(({ i }) => ({ name: names[i], members: [i] }));
+  const rest = order.slice(max).map(({ i }) => i);
+  return rest.length ? [...top, { name: `All others (${rest.length})`, members: rest }] : top;
+}
+
+/** The background fitness in words (methods: x' = x(c + f)/(c + f̄)). */
+export function backgroundWords(c: number) {
+  return c === 0
+    ? 'Each generation an entry’s share grows in proportion to its mean payoff against the current population (no background fitness is added: every payoff is positive).'
+    : `Each generation an entry’s share grows in proportion to its mean payoff against the current population plus a background fitness of ${fmt(c, 2)} points, added so that every fitness is positive.`;
+}

@@ -1,0 +1,31 @@
+// GET /api/v1/leagues?course=<id> — a course's strategy leagues (settings, state, entry counts),
+// newest first. Results: /api/v1/leagues/:leagueId.
+import type { Route } from './+types/leagues';
+import { listLeagues } from '#app/models/league.server';
+import { apiFail, apiJson, notAllowed, parseApiId, requireApiCourse, requireApiToken } from '#app/utils/api.server';
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const caller = await requireApiToken(request);
+  const raw = new URL(request.url).searchParams.get('course');
+  if (raw === null) apiFail(400, 'bad_request', 'Name the course: /api/v1/leagues?course=<id>.');
+  const course = await requireApiCourse(caller, parseApiId(raw, 'course'));
+  const leagues = await listLeagues(course.id);
+  return apiJson({
+    data: leagues.map((l) => ({
+      id: l.id,
+      course_id: l.courseId,
+      title: l.title,
+      state: l.state,
+      design: l.design,
+      deadline: l.deadline?.toISOString() ?? null,
+      entries: l.entries,
+      house_entries: l.houseEntries,
+      has_results: l.results !== null,
+      created_at: l.createdAt.toISOString(),
+      run_at: l.runAt?.toISOString() ?? null,
+      published_at: l.publishedAt?.toISOString() ?? null,
+    })),
+  });
+}
+
+export const action = notAllowed;
