@@ -129,6 +129,8 @@ describe('a strategy league, in Chromium', () => {
     await staff.getByRole('button', { name: 'Run the league' }).click();
     await expect.poll(() => staff.getByTestId('league-run-status').getAttribute('data-status'), { timeout: 60_000 }).toBe('done');
     await staff.reload();
+    // The staff page links to the reveal.
+    expect(await staff.getByRole('link', { name: 'Reveal on the big screen' }).getAttribute('href')).toBe(`${base}/reveal`);
 
     // The phone now says entries are closed (the editor is gone).
     await p1.reload();
