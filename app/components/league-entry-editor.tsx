@@ -1,4 +1,4 @@
-import { useId, useState } from 'react';
+import { type ReactNode, useId, useState } from 'react';
 import { type Automaton, LIBRARY, PROFILES } from '#app/lib/automata';
 import type { AutomatonIssue } from '#app/lib/automaton-check';
 import { LEAGUE_MAX_STATES, leagueEntryIssues } from '#app/lib/league';
@@ -20,6 +20,14 @@ export function blankStrategy(): Automaton {
   return { id: 'mine', name: 'My strategy', states: [{ action: 'C', next: { cc: 0, cd: 0, dc: 0, dd: 0 } }] };
 }
 
+/** Whether two automata are the same state table (names and ids aside). */
+export function sameStates(a: Automaton, b: Automaton) {
+  return (
+    a.states.length === b.states.length &&
+    a.states.every((s, i) => s.action === b.states[i].action && PROFILES.every((p) => s.next[p] === b.states[i].next[p]))
+  );
+}
+
 /** A deep copy of a library strategy, so edits never touch the library. */
 function copyOf(a: Automaton): Automaton {
   return { id: a.id, name: a.name, states: a.states.map((s) => ({ action: s.action, next: { ...s.next } })) };
@@ -27,13 +35,7 @@ function copyOf(a: Automaton): Automaton {
 
 /** The library strategy this automaton is, state for state (its words are then the library's own), or null. */
 export function libraryMatch(a: Automaton): Automaton | null {
-  return (
-    LIBRARY.find(
-      (l) =>
-        l.states.length === a.states.length &&
-        l.states.every((s, i) => s.action === a.states[i].action && PROFILES.every((p) => s.next[p] === a.states[i].next[p])),
-    ) ?? null
-  );
+  return LIBRARY.find((l) => sameStates(l, a)) ?? null;
 }
 
 /** The problems that belong to state i (paths `states[i]…`), and those that belong to the whole strategy. */
@@ -68,16 +70,24 @@ export function LeagueEntryEditor({
   delta,
   defaultName = '',
   defaultStrategy,
+  saved = null,
   errors = {},
+  submit,
 }: {
   game: StageGame;
   delta: number;
   defaultName?: string;
   /** the saved (or just posted) strategy; none: the participant picks a starting point first */
   defaultStrategy?: Automaton | null;
+  /** the entry as stored, if any: the editor says when what is on screen differs from it */
+  saved?: { name: string; automaton: Automaton } | null;
   errors?: LeagueEntryErrors;
+  /** the save button, shown once there is a strategy to save */
+  submit?: ReactNode;
 }) {
   const [strategy, setStrategy] = useState<Automaton | null>(defaultStrategy ? copyOf(defaultStrategy) : null);
+  const [name, setName] = useState(defaultName);
+  const changed = strategy !== null && (saved === null || saved.name !== name.trim() || !sameStates(saved.automaton, strategy));
   const [startedFrom, setStartedFrom] = useState<string | null>(null);
   const pickId = useId();
   const issues = strategy ? leagueEntryIssues(strategy) : [];
@@ -92,7 +102,8 @@ export function LeagueEntryEditor({
       <TextField
         label="Your entry's name"
         name="name"
-        defaultValue={defaultName}
+        value={name}
+        onChange={(e) => setName(e.target.value)}
         maxLength={60}
         autoComplete="off"
         error={errors.name}
@@ -202,6 +213,13 @@ export function LeagueEntryEditor({
             </h2>
             <StrategyPreview strategy={strategy} game={game} delta={delta} rounds={8} />
           </section>
+          {changed ? (
+            <p role="status" data-testid="unsaved" className="font-semibold text-slate-800">
+              <span aria-hidden="true">● </span>
+              {saved ? 'You have changes that are not saved yet.' : 'Not entered yet: save to enter this strategy.'}
+            </p>
+          ) : null}
+          {submit}
         </section>
       ) : (
         <p className="text-slate-600">Pick a starting point above: a blank strategy or one from the literature.</p>

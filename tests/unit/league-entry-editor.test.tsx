@@ -29,7 +29,7 @@ describe('LeagueEntryEditor', () => {
     // Nothing is posted before a starting point is picked.
     expect(container.querySelector('input[name=strategy]')).toBeNull();
     fireEvent.click(screen.getByRole('button', { name: /Tit-for-tat · TFT/ }));
-    expect(screen.getByRole('status').textContent).toContain('Started from Tit-for-tat (TFT)');
+    expect(screen.getByText(/^Started from/).textContent).toContain('Started from Tit-for-tat (TFT)');
     // Source: common practice (TFT opens with C, then copies the partner's last action).
     expect(screen.getByTestId('entry-words').textContent).toContain('starts with C and then copies what you did last round');
     const preview = screen.getByTestId('strategy-preview');
@@ -109,6 +109,26 @@ describe('LeagueEntryEditor', () => {
     fireEvent.click(screen.getByRole('button', { name: /Tit-for-tat · TFT/ }));
     fireEvent.click(screen.getByRole('button', { name: /Start here/ }));
     expect(libraryMatch(posted(container))?.id).toBe('STFT');
+  });
+
+  it('shows the save button once there is a strategy, and says when what is on screen is not saved', () => {
+    render(<LeagueEntryEditor game={DBF48} delta={0.75} submit={<button type="submit">Save</button>} />);
+    expect(screen.queryByRole('button', { name: 'Save' })).toBeNull();
+    fireEvent.click(screen.getByRole('button', { name: /Tit-for-tat · TFT/ }));
+    expect(screen.getByRole('button', { name: 'Save' })).toBeTruthy();
+    expect(screen.getByTestId('unsaved').textContent).toContain('Not entered yet');
+    cleanup();
+
+    const saved = { name: 'Patient', automaton: libraryStrategy('TF2T') };
+    const props = { game: DBF48, delta: 0.75, defaultName: 'Patient', defaultStrategy: libraryStrategy('TF2T'), saved };
+    render(<LeagueEntryEditor {...props} />);
+    expect(screen.queryByTestId('unsaved')).toBeNull();
+    fireEvent.change(select('State 3 plays'), { target: { value: 'C' } });
+    expect(screen.getByTestId('unsaved').textContent).toContain('changes that are not saved yet');
+    fireEvent.change(select('State 3 plays'), { target: { value: 'D' } });
+    expect(screen.queryByTestId('unsaved')).toBeNull();
+    fireEvent.change(screen.getByLabelText("Your entry's name"), { target: { value: 'Very patient' } });
+    expect(screen.getByTestId('unsaved')).toBeTruthy();
   });
 
   it('sorts problems to their state or to the whole strategy', () => {

@@ -173,11 +173,14 @@ export default function LeaguePage({ loaderData, actionData }: Route.ComponentPr
             delta={league.delta}
             defaultName={entry?.name ?? defaultName}
             defaultStrategy={entry?.automaton}
+            saved={entry ? { name: entry.name, automaton: entry.automaton } : null}
             errors={errors}
+            submit={
+              <Button type="submit" className="min-h-14 text-lg" disabled={saving}>
+                {saving ? 'Saving…' : entry ? 'Save changes' : 'Enter this strategy'}
+              </Button>
+            }
           />
-          <Button type="submit" className="min-h-14 text-lg" disabled={saving}>
-            {saving ? 'Saving…' : entry ? 'Save changes' : 'Enter this strategy'}
-          </Button>
         </Form>
       ) : (
         <>
