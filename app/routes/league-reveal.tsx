@@ -4,7 +4,9 @@
 import type { Route } from './+types/league-reveal';
 import { LeagueReveal } from '#app/components/big-screen/league-reveal';
 import { compactEvolution } from '#app/components/league-charts';
-import { getLeague } from '#app/models/league.server';
+import { LIBRARY, libraryStrategy } from '#app/lib/automata';
+import { classComparison } from '#app/lib/league';
+import { classEstimates, entryAutomaton, getLeague } from '#app/models/league.server';
 import { parseId, respond, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
 
@@ -18,7 +20,33 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const r = league.results;
   const names = r.entries.map((e) => e.name);
   const { payoffs: p, delta, epsilon } = r.design;
+  // The class beside the league, when the league keeps a session with an estimate (staff results page).
+  const chosen = league.comparisonSessionId
+    ? ((await classEstimates(course.id)).find((e) => e.sessionId === league.comparisonSessionId) ?? null)
+    : null;
+  let classSlide = null;
+  if (chosen) {
+    const c = classComparison(
+      { strategies: chosen.strategies, shares: chosen.shares, errorProbability: chosen.errorProbability },
+      r.entries.map((e) => entryAutomaton(e)),
+      p,
+      delta,
+      r.design.generations,
+      libraryStrategy,
+    );
+    classSlide = {
+      session: `${chosen.sessionName}, session ${chosen.sessionId}`,
+      simulated: chosen.simulated,
+      subjects: chosen.subjects,
+      errorProbability: chosen.errorProbability,
+      mix: chosen.strategies
+        .map((id, k) => ({ id, name: LIBRARY.find((a) => a.id === id)?.name ?? id, share: chosen.shares[k] }))
+        .sort((a, b) => b.share - a.share),
+      entries: names.map((name, k) => ({ name, value: c.entriesAgainstMix[k] })).sort((a, b) => b.value - a.value),
+    };
+  }
   return {
+    classSlide,
     course: { id: course.id, isDemo: course.isDemo },
     league: { id: league.id, title: league.title },
     entries: r.standings.map((s) => ({ rank: s.rank, name: names[s.entry], score: s.score, house: r.entries[s.entry].house })),
@@ -33,7 +61,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 const BASE_FONT = 'clamp(16px, min(1.55vw, 2.8vh), 40px)';
 
 export default function LeagueRevealPage({ loaderData }: Route.ComponentProps) {
-  const { course, league, entries, evolution, background, survivors, settings } = loaderData;
+  const { course, league, entries, evolution, background, survivors, settings, classSlide } = loaderData;
   return (
     <main className="min-h-dvh w-full bg-slate-950 text-slate-50" style={{ fontSize: BASE_FONT }} data-theme="dark">
       <LeagueReveal
@@ -43,6 +71,7 @@ export default function LeagueRevealPage({ loaderData }: Route.ComponentProps) {
         background={background}
         survivors={survivors}
         settings={settings}
+        classSlide={classSlide}
         simulated={course.isDemo}
       />
     </main>

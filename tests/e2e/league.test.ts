@@ -155,6 +155,9 @@ describe('a strategy league, in Chromium', () => {
     await expect.poll(() => results.getByTestId('league-comparison').isVisible()).toBe(true);
     for (const e of expected) expect(await results.textContent('body')).toContain(e.name);
     await shot(results, 'results-desktop');
+    // Kept with the league, the comparison becomes the reveal's last slide.
+    await results.getByRole('button', { name: 'Keep this comparison with the league' }).click();
+    await expect.poll(() => results.getByText('This comparison is kept with the league.').isVisible()).toBe(true);
     const resultsPhone = await pageAs(browser, instructor, `${base}/results?session=${demo.id}`, PHONE);
     await expect.poll(() => resultsPhone.getByTestId('league-comparison').isVisible()).toBe(true);
     await shot(resultsPhone, 'results-phone');
@@ -178,6 +181,11 @@ describe('a strategy league, in Chromium', () => {
     expect(await reveal.textContent('body')).toContain('Still there at the end');
     expect(await reveal.textContent('body')).not.toContain('@halvorsen.example');
     await shot(reveal, 'reveal-evolution-desktop');
+    await reveal.keyboard.press('ArrowRight');
+    await expect.poll(() => reveal.getByTestId('reveal-class').isVisible()).toBe(true);
+    expect(await reveal.getByTestId('reveal-class').textContent()).toContain(`session ${demo.id}`);
+    for (const name of names) expect(await reveal.getByTestId('reveal-class').textContent()).toContain(name);
+    await shot(reveal, 'reveal-class-desktop');
     const revealPhone = await pageAs(browser, instructor, `${base}/reveal`, PHONE);
     await revealPhone.getByRole('button', { name: /Next/ }).click();
     await revealPhone.getByRole('button', { name: /Next/ }).click();

@@ -101,6 +101,48 @@ describe('LeagueReveal', () => {
   });
 });
 
+describe('the class slide', () => {
+  it('comes after the evolution when the league keeps a session estimate: the mix, and the entries against it', () => {
+    const classSlide = {
+      session: 'Short horizon, session 1',
+      simulated: true,
+      subjects: 40,
+      errorProbability: 0.055,
+      mix: [
+        { id: 'ALLD', name: 'Always defect', share: 0.625 },
+        { id: 'TFT', name: 'Tit-for-tat', share: 0.314 },
+        { id: 'WSLS', name: 'Win-stay, lose-shift', share: 0.001 },
+      ],
+      entries: [
+        { name: 'Grim', value: 1.536 },
+        { name: 'ALLD', value: 1.426 },
+      ],
+    };
+    expect(revealStep(6, 4)).toEqual({ kind: 'class' });
+    render(
+      <LeagueReveal
+        title="L"
+        entries={ranked}
+        evolution={evolution}
+        settings=""
+        background={0}
+        survivors={alive}
+        classSlide={classSlide}
+      />,
+    );
+    for (let k = 0; k < 6; k++) key('ArrowRight');
+    const slide = screen.getByTestId('reveal-class');
+    expect(slide.textContent).toContain('Always defect');
+    expect(slide.textContent).toContain('63 %');
+    // Shares under 0.5 % are left out of the projected list.
+    expect(slide.textContent).not.toContain('Win-stay');
+    expect(slide.textContent).toContain('simulated demo data');
+    expect(slide.textContent).toContain('not a count of people');
+    expect(slide.textContent).toMatch(/1\s*Grim\s*1\.54/);
+    expect(screen.getByTestId('reveal-position').textContent).toBe('6 / 6');
+  });
+});
+
 describe('compact evolution', () => {
   it('keeps the largest final shares as lines and sums the rest into one column', () => {
     const names = ['a', 'b', 'c', 'd'];

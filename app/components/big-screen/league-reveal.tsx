@@ -26,9 +26,27 @@ export const REVEAL_ROWS = 8;
 
 const points = (x: number) => x.toFixed(2);
 
-/** What step s shows: 0 the title, 1…n the bottom s entries, n + 1 the evolution chart. */
+/**
+ * The class beside the league: a session's estimated strategy mix, and what the league's entries
+ * would earn against it (the estimate's error rate as execution error).
+ */
+export interface ClassSlide {
+  /** the session in words: "Short horizon (δ = 1/2), session 1" */
+  session: string;
+  simulated: boolean;
+  subjects: number;
+  /** estimated shares, largest first (library strategies by name) */
+  mix: { id: string; name: string; share: number }[];
+  /** 1 − β */
+  errorProbability: number;
+  /** league entries against the class's mix, best first */
+  entries: { name: string; value: number }[];
+}
+
+/** What step s shows: 0 the title, 1…n the bottom s entries, n + 1 the evolution chart, n + 2 the class (when there is one). */
 export function revealStep(step: number, n: number) {
   if (step <= 0) return { kind: 'title' as const };
+  if (step > n + 1) return { kind: 'class' as const };
   if (step > n) return { kind: 'evolution' as const };
   // entries are best first: step s reveals the last s of them
   return { kind: 'ranking' as const, from: n - step };
@@ -41,6 +59,7 @@ export function LeagueReveal({
   settings,
   background,
   survivors,
+  classSlide = null,
   simulated = false,
 }: {
   title: string;
@@ -53,10 +72,12 @@ export function LeagueReveal({
   settings: string;
   /** the replicator's background fitness, stated under the chart */
   background: number;
+  /** the class beside the league, shown last (the league kept a session with an estimate) */
+  classSlide?: ClassSlide | null;
   simulated?: boolean;
 }) {
   const n = entries.length;
-  const last = n + 1;
+  const last = classSlide ? n + 2 : n + 1;
   const [step, setStep] = useState(0);
   const go = useCallback((d: number) => setStep((s) => Math.min(last, Math.max(0, s + d))), [last]);
   useEffect(() => {
@@ -169,7 +190,64 @@ export function LeagueReveal({
           </p>
         </section>
       ) : null}
+      {view.kind === 'class' && classSlide ? <ClassView c={classSlide} /> : null}
       <p className="text-slate-400">Keys: → next, ← back.</p>
     </div>
+  );
+}
+
+function ClassView({ c }: { c: ClassSlide }) {
+  const shown = c.mix.filter((m) => m.share >= 0.005);
+  return (
+    <section aria-labelledby="reveal-class" className="flex flex-1 flex-col gap-[0.6em]" data-testid="reveal-class">
+      <h1 id="reveal-class" className="text-[2em] font-bold">
+        And how did the class play?
+      </h1>
+      <p className="text-[1.1em] text-slate-300">
+        Strategies estimated from the choices in {c.session} ({c.subjects} participants
+        {c.simulated ? ', simulated demo data' : ''}; strategy-frequency estimation, Dal Bó &amp; Fréchette 2011). An estimate, with its own
+        uncertainty: the shares are the most likely mix, not a count of people.
+      </p>
+      <div className="grid flex-1 gap-[1em] lg:grid-cols-2">
+        <div className="flex flex-col gap-[0.3em]">
+          <h2 className="text-[1.3em] font-semibold">The class&apos;s estimated mix</h2>
+          <ol className="flex flex-col gap-[0.25em]">
+            {shown.map((m) => (
+              <li key={m.id} className="grid grid-cols-[minmax(0,1fr)_auto] items-center gap-[0.6em]">
+                <span className="relative overflow-hidden rounded bg-slate-900 px-[0.4em] py-[0.15em]">
+                  <span
+                    aria-hidden="true"
+                    className="absolute inset-y-0 left-0 bg-accent-800"
+                    style={{ width: `${Math.round(m.share * 100)}%` }}
+                  />
+                  <span className="relative text-[1.3em] font-semibold">{m.name}</span>
+                </span>
+                <span className="num text-[1.5em] font-bold">{sharePct(m.share)}</span>
+              </li>
+            ))}
+          </ol>
+        </div>
+        <div className="flex flex-col gap-[0.3em]">
+          <h2 className="text-[1.3em] font-semibold">League entries in that population</h2>
+          <p className="text-slate-300">
+            Points per round against the class&apos;s mix, each intended move flipped with probability {c.errorProbability.toFixed(3)} (the
+            estimate&apos;s error rate).
+          </p>
+          <ol className="flex flex-col gap-[0.25em]">
+            {c.entries.slice(0, 6).map((e, k) => (
+              <li
+                key={k}
+                className="grid grid-cols-[2em_minmax(0,1fr)_auto] items-baseline gap-[0.5em] rounded bg-slate-900 px-[0.5em] py-[0.15em]"
+              >
+                <span className="num text-[1.3em] font-bold">{k + 1}</span>
+                <span className="truncate text-[1.3em] font-semibold">{e.name}</span>
+                <span className="num text-[1.4em] font-bold">{points(e.value)}</span>
+              </li>
+            ))}
+          </ol>
+          {c.entries.length > 6 ? <p className="text-slate-400">and {c.entries.length - 6} more</p> : null}
+        </div>
+      </div>
+    </section>
   );
 }
