@@ -31,7 +31,7 @@ export function RankingTable({ rows, simulated }: { rows: RankedRow[]; simulated
         <span className="font-semibold">
           {i.getValue()}
           {i.row.original.house ? (
-            <span className="ml-2 rounded border border-slate-300 bg-slate-50 px-1.5 py-0.5 text-xs font-semibold">
+            <span className="ml-2 inline-block rounded border border-slate-300 bg-slate-50 px-1.5 py-0.5 text-xs font-semibold whitespace-nowrap">
               <span aria-hidden="true">⌂ </span>House
             </span>
           ) : null}

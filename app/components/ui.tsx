@@ -97,7 +97,7 @@ export function SelectField({
         aria-invalid={error ? true : undefined}
         aria-describedby={error ? `${id}-error` : undefined}
         {...select}
-        className="min-h-11 rounded-lg border border-slate-300 bg-white px-3 py-2 text-base"
+        className="min-h-11 max-w-full rounded-lg border border-slate-300 bg-white px-3 py-2 text-base"
       >
         {options.map((o) => (
           <option key={o.value} value={o.value}>

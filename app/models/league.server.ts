@@ -580,7 +580,8 @@ export async function startLeagueRun(courseId: number, leagueId: number): Promis
         ),
       );
     if (res.affectedRows === 0) return false;
-    await enqueue(leagueRunJob, { leagueId }, { courseId, key: `league-run:${leagueId}`, tx });
+    // `again`: a run still going on older entries (the league was reopened and closed since) runs once more
+    await enqueue(leagueRunJob, { leagueId }, { courseId, key: `league-run:${leagueId}`, again: true, tx });
     return true;
   });
   const now = (await getLeague(courseId, leagueId))!;
@@ -637,13 +638,16 @@ async function runLeague(leagueId: number): Promise<void> {
   if (!row || (row.state !== 'closed' && row.state !== 'run')) return;
   const entries = await listEntries(leagueId);
   const n = entries.length;
-  await db()
+  // (conditional: a league reopened since it was queued is not marked running)
+  const [started] = await db()
     .update(leagues)
     .set({ runStatus: 'running', runProgress: 0, runTotal: (n * (n + 1)) / 2 })
-    .where(eq(leagues.id, leagueId));
+    .where(and(eq(leagues.id, leagueId), inArray(leagues.state, ['closed', 'run']), inArray(leagues.runStatus, ['queued', 'running'])));
+  if (started.affectedRows === 0) return;
   const snapshot: ResultEntry[] = entries.map((e) => ({ entryId: e.id, name: e.name, house: e.house, strategy: e.strategy }));
   const results = computeLeagueResults(row.design, snapshot);
-  // The run stores its results only if the league was not reopened meanwhile.
+  // The run stores its results only if the league was not reopened (or queued anew) meanwhile:
+  // a newer request set the status back to queued, and runs again after this one (enqueue's `again`).
   await db()
     .update(leagues)
     .set({
@@ -654,5 +658,5 @@ async function runLeague(leagueId: number): Promise<void> {
       runProgress: (n * (n + 1)) / 2,
       runError: null,
     })
-    .where(and(eq(leagues.id, leagueId), inArray(leagues.state, ['closed', 'run'])));
+    .where(and(eq(leagues.id, leagueId), inArray(leagues.state, ['closed', 'run']), eq(leagues.runStatus, 'running')));
 }

@@ -10,7 +10,7 @@ import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, createDesign, join, openSession } from '#tests/helpers/live';
 import { libraryStrategy } from '#app/lib/automata';
 import { AXELROD_PAYOFFS } from '#app/lib/league-design';
-import { addHouseEntry, createLeague, leagueStatus, saveEntry, setLeagueState, startLeagueRun } from '#app/models/league.server';
+import { addHouseEntry, createLeague, getLeague, leagueStatus, saveEntry, setLeagueState, startLeagueRun } from '#app/models/league.server';
 import { closeDb } from '#app/utils/db.server';
 
 const AXE = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
@@ -26,6 +26,7 @@ const world = {} as {
   designId: number;
   sessionId: number;
   code: string;
+  leagueId: number;
   instructor: Client;
   assistant: Client;
   participant: Client;
@@ -63,6 +64,19 @@ beforeAll(async () => {
     signIn(part),
     signIn(newcomer),
   ]);
+  // a strategy league that has run: its staff pages, results included
+  const league = await createLeague(world.courseId, instId, {
+    title: 'Accessible league',
+    design: { payoffs: { ...AXELROD_PAYOFFS }, delta: 0.9, epsilon: 0.01, matches: 4, generations: 30, seed: 1 },
+    deadline: null,
+  });
+  world.leagueId = league.id;
+  for (const s of ['TFT', 'ALLD', 'Grim']) await addHouseEntry(world.courseId, league.id, s);
+  await saveEntry(league.id, partId, { name: 'Team A', automaton: libraryStrategy('WSLS') });
+  await setLeagueState(world.courseId, league.id, ['open'], 'closed');
+  await startLeagueRun(world.courseId, league.id);
+  for (let t = 0; t < 300 && (await getLeague(world.courseId, league.id))?.runStatus !== 'done'; t++)
+    await new Promise((r) => setTimeout(r, 100));
   const opened = await openSession(world.instructor, world.courseId, world.designId);
   world.sessionId = opened.sessionId;
   world.code = opened.code;
@@ -187,6 +201,10 @@ describe('axe-core, WCAG 2.1 AA, every page at desktop and phone sizes', () => {
       `/courses/${c}/data`,
       `/courses/${c}/roster`,
       `/courses/${c}/datasets`,
+      `/courses/${c}/leagues`,
+      `/courses/${c}/leagues/new`,
+      `/courses/${c}/leagues/${world.leagueId}`,
+      `/courses/${c}/leagues/${world.leagueId}/results`,
       '/settings/tokens',
       '/account',
       // not found inside the staff shell: a course that does not exist

@@ -88,6 +88,7 @@ describe('a participant', () => {
       { intent: 'publish' },
       { intent: 'add-house', strategyId: 'ALLC' },
       { intent: 'remove', entryId: entriesBefore[0].id },
+      { intent: 'deadline', deadline: '2020-01-01T00:00', tz: 0 },
     ]) {
       const res = await student.post(`/courses/${courseA}/leagues/${leagueA}`, fields);
       expect(res.status, String(fields.intent)).toBe(403);
@@ -141,6 +142,25 @@ describe('forged ids', () => {
     expect(removed.status).toBe(404);
     const junk = await instructor.post(`/courses/${courseA}/leagues/${leagueA}`, { intent: 'explode' });
     expect(junk.status).toBe(400);
+  });
+});
+
+describe('the instructor', () => {
+  it('changes the deadline only to a time in the future; a bad one changes nothing', async () => {
+    const past = await instructor.post(`/courses/${courseA}/leagues/${leagueA}`, {
+      intent: 'deadline',
+      deadline: '2020-01-01T00:00',
+      tz: 0,
+    });
+    expect(past.status).toBe(400);
+    expect(await past.text()).toContain('The deadline must be in the future.');
+    expect((await getLeague(courseA, leagueA))?.deadline).toBeNull();
+    const next = new Date(Date.now() + 86_400_000).toISOString().slice(0, 16);
+    const ok = await instructor.post(`/courses/${courseA}/leagues/${leagueA}`, { intent: 'deadline', deadline: next, tz: 0 });
+    expect(ok.status).toBe(200);
+    expect((await getLeague(courseA, leagueA))?.deadline?.toISOString().slice(0, 16)).toBe(next);
+    await instructor.post(`/courses/${courseA}/leagues/${leagueA}`, { intent: 'deadline', deadline: '', tz: 0 });
+    expect((await getLeague(courseA, leagueA))?.deadline).toBeNull();
   });
 });
 

@@ -120,7 +120,7 @@ export default function NewLeague({ loaderData, actionData }: Route.ComponentPro
               })),
             ]}
           />
-          <div className="grid grid-cols-2 gap-3 sm:grid-cols-4">
+          <div className="grid grid-cols-2 items-end gap-3 sm:grid-cols-4">
             {field('payoffs.R', 'R — both cooperate')}
             {field('payoffs.S', 'S — cooperate, partner defects')}
             {field('payoffs.T', 'T — defect, partner cooperates')}

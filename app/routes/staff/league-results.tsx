@@ -204,12 +204,16 @@ export default function LeagueResults({ loaderData, actionData }: Route.Componen
       </section>
 
       <section aria-labelledby="evolution" className="mb-8 grid gap-4 lg:grid-cols-[3fr_1fr]">
-        <figure className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4" aria-labelledby="evolution">
+        <figure
+          data-chart="league-evolution"
+          className="flex flex-col gap-2 rounded-lg border border-slate-200 bg-white p-4"
+          aria-labelledby="evolution"
+        >
           <h2 id="evolution" className="text-lg font-semibold">
             Evolution over {design.generations} generations
           </h2>
           <div
-            className="h-80 w-full"
+            className="h-96 w-full sm:h-80"
             role="img"
             aria-label={`Shares of the entries over ${design.generations} generations, starting equal. At the end: ${survivors
               .slice(0, 5)
@@ -220,7 +224,10 @@ export default function LeagueResults({ loaderData, actionData }: Route.Componen
           </div>
           <figcaption className="text-sm text-slate-600">
             Every entry starts with an equal share of the population. {backgroundWords(evolution.background)} (Discrete replicator dynamics,
-            Taylor & Jonker 1978; the ecological tournament of Axelrod 1984, ch. 2.)
+            Taylor & Jonker 1978; the ecological tournament of Axelrod 1984, ch. 2.){' '}
+            <Link to="/methods#league" className="font-semibold text-accent-700 underline underline-offset-4">
+              How this is computed
+            </Link>
           </figcaption>
         </figure>
         <div className="rounded-lg border border-slate-200 bg-white p-4">
@@ -321,6 +328,24 @@ export default function LeagueResults({ loaderData, actionData }: Route.Componen
                   ))}
                 </tbody>
               </table>
+              <figure data-chart="league-class-evolution" className="mt-4" aria-labelledby="class-evolution">
+                <h3 id="class-evolution" className="mb-1 font-semibold">
+                  Evolution from the class’s mix
+                </h3>
+                <div
+                  className="h-64 w-full"
+                  role="img"
+                  aria-label={`Shares of the class's strategies over ${design.generations} generations, starting from the estimated mix. At the end: ${comparison.strategies
+                    .map((s, k) => `${s} ${pct(comparison.lastShares[k])}`)
+                    .join(', ')}.`}
+                >
+                  <EvolutionChart
+                    series={comparison.strategies.map((s, k) => ({ name: s, members: [k] }))}
+                    shares={comparison.evolution.shares}
+                  />
+                </div>
+                <figcaption className="text-sm text-slate-600">{backgroundWords(comparison.evolution.background)}</figcaption>
+              </figure>
               <p className="mt-2 text-sm text-slate-600">
                 The mix earns {f3(comparison.mean)} per round on average. Execution error ε = 1 − β ={' '}
                 {comparison.errorProbability.toFixed(3)}. The evolution starts from the class’s own mix instead of equal shares.

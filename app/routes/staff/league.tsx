@@ -1,14 +1,14 @@
 // One strategy league: its settings, the entries (TanStack Table; house entries labelled), and
 // the instructor's actions: add library strategies as house entries, remove an entry, close
 // entries, reopen, run (a job, polled by a fetcher), publish and unpublish the results.
-import { useEffect } from 'react';
+import { useEffect, useState } from 'react';
 import { data, Form, Link, useFetcher, useNavigation, useRevalidator } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/league';
 import { DataTable, staffColumnHelper } from '#app/components/data-table';
 import { LEAGUE_STATE_WORDS, LeagueStateBadge, RUN_STATUS_WORDS } from '#app/components/league-words';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
-import { Button, ButtonLink, Notice, RowAction, SelectField } from '#app/components/ui';
+import { Button, ButtonLink, Notice, RowAction, SelectField, TextField } from '#app/components/ui';
 import { LIBRARY } from '#app/lib/automata';
 import { LEAGUE_MAX_STATES } from '#app/lib/league';
 import { LEAGUE_MAX_ENTRIES } from '#app/lib/league-design';
@@ -22,10 +22,11 @@ import {
   removeEntry,
   setLeagueState,
   startLeagueRun,
+  updateLeague,
 } from '#app/models/league.server';
 import type { loader as statusLoader } from '#app/routes/data/league-status';
 import { formatDate } from '#app/utils/format';
-import { deltaWarning } from '#app/utils/league-form';
+import { deltaWarning, readDeadline } from '#app/utils/league-form';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 
@@ -73,6 +74,7 @@ const LeagueAction = z.discriminatedUnion('intent', [
   z.object({ intent: z.literal('add-house'), strategyId: z.string().max(24) }),
   z.object({ intent: z.literal('remove'), entryId: z.coerce.number().int().positive() }),
   z.object({ intent: z.enum(['close', 'reopen', 'run', 'publish', 'unpublish']) }),
+  z.object({ intent: z.literal('deadline'), deadline: z.string().max(40), tz: z.string().max(10).optional() }),
 ]);
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -86,6 +88,14 @@ export async function action({ request, params }: Route.ActionArgs) {
     return r.ok ? { ok: true, message: done } : data({ ok: false, message: r.message }, { status: 409 });
   };
   switch (a.intent) {
+    case 'deadline': {
+      const read = readDeadline(new Map(Object.entries({ deadline: a.deadline, tz: a.tz ?? '0' })));
+      if (!read.ok) return data({ ok: false, message: read.message }, { status: 400 });
+      return answer(
+        await updateLeague(course.id, leagueId, { deadline: read.deadline }),
+        read.deadline ? 'Deadline changed.' : 'Deadline removed: entries are taken until you close the league.',
+      );
+    }
     case 'add-house':
       return answer(await addHouseEntry(course.id, leagueId, a.strategyId), 'House entry added.');
     case 'remove':
@@ -123,7 +133,7 @@ function columnsFor(canRemove: boolean) {
       header: 'Entered by',
       cell: (i) =>
         i.row.original.house ? (
-          <span className="rounded border border-slate-300 bg-slate-50 px-1.5 py-0.5 text-sm font-semibold">
+          <span className="inline-block rounded border border-slate-300 bg-slate-50 px-1.5 py-0.5 text-sm font-semibold whitespace-nowrap">
             <span aria-hidden="true">⌂ </span>House
           </span>
         ) : (
@@ -154,6 +164,22 @@ function columnsFor(canRemove: boolean) {
         ]
       : []),
   ]);
+}
+
+/** Change or remove the deadline (in the browser's time zone, as on the new-league form). */
+function DeadlineForm() {
+  const [tz, setTz] = useState('0');
+  useEffect(() => setTz(String(new Date().getTimezoneOffset())), []);
+  return (
+    <Form method="post" className="flex flex-wrap items-end gap-2">
+      <input type="hidden" name="intent" value="deadline" />
+      <input type="hidden" name="tz" value={tz} />
+      <TextField name="deadline" type="datetime-local" label="New deadline" hint="Empty: entries until you close the league." />
+      <Button type="submit" variant="secondary">
+        Set deadline
+      </Button>
+    </Form>
+  );
 }
 
 function ActionButton({
@@ -304,6 +330,7 @@ export default function LeaguePage({ loaderData, actionData }: Route.ComponentPr
           {league.state === 'open' && !league.accepting ? (
             <p className="text-slate-700">The deadline has passed: no more entries are accepted.</p>
           ) : null}
+          {canEdit && changeable ? <DeadlineForm /> : null}
         </div>
       </section>
 
@@ -344,7 +371,7 @@ export default function LeaguePage({ loaderData, actionData }: Route.ComponentPr
         )}
         <p className="mt-3 text-sm text-slate-600">
           House entries are strategies you added from Parley’s library; they are labelled as such in the results.{' '}
-          <Link to="/methods" className="text-accent-700 underline">
+          <Link to="/methods#league" className="text-accent-700 underline">
             How the numbers are computed
           </Link>
         </p>

@@ -30,12 +30,14 @@ function Formula({ children }: { children: ReactNode }) {
 }
 
 const REFERENCES = [
+  'Axelrod, R. (1984). The Evolution of Cooperation. Basic Books.',
   'Blonski, M., Ockenfels, P. & Spagnolo, G. (2011). Equilibrium selection in the repeated prisoner’s dilemma: axiomatic approach and experimental evidence. American Economic Journal: Microeconomics 3(3), 164–192.',
   'Dal Bó, P. & Fréchette, G. R. (2011). The evolution of cooperation in infinitely repeated games: experimental evidence. American Economic Review 101(1), 411–429.',
   'Dal Bó, P. & Fréchette, G. R. (2018). On the determinants of cooperation in infinitely repeated games: a survey. Journal of Economic Literature 56(1), 60–114.',
   'Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman & Hall.',
   'Fréchette, G. R. & Yuksel, S. (2017). Infinitely repeated games in the laboratory: four perspectives on discounting and random termination. Experimental Economics 20(2), 279–308.',
   'Friedman, J. W. (1971). A non-cooperative equilibrium for supergames. Review of Economic Studies 38(1), 1–12.',
+  'Taylor, P. D. & Jonker, L. B. (1978). Evolutionary stable strategies and game dynamics. Mathematical Biosciences 40(1–2), 145–156.',
   'Pearson, K. (1900). On the criterion that a given system of deviations from the probable in the case of a correlated system of variables is such that it can be reasonably supposed to have arisen from random sampling. Philosophical Magazine 50(302), 157–175.',
 ];
 
@@ -50,7 +52,7 @@ export default function Methods() {
       </p>
       <nav aria-label="On this page">
         <ul className="flex flex-wrap gap-x-4 gap-y-1 text-sm">
-          {[['choices', 'Which choices count'], ...Object.entries(CHARTS)].map(([id, title]) => (
+          {[['choices', 'Which choices count'], ...Object.entries(CHARTS), ['league', 'Strategy leagues']].map(([id, title]) => (
             <li key={id}>
               <a href={`#${id}`} className="font-semibold text-accent-700 underline-offset-4 hover:underline">
                 {title}
@@ -171,6 +173,33 @@ export default function Methods() {
           prescribe the same choices and cannot be told apart; read their shares together. Standard errors come from a bootstrap over
           participants within each treatment (Efron &amp; Tibshirani 1993), with the number of replicates B and the seed stated, so the same
           request gives the same answer.
+        </p>
+      </Section>
+
+      <Section id="league" title="Strategy leagues">
+        <p>
+          Each entry is a strategy written as a small automaton: every state says what to play, and after each round the strategy moves to
+          the state its table names for what both players were seen to play. Every entry meets every entry, a copy of itself included, as in
+          Axelrod’s computer tournaments (Axelrod 1984). After each round another follows with probability δ; with execution error ε each
+          intended action is flipped with probability ε.
+        </p>
+        <p>
+          A pair’s expected discounted totals V solve one linear system over the pairs of states the two automata can reach together, so the
+          values are exact: no luck is involved. They are shown per round, (1 − δ)·V, in the points of the payoff table. An entry’s score is
+          its mean over all entries; equal scores share a rank. When the league simulates matches as well, each pair plays that many
+          supergames with random ends and errors from a stated seed, and the standard errors say how far a played tournament of that size
+          could stray from the exact values.
+        </p>
+        <p>
+          The evolution is the discrete replicator dynamics (Taylor &amp; Jonker 1978), Axelrod’s “ecological” tournament: from equal
+          shares, each generation an entry’s share is multiplied by (c + f) ÷ (c + f̄), where f is its mean payoff against the current
+          population, f̄ the population’s mean and c a background fitness (0 when every payoff is positive, otherwise enough to make every
+          fitness positive). Survivors hold at least 0.1 % after the last generation.
+        </p>
+        <p>
+          “Compare with the class” takes a session’s strategy-frequency estimate (Dal Bó &amp; Fréchette 2011; see above): the estimated
+          strategies are valued against each other at the league’s payoffs and δ with execution error 1 − β, each league entry is scored
+          against the estimated mix, and the evolution starts from that mix instead of equal shares.
         </p>
       </Section>
 
