@@ -43,6 +43,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         .map((id, k) => ({ id, name: LIBRARY.find((a) => a.id === id)?.name ?? id, share: chosen.shares[k] }))
         .sort((a, b) => b.share - a.share),
       entries: names.map((name, k) => ({ name, value: c.entriesAgainstMix[k] })).sort((a, b) => b.value - a.value),
+      otherGame:
+        chosen.payoffs.R === p.R &&
+        chosen.payoffs.S === p.S &&
+        chosen.payoffs.T === p.T &&
+        chosen.payoffs.P === p.P &&
+        chosen.delta === delta
+          ? null
+          : `R ${chosen.payoffs.R}, S ${chosen.payoffs.S}, T ${chosen.payoffs.T}, P ${chosen.payoffs.P} and δ = ${chosen.delta}`,
     };
   }
   return {

@@ -117,6 +117,7 @@ describe('the class slide', () => {
         { name: 'Grim', value: 1.536 },
         { name: 'ALLD', value: 1.426 },
       ],
+      otherGame: 'R 40, S 12, T 50, P 25 and δ = 0.5',
     };
     expect(revealStep(6, 4)).toEqual({ kind: 'class' });
     render(
@@ -138,6 +139,9 @@ describe('the class slide', () => {
     expect(slide.textContent).not.toContain('Win-stay');
     expect(slide.textContent).toContain('simulated demo data');
     expect(slide.textContent).toContain('not a count of people');
+    expect(slide.textContent).toContain(
+      "The session was played at R 40, S 12, T 50, P 25 and δ = 0.5; its strategies are valued here at the league's",
+    );
     expect(slide.textContent).toMatch(/1\s*Grim\s*1\.54/);
     expect(screen.getByTestId('reveal-position').textContent).toBe('6 / 6');
   });

@@ -41,6 +41,8 @@ export interface ClassSlide {
   errorProbability: number;
   /** league entries against the class's mix, best first */
   entries: { name: string; value: number }[];
+  /** the session's own payoffs and δ in words when they differ from the league's (null: the same game) */
+  otherGame: string | null;
 }
 
 /** What step s shows: 0 the title, 1…n the bottom s entries, n + 1 the evolution chart, n + 2 the class (when there is one). */
@@ -207,6 +209,7 @@ function ClassView({ c }: { c: ClassSlide }) {
         Strategies estimated from the choices in {c.session} ({c.subjects} participants
         {c.simulated ? ', simulated demo data' : ''}; strategy-frequency estimation, Dal Bó &amp; Fréchette 2011). An estimate, with its own
         uncertainty: the shares are the most likely mix, not a count of people.
+        {c.otherGame ? ` The session was played at ${c.otherGame}; its strategies are valued here at the league's payoffs and δ.` : ''}
       </p>
       <div className="grid flex-1 gap-[1em] lg:grid-cols-2">
         <div className="flex flex-col gap-[0.3em]">
@@ -222,7 +225,7 @@ function ClassView({ c }: { c: ClassSlide }) {
                   />
                   <span className="relative text-[1.3em] font-semibold">{m.name}</span>
                 </span>
-                <span className="num text-[1.5em] font-bold">{sharePct(m.share)}</span>
+                <span className="num w-[3.6em] text-right text-[1.5em] font-bold">{sharePct(m.share)}</span>
               </li>
             ))}
           </ol>
