@@ -62,11 +62,33 @@ export function RankingTable({ rows, simulated }: { rows: RankedRow[]; simulated
   );
 }
 
-/** Background of a heat-map cell: darker teal for higher values; the number is always printed. */
+/** WCAG relative luminance of an sRGB colour given as 0–1 channels. */
+function luminance([r, g, b]: number[]) {
+  const lin = (c: number) => (c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4);
+  return 0.2126 * lin(r) + 0.7152 * lin(g) + 0.0722 * lin(b);
+}
+
+/** HSL (h in degrees, s and l in 0–1) → sRGB channels in 0–1. */
+function hsl(h: number, s: number, l: number) {
+  const a = s * Math.min(l, 1 - l);
+  const f = (n: number) => {
+    const k = (n + h / 30) % 12;
+    return l - a * Math.max(-1, Math.min(k - 3, 9 - k, 1));
+  };
+  return [f(0), f(8), f(4)];
+}
+
+/**
+ * Background of a heat-map cell: darker teal for higher values; the number is always printed, in
+ * black or white, whichever contrasts more with the cell (always at least 4.5 : 1, WCAG AA).
+ */
 function heat(v: number, lo: number, hi: number) {
   const t = hi > lo ? Math.min(1, Math.max(0, (v - lo) / (hi - lo))) : 0.5;
-  const lightness = 96 - 62 * t;
-  return { background: `hsl(183 45% ${lightness}%)`, color: lightness < 58 ? '#fff' : '#0f172a' };
+  const lightness = 0.96 - 0.62 * t;
+  const y = luminance(hsl(183, 0.45, lightness));
+  const onBlack = (y + 0.05) / 0.05;
+  const onWhite = 1.05 / (y + 0.05);
+  return { background: `hsl(183 45% ${(lightness * 100).toFixed(1)}%)`, color: onBlack >= onWhite ? '#000' : '#fff' };
 }
 
 export function HeatMapTable({

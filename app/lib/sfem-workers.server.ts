@@ -4,12 +4,10 @@
  * result does not depend on the number of workers or the chunk size.
  * This same file is the workers' entry point (see the bottom).
  */
-import { existsSync } from 'node:fs';
-import { createRequire } from 'node:module';
 import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
-import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
+import { type Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { estimateReplicates, summariseReplicates } from './sfem';
+import { startWorker, workerEntry } from './workers.server';
 import type { BootstrapSummary, CountsTable, Replicate, ReplicateOptions } from './sfem';
 
 interface Job {
@@ -52,17 +50,7 @@ export async function bootstrapOnWorkers(
     options: options.replicate ?? {},
   };
   const url = options.workerUrl ?? workerUrl();
-  // Node 20 does not pass loader hooks (nor `--import` in execArgv) on to workers, so a TypeScript
-  // entry is started by a small script that registers tsx inside the worker first.
-  const tsEntry = url.pathname.endsWith('.ts');
-  const tsxApi = tsEntry ? tsxEsmApiUrl() : '';
-  const spawn = () =>
-    tsEntry
-      ? new Worker(`import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(url.href)}); });`, {
-          eval: true,
-          workerData: init,
-        })
-      : new Worker(url, { workerData: init });
+  const spawn = () => startWorker(url, init);
 
   const replicates: Replicate[] = new Array(B);
   let next = 0;
@@ -100,31 +88,9 @@ export async function bootstrapOnWorkers(
   return { ...summariseReplicates(replicates, seed), replicates };
 }
 
-/**
- * The bootstrap workers' entry. From source (tsx, Vite in development, vitest) it is this file. In
- * the production build this code is bundled into build/server, whose files must not be a worker's
- * entry (they would load the whole app), so the source file is used through tsx, which the server
- * runs with anyway (docs/decisions/010).
- */
+/** The bootstrap workers' entry: this file (beside the build in production; workers.server.ts). */
 export function workerUrl(): URL {
-  if (import.meta.url.endsWith('.ts')) return new URL(import.meta.url);
-  const rel = path.join('app', 'lib', 'sfem-workers.server.ts');
-  let dir = path.dirname(fileURLToPath(import.meta.url));
-  for (let i = 0; i < 5; i++) {
-    if (existsSync(path.join(dir, rel))) return pathToFileURL(path.join(dir, rel));
-    dir = path.dirname(dir);
-  }
-  const fromCwd = path.resolve(rel);
-  if (existsSync(fromCwd)) return pathToFileURL(fromCwd);
-  throw new Error(`The bootstrap worker's entry ${rel} was not found beside the build.`);
-}
-
-/** tsx's ESM register API (its `--import` entry registers in the main thread only). */
-function tsxEsmApiUrl(): string {
-  const require = createRequire(import.meta.url);
-  const pkgPath = require.resolve('tsx/package.json');
-  const pkg = require(pkgPath) as { exports: Record<string, { import: { default: string } }> };
-  return new URL(pkg.exports['./esm/api'].import.default, pathToFileURL(pkgPath)).href;
+  return workerEntry(path.join('app', 'lib', 'sfem-workers.server.ts'), import.meta.url);
 }
 
 // Worker side: answer each chunk with its replicates.

@@ -11,17 +11,18 @@
 //           classEstimates(courseId), setComparisonSession
 //   phones  leaguesForParticipant(userId), participantLeague(leagueId, userId),
 //           saveEntry(leagueId, userId, { name, automaton })
-//   job     leagueRunJob (registered in app/jobs/all.server.ts), computeLeagueResults (pure, tested)
+//   job     leagueRunJob (registered in app/jobs/all.server.ts; computes on a worker thread,
+//           app/lib/league-worker.server.ts, with app/lib/league-run.ts)
 //
 // What participants see (a decision): every league of a course they are a participant of, in any
 // state, so an entrant knows their entry is in and entries have closed; results only once the
 // league is published. Staff pages reach leagues through requireCourseRole first.
-import { and, asc, count, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { defineJob, enqueue, kickJobs } from '#app/jobs/queue.server';
 import { type Automaton, libraryStrategy } from '#app/lib/automata';
 import type { AutomatonIssue } from '#app/lib/automaton-check';
-import { evolve, leagueEntryIssues, roundRobin, simulatedRoundRobin, standings, survivors } from '#app/lib/league';
+import { leagueEntryIssues } from '#app/lib/league';
 import {
   LEAGUE_ENTRY_NAME_MAX,
   LEAGUE_MAX_ENTRIES,
@@ -31,7 +32,9 @@ import {
   type LeagueState,
   type ResultEntry,
 } from '#app/lib/league-design';
-import { readStrategyFile, type StrategyFile, toStrategyFile } from '#app/lib/strategy-file';
+import { automatonOfEntry } from '#app/lib/league-run';
+import { computeLeagueOnWorker } from '#app/lib/league-worker.server';
+import { type StrategyFile, toStrategyFile } from '#app/lib/strategy-file';
 import { db } from '#app/utils/db.server';
 import { estimateRequestSchema } from '#app/utils/estimate-form';
 import { courseMembers, courses, estimates, leagueEntries, leagues, users } from '#drizzle/schema';
@@ -99,12 +102,7 @@ const entryColumns = {
 };
 
 /** The automaton of a stored entry (0-based states, app/lib/automata.ts). */
-export function entryAutomaton(entry: { strategy: StrategyFile }): Automaton {
-  const read = readStrategyFile(entry.strategy);
-  // stored entries were checked when saved; a failure here is a bug, not the caller's input
-  if (!read.ok) throw new Error(`A stored league entry is not a valid strategy: ${read.issues[0]?.message}`);
-  return read.automaton;
-}
+export const entryAutomaton = automatonOfEntry;
 
 /** May entries be added, changed or removed now? (open, and before the deadline) */
 export const acceptsEntries = (l: Pick<League, 'state' | 'deadline'>, now = new Date()) =>
@@ -113,13 +111,20 @@ export const acceptsEntries = (l: Pick<League, 'state' | 'deadline'>, now = new 
 // ---------------------------------------------------------------------------------------------
 // Staff
 
-export interface LeagueSummary extends League {
+/** A league in a list: everything but its results (they can be megabytes), whether it has them, and its entry counts. */
+export interface LeagueSummary extends Omit<League, 'results'> {
+  hasResults: boolean;
   entries: number;
   houseEntries: number;
 }
 
 export async function listLeagues(courseId: number): Promise<LeagueSummary[]> {
-  const rows = await db().select(leagueColumns).from(leagues).where(eq(leagues.courseId, courseId)).orderBy(desc(leagues.id));
+  const { results: _results, ...columns } = leagueColumns;
+  const rows = await db()
+    .select({ ...columns, hasResults: sql<number>`${leagues.results} IS NOT NULL`.mapWith(Number) })
+    .from(leagues)
+    .where(eq(leagues.courseId, courseId))
+    .orderBy(desc(leagues.id));
   if (rows.length === 0) return [];
   const counts = await db()
     .select({ leagueId: leagueEntries.leagueId, house: leagueEntries.house, n: count() })
@@ -134,7 +139,7 @@ export async function listLeagues(courseId: number): Promise<LeagueSummary[]> {
   return rows.map((r) => {
     const mine = counts.filter((c) => c.leagueId === r.id);
     const house = Number(mine.find((c) => c.house)?.n ?? 0);
-    return { ...toLeague(r), entries: mine.reduce((s, c) => s + Number(c.n), 0), houseEntries: house };
+    return { ...r, hasResults: r.hasResults === 1, entries: mine.reduce((s, c) => s + Number(c.n), 0), houseEntries: house };
   });
 }
 
@@ -521,40 +526,6 @@ export async function saveEntry(leagueId: number, userId: number, input: { name:
 // The run: a job (app/jobs), so a league of 200 entries does not hold up a request, and a process
 // that dies mid-run leaves it to another.
 
-/** The numbers of a league (pure: the job stores them; the tests compare them with the lib's). */
-export function computeLeagueResults(design: LeagueDesign, entries: readonly ResultEntry[]): LeagueResults {
-  const t0 = Date.now();
-  const automata = entries.map((e) => entryAutomaton(e));
-  const settings = { game: design.payoffs, delta: design.delta, epsilon: design.epsilon };
-  const perRound = roundRobin(automata, settings);
-  const ranked = standings(perRound);
-  let simulated: LeagueResults['simulated'] = null;
-  if (design.matches >= 2 && automata.length > 0) {
-    const sim = simulatedRoundRobin(automata, settings, { matches: design.matches, seed: design.seed });
-    const n = automata.length;
-    // an entry's simulated score is the mean of its n pair estimates; pairs are independent
-    // substreams, so its standard error is √(Σ se²)/n
-    const scores = sim.perRound.map((row, i) => ({
-      score: row.reduce((s, v) => s + v, 0) / n,
-      se: Math.sqrt(sim.standardError[i].reduce((s, v) => s + v * v, 0)) / n,
-    }));
-    simulated = { ...sim, scores };
-  }
-  const evolution = automata.length > 0 ? evolve(perRound, design.generations) : { shares: [], background: 0 };
-  return {
-    version: 1,
-    design,
-    entries: [...entries],
-    perRound,
-    standings: ranked,
-    simulated,
-    evolution,
-    survivors: automata.length > 0 ? survivors(evolution) : [],
-    computedAt: new Date().toISOString(),
-    ms: Date.now() - t0,
-  };
-}
-
 export type StartRun = { ok: true; league: League } | { ok: false; message: string };
 
 /**
@@ -645,7 +616,7 @@ async function runLeague(leagueId: number): Promise<void> {
     .where(and(eq(leagues.id, leagueId), inArray(leagues.state, ['closed', 'run']), inArray(leagues.runStatus, ['queued', 'running'])));
   if (started.affectedRows === 0) return;
   const snapshot: ResultEntry[] = entries.map((e) => ({ entryId: e.id, name: e.name, house: e.house, strategy: e.strategy }));
-  const results = computeLeagueResults(row.design, snapshot);
+  const results = await computeLeagueOnWorker(row.design, snapshot);
   // The run stores its results only if the league was not reopened (or queued anew) meanwhile:
   // a newer request set the status back to queued, and runs again after this one (enqueue's `again`).
   await db()

@@ -20,7 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
       deadline: l.deadline?.toISOString() ?? null,
       entries: l.entries,
       house_entries: l.houseEntries,
-      has_results: l.results !== null,
+      has_results: l.hasResults,
       created_at: l.createdAt.toISOString(),
       run_at: l.runAt?.toISOString() ?? null,
       published_at: l.publishedAt?.toISOString() ?? null,
