@@ -77,6 +77,8 @@ export default [
 
   // The projector page (dark, large type) and the participants' phone pages.
   route('screen/:sessionId', 'routes/big-screen.tsx'),
+  // A strategy league's reveal on the projector (staff; run or published leagues).
+  route('courses/:courseId/leagues/:leagueId/reveal', 'routes/league-reveal.tsx'),
   // Phone pages share a layout only for its error boundary: an error keeps the phone shell.
   layout('routes/play/layout.tsx', [
     route('join', 'routes/play/join.tsx'),
@@ -85,6 +87,8 @@ export default [
     route('join/:code/check', 'routes/play/join-check.tsx'),
     route('join/:code/practice', 'routes/play/join-practice.tsx'),
     route('play/:sessionId', 'routes/play/play.tsx'),
+    // A strategy league: the participant's entry, and the results once published (issue 15).
+    route('play/leagues/:leagueId', 'routes/play/league.tsx'),
     // A participant's own summary of a session (outside the staff shell).
     route('courses/:courseId/debrief/:sessionId/mine', 'routes/debrief/mine.tsx'),
   ]),

@@ -34,6 +34,23 @@ export function withNewState(a: Automaton): Automaton {
 }
 
 /**
+ * State `i` becomes the start (state 1): it swaps places with the old start and every transition
+ * follows the swap, so the strategy plays exactly as before from its new first state.
+ */
+export function withStart(a: Automaton, i: number): Automaton {
+  if (i === 0) return a;
+  const swap = (k: number) => (k === i ? 0 : k === 0 ? i : k);
+  const order = a.states.map((_, k) => swap(k));
+  return {
+    ...a,
+    states: order.map((k) => {
+      const st = a.states[k];
+      return { ...st, next: Object.fromEntries(PROFILES.map((p) => [p, swap(st.next[p])])) as Record<Profile, number> };
+    }),
+  };
+}
+
+/**
  * A strategy as a state table: one card per state (its action, its four transitions two by two),
  * so it fits a side panel (30rem) and a phone without a sideways scroll. Controlled: the caller
  * keeps the automaton and checks it.
@@ -43,15 +60,22 @@ export function AutomatonBuilder({
   onChange,
   maxStates,
   actions,
+  touch = false,
+  stateNote,
 }: {
   value: Automaton;
   onChange: (next: Automaton) => void;
   maxStates: number;
   /** buttons shown after "Add a state" (e.g. save) */
   actions?: ReactNode;
+  /** phone: every control at least 44 px high, and a "start here" button on each later state */
+  touch?: boolean;
+  /** shown at the foot of state i's card (e.g. the problems found in it) */
+  stateNote?: (i: number) => ReactNode;
 }) {
   const setState = (i: number, change: (s: State) => State) =>
     onChange({ ...value, states: value.states.map((s, j) => (j === i ? change(s) : s)) });
+  const control = touch ? 'min-h-11 min-w-14 text-base' : 'min-h-9';
   return (
     <>
       <ol
@@ -71,23 +95,34 @@ export function AutomatonBuilder({
                   aria-label={`State ${i + 1} plays`}
                   value={s.action}
                   onChange={(e) => setState(i, (st) => ({ ...st, action: e.target.value as Action }))}
-                  className="min-h-9 rounded border border-slate-300 bg-white px-2"
+                  className={`${control} rounded border border-slate-300 bg-white px-2`}
                 >
                   <option value="C">C</option>
                   <option value="D">D</option>
                 </select>
               </label>
               {i > 0 ? (
-                <button
-                  type="button"
-                  onClick={() => onChange(withoutState(value, i))}
-                  className="ml-auto min-h-9 rounded px-2 font-semibold text-danger-600 hover:bg-danger-50"
-                >
-                  Remove<span className="sr-only"> state {i + 1}</span>
-                </button>
+                <span className="ml-auto flex gap-1">
+                  {touch ? (
+                    <button
+                      type="button"
+                      onClick={() => onChange(withStart(value, i))}
+                      className={`${control} rounded px-2 font-semibold text-accent-700 hover:bg-accent-50`}
+                    >
+                      Start here<span className="sr-only"> (state {i + 1} becomes state 1)</span>
+                    </button>
+                  ) : null}
+                  <button
+                    type="button"
+                    onClick={() => onChange(withoutState(value, i))}
+                    className={`${control} rounded px-2 font-semibold text-danger-600 hover:bg-danger-50`}
+                  >
+                    Remove<span className="sr-only"> state {i + 1}</span>
+                  </button>
+                </span>
               ) : null}
             </div>
-            <div className="mt-2 grid grid-cols-2 gap-x-3 gap-y-2">
+            <div className={`mt-2 grid gap-x-3 gap-y-2 ${touch ? 'grid-cols-1 min-[22rem]:grid-cols-2' : 'grid-cols-2'}`}>
               {PROFILES.map((p) => (
                 <label key={p} className="flex items-center justify-between gap-2">
                   <span className="text-slate-600">Next {PROFILE_WORDS[p]}</span>
@@ -95,7 +130,7 @@ export function AutomatonBuilder({
                     aria-label={`State ${i + 1}, next ${PROFILE_WORDS[p]}`}
                     value={s.next[p]}
                     onChange={(e) => setState(i, (st) => ({ ...st, next: { ...st.next, [p]: Number(e.target.value) } }))}
-                    className="min-h-9 rounded border border-slate-300 bg-white px-2"
+                    className={`${control} rounded border border-slate-300 bg-white px-2`}
                   >
                     {value.states.map((_, j) => (
                       <option key={j} value={j}>
@@ -106,6 +141,7 @@ export function AutomatonBuilder({
                 </label>
               ))}
             </div>
+            {stateNote?.(i)}
           </li>
         ))}
       </ol>

@@ -10,7 +10,7 @@ const fmt = (x: number) => String(Number(x.toFixed(2)));
 
 function Moves({ moves, label }: { moves: Action[]; label: string }) {
   return (
-    <span className="flex gap-0.5" aria-label={`${label}: ${moves.join(' ')}`}>
+    <span role="img" className="flex gap-0.5" aria-label={`${label}: ${moves.join(' ')}`}>
       {moves.map((m, t) => (
         <span
           key={t}

@@ -3,22 +3,36 @@ import type { Route } from './+types/home';
 import { ParticipantShell, Wordmark } from '#app/components/shells';
 import { DemoBadge, EmailAddress } from '#app/components/ui';
 import { listCoursesForUser } from '#app/models/course.server';
+import { leaguesForParticipant } from '#app/models/league.server';
 import { sessionsOfParticipant } from '#app/models/session.server';
 import { getUser } from '#app/utils/auth.server';
-import { ROLE_WORDS } from '#app/utils/format';
+import { formatDateTime, ROLE_WORDS } from '#app/utils/format';
 import { mayCreateCourses } from '#app/utils/permissions.server';
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await getUser(request);
-  if (!user) return { user: null, courses: [], played: [], canCreate: false };
+  if (!user) return { user: null, courses: [], played: [], leagues: [], canCreate: false };
   const courses = await listCoursesForUser(user.id, false);
   // Staff land on their courses; participants stay on this phone-first page.
   if (user.isAdmin || courses.some((c) => c.role !== 'participant')) throw redirect('/courses');
-  const [played, canCreate] = await Promise.all([sessionsOfParticipant(user.id), mayCreateCourses(user)]);
+  const [played, canCreate, leagues] = await Promise.all([
+    sessionsOfParticipant(user.id),
+    mayCreateCourses(user),
+    leaguesForParticipant(user.id),
+  ]);
   return {
     user: { email: user.email },
     courses: courses.map((c) => ({ id: c.id, title: c.title, term: c.term, isDemo: c.isDemo })),
     played,
+    leagues: leagues.map((l) => ({
+      id: l.id,
+      title: l.title,
+      courseTitle: l.courseTitle,
+      state: l.state,
+      accepting: l.accepting,
+      hasEntry: l.hasEntry,
+      deadline: l.deadline?.toISOString() ?? null,
+    })),
     canCreate,
   };
 }
@@ -62,6 +76,40 @@ export default function Home({ loaderData }: Route.ComponentProps) {
           </ul>
         )}
       </section>
+      {loaderData.leagues.length ? (
+        <section aria-labelledby="my-leagues" className="flex flex-col gap-3">
+          <h2 id="my-leagues" className="text-xl font-semibold">
+            Strategy leagues
+          </h2>
+          <ul className="flex flex-col gap-2" data-testid="my-leagues">
+            {loaderData.leagues.map((l) => (
+              <li key={l.id} className="flex flex-col gap-1 rounded-lg border border-slate-200 bg-white p-4">
+                <span className="text-lg font-semibold">{l.title}</span>
+                <span className="text-sm text-slate-600">
+                  {l.courseTitle}
+                  {' · '}
+                  {l.accepting
+                    ? `${l.hasEntry ? 'your entry is in' : 'no entry from you yet'}${l.deadline ? ` · entries until ${formatDateTime(l.deadline)}` : ''}`
+                    : l.state === 'published'
+                      ? 'results published'
+                      : 'entries closed'}
+                </span>
+                <Link to={`/play/leagues/${l.id}`} className="min-h-11 content-center font-semibold text-accent-700 underline">
+                  {l.accepting
+                    ? l.hasEntry
+                      ? 'Revise your strategy'
+                      : 'Enter your strategy'
+                    : l.state === 'published'
+                      ? 'See the results'
+                      : l.hasEntry
+                        ? 'See your entry'
+                        : 'About this league'}
+                </Link>
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
       {loaderData.played.length ? (
         <section aria-labelledby="my-sessions" className="flex flex-col gap-3">
           <h2 id="my-sessions" className="text-xl font-semibold">

@@ -15,3 +15,11 @@ export const ROLE_WORDS = {
   participant: 'Participant',
   admin: 'Site admin',
 } as const;
+
+/** A moment as people read a deadline: "2 Dec 2026, 15:00 UTC" (the server and every phone agree on UTC). */
+export function formatDateTime(d: Date | string) {
+  const date = typeof d === 'string' ? new Date(d) : d;
+  const day = date.toLocaleDateString('en-GB', { year: 'numeric', month: 'short', day: 'numeric', timeZone: 'UTC' });
+  const time = date.toLocaleTimeString('en-GB', { hour: '2-digit', minute: '2-digit', hour12: false, timeZone: 'UTC' });
+  return `${day}, ${time} UTC`;
+}

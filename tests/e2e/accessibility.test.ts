@@ -10,7 +10,8 @@ import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { closeSockets, createDesign, join, openSession } from '#tests/helpers/live';
 import { libraryStrategy } from '#app/lib/automata';
 import { AXELROD_PAYOFFS } from '#app/lib/league-design';
-import { addHouseEntry, createLeague, getLeague, saveEntry, setLeagueState, startLeagueRun } from '#app/models/league.server';
+import { addHouseEntry, createLeague, getLeague, leagueStatus, saveEntry, setLeagueState, startLeagueRun } from '#app/models/league.server';
+import { closeDb } from '#app/utils/db.server';
 
 const AXE = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
 const TAGS = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'];
@@ -30,6 +31,9 @@ const world = {} as {
   assistant: Client;
   participant: Client;
   newcomer: Client;
+  /** a strategy league taking entries, and one with published results (the participant has an entry in both) */
+  openLeague: number;
+  publishedLeague: number;
 };
 
 beforeAll(async () => {
@@ -77,11 +81,25 @@ beforeAll(async () => {
   world.sessionId = opened.sessionId;
   world.code = opened.code;
   await join(world.participant, world.code, { consent: 'yes' });
+  const design = { payoffs: { ...AXELROD_PAYOFFS }, delta: 0.9, epsilon: 0, matches: 0, generations: 50, seed: 1 };
+  const [open, published] = await Promise.all(
+    ['Open league', 'Published league'].map((title) => createLeague(world.courseId, instId, { title, design, deadline: null })),
+  );
+  world.openLeague = open.id;
+  world.publishedLeague = published.id;
+  for (const l of [open, published]) await saveEntry(l.id, partId, { name: 'My copycat', automaton: libraryStrategy('TFT') });
+  await addHouseEntry(world.courseId, published.id, 'ALLD');
+  await setLeagueState(world.courseId, published.id, ['open'], 'closed');
+  await startLeagueRun(world.courseId, published.id);
+  for (let t = 0; t < 300 && (await leagueStatus(world.courseId, published.id))?.runStatus !== 'done'; t++)
+    await new Promise((r) => setTimeout(r, 100));
+  await setLeagueState(world.courseId, published.id, ['run'], 'published');
 }, 120_000);
 afterAll(async () => {
   closeSockets();
   await browser?.close();
   await closeTestDb();
+  await closeDb();
 });
 
 /** Waits for what each kind of page draws after hydration, so axe sees the page people see. */
@@ -137,7 +155,13 @@ describe('axe-core, WCAG 2.1 AA, every page at desktop and phone sizes', () => {
   }, 180_000);
 
   it('a participant', async () => {
-    const participant = await audit(world.participant, ['/', '/account', `/play/${world.sessionId}`]);
+    const participant = await audit(world.participant, [
+      '/',
+      '/account',
+      `/play/${world.sessionId}`,
+      `/play/leagues/${world.openLeague}`,
+      `/play/leagues/${world.publishedLeague}`,
+    ]);
     // the instructions and consent page of someone who has not joined yet
     const newcomer = await audit(world.newcomer, [`/join/${world.code}`]);
     // a participant of the demo's completed session reads their own summary
@@ -173,6 +197,7 @@ describe('axe-core, WCAG 2.1 AA, every page at desktop and phone sizes', () => {
       `/courses/${c}/sessions/${s}`,
       `/courses/${c}/sessions/${s}/floor`,
       `/screen/${s}`,
+      `/courses/${c}/leagues/${world.publishedLeague}/reveal`,
       `/courses/${c}/data`,
       `/courses/${c}/roster`,
       `/courses/${c}/datasets`,

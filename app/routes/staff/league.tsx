@@ -41,6 +41,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return {
     course,
     canEdit: role === 'instructor',
+    // the projector reveal (routes/league-reveal.tsx) is for those who teach: not researchers
+    canReveal: role === 'instructor' || role === 'assistant',
     created,
     league: {
       id: league.id,
@@ -242,7 +244,7 @@ function RunStatus({
 }
 
 export default function LeaguePage({ loaderData, actionData }: Route.ComponentProps) {
-  const { course, canEdit, league, entries, library, created } = loaderData;
+  const { course, canEdit, canReveal, league, entries, library, created } = loaderData;
   const d = league.design;
   const changeable = league.state === 'open' || league.state === 'closed';
   const base = `/courses/${course.id}/leagues/${league.id}`;
@@ -253,6 +255,11 @@ export default function LeaguePage({ loaderData, actionData }: Route.ComponentPr
         eyebrow={<CourseCrumbs course={course} trail={[{ to: `/courses/${course.id}/leagues`, label: 'Strategy leagues' }]} />}
       >
         {league.hasResults ? <ButtonLink to={`${base}/results`}>Results</ButtonLink> : null}
+        {league.hasResults && canReveal ? (
+          <ButtonLink to={`${base}/reveal`} variant="secondary">
+            Reveal on the big screen
+          </ButtonLink>
+        ) : null}
         <ButtonLink to={`${base}/export/entries.csv`} variant="secondary" reloadDocument>
           Entries CSV
         </ButtonLink>
