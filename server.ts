@@ -56,8 +56,10 @@ if (production) {
   });
 }
 
-const { io, runner } = attachHub(httpServer);
-// A restarted server carries on every open, running and paused session from the database.
+// REDIS_URL: cluster mode (socket.io's Redis adapter, one owner per live session; realtime/cluster.ts).
+const { io, runner, cluster } = await attachHub(httpServer, { redisUrl: config.REDIS_URL });
+// A restarted server carries on every open, running and paused session from the database (in
+// cluster mode: those it owns; the others' owners hold theirs).
 runner
   .recoverAll()
   .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
@@ -78,6 +80,8 @@ async function shutdown(signal: string) {
   const force = setTimeout(() => process.exit(1), 8000);
   force.unref();
   runner.close();
+  // Leave the members first: the others take this process's sessions over at their next poll.
+  await cluster?.close().catch(() => undefined);
   await stopJobWorker().catch(() => undefined);
   await new Promise<void>((resolve) => io.close(() => resolve()));
   httpServer.closeAllConnections();
