@@ -68,6 +68,8 @@ export class Cluster {
   readonly membership: Membership;
   private handlers: OwnerHandlers | null = null;
   private releases = new Map<number, NodeJS.Timeout>();
+  /** takeovers in progress, so an event and a rebalance that both find a session new wait for one */
+  private taking = new Map<number, Promise<void>>();
   private closed = false;
 
   private constructor(
@@ -146,7 +148,10 @@ export class Cluster {
     const until = Date.now() + OWNER_WAIT_MS;
     for (;;) {
       const owner = this.membership.owner(sessionId);
-      if (owner === this.id) return handlers[op](userId, input);
+      if (owner === this.id) {
+        await this.ensureHeld(sessionId);
+        return handlers[op](userId, input);
+      }
       if (owner) {
         const req: ForwardRequest<K> = { op, sessionId, to: owner, userId, input };
         const answer = await this.send(req, owner);
@@ -191,6 +196,7 @@ export class Cluster {
   private async answer(req: ForwardRequest): Promise<ForwardAnswer> {
     const handlers = this.handlers;
     if (!handlers || req.to !== this.id || !this.membership.owns(req.sessionId)) return { owned: false };
+    await this.ensureHeld(req.sessionId);
     return { owned: true, reply: await this.run(handlers, req) };
   }
 
@@ -217,10 +223,30 @@ export class Cluster {
     const taken: number[] = [];
     for (const id of ids) {
       if (!this.membership.owns(id) || this.runner.holds(id)) continue;
-      await this.runner.takeOver(id).catch((error) => console.error(`[parley] taking over session ${id} failed`, error));
+      await this.ensureHeld(id);
       taken.push(id);
     }
     if (taken.length) console.log(`[parley] took over session(s) ${taken.join(', ')}: rebuilt from the database, grace applied`);
+  }
+
+  /**
+   * A session this process owns but does not hold (it was another's a moment ago, or it left
+   * memory when it finished) is rebuilt from MariaDB with the grace of a restart before any event
+   * of it is stepped here: the rounds nobody could answer while no process stepped it get their
+   * full time, and its timers are armed again. Never throws (a failure is logged; the event that
+   * follows loads the session itself).
+   */
+  ensureHeld(sessionId: number): Promise<void> {
+    if (this.runner.holds(sessionId)) return Promise.resolve();
+    let pending = this.taking.get(sessionId);
+    if (!pending) {
+      pending = this.runner
+        .takeOver(sessionId)
+        .catch((error) => console.error(`[parley] taking over session ${sessionId} failed`, error))
+        .finally(() => this.taking.delete(sessionId));
+      this.taking.set(sessionId, pending);
+    }
+    return pending;
   }
 
   /** For /healthz: Redis answers, the adapter is subscribed, who the members are. */

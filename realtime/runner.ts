@@ -160,6 +160,8 @@ export class SessionRunner {
    */
   async takeOver(sessionId: number) {
     await this.release(sessionId);
+    // No such session (a forged id): nothing to take over; the event itself answers not-found.
+    if (!(await getSession(sessionId))) return;
     await this.graceOne(sessionId);
   }
 

@@ -25,6 +25,7 @@ import {
   waitForHttp,
 } from './lib/services.mjs';
 import { appEnv } from './lib/app-env.mjs';
+import { HAPROXY_PACKAGES, REDIS_PACKAGES } from './lib/cluster.mjs';
 
 const args = process.argv.slice(2);
 const only = args.includes('--only') ? args[args.indexOf('--only') + 1] : null;
@@ -34,6 +35,10 @@ const port = Number(process.env.PARLEY_TEST_PORT ?? 3101);
 const dbPort = Number(process.env.PARLEY_TEST_DB_PORT ?? 3317);
 const smtpPort = Number(process.env.PARLEY_TEST_SMTP_PORT ?? 1026);
 const mailWebPort = Number(process.env.PARLEY_TEST_MAIL_WEB_PORT ?? 1081);
+// The cluster tests (tests/integration/cluster.test.ts) start their own Redis and HAProxy here:
+// Redis on this port, HAProxy on this one and its Parley processes on the next ones.
+const redisPort = Number(process.env.PARLEY_TEST_REDIS_PORT ?? 6381);
+const clusterPort = Number(process.env.PARLEY_TEST_CLUSTER_PORT ?? 3511);
 const dataDir = path.join(root, '.data/test');
 
 stopOnSignals();
@@ -48,7 +53,7 @@ if (passThrough.length === 0 && !only) {
     process.exit(1);
   }
 }
-ensureDebian([MARIADB_PACKAGES, CHROMIUM_PACKAGES, IPROUTE_PACKAGES]);
+ensureDebian([MARIADB_PACKAGES, CHROMIUM_PACKAGES, IPROUTE_PACKAGES, REDIS_PACKAGES, HAPROXY_PACKAGES]);
 await startMariadb({ dir: dataDir, port: dbPort, databases: ['parley_test'], fresh: ['parley_test'], user: 'parley', password: 'parley' });
 const env = appEnv({
   port,
@@ -65,6 +70,8 @@ const env = appEnv({
     PARLEY_TEST_URL: `http://127.0.0.1:${port}`,
     PARLEY_MAIL_API: `http://127.0.0.1:${mailWebPort}`,
     PARLEY_CHROMIUM: '/usr/bin/chromium',
+    PARLEY_TEST_REDIS_PORT: String(redisPort),
+    PARLEY_TEST_CLUSTER_PORT: String(clusterPort),
   },
 });
 if (!runTs('scripts/migrate.ts', [], env)) fail('migrations failed', 'See the output above.');

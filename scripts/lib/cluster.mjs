@@ -108,9 +108,6 @@ global
 
 defaults
   mode http
-  log global
-  option httplog
-  option dontlognull
   # The client's address for Parley's rate limits (the processes run with TRUST_PROXY=1).
   option forwardfor
   option redispatch
@@ -131,7 +128,7 @@ backend parley
   # The process with the fewest connections gets a new one; a browser that starts on long-polling
   # keeps its process through the cookie (socket.io's polling needs one process per handshake).
   balance leastconn
-  cookie parley-node insert indirect nocache httponly samesite lax
+  cookie parley-node insert indirect nocache attr "HttpOnly" attr "SameSite=Lax"
   option httpchk GET /healthz
   http-check expect status 200
   default-server inter 1s fastinter 500ms downinter 1s fall 2 rise 2 on-marked-down shutdown-sessions
@@ -145,7 +142,7 @@ export async function startHaproxy({ dir, port, backends }) {
   if (await listening(port)) throw new Error(`port ${port} on 127.0.0.1 is taken, so HAProxy cannot start there`);
   const cfg = path.join(dir, 'haproxy.cfg');
   fs.writeFileSync(cfg, haproxyConfig({ port, backends, dir }));
-  const check = spawnSync(which('haproxy'), ['-c', '-q', '-f', cfg], { encoding: 'utf8' });
+  const check = spawnSync(which('haproxy'), ['-c', '-f', cfg], { encoding: 'utf8' });
   if (check.status !== 0) throw new Error(`haproxy rejected ${cfg}:\n${check.stderr || check.stdout}`);
   // -db: stay in the foreground (no daemon), so the child is HAProxy itself and stops with us.
   const child = spawn(which('haproxy'), ['-db', '-f', cfg], { detached: true, stdio: ['ignore', 'ignore', 'pipe'] });
