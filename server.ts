@@ -59,9 +59,9 @@ if (production) {
 // REDIS_URL: cluster mode (socket.io's Redis adapter, one owner per live session; realtime/cluster.ts).
 const { io, runner, cluster } = await attachHub(httpServer, { redisUrl: config.REDIS_URL });
 // A restarted server carries on every open, running and paused session from the database (in
-// cluster mode: those it owns; the others' owners hold theirs).
-runner
-  .recoverAll()
+// cluster mode: those it owns, through the same takeover as a membership change; the others'
+// owners hold theirs).
+(cluster ? cluster.rebalance() : runner.recoverAll())
   .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
   .catch((error) => console.error('[parley] could not resume live sessions', error));
 // Background jobs (estimations, results e-mails, the hourly pruning of sign-in records), queued in

@@ -93,10 +93,12 @@ export class Cluster {
   /** Connects to Redis, installs the adapter, joins the members. The hub calls it when REDIS_URL is set. */
   static async start(io: HubServer, runner: SessionRunner, redisUrl: string): Promise<Cluster> {
     const id = `${os.hostname()}-${process.pid}-${randomBytes(3).toString('hex')}`;
-    const options = { maxRetriesPerRequest: 2, enableAutoPipelining: false, lazyConnect: false };
-    const pub = new Redis(redisUrl, options);
+    // The adapter's connections wait for Redis however long it is away (commands queue and go out
+    // on reconnect): the adapter does not catch a rejected publish, which would crash the process.
+    const pub = new Redis(redisUrl, { maxRetriesPerRequest: null });
     const sub = pub.duplicate();
-    const member = new Redis(redisUrl, { ...options, connectionName: memberConnectionName(id) });
+    // The members connection gives up quickly instead: a poll that fails keeps the last list.
+    const member = new Redis(redisUrl, { maxRetriesPerRequest: 2, connectionName: memberConnectionName(id) });
     for (const [name, c] of [
       ['pub', pub],
       ['sub', sub],
@@ -184,10 +186,12 @@ export class Cluster {
         if (this.closed || this.membership.owner(req.sessionId) !== owner) finish(null);
       }, OWNER_CHECK_MS);
       this.io.serverSideEmit('session:forward', req, (error: Error | null, answers: ForwardAnswer[]) => {
+        // Given up already (the owner changed while we waited): nothing to say.
+        if (done) return;
         // On a timeout the adapter still hands over the answers that came.
-        finish((answers ?? []).find((a) => a.owned) ?? null);
-        if (error && !answers?.some((a) => a.owned))
-          console.warn(`[parley] forward of ${req.op} (session ${req.sessionId}): ${error.message}`);
+        const owned = (answers ?? []).find((a) => a.owned) ?? null;
+        if (error && !owned) console.warn(`[parley] forward of ${req.op} (session ${req.sessionId}): ${error.message}`);
+        finish(owned);
       });
     });
   }
@@ -209,7 +213,7 @@ export class Cluster {
    * MariaDB (with the grace of a restart); sessions it holds and no longer owns are dropped after
    * RELEASE_AFTER_MS (a batch in flight finishes; the new owner's row claim guards the overlap).
    */
-  async rebalance() {
+  async rebalance(): Promise<number> {
     for (const id of this.runner.heldSessions()) {
       if (this.membership.owns(id) || this.releases.has(id)) continue;
       const t = setTimeout(() => {
@@ -227,6 +231,7 @@ export class Cluster {
       taken.push(id);
     }
     if (taken.length) console.log(`[parley] took over session(s) ${taken.join(', ')}: rebuilt from the database, grace applied`);
+    return taken.length;
   }
 
   /**

@@ -103,7 +103,8 @@ export async function startRedis({ dir, port }) {
 export function haproxyConfig({ port, backends, dir }) {
   return `# Made by scripts/lib/cluster.mjs; rewritten at every start.
 global
-  maxconn 20000
+  # Each connection needs two file descriptors; 9,000 fits the usual 20,000 limit of a shell.
+  maxconn 9000
   pidfile ${path.join(dir, 'haproxy.pid')}
 
 defaults
@@ -129,7 +130,8 @@ backend parley
   # keeps its process through the cookie (socket.io's polling needs one process per handshake).
   balance leastconn
   cookie parley-node insert indirect nocache attr "HttpOnly" attr "SameSite=Lax"
-  option httpchk GET /healthz
+  option httpchk
+  http-check send meth GET uri /healthz ver HTTP/1.1 hdr Host 127.0.0.1
   http-check expect status 200
   default-server inter 1s fastinter 500ms downinter 1s fall 2 rise 2 on-marked-down shutdown-sessions
 ${backends.map((p, i) => `  server p${i + 1} 127.0.0.1:${p} check cookie p${i + 1}`).join('\n')}

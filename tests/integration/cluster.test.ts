@@ -15,7 +15,12 @@ import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
 import { createDesign, join, openSession, type TestSocket } from '#tests/helpers/live';
 
+// The cluster has a database of its own (scripts/test.mjs makes it): a cluster takes over every
+// live session of its database, and must not take the test server's. Users, courses and
+// sign-ins of this file are made there; sign-ins go through the cluster itself.
+process.env.DATABASE_URL = process.env.PARLEY_TEST_CLUSTER_DATABASE_URL;
 const cluster = new TestCluster(2);
+process.env.PARLEY_TEST_URL = cluster.url;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const sockets: TestSocket[] = [];
 const track = (s: TestSocket) => {
@@ -50,12 +55,16 @@ async function course(n: number, tag: string, hall: string) {
   return { courseId, instructorId, instructor, players: players.map((p) => p.at(cluster.url)) };
 }
 
-/** Every acknowledged choice stored exactly once, every row a phone's (no timeout, no computer), both seats of every round. */
-async function expectStoredOnce(sessionIds: number[], result: CrowdResult) {
+/**
+ * Every acknowledged choice stored exactly once, no round filled in by a timeout (rows are the
+ * phones' own, or the computer seat's where a session has an odd number of phones), both seats of
+ * every round, every session complete.
+ */
+async function expectStoredOnce(sessionIds: number[], result: CrowdResult, computerSeats = false) {
   const rows = await testDb().select().from(choices).where(inArray(choices.sessionId, sessionIds));
-  expect(new Set(rows.map((r) => r.source))).toEqual(new Set(['player']));
+  expect(new Set(rows.map((r) => r.source))).toEqual(new Set(computerSeats ? ['player', 'computer'] : ['player']));
   const perId = new Map<string, number>();
-  for (const r of rows) perId.set(r.clientChoiceId!, (perId.get(r.clientChoiceId!) ?? 0) + 1);
+  for (const r of rows.filter((x) => x.source === 'player')) perId.set(r.clientChoiceId!, (perId.get(r.clientChoiceId!) ?? 0) + 1);
   expect([...perId.values()].every((n) => n === 1)).toBe(true);
   expect(new Set(perId.keys())).toEqual(result.acked);
   const seats = new Map<string, number>();
@@ -127,7 +136,9 @@ describe('two processes behind HAProxy', () => {
       expect(result.finished).toBe(N * S);
       expect(result.refused).toEqual({});
       expect(result.acked.size).toBe(result.emitted);
-      const rows = await expectStoredOnce(sessionIds, result);
+      // 25 phones: one of each session plays the computer seat in each supergame (common practice
+      // for an odd count; the design's default).
+      const rows = await expectStoredOnce(sessionIds, result, true);
       await sleep(1000);
       for (const id of sessionIds) {
         const f = floors.get(id)!;
@@ -138,7 +149,7 @@ describe('two processes behind HAProxy', () => {
         // one floor view at least per supergame played (they are coalesced to one per 250 ms)
         expect(new Set(f.map((v) => v.supergame)).size).toBe(2);
       }
-      expect(rows.length).toBe(result.acked.size);
+      expect(rows.filter((r) => r.source === 'player').length).toBe(result.acked.size);
     },
   );
 
@@ -198,12 +209,14 @@ describe('two processes behind HAProxy', () => {
       expect(result.refused).toEqual({});
       expect(result.acked.size).toBe(result.emitted);
       await expectStoredOnce([sessionId], result);
-      // at most one grace per takeover: nobody's round was filled in for the time nobody stepped it
+      // At most one grace per takeover: the kill (the survivor takes the session) and the restart
+      // (the session goes back if the restarted process has the higher weight for it).
       const graces = await testDb()
         .select()
         .from(sessionLog)
         .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
-      expect(graces.length).toBeLessThanOrEqual(3);
+      expect(graces.length).toBeGreaterThanOrEqual(3);
+      expect(graces.length).toBeLessThanOrEqual(6);
     },
   );
 
