@@ -77,13 +77,17 @@ async function shutdown(signal: string) {
   if (closing) return;
   closing = true;
   console.log(`[parley] ${signal}: closing`);
+  // Closing connections rejects what was still queued on them (a Redis publish while Redis is
+  // away, say): said, not a crash with exit code 1 on the way out.
+  process.on('unhandledRejection', (error) => console.warn('[parley] while closing:', error instanceof Error ? error.message : error));
   const force = setTimeout(() => process.exit(1), 8000);
   force.unref();
   runner.close();
   // Leave the members first: the others take this process's sessions over at their next poll.
-  await cluster?.close().catch(() => undefined);
+  await cluster?.leave().catch(() => undefined);
   await stopJobWorker().catch(() => undefined);
   await new Promise<void>((resolve) => io.close(() => resolve()));
+  await cluster?.close().catch(() => undefined);
   httpServer.closeAllConnections();
   await new Promise<void>((resolve) => httpServer.close(() => resolve()));
   await closeDb();

@@ -272,10 +272,20 @@ export class Cluster {
     };
   }
 
-  async close() {
+  /** Leaves the members at once (a graceful stop): the others take this process's sessions over. */
+  async leave() {
     this.closed = true;
     for (const t of this.releases.values()) clearTimeout(t);
     await this.membership.leave();
-    for (const c of [this.member, this.pub, this.sub]) c.disconnect();
+  }
+
+  /** After io.close(): the Redis connections, politely (QUIT) when Redis answers within a second. */
+  async close() {
+    await this.leave();
+    await Promise.all(
+      [this.member, this.pub, this.sub].map((c) =>
+        Promise.race([c.quit().catch(() => undefined), sleep(1000)]).finally(() => c.disconnect()),
+      ),
+    );
   }
 }

@@ -112,7 +112,9 @@ defaults
   # The client's address for Parley's rate limits (the processes run with TRUST_PROXY=1).
   option forwardfor
   option redispatch
-  retries 2
+  retries 3
+  # A request (a websocket upgrade included) that found a dead process goes to another one.
+  retry-on conn-failure empty-response response-timeout 502 503 504
   timeout connect 2s
   timeout client 60s
   timeout server 60s

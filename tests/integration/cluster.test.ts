@@ -78,8 +78,21 @@ async function expectStoredOnce(sessionIds: number[], result: CrowdResult, compu
   return rows;
 }
 
+/**
+ * The Conductor's command over a fresh socket through HAProxy. Right after a kill HAProxy may still
+ * send the connection to the dead process for up to its health-check interval: the Conductor page
+ * connects again, and so does this.
+ */
 async function control(instructor: Client, sessionId: number, command: 'start' | 'end-after-supergame') {
-  const s = track(await connectPhone(cluster.url, instructor.cookieHeader()));
+  let s: TestSocket | null = null;
+  for (let attempt = 0; !s; attempt++) {
+    try {
+      s = track(await connectPhone(cluster.url, instructor.cookieHeader()));
+    } catch (error) {
+      if (attempt >= 20) throw error;
+      await sleep(500);
+    }
+  }
   const res = await s.emitWithAck('session:control', { sessionId, command });
   s.close();
   return res;
@@ -146,8 +159,9 @@ describe('two processes behind HAProxy', () => {
         expect(f.some((v) => v.status === 'running')).toBe(true);
         expect(f.at(-1)?.status).toBe('complete');
         expect(screens.get(id)!.at(-1)?.status).toBe('complete');
-        // one floor view at least per supergame played (they are coalesced to one per 250 ms)
-        expect(new Set(f.map((v) => v.supergame)).size).toBe(2);
+        // views of both supergames (they are coalesced to one per 250 ms per session)
+        expect(f.some((v) => v.supergame === 1 && v.status === 'running')).toBe(true);
+        expect(f.some((v) => v.supergame === 2 && v.status === 'running')).toBe(true);
       }
       expect(rows.filter((r) => r.source === 'player').length).toBe(result.acked.size);
     },
