@@ -135,7 +135,10 @@ backend parley
   option httpchk
   http-check send meth GET uri /healthz ver HTTP/1.1 hdr Host 127.0.0.1
   http-check expect status 200
-  default-server inter 1s fastinter 500ms downinter 1s fall 2 rise 2 on-marked-down shutdown-sessions
+  # A process under load may answer /healthz slowly: down after 3 checks of 2 s unanswered for 5 s
+  # each. A killed process is noticed sooner anyway: its connections are refused and retried elsewhere.
+  timeout check 5s
+  default-server inter 2s fastinter 1s downinter 1s fall 3 rise 2 on-marked-down shutdown-sessions
 ${backends.map((p, i) => `  server p${i + 1} 127.0.0.1:${p} check cookie p${i + 1}`).join('\n')}
 `;
 }
