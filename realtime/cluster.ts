@@ -258,7 +258,8 @@ export class Cluster {
   async health(): Promise<ClusterHealth> {
     let redis = false;
     try {
-      redis = (await Promise.race([this.pub.ping(), sleep(1000).then(() => 'timeout')])) === 'PONG';
+      // On the members connection, which gives up (the adapter's would queue a PING per probe while Redis is away).
+      redis = (await Promise.race([this.member.ping(), sleep(1000).then(() => 'timeout')])) === 'PONG';
     } catch {
       redis = false;
     }
