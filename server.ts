@@ -56,10 +56,12 @@ if (production) {
   });
 }
 
-const { io, runner } = attachHub(httpServer);
-// A restarted server carries on every open, running and paused session from the database.
-runner
-  .recoverAll()
+// REDIS_URL: cluster mode (socket.io's Redis adapter, one owner per live session; realtime/cluster.ts).
+const { io, runner, cluster } = await attachHub(httpServer, { redisUrl: config.REDIS_URL });
+// A restarted server carries on every open, running and paused session from the database (in
+// cluster mode: those it owns, through the same takeover as a membership change; the others'
+// owners hold theirs).
+(cluster ? cluster.rebalance() : runner.recoverAll())
   .then((n) => n && console.log(`[parley] resumed ${n} live session(s) from the database`))
   .catch((error) => console.error('[parley] could not resume live sessions', error));
 // Background jobs (estimations, results e-mails, the hourly pruning of sign-in records), queued in
@@ -75,11 +77,17 @@ async function shutdown(signal: string) {
   if (closing) return;
   closing = true;
   console.log(`[parley] ${signal}: closing`);
+  // Closing connections rejects what was still queued on them (a Redis publish while Redis is
+  // away, say): said, not a crash with exit code 1 on the way out.
+  process.on('unhandledRejection', (error) => console.warn('[parley] while closing:', error instanceof Error ? error.message : error));
   const force = setTimeout(() => process.exit(1), 8000);
   force.unref();
   runner.close();
+  // Leave the members first: the others take this process's sessions over at their next poll.
+  await cluster?.leave().catch(() => undefined);
   await stopJobWorker().catch(() => undefined);
   await new Promise<void>((resolve) => io.close(() => resolve()));
+  await cluster?.close().catch(() => undefined);
   httpServer.closeAllConnections();
   await new Promise<void>((resolve) => httpServer.close(() => resolve()));
   await closeDb();

@@ -1,6 +1,7 @@
 // The socket.io hub: authenticates every socket with the sign-in cookie the pages use, validates
 // every payload with zod, checks the caller's role, hands events to the session runner, and
-// acknowledges. Created once, in server.ts.
+// acknowledges. Created once, in server.ts. In cluster mode (REDIS_URL, realtime/cluster.ts) the
+// session-side part of each event runs on the session's owner, wherever the socket is connected.
 import type { Server as HttpServer } from 'node:http';
 import { eq } from 'drizzle-orm';
 import { Server, type Socket } from 'socket.io';
@@ -16,6 +17,7 @@ import type { CourseRole } from '#app/utils/roles';
 import { setRunner } from '#app/utils/runner.server';
 import { setSocketControl } from '#app/utils/sockets.server';
 import { users } from '#drizzle/schema';
+import { Cluster, type HubServer, type InterServerEvents, type OwnerHandlers, type OwnerOp, type OwnerOps } from './cluster';
 import { roomOf } from './engine/engine';
 import type { EngineEvent } from './engine/types';
 import { bigScreenView, floorView, participantView } from './engine/views';
@@ -35,7 +37,7 @@ import { EventLimiter } from './rate-limit';
 import { SessionRunner } from './runner';
 import { StorageUnavailable } from './storage-health';
 
-type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
+type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, InterServerEvents, SocketData>;
 
 class Refusal extends Error {
   constructor(
@@ -46,16 +48,37 @@ class Refusal extends Error {
   }
 }
 
-export function attachHub(httpServer: HttpServer) {
-  const io = new Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>(httpServer, {
+/** Runs `run` and turns its refusals into the failure acknowledgement (anything else: server-error). */
+async function answered<T>(run: () => Promise<T>): Promise<Ack<T>> {
+  try {
+    return { ok: true, data: await run() };
+  } catch (error) {
+    if (error instanceof Refusal || error instanceof StorageUnavailable) return { ok: false, code: error.code, message: error.message };
+    console.error('[parley] socket handler failed', error);
+    return { ok: false, code: 'server-error', message: 'Something went wrong on the server.' };
+  }
+}
+
+/** The data of a successful acknowledgement; a failure is thrown again as the same refusal. */
+function unwrap<T>(ack: Ack<T>): T {
+  if (!ack.ok) throw new Refusal(ack.code, ack.message);
+  return ack.data;
+}
+
+/** `redisUrl`: cluster mode (socket.io's Redis adapter, one owner per session); absent: one process. */
+export async function attachHub(httpServer: HttpServer, opts: { redisUrl?: string } = {}) {
+  const io: HubServer = new Server<ClientToServerEvents, ServerToClientEvents, InterServerEvents, SocketData>(httpServer, {
     serveClient: false,
     // Pages of another origin on the same site would otherwise connect with the user's cookie.
     allowRequest: allowSocketOrigin(env().APP_URL),
     // Every payload is a few hundred bytes; socket.io's default (1 MB) would let one message hold a megabyte.
     maxHttpBufferSize: 32 * 1024,
   });
+  // In cluster mode a room's listeners may be on any process: the owner always sends (the adapter
+  // carries it to every process), since asking every process who listens would cost more.
+  const clustered = Boolean(opts.redisUrl);
   const runner = new SessionRunner({
-    listening: (room) => (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
+    listening: (room) => clustered || (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
     view: (room, view) => {
       const to = io.to(room);
       if (view.kind === 'participant') to.emit('view:participant', view);
@@ -65,6 +88,7 @@ export function attachHub(httpServer: HttpServer) {
     storage: (ok) => io.emit('storage:status', { ok }),
   });
   setRunner(runner);
+  const cluster = opts.redisUrl ? await Cluster.start(io, runner, opts.redisUrl) : null;
 
   // Every socket belongs to one server-side sign-in; its rooms let a sign-out, a removal or a role
   // change close it at once (the client reconnects and is authorised afresh, or refused).
@@ -106,6 +130,119 @@ export function attachHub(httpServer: HttpServer) {
     return { session, role };
   }
 
+  /**
+   * The session-side part of every session event: the role checks and the runner. Runs on the
+   * session's owner (this process, or another one that received it through the adapter); the
+   * socket-side part (rooms, the set of sessions a socket plays in) stays with the socket.
+   */
+  const owned: OwnerHandlers = {
+    'session:watch': (userId, { sessionId, as }) =>
+      answered(async () => {
+        if (userId === null) throw new Refusal('unauthorized', 'Sign in first.');
+        const me = String(userId);
+        if (as === 'participant') {
+          const session = await sessionFor(sessionId);
+          const state = await runner.state(sessionId);
+          if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
+          // In a roster session, a member removed from the course keeps no seat, whatever the
+          // session's state says. (Open sessions admit people who are not members.)
+          if (session.admission === 'roster' && !(await roleFor(userId, session.courseId))) {
+            throw new Refusal('forbidden', 'You are no longer a member of this course.');
+          }
+          let res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
+          // Handed to a computer while away, now back: plays again from the next supergame.
+          if (res.state.participants[me]?.status === 'handed' && (res.state.status === 'running' || res.state.status === 'paused')) {
+            const back = await runner.dispatch(sessionId, { type: 'join', participantId: me });
+            if (!back.error) res = back;
+          }
+          return participantView(res.state, me);
+        }
+        await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);
+        const state = (await runner.state(sessionId))!;
+        return as === 'floor' ? floorView(state, Date.now()) : bigScreenView(state);
+      }),
+
+    'choice:submit': (userId, c) =>
+      answered(async () => {
+        if (userId === null) throw new Refusal('unauthorized', 'Sign in first.');
+        await sessionFor(c.sessionId);
+        const res = await runner.dispatch(c.sessionId, {
+          type: 'choose',
+          participantId: String(userId),
+          supergame: c.supergame,
+          round: c.round,
+          action: c.action,
+          clientChoiceId: c.clientChoiceId,
+        });
+        if (res.error) {
+          // A retry of a stored choice (double tap, resend after reconnect): the same answer again.
+          if (res.error.code === 'already-chosen' && res.row?.clientChoiceId === c.clientChoiceId) return res.row;
+          throw new Refusal(res.error.code, res.error.message);
+        }
+        return res.row!;
+      }),
+
+    'session:control': (userId, { sessionId, command }) =>
+      answered(async () => {
+        if (userId === null) throw new Refusal('unauthorized', 'Sign in first.');
+        // product.md "Roles": assistants may pause and resume only.
+        const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
+        await requireStaff(userId, sessionId, roles);
+        const event: EngineEvent =
+          command === 'end-after-supergame'
+            ? { type: 'endAfterSupergame' }
+            : command === 'end-now'
+              ? { type: 'endNow' }
+              : { type: command };
+        const res = await runner.dispatch(sessionId, event, { userId });
+        if (res.error) throw new Refusal(res.error.code, res.error.message);
+        return { status: res.state.status };
+      }),
+
+    'participant:act': (userId, { sessionId, participantId, action, strategy }) =>
+      answered(async () => {
+        if (userId === null) throw new Refusal('unauthorized', 'Sign in first.');
+        const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
+        const state = (await runner.state(sessionId))!;
+        if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
+        // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
+        if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
+          throw new Refusal(
+            'session-not-running',
+            `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`,
+          );
+        }
+        if (action === 'nudge') {
+          io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', {
+            message: 'Your partner is waiting: please choose.',
+          });
+          return { done: true };
+        }
+        const fallback = computerStrategyOf(session.design);
+        const chosen = strategy ?? fallback;
+        if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
+        const res = await runner.dispatch(
+          sessionId,
+          action === 'remove' ? { type: 'remove', participantId } : { type: 'handToComputer', participantId, strategy: chosen },
+          { userId },
+        );
+        if (res.error) throw new Refusal(res.error.code, res.error.message);
+        return { done: true };
+      }),
+
+    dispatch: (userId, { sessionId, event }) =>
+      answered(async () => {
+        const res = await runner.dispatch(sessionId, event, { userId });
+        return { error: res.error ?? null };
+      }),
+  };
+  cluster?.serve(owned);
+
+  /** The session-side part on the session's owner (in one process: here). */
+  function atOwner<K extends OwnerOp>(op: K, sessionId: number, userId: number, input: OwnerOps[K]['input']) {
+    return cluster ? cluster.atOwner(op, sessionId, userId, input) : owned[op](userId, input);
+  }
+
   io.on('connection', (socket) => {
     const userId = socket.data.userId;
     const me = String(userId);
@@ -122,103 +259,46 @@ export function attachHub(httpServer: HttpServer) {
 
     on('me:get', async () => ({ userId }));
 
-    on('session:watch', async ({ sessionId, as }) => {
+    on('session:watch', async (input) => {
+      const { sessionId, as } = input;
       if (as === 'participant') {
-        const session = await sessionFor(sessionId);
-        const state = await runner.state(sessionId);
-        if (!state?.participants[me]) throw new Refusal('not-a-participant', 'You have not joined this session.');
-        // In a roster session, a member removed from the course keeps no seat, whatever the
-        // session's state says. (Open sessions admit people who are not members.)
-        if (session.admission === 'roster' && !(await roleFor(userId, session.courseId))) {
-          throw new Refusal('forbidden', 'You are no longer a member of this course.');
+        // Its own room only (nothing of anyone else's is sent there): joined before the owner
+        // answers, so no view sent in between is missed; left again on a refusal.
+        const room = roomOf('participant', String(sessionId), me);
+        await socket.join(room);
+        try {
+          const view = unwrap(await atOwner('session:watch', sessionId, userId, input));
+          playing.add(sessionId);
+          return view;
+        } catch (error) {
+          if (!playing.has(sessionId)) await socket.leave(room);
+          throw error;
         }
-        await socket.join(roomOf('participant', String(sessionId), me));
-        playing.add(sessionId);
-        let res = await runner.dispatch(sessionId, { type: 'reconnect', participantId: me });
-        // Handed to a computer while away, now back: plays again from the next supergame.
-        if (res.state.participants[me]?.status === 'handed' && (res.state.status === 'running' || res.state.status === 'paused')) {
-          const back = await runner.dispatch(sessionId, { type: 'join', participantId: me });
-          if (!back.error) res = back;
-        }
-        return participantView(res.state, me);
       }
-      await requireStaff(userId, sessionId, as === 'floor' ? ['instructor', 'assistant'] : ['instructor', 'assistant', 'researcher']);
-      const state = (await runner.state(sessionId))!;
-      if (as === 'floor') {
-        await socket.join(roomOf('staff', String(sessionId)));
-        return floorView(state, Date.now());
-      }
-      await socket.join(roomOf('session', String(sessionId)));
-      return bigScreenView(state);
+      const view = unwrap(await atOwner('session:watch', sessionId, userId, input));
+      await socket.join(roomOf(as === 'floor' ? 'staff' : 'session', String(sessionId)));
+      return view;
     });
 
     on('choice:submit', async (c) => {
-      await sessionFor(c.sessionId);
       // Only a socket that was admitted to this session as a participant (session:watch checks
       // membership) may choose; a removal closes the socket, so its replacement must ask again.
       if (!playing.has(c.sessionId)) throw new Refusal('forbidden', 'Open the session on this device first.');
-      const res = await runner.dispatch(c.sessionId, {
-        type: 'choose',
-        participantId: me,
-        supergame: c.supergame,
-        round: c.round,
-        action: c.action,
-        clientChoiceId: c.clientChoiceId,
-      });
-      if (res.error) {
-        // A retry of a stored choice (double tap, resend after reconnect): the same answer again.
-        if (res.error.code === 'already-chosen' && res.row?.clientChoiceId === c.clientChoiceId) return res.row;
-        throw new Refusal(res.error.code, res.error.message);
-      }
-      return res.row!;
+      return unwrap(await atOwner('choice:submit', c.sessionId, userId, c));
     });
 
-    on('session:control', async ({ sessionId, command }) => {
-      // product.md "Roles": assistants may pause and resume only.
-      const roles: readonly CourseRole[] = command === 'pause' || command === 'resume' ? ['instructor', 'assistant'] : ['instructor'];
-      await requireStaff(userId, sessionId, roles);
-      const event: EngineEvent =
-        command === 'end-after-supergame' ? { type: 'endAfterSupergame' } : command === 'end-now' ? { type: 'endNow' } : { type: command };
-      const res = await runner.dispatch(sessionId, event, { userId });
-      if (res.error) throw new Refusal(res.error.code, res.error.message);
-      return { status: res.state.status };
-    });
+    on('session:control', async (input) => unwrap(await atOwner('session:control', input.sessionId, userId, input)));
 
-    on('participant:act', async ({ sessionId, participantId, action, strategy }) => {
-      const { session } = await requireStaff(userId, sessionId, action === 'remove' ? ['instructor'] : ['instructor', 'assistant']);
-      const state = (await runner.state(sessionId))!;
-      if (!state.participants[participantId]) throw new Refusal('not-a-participant', 'No such participant in this session.');
-      // Nudge and hand-over act on rounds being played; a lobby participant may only be removed.
-      if (action !== 'remove' && state.status !== 'running' && state.status !== 'paused') {
-        throw new Refusal(
-          'session-not-running',
-          `The session is ${state.status === 'complete' ? 'over' : 'not running'}: there is no round to choose in.`,
-        );
-      }
-      if (action === 'nudge') {
-        io.to(roomOf('participant', String(sessionId), participantId)).emit('participant:nudge', {
-          message: 'Your partner is waiting: please choose.',
-        });
-        return { done: true };
-      }
-      const fallback = computerStrategyOf(session.design);
-      const chosen = strategy ?? fallback;
-      if (!LIBRARY.some((a) => a.id === chosen)) throw new Refusal('unknown-strategy', `No library strategy ${chosen}.`);
-      const res = await runner.dispatch(
-        sessionId,
-        action === 'remove' ? { type: 'remove', participantId } : { type: 'handToComputer', participantId, strategy: chosen },
-        { userId },
-      );
-      if (res.error) throw new Refusal(res.error.code, res.error.message);
-      return { done: true };
-    });
+    on('participant:act', async (input) => unwrap(await atOwner('participant:act', input.sessionId, userId, input)));
 
     socket.on('disconnect', () => {
-      for (const sessionId of playing) void runner.dispatch(sessionId, { type: 'disconnect', participantId: me }).catch(() => undefined);
+      for (const sessionId of playing) {
+        void atOwner('dispatch', sessionId, userId, { sessionId, event: { type: 'disconnect', participantId: me } }).catch(() => undefined);
+      }
     });
   });
 
-  return { io, runner };
+  return { io, runner, cluster };
 }
 
 /** socket.io middleware: every incoming event passes here first; over its bucket it is refused. */

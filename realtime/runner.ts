@@ -12,7 +12,7 @@ import { getSession, rebuildSession, StaleState, type StoredSession, writeEffect
 import { db } from '#app/utils/db.server';
 import { sessions } from '#drizzle/schema';
 import { newBatchScope, resumeEffects, roomOf, step } from './engine/engine';
-import type { Effect, EngineEvent, EngineState, StepResult } from './engine/types';
+import type { Effect, EngineError, EngineEvent, EngineState, StepResult } from './engine/types';
 import { bigScreenView, floorView, participantView } from './engine/views';
 import type { WatchedView } from './protocol';
 import { isStorageError, StorageHealth, StorageUnavailable } from './storage-health';
@@ -23,6 +23,29 @@ export interface Broadcaster {
   /** the view goes out as its kind's event (`view:participant`, `view:floor`, `view:big-screen`) */
   view(room: string, view: WatchedView): void;
   storage(ok: boolean): void;
+}
+
+/**
+ * In cluster mode (realtime/cluster.ts): which sessions this process owns, and how an event of a
+ * session owned elsewhere reaches its owner. Without it, this process owns every session.
+ */
+export interface Ownership {
+  owns(sessionId: number): boolean;
+  /** applies the event on the owner; the answer says only whether the engine refused it */
+  dispatchRemote(sessionId: number, event: EngineEvent, userId: number | null): Promise<{ error: EngineError | null }>;
+  /** for /healthz */
+  health(): Promise<ClusterHealth>;
+}
+
+export interface ClusterHealth {
+  /** Redis answers a PING within a second */
+  redis: boolean;
+  /** the adapter's publish and subscribe connections are up */
+  adapter: boolean;
+  member: string;
+  members: string[];
+  /** sessions this process owns and holds in memory */
+  sessionsHeld: number[];
 }
 
 interface Waiter {
@@ -61,7 +84,9 @@ const finished = (status: string) => status === 'complete' || status === 'archiv
 export class SessionRunner {
   private live = new Map<number, Live>();
   private loading = new Map<number, Promise<Live | null>>();
-  private timers = new Map<string, NodeJS.Timeout>();
+  /** per session: timer key → its timeout, so releasing a session cancels exactly its timers */
+  private timers = new Map<number, Map<string, NodeJS.Timeout>>();
+  private ownership: Ownership | null = null;
   private tick: NodeJS.Timeout;
   private closed = false;
   private recovering = false;
@@ -86,17 +111,93 @@ export class SessionRunner {
    * server was down).
    */
   async recoverAll() {
+    const ids = (await this.liveSessionIds()).filter((id) => this.owns(id) && !this.live.has(id));
+    this.recovering = true;
+    try {
+      for (const id of ids) await this.graceOne(id);
+    } finally {
+      this.recovering = false;
+    }
+    return ids.length;
+  }
+
+  /** Every open, running or paused session in the database (simulated ones never run live). */
+  async liveSessionIds(): Promise<number[]> {
     const rows = await db()
       .select({ id: sessions.id })
       .from(sessions)
       .where(and(inArray(sessions.status, ['open', 'running', 'paused']), eq(sessions.simulated, false)));
-    this.recovering = true;
-    try {
-      for (const r of rows) await this.graceOne(r.id);
-    } finally {
-      this.recovering = false;
-    }
-    return rows.length;
+    return rows.map((r) => r.id);
+  }
+
+  /** Cluster mode: from now on this process steps only the sessions `ownership` says it owns. */
+  setOwnership(ownership: Ownership | null) {
+    this.ownership = ownership;
+  }
+
+  /** In cluster mode: Redis, the adapter and the members, as this process sees them; else null. */
+  clusterHealth(): Promise<ClusterHealth> | null {
+    return this.ownership ? this.ownership.health() : null;
+  }
+
+  owns(sessionId: number): boolean {
+    return this.ownership ? this.ownership.owns(sessionId) : true;
+  }
+
+  /** The sessions this process holds in memory (owned, or owned until a moment ago). */
+  heldSessions(): number[] {
+    return [...this.live.keys()];
+  }
+
+  holds(sessionId: number): boolean {
+    return this.live.has(sessionId);
+  }
+
+  /**
+   * Takes a session over (its owner died or membership changed): rebuilt from MariaDB, then the
+   * grace every waiting round gets after a restart — nobody is timed out for rounds they could
+   * not answer while no process was stepping the session; timers are armed again from the state.
+   */
+  async takeOver(sessionId: number) {
+    await this.release(sessionId);
+    // No such session (a forged id): nothing to take over; the event itself answers not-found.
+    if (!(await getSession(sessionId))) return;
+    await this.graceOne(sessionId);
+  }
+
+  /** Rebuilds a held session from MariaDB (another writer moved it on, or it may be stale). */
+  async refresh(sessionId: number) {
+    await this.release(sessionId);
+    await this.load(sessionId);
+  }
+
+  /**
+   * Drops the in-memory copy of a session, with its timers and its pending staff view: another
+   * process owns it now. A batch being written is let finish first; events still queued are
+   * answered 'unavailable' (the phone sends them again, and they reach the new owner).
+   */
+  async release(sessionId: number) {
+    const live = this.live.get(sessionId);
+    if (!live) return;
+    for (let i = 0; i < 100 && live.writing; i++) await new Promise((r) => setTimeout(r, 50));
+    if (this.live.get(sessionId) !== live) return;
+    this.live.delete(sessionId);
+    for (const t of this.timers.get(sessionId)?.values() ?? []) clearTimeout(t);
+    this.timers.delete(sessionId);
+    if (live.staff.timer) clearTimeout(live.staff.timer);
+    const queued = live.waiting;
+    live.waiting = [];
+    for (const w of queued) w.settle(new StorageUnavailable());
+  }
+
+  /**
+   * An event from a route (a join, the opening of a session): applied here when this process owns
+   * the session, else by its owner. Says only whether the engine refused it.
+   */
+  async submit(sessionId: number, event: EngineEvent, opts: { userId?: number | null } = {}): Promise<{ error: EngineError | null }> {
+    if (this.ownership && !this.ownership.owns(sessionId)) return this.ownership.dispatchRemote(sessionId, event, opts.userId ?? null);
+    const res = await this.dispatch(sessionId, event, opts);
+    return { error: res.error ?? null };
   }
 
   private async graceAll() {
@@ -118,11 +219,17 @@ export class SessionRunner {
 
   /** The current engine state of a session (loaded from the database if needed). */
   async state(sessionId: number): Promise<EngineState | null> {
+    if (!this.owns(sessionId) && !this.live.has(sessionId)) {
+      // Owned by another process: read from MariaDB, and keep no copy that would go stale.
+      const session = await getSession(sessionId);
+      return session ? rebuildSession(session) : null;
+    }
     const live = await this.load(sessionId);
     return live?.state ?? null;
   }
 
   async sessionOf(sessionId: number): Promise<StoredSession | null> {
+    if (!this.owns(sessionId) && !this.live.has(sessionId)) return getSession(sessionId);
     return (await this.load(sessionId))?.session ?? null;
   }
 
@@ -284,7 +391,7 @@ export class SessionRunner {
       live.session = { ...live.session, status: live.state.status };
       // A finished session leaves memory a little later; a phone that asks again reloads it.
       const t = setTimeout(() => {
-        if (this.live.get(id) === live) this.live.delete(id);
+        if (this.live.get(id) === live) void this.release(id);
       }, EVICT_AFTER_MS);
       t.unref();
     }
@@ -319,19 +426,27 @@ export class SessionRunner {
   }
 
   private applyTimers(sessionId: number, effects: readonly Effect[]) {
+    let timers = this.timers.get(sessionId);
+    if (!timers) {
+      timers = new Map();
+      this.timers.set(sessionId, timers);
+    }
+    const mine = timers;
     for (const e of effects) {
       if (e.type === 'cancel-timer') {
-        clearTimeout(this.timers.get(e.key));
-        this.timers.delete(e.key);
+        clearTimeout(mine.get(e.key));
+        mine.delete(e.key);
       } else if (e.type === 'schedule-timer') {
-        clearTimeout(this.timers.get(e.key));
+        clearTimeout(mine.get(e.key));
         const event = e.event;
         const t = setTimeout(
           () => {
-            this.timers.delete(e.key);
+            mine.delete(e.key);
             // Storage lost, or silent for a while (a stall nobody has written into yet): no timeout
             // now. Recovery applies grace, which arms this round again with its full time.
             if (this.closed || !this.health.fresh()) return;
+            // Another process owns the session now: its owner armed this timer again when it took over.
+            if (!this.owns(sessionId)) return;
             this.dispatch(sessionId, event).catch((err) => {
               if (!(err instanceof StorageUnavailable)) console.error('[parley] timer', err);
             });
@@ -339,7 +454,7 @@ export class SessionRunner {
           Math.max(0, e.at - Date.now()),
         );
         t.unref();
-        this.timers.set(e.key, t);
+        mine.set(e.key, t);
       }
     }
   }
@@ -371,7 +486,7 @@ export class SessionRunner {
   private async tickAll() {
     if (this.recovering || !this.health.ok) return;
     for (const [id, live] of this.live) {
-      if (live.state.status === 'running') await this.dispatch(id, { type: 'tick' }).catch(() => undefined);
+      if (live.state.status === 'running' && this.owns(id)) await this.dispatch(id, { type: 'tick' }).catch(() => undefined);
     }
   }
 
@@ -379,7 +494,7 @@ export class SessionRunner {
     this.closed = true;
     this.health.close();
     clearInterval(this.tick);
-    for (const t of this.timers.values()) clearTimeout(t);
+    for (const timers of this.timers.values()) for (const t of timers.values()) clearTimeout(t);
     this.timers.clear();
     for (const live of this.live.values()) if (live.staff.timer) clearTimeout(live.staff.timer);
   }

@@ -64,7 +64,10 @@ const need = (name: string) => {
 const URL_ = need('BENCH_URL');
 const MAIL_API = need('BENCH_MAIL_API');
 const ECHO_URL = need('BENCH_ECHO_URL');
-const SERVER_PID = Number(need('BENCH_SERVER_PID'));
+/** the server process, or with --instances n the n processes of the cluster (figures summed) */
+const SERVER_PIDS = need('BENCH_SERVER_PID').split(',').map(Number);
+const INSTANCES = process.env.BENCH_INSTANCES ? Number(process.env.BENCH_INSTANCES) : null;
+const RESULTS_DIR = process.env.BENCH_RESULTS_DIR ?? null;
 const DATABASE_URL = need('DATABASE_URL');
 for (const u of [URL_, MAIL_API, ECHO_URL])
   if (!u.startsWith('http://127.0.0.1:')) throw new Error(`${u}: the benchmark talks to 127.0.0.1 only`);
@@ -89,13 +92,19 @@ async function inBatches<T, R>(items: T[], width: number, work: (item: T, index:
 
 // ── The server process, from outside: CPU seconds and memory from /proc ───────────────────────────
 const TICKS = Number(spawnSync('getconf', ['CLK_TCK'], { encoding: 'utf8' }).stdout.trim()) || 100;
-function cpuSeconds(pid: number) {
+function cpuSeconds(pids: readonly number[]) {
+  return pids.reduce((sum, pid) => sum + cpuSecondsOf(pid), 0);
+}
+function cpuSecondsOf(pid: number) {
   const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
   const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
   // utime and stime are fields 14 and 15 of /proc/<pid>/stat; here indexed after "(comm) ".
   return (Number(fields[11]) + Number(fields[12])) / TICKS;
 }
-function statusKb(pid: number, key: 'VmRSS' | 'VmHWM') {
+function statusKb(pids: readonly number[], key: 'VmRSS' | 'VmHWM') {
+  return pids.reduce((sum, pid) => sum + statusKbOf(pid, key), 0);
+}
+function statusKbOf(pid: number, key: 'VmRSS' | 'VmHWM') {
   const m = new RegExp(`^${key}:\\s+(\\d+) kB`, 'm').exec(fs.readFileSync(`/proc/${pid}/status`, 'utf8'));
   return m ? Number(m[1]) : Number.NaN;
 }
@@ -308,26 +317,26 @@ async function main() {
 
   let cpu0 = 0;
   let peakRssKb = 0;
-  const poll = setInterval(() => (peakRssKb = Math.max(peakRssKb, statusKb(SERVER_PID, 'VmRSS'))), 100);
-  const rssBeforeKb = statusKb(SERVER_PID, 'VmRSS');
+  const poll = setInterval(() => (peakRssKb = Math.max(peakRssKb, statusKb(SERVER_PIDS, 'VmRSS'))), 100);
+  const rssBeforeKb = statusKb(SERVER_PIDS, 'VmRSS');
   const playStart = performance.now();
   say(`${phones.length} phones watching; starting`);
   const result: CrowdResult = await playCrowd(phones, {
     timeoutMs: f.timeoutS * 1000,
     idPrefix: `bench-${process.pid}`,
     start: async () => {
-      cpu0 = cpuSeconds(SERVER_PID);
+      cpu0 = cpuSeconds(SERVER_PIDS);
       for (const { sessionId } of sessions) {
         const res = await conductor.emitWithAck('session:control', { sessionId, command: 'start' });
         if (!res.ok) throw new Error(`start was refused: ${res.code} ${res.message}`);
       }
     },
   });
-  const cpu1 = cpuSeconds(SERVER_PID);
+  const cpu1 = cpuSeconds(SERVER_PIDS);
   const playSeconds = (performance.now() - playStart) / 1000;
   clearInterval(poll);
-  peakRssKb = Math.max(peakRssKb, statusKb(SERVER_PID, 'VmRSS'));
-  const hwmKb = statusKb(SERVER_PID, 'VmHWM');
+  peakRssKb = Math.max(peakRssKb, statusKb(SERVER_PIDS, 'VmRSS'));
+  const hwmKb = statusKb(SERVER_PIDS, 'VmHWM');
   const load1 = loadavg();
   for (const s of [...phones.map((p) => p.socket), ...staff, conductor]) s.close();
 
@@ -420,7 +429,7 @@ async function main() {
   const line = (label: string, s: ReturnType<typeof stats>, ratio = '') =>
     `  ${label.padEnd(34)} ${ms(s.p50).padStart(9)} ${ms(s.p95).padStart(9)} ${ms(s.p99).padStart(9)} ${ms(s.max).padStart(9)}   ${ratio}`;
   console.log(`
-Live benchmark — ${out.date}, commit ${commit1}${out.dirty ? ' (uncommitted changes)' : ''}
+Live benchmark${INSTANCES === null ? '' : ` — ${INSTANCES} process${INSTANCES > 1 ? 'es' : ''} behind HAProxy, Redis adapter`} — ${out.date}, commit ${commit1}${out.dirty ? ' (uncommitted changes)' : ''}
 N = ${f.n} phones in ${f.sessions} session(s) of ${perSession}, ${f.supergames} supergame(s) of ${roundsPlayed.join(' + ')} rounds, δ = ${f.delta}, seed ${f.seed}
 load average before ${load0}, after ${load1} (${out.machine.cores} cores)
 
@@ -446,8 +455,41 @@ targets (issue 11): ${Object.entries(out.targets)
     fs.writeFileSync(f.json, `${JSON.stringify(out, null, 2)}\n`);
     say(`wrote ${f.json}`);
   }
+  if (INSTANCES !== null && RESULTS_DIR) compareInstances(out, INSTANCES, RESULTS_DIR);
   // The run failed (not merely slow) when play did not complete or rows do not match the acks.
   process.exit(result.complete && out.targets.rows.met ? 0 : 1);
+}
+
+interface Kept {
+  commit: string;
+  config: { n: number; sessions: number; supergames: number; seed: string };
+  live: { complete: boolean; playSeconds: number; ackMs: { p50: number; p95: number }; serverCpuMsPerChoice: number };
+  rows: { acknowledged: number };
+}
+
+/**
+ * --instances n: keeps this run's figures as instances-<n>.json and, when the run with the other
+ * count (1 or 2) of the same configuration is there, prints 2 processes against 1: choices per
+ * second of play, ack p50/p95, CPU per choice (summed over the processes).
+ */
+function compareInstances(out: Kept, n: number, dir: string) {
+  fs.writeFileSync(`${dir}/instances-${n}.json`, `${JSON.stringify(out, null, 2)}\n`);
+  const otherFile = `${dir}/instances-${n === 1 ? 2 : 1}.json`;
+  if ((n !== 1 && n !== 2) || !fs.existsSync(otherFile)) return;
+  const other = JSON.parse(fs.readFileSync(otherFile, 'utf8')) as Kept;
+  const same = (['n', 'sessions', 'supergames', 'seed'] as const).every((k) => other.config[k] === out.config[k]);
+  if (!same || !other.live.complete || !out.live.complete) {
+    say(`no 2:1 ratio: ${otherFile} is of another configuration or an incomplete run`);
+    return;
+  }
+  const [one, two] = n === 1 ? [out, other] : [other, out];
+  const rate = (k: Kept) => k.rows.acknowledged / k.live.playSeconds;
+  console.log(`
+2 processes : 1 process (same N, sessions, seed; through HAProxy and Redis both times; commits ${one.commit} / ${two.commit})
+  choices per second of play   ${rate(two).toFixed(0)} : ${rate(one).toFixed(0)}   = ${(rate(two) / rate(one)).toFixed(2)}
+  choice ack p50               ${ms(two.live.ackMs.p50)} : ${ms(one.live.ackMs.p50)}   = ${(two.live.ackMs.p50 / one.live.ackMs.p50).toFixed(2)}
+  choice ack p95               ${ms(two.live.ackMs.p95)} : ${ms(one.live.ackMs.p95)}   = ${(two.live.ackMs.p95 / one.live.ackMs.p95).toFixed(2)}
+  server CPU per choice (sum)  ${two.live.serverCpuMsPerChoice.toFixed(2)} ms : ${one.live.serverCpuMsPerChoice.toFixed(2)} ms   = ${(two.live.serverCpuMsPerChoice / one.live.serverCpuMsPerChoice).toFixed(2)}`);
 }
 
 function git(...args: string[]) {

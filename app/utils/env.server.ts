@@ -53,6 +53,13 @@ const schema = z.object({
    * leaves them to the other processes on the same database (a test's second server that runs
    * with another environment, e.g. a dead mail server) */
   PARLEY_JOBS: z.enum(['on', 'off']).default('on'),
+  /** cluster mode: several processes share socket.io's Redis adapter and own live sessions one
+   * each (docs/decisions/032-one-owner-per-session.md); unset: one process, no Redis */
+  REDIS_URL: z
+    .string()
+    .regex(/^rediss?:\/\//, 'REDIS_URL must be a redis:// or rediss:// URL')
+    .optional()
+    .transform((v) => v || undefined),
   /** behind a reverse proxy, read the client address from X-Forwarded-For */
   TRUST_PROXY: z
     .enum(['0', '1', 'true', 'false'])

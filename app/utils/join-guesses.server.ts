@@ -1,7 +1,9 @@
 // Join codes are 6 characters from 32 (about 10⁹ codes): small enough that a script on the public
 // /join page could walk them. Codes that match no open session are counted per network address
 // and refused for a while past a limit; right codes never count (a lecture hall shares one
-// address). Kept in memory: Parley is one process, and a restart forgetting the count is harmless.
+// address). Kept in memory: a restart forgetting the count is harmless. In cluster mode each
+// process counts its own, so behind HAProxy's leastconn a network gets up to n × the allowance
+// (docs/deploy.md says how to set JOIN_CODE_MISSES_PER_IP for n processes).
 import { env } from './env.server';
 
 export const JOIN_GUESS_WINDOW_MS = 15 * 60_000;

@@ -77,7 +77,7 @@ export async function nextStep(
 
 /** Into the lobby: the runner adds the participant, then the consent answer is stored. Returns why it could not. */
 export async function joinNow(session: JoinSession, userId: number, consent: ConsentAnswer | null): Promise<{ error: string }> {
-  const res = await runner().dispatch(session.id, { type: 'join', participantId: participantKeyOf(userId) });
+  const res = await runner().submit(session.id, { type: 'join', participantId: participantKeyOf(userId) });
   if (res.error) return { error: res.error.message };
   if (session.design.consent && consent) await setConsent(session.id, userId, consent === 'yes');
   throw redirect(`/play/${session.id}`);

@@ -33,7 +33,8 @@ function fetchRequest(req: ExpressRequest, res: ExpressResponse): Request {
   const [, forwardedPort] = req.app.enabled('trust proxy') ? (req.get('X-Forwarded-Host')?.split(':') ?? []) : [];
   const [, hostPort] = req.get('host')?.split(':') ?? [];
   const port = [forwardedPort, hostPort].map((p) => Number.parseInt(p ?? '', 10)).find((p) => Number.isSafeInteger(p));
-  const hostname = req.hostname.split(/[\\/?#@]/)[0] || 'localhost';
+  // An HTTP/1.0 request (a load balancer's health check) may carry no Host at all.
+  const hostname = (req.hostname ?? '').split(/[\\/?#@]/)[0] || 'localhost';
   const url = new URL(`${req.protocol}://${hostname}${port ? `:${port}` : ''}${req.originalUrl}`);
 
   const headers = new Headers();

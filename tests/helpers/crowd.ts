@@ -199,9 +199,17 @@ export async function playCrowd(
 
   const watch = async (i: number) => {
     const { socket, sessionId } = phones[i];
-    const res = await socket.emitWithAck('session:watch', { sessionId, as: 'participant' });
-    if (!res.ok) throw new Error(`phone ${i} could not watch session ${sessionId}: ${res.code} ${res.message}`);
-    onView(i, res.data as ParticipantView);
+    for (let attempt = 0; ; attempt++) {
+      const res = await socket.emitWithAck('session:watch', { sessionId, as: 'participant' });
+      if (res.ok) return onView(i, res.data as ParticipantView);
+      // As the phone page does (use-session.ts): a refused watch during a restart or a failover
+      // (no owner yet, the database not answering) is asked again a second later.
+      if (!TRANSIENT.has(res.code) || attempt >= 30 || !socket.connected) {
+        throw new Error(`phone ${i} could not watch session ${sessionId}: ${res.code} ${res.message}`);
+      }
+      transient[`watch:${res.code}`] = (transient[`watch:${res.code}`] ?? 0) + 1;
+      await new Promise((r) => setTimeout(r, 1000));
+    }
   };
 
   phones.forEach(({ socket }, i) => {

@@ -1,6 +1,7 @@
 // A second app server on its own port (same database and build), for tests that must kill a server
 // or start one with another environment (a dead mail server, say).
 import { type ChildProcess, spawn } from 'node:child_process';
+import fs from 'node:fs';
 
 export class SecondServer {
   process: ChildProcess | null = null;
@@ -9,6 +10,8 @@ export class SecondServer {
     readonly port: number,
     /** extra environment; may be changed before start() (a database of the test's own, say) */
     readonly env: Record<string, string> = {},
+    /** `log`: its output is appended to this file (else dropped); `startMs`: how long start() waits */
+    readonly opts: { log?: string; startMs?: number } = {},
   ) {}
 
   get base() {
@@ -21,9 +24,14 @@ export class SecondServer {
       // It takes no background jobs unless a test asks: with its own environment (a dead mail
       // server) or killed mid-run, it would fail or hold other tests' estimations and mails.
       env: { ...process.env, APP_URL: this.base, PARLEY_JOBS: 'off', ...this.env, PORT: String(this.port) },
-      stdio: 'ignore',
+      stdio: this.opts.log ? ['ignore', 'pipe', 'pipe'] : 'ignore',
     });
-    const until = Date.now() + 30_000;
+    if (this.opts.log) {
+      const out = fs.createWriteStream(this.opts.log, { flags: 'a' });
+      this.process.stdout?.pipe(out);
+      this.process.stderr?.pipe(out);
+    }
+    const until = Date.now() + (this.opts.startMs ?? 30_000);
     while (Date.now() < until) {
       try {
         if ((await fetch(`${this.base}/healthz`)).ok) return;

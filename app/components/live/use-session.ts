@@ -15,6 +15,9 @@ export type TimedSocket = ReturnType<LiveSocket['timeout']>;
 export type Ask = <T>(send: (socket: TimedSocket) => Promise<T>) => Promise<T | AckFailure>;
 
 const ACK_WAIT_MS = 8000;
+/** A watch refused with one of these is asked again after WATCH_RETRY_MS. */
+const RETRY_WATCH: ReadonlySet<string> = new Set(['unavailable', 'server-error', 'rate-limited']);
+const WATCH_RETRY_MS = 1000;
 const isKind = <K extends WatchedView['kind']>(view: WatchedView, kind: K): view is ViewOf<K> => view.kind === kind;
 
 /**
@@ -40,9 +43,16 @@ export function useSessionView<K extends WatchedView['kind']>(sessionId: number,
   useEffect(() => {
     const socket: LiveSocket = io({ transports: ['websocket'], reconnectionDelayMax: 4000 });
     socketRef.current = socket;
+    let retry: ReturnType<typeof setTimeout> | undefined;
     const watch = () => {
+      clearTimeout(retry);
       socket.emit('session:watch', { sessionId, as }, (res) => {
-        if (!res.ok) return setError(res.message);
+        if (!res.ok) {
+          // A refusal that passes (a server restarting, a session changing servers, a burst over
+          // the rate limit): ask again in a second, or the phone would wait for a view that never comes.
+          if (RETRY_WATCH.has(res.code)) retry = setTimeout(() => socket.connected && watch(), WATCH_RETRY_MS);
+          return setError(res.message);
+        }
         if (isKind(res.data, as)) setView(res.data);
         setError(null);
         setReady(socket.connected);
@@ -80,6 +90,7 @@ export function useSessionView<K extends WatchedView['kind']>(sessionId: number,
     return () => {
       window.removeEventListener('online', onOnline);
       window.removeEventListener('offline', onOffline);
+      clearTimeout(retry);
       socket.close();
       socketRef.current = null;
     };

@@ -54,7 +54,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (!parsed.success) return data({ errors: fieldErrors(parsed.error), values: form }, { status: 400 });
   const res = await createSessionFromDesign({ courseId: course.id, userId: user.id, ...parsed.data });
   if (!res.ok) return data({ errors: { [res.field]: res.message }, values: form }, { status: 400 });
-  const opened = await runner().dispatch(res.sessionId, { type: 'open' }, { userId: user.id });
+  const opened = await runner().submit(res.sessionId, { type: 'open' }, { userId: user.id });
   if (opened.error) throw new Error(`opening failed: ${opened.error.message}`);
   throw redirect(`/courses/${course.id}/sessions/${res.sessionId}`);
 }
