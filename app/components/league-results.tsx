@@ -1,9 +1,8 @@
 // A league's results for staff: the ranking (TanStack Table), the pairwise per-round values as a
-// heat-map table (numbers always shown; colour is extra), the evolution chart (recharts) with the
-// background fitness in words, the survivors, and the class comparison. Sources in the captions:
+// heat-map table (numbers always shown; colour is extra) and the background fitness in words (the
+// evolution chart is league-charts.tsx, shared with the phones and the projector). Sources in the captions:
 // Axelrod (1984) for the tournament, Taylor & Jonker (1978) for the replicator dynamics,
 // Dal Bó & Fréchette (2011) for strategy-frequency estimation.
-import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { DataTable, staffColumnHelper } from './data-table';
 import { cx } from './ui';
 
@@ -148,60 +147,6 @@ export function HeatMapTable({
       </table>
     </div>
   );
-}
-
-const SERIES = ['#0e5357', '#475569', '#b45309', '#0a3639', '#7c3aed', '#be123c', '#15803d', '#1d4ed8', '#94a3b8'];
-const DASHES = ['', '8 4', '3 3', '12 4 3 4', '2 6', '10 2', '6 2 2 2', '1 3', '4 4'];
-
-/** Shares over generations; at most 8 named lines (the largest at the end), the rest as "all others". */
-export function EvolutionChart({ series, shares }: { series: { name: string; members: number[] }[]; shares: number[][] }) {
-  const data = shares.map((row, g) => {
-    const point: Record<string, number> = { g };
-    series.forEach((s, k) => (point[`s${k}`] = s.members.reduce((sum, m) => sum + row[m], 0)));
-    return point;
-  });
-  return (
-    <ResponsiveContainer width="100%" height="100%">
-      <LineChart data={data} margin={{ top: 8, right: 24, bottom: 8, left: 8 }}>
-        <CartesianGrid stroke="#e2e8f0" />
-        <XAxis
-          dataKey="g"
-          type="number"
-          domain={[0, 'dataMax']}
-          tick={{ fill: '#334155' }}
-          label={{ value: 'generation', position: 'insideBottom', offset: -4, fill: '#334155' }}
-        />
-        <YAxis
-          domain={[0, 1]}
-          ticks={[0, 0.25, 0.5, 0.75, 1]}
-          tickFormatter={(v: number) => `${Math.round(v * 100)} %`}
-          tick={{ fill: '#334155' }}
-        />
-        <Tooltip formatter={(v) => pct(Number(v))} labelFormatter={(g) => `Generation ${g}`} />
-        <Legend verticalAlign="top" />
-        {series.map((s, k) => (
-          <Line
-            key={s.name}
-            dataKey={`s${k}`}
-            name={s.name}
-            stroke={SERIES[k % SERIES.length]}
-            strokeDasharray={DASHES[k % DASHES.length]}
-            strokeWidth={2}
-            dot={false}
-            isAnimationActive={false}
-          />
-        ))}
-      </LineChart>
-    </ResponsiveContainer>
-  );
-}
-
-/** Up to `max` entries with the largest final share, then one series for all the others. */
-export function evolutionSeries(names: string[], finalShares: number[], max = 8) {
-  const order = finalShares.map((s, i) => ({ s, i })).sort((a, b) => b.s - a.s || a.i - b.i);
-  const top = order.slice(0, max).map(({ i }) => ({ name: names[i], members: [i] }));
-  const rest = order.slice(max).map(({ i }) => i);
-  return rest.length ? [...top, { name: `All others (${rest.length})`, members: rest }] : top;
 }
 
 /** The background fitness in words (methods: x' = x(c + f)/(c + f̄)). */

@@ -2,19 +2,11 @@
 // action (server) and the live theory panel (browser). Field names are the schema's paths, so
 // zod's issue paths land beside the right inputs.
 import { DEFAULT_COMPUTER_STRATEGY, type DesignInput } from '#app/lib/design';
+import { type FormSource, formNumber, formText } from '#app/utils/forms';
 
-type Source = FormData | Map<string, string>;
-
-const get = (f: Source, k: string): string | undefined => {
-  const v = f.get(k);
-  return typeof v === 'string' ? v.trim() : undefined;
-};
-/** '' → undefined (zod then says "must be a number"); anything else through Number (NaN fails). */
-const num = (f: Source, k: string): number | undefined => {
-  const v = get(f, k);
-  if (v === undefined || v === '') return undefined;
-  return Number(v.replace(',', '.'));
-};
+type Source = FormSource;
+const get = formText;
+const num = formNumber;
 
 export function designInputFromForm(f: Source): DesignInput {
   const termination =

@@ -4,19 +4,11 @@
 import { z } from 'zod';
 import { AXELROD_PAYOFFS, type LeagueDesign, leagueDesignSchema } from '#app/lib/league-design';
 import { grimSPE } from '#app/lib/thresholds';
+import { type FormSource, formNumber, formText } from '#app/utils/forms';
 
-type Source = FormData | Map<string, string>;
-
-const get = (f: Source, k: string): string | undefined => {
-  const v = f.get(k);
-  return typeof v === 'string' ? v.trim() : undefined;
-};
-/** '' → undefined (zod then says "must be a number"); anything else through Number (NaN fails). */
-const num = (f: Source, k: string): number | undefined => {
-  const v = get(f, k);
-  if (v === undefined || v === '') return undefined;
-  return Number(v.replace(',', '.'));
-};
+type Source = FormSource;
+const get = formText;
+const num = formNumber;
 
 /** What a new league starts from: Axelrod's (1984) payoffs, δ = 0.9, no execution error. */
 export const NEW_LEAGUE: LeagueDesign = {

@@ -4,14 +4,8 @@
 import { data, Form, Link } from 'react-router';
 import { z } from 'zod';
 import type { Route } from './+types/league-results';
-import {
-  backgroundWords,
-  EvolutionChart,
-  evolutionSeries,
-  HeatMapTable,
-  type RankedRow,
-  RankingTable,
-} from '#app/components/league-results';
+import { compactEvolution, EvolutionChart } from '#app/components/league-charts';
+import { backgroundWords, HeatMapTable, type RankedRow, RankingTable } from '#app/components/league-results';
 import { LeagueStateBadge } from '#app/components/league-words';
 import { CourseCrumbs, PageHeader } from '#app/components/shells';
 import { Button, ButtonLink, Notice, SelectField } from '#app/components/ui';
@@ -67,7 +61,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       ...chosen,
       earnings: c.earnings,
       mean: c.mean,
-      evolution: c.evolution,
+      // every class strategy keeps its own line, extinct ones too (they are few)
+      evolution: {
+        background: c.evolution.background,
+        chart: compactEvolution({ names: chosen.strategies, shares: c.evolution.shares }, chosen.strategies.length, 0),
+      },
       lastShares: lastClass,
       entries: results.entries
         .map((_, k) => ({
@@ -97,7 +95,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     matrix: results.entries.length <= MATRIX_MAX ? { perRound: results.perRound, order: results.standings.map((s) => s.entry) } : null,
     entryCount: results.entries.length,
     simulated: results.simulated ? { matches: results.simulated.matches, seed: results.simulated.seed } : null,
-    evolution: { shares: results.evolution.shares, background: results.evolution.background, series: evolutionSeries(names, last) },
+    // a few lines, thinned generations: a 200-entry league's full shares would be megabytes
+    evolution: { background: results.evolution.background, chart: compactEvolution({ names, shares: results.evolution.shares }, 8) },
     survivors: results.survivors.map((s) => ({ name: names[s.entry], house: results.entries[s.entry].house, share: s.share })),
     range: { lo: Math.min(p.S, p.P), hi: Math.max(p.T, p.R) },
     estimates: estimates.map((e) => ({
@@ -212,16 +211,7 @@ export default function LeagueResults({ loaderData, actionData }: Route.Componen
           <h2 id="evolution" className="text-lg font-semibold">
             Evolution over {design.generations} generations
           </h2>
-          <div
-            className="h-96 w-full sm:h-80"
-            role="img"
-            aria-label={`Shares of the entries over ${design.generations} generations, starting equal. At the end: ${survivors
-              .slice(0, 5)
-              .map((s) => `${s.name} ${pct(s.share)}`)
-              .join(', ')}.`}
-          >
-            <EvolutionChart series={evolution.series} shares={evolution.shares} />
-          </div>
+          <EvolutionChart evolution={evolution.chart} height="h-96 sm:h-80" />
           <figcaption className="text-sm text-slate-600">
             Every entry starts with an equal share of the population. {backgroundWords(evolution.background)} (Discrete replicator dynamics,
             Taylor & Jonker 1978; the ecological tournament of Axelrod 1984, ch. 2.){' '}
@@ -332,18 +322,7 @@ export default function LeagueResults({ loaderData, actionData }: Route.Componen
                 <h3 id="class-evolution" className="mb-1 font-semibold">
                   Evolution from the class’s mix
                 </h3>
-                <div
-                  className="h-64 w-full"
-                  role="img"
-                  aria-label={`Shares of the class's strategies over ${design.generations} generations, starting from the estimated mix. At the end: ${comparison.strategies
-                    .map((s, k) => `${s} ${pct(comparison.lastShares[k])}`)
-                    .join(', ')}.`}
-                >
-                  <EvolutionChart
-                    series={comparison.strategies.map((s, k) => ({ name: s, members: [k] }))}
-                    shares={comparison.evolution.shares}
-                  />
-                </div>
+                <EvolutionChart evolution={comparison.evolution.chart} height="h-64" />
                 <figcaption className="text-sm text-slate-600">{backgroundWords(comparison.evolution.background)}</figcaption>
               </figure>
               <p className="mt-2 text-sm text-slate-600">
