@@ -68,6 +68,8 @@ export class Cluster {
   readonly membership: Membership;
   private handlers: OwnerHandlers | null = null;
   private releases = new Map<number, NodeJS.Timeout>();
+  /** sessions owned again while their copy here waited to be dropped: another owner may have moved them on */
+  private stale = new Set<number>();
   /** takeovers in progress, so an event and a rebalance that both find a session new wait for one */
   private taking = new Map<number, Promise<void>>();
   private closed = false;
@@ -215,7 +217,18 @@ export class Cluster {
    */
   async rebalance(): Promise<number> {
     for (const id of this.runner.heldSessions()) {
-      if (this.membership.owns(id) || this.releases.has(id)) continue;
+      const pending = this.releases.get(id);
+      if (this.membership.owns(id)) {
+        // Back before the copy was dropped (the owner in between died at once): that owner may
+        // have stepped the session, so the copy here is rebuilt, not stepped as it stands.
+        if (pending) {
+          clearTimeout(pending);
+          this.releases.delete(id);
+          this.stale.add(id);
+        }
+        continue;
+      }
+      if (pending) continue;
       const t = setTimeout(() => {
         this.releases.delete(id);
         if (!this.membership.owns(id)) this.runner.release(id).catch((error) => console.error('[parley] release', error));
@@ -226,7 +239,7 @@ export class Cluster {
     const ids = await this.runner.liveSessionIds();
     const taken: number[] = [];
     for (const id of ids) {
-      if (!this.membership.owns(id) || this.runner.holds(id)) continue;
+      if (!this.membership.owns(id) || (this.runner.holds(id) && !this.stale.has(id))) continue;
       await this.ensureHeld(id);
       taken.push(id);
     }
@@ -242,9 +255,10 @@ export class Cluster {
    * follows loads the session itself).
    */
   ensureHeld(sessionId: number): Promise<void> {
-    if (this.runner.holds(sessionId)) return Promise.resolve();
+    if (this.runner.holds(sessionId) && !this.stale.has(sessionId)) return Promise.resolve();
     let pending = this.taking.get(sessionId);
     if (!pending) {
+      this.stale.delete(sessionId);
       pending = this.runner
         .takeOver(sessionId)
         .catch((error) => console.error(`[parley] taking over session ${sessionId} failed`, error))
