@@ -284,6 +284,12 @@ export const sessions = mysqlTable(
      * row until its transaction commits: the check that no other writer moved the session on.
      */
     seq: int('seq').notNull().default(0),
+    /**
+     * Cluster mode's fencing token (docs/decisions/036-fencing-a-session-owner.md): a process that
+     * takes a live session over raises it, and every write of the live runner claims it together
+     * with `seq`, so a process that lost the session cannot store another row for it.
+     */
+    leaseEpoch: int('lease_epoch').notNull().default(0),
     /** admit only course members (roster) or anyone signed in, optionally by e-mail domain */
     admission: mysqlEnum('admission', ['roster', 'open']).notNull().default('roster'),
     emailDomain: varchar('email_domain', { length: 120 }),

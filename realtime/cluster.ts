@@ -23,6 +23,12 @@ export const RELEASE_AFTER_MS = 2000;
 const FORWARD_TIMEOUT_MS = 20_000;
 /** How often a forwarded event in flight checks whether its owner is still the owner. */
 const OWNER_CHECK_MS = 200;
+/**
+ * A process whose copy of a session was fenced off (another process took the session over) does
+ * not take it back for this long unless its member list changes first: the two disagreed about
+ * the members, and the other one's view is usually the newer (it polls every 500 ms).
+ */
+export const FENCE_BACKOFF_MS = 1500;
 
 /** What the owner of a session runs for another process: the session-side part of each event. */
 export interface OwnerOps {
@@ -72,6 +78,8 @@ export class Cluster {
   private stale = new Set<number>();
   /** takeovers in progress, so an event and a rebalance that both find a session new wait for one */
   private taking = new Map<number, Promise<void>>();
+  /** sessions whose copy here was fenced off: when, and under which member list */
+  private fencedAt = new Map<number, { at: number; version: number }>();
   private closed = false;
 
   private constructor(
@@ -119,11 +127,12 @@ export class Cluster {
     });
     runner.setOwnership({
       owns: (sessionId) => cluster.membership.owns(sessionId),
-      dispatchRemote: async (sessionId, event, userId) => {
+      dispatchAtOwner: async (sessionId, event, userId) => {
         const reply = await cluster.atOwner('dispatch', sessionId, userId, { sessionId, event });
         if (reply.ok) return reply.data;
         throw new Error(`${reply.code}: ${reply.message}`);
       },
+      fenced: (sessionId) => cluster.fenced(sessionId),
       health: () => cluster.health(),
     });
     await cluster.membership.join();
@@ -153,10 +162,8 @@ export class Cluster {
     for (;;) {
       const owner = this.membership.owner(sessionId);
       if (owner === this.id) {
-        await this.ensureHeld(sessionId);
-        return handlers[op](userId, input);
-      }
-      if (owner) {
+        if (await this.ensureHeld(sessionId)) return handlers[op](userId, input);
+      } else if (owner) {
         const req: ForwardRequest<K> = { op, sessionId, to: owner, userId, input };
         const answer = await this.send(req, owner);
         if (answer?.owned) return this.narrow(op, answer.reply);
@@ -202,7 +209,7 @@ export class Cluster {
   private async answer(req: ForwardRequest): Promise<ForwardAnswer> {
     const handlers = this.handlers;
     if (!handlers || req.to !== this.id || !this.membership.owns(req.sessionId)) return { owned: false };
-    await this.ensureHeld(req.sessionId);
+    if (!(await this.ensureHeld(req.sessionId))) return { owned: false };
     return { owned: true, reply: await this.run(handlers, req) };
   }
 
@@ -240,8 +247,7 @@ export class Cluster {
     const taken: number[] = [];
     for (const id of ids) {
       if (!this.membership.owns(id) || (this.runner.holds(id) && !this.stale.has(id))) continue;
-      await this.ensureHeld(id);
-      taken.push(id);
+      if (await this.ensureHeld(id)) taken.push(id);
     }
     if (taken.length) console.log(`[parley] took over session(s) ${taken.join(', ')}: rebuilt from the database, grace applied`);
     return taken.length;
@@ -251,13 +257,19 @@ export class Cluster {
    * A session this process owns but does not hold (it was another's a moment ago, or it left
    * memory when it finished) is rebuilt from MariaDB with the grace of a restart before any event
    * of it is stepped here: the rounds nobody could answer while no process stepped it get their
-   * full time, and its timers are armed again. Never throws (a failure is logged; the event that
-   * follows loads the session itself).
+   * full time, and its timers are armed again. Taking the lease fences off any process that still
+   * holds an older copy. False: not now — this copy was fenced off a moment ago and the member list
+   * has not changed since (the other process probably sees the members better); the event is
+   * answered as though no owner were reachable, and the sender tries again. Never throws (a
+   * failure is logged; the event that follows loads the session itself).
    */
-  ensureHeld(sessionId: number): Promise<void> {
-    if (this.runner.holds(sessionId) && !this.stale.has(sessionId)) return Promise.resolve();
+  async ensureHeld(sessionId: number): Promise<boolean> {
+    if (this.runner.holds(sessionId) && !this.stale.has(sessionId)) return true;
     let pending = this.taking.get(sessionId);
     if (!pending) {
+      const fenced = this.fencedAt.get(sessionId);
+      if (fenced && fenced.version === this.membership.version && Date.now() - fenced.at < FENCE_BACKOFF_MS) return false;
+      this.fencedAt.delete(sessionId);
       this.stale.delete(sessionId);
       pending = this.runner
         .takeOver(sessionId)
@@ -265,7 +277,23 @@ export class Cluster {
         .finally(() => this.taking.delete(sessionId));
       this.taking.set(sessionId, pending);
     }
-    return pending;
+    await pending;
+    return true;
+  }
+
+  /**
+   * The runner's copy of a session was fenced off: another process took the session over. It is
+   * not taken back at once (see FENCE_BACKOFF_MS); if this process still owns it when the
+   * back-off ends, a rebalance takes it then, so its timers are not left unarmed.
+   */
+  fenced(sessionId: number) {
+    console.warn(`[parley] session ${sessionId} was taken over by another process: copy dropped`);
+    this.fencedAt.set(sessionId, { at: Date.now(), version: this.membership.version });
+    const t = setTimeout(() => {
+      if (this.closed) return;
+      this.rebalance().catch((error) => console.error('[parley] rebalance after a fence failed', error));
+    }, FENCE_BACKOFF_MS + 50);
+    t.unref();
   }
 
   /** For /healthz: Redis answers, the adapter is subscribed, who the members are. */

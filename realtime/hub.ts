@@ -34,7 +34,7 @@ import {
   UNAUTHORIZED,
 } from './protocol';
 import { EventLimiter } from './rate-limit';
-import { SessionRunner } from './runner';
+import { SessionMoved, SessionRunner } from './runner';
 import { StorageUnavailable } from './storage-health';
 
 type HubSocket = Socket<ClientToServerEvents, ServerToClientEvents, InterServerEvents, SocketData>;
@@ -53,7 +53,8 @@ async function answered<T>(run: () => Promise<T>): Promise<Ack<T>> {
   try {
     return { ok: true, data: await run() };
   } catch (error) {
-    if (error instanceof Refusal || error instanceof StorageUnavailable) return { ok: false, code: error.code, message: error.message };
+    if (error instanceof Refusal || error instanceof StorageUnavailable || error instanceof SessionMoved)
+      return { ok: false, code: error.code, message: error.message };
     console.error('[parley] socket handler failed', error);
     return { ok: false, code: 'server-error', message: 'Something went wrong on the server.' };
   }
@@ -360,7 +361,7 @@ async function handle<E extends ClientEvent>(event: E, args: unknown[], run: (in
   try {
     reply({ ok: true, data: await run(parsed.data) });
   } catch (error) {
-    if (error instanceof Refusal || error instanceof StorageUnavailable) {
+    if (error instanceof Refusal || error instanceof StorageUnavailable || error instanceof SessionMoved) {
       reply({ ok: false, code: error.code, message: error.message });
       return;
     }

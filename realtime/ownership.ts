@@ -71,6 +71,8 @@ export class Membership {
   private polling = false;
   /** the time of the last successful poll (0: none yet) */
   lastPoll = 0;
+  /** raised at every change of the member list as this process sees it */
+  version = 0;
 
   constructor(
     private redis: Redis,
@@ -134,6 +136,7 @@ export class Membership {
       if (alive.join() === this.current.join()) return;
       const previous = this.current;
       this.current = alive;
+      this.version++;
       this.opts.onChange?.(alive, previous);
     } finally {
       this.polling = false;

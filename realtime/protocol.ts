@@ -85,6 +85,16 @@ export type InputOf<E extends ClientEvent> = z.output<(typeof EVENT_PAYLOADS)[E]
 /** The view `session:watch` answers with: tagged by `kind`, the same view its broadcasts carry. */
 export type WatchedView = ParticipantView | FloorView | BigScreenView;
 
+/**
+ * Whether a client should show `next` in place of `shown`: not when it is older (a lower `seq`)
+ * than the view it shows of the same session. In a cluster the views of a session that just
+ * changed owner may arrive out of order; an older one would put a phone back on a round it has
+ * answered. Equal `seq`s are taken (connection states change without a stored row).
+ */
+export function supersedes(next: Pick<WatchedView, 'sessionId' | 'seq'>, shown: Pick<WatchedView, 'sessionId' | 'seq'> | null): boolean {
+  return !shown || shown.sessionId !== next.sessionId || next.seq >= shown.seq;
+}
+
 /** What each event's acknowledgement carries on success. */
 export interface AckData {
   'me:get': { userId: number };

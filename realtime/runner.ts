@@ -8,7 +8,16 @@
 // globalThis (app/utils/runner.server.ts), because the built app bundle and server.ts would
 // otherwise each hold their own copy.
 import { and, eq, inArray, sql } from 'drizzle-orm';
-import { getSession, rebuildSession, StaleState, type StoredSession, writeEffects } from '#app/models/live.server';
+import {
+  claimLease,
+  Fenced,
+  getSession,
+  leaseOf,
+  rebuildSession,
+  StaleState,
+  type StoredSession,
+  writeEffects,
+} from '#app/models/live.server';
 import { db } from '#app/utils/db.server';
 import { sessions } from '#drizzle/schema';
 import { newBatchScope, resumeEffects, roomOf, step } from './engine/engine';
@@ -31,10 +40,28 @@ export interface Broadcaster {
  */
 export interface Ownership {
   owns(sessionId: number): boolean;
-  /** applies the event on the owner; the answer says only whether the engine refused it */
-  dispatchRemote(sessionId: number, event: EngineEvent, userId: number | null): Promise<{ error: EngineError | null }>;
+  /**
+   * Applies the event on the owner (this process or another), taking the session over first
+   * where this process owns it and does not hold it; the answer says only whether the engine
+   * refused it.
+   */
+  dispatchAtOwner(sessionId: number, event: EngineEvent, userId: number | null): Promise<{ error: EngineError | null }>;
+  /** this process's copy of the session was fenced off: another process took the session over */
+  fenced(sessionId: number): void;
   /** for /healthz */
   health(): Promise<ClusterHealth>;
+}
+
+/**
+ * Refused because another process took the session over while this one still held it (ack code
+ * 'unavailable': nothing of the event was stored, and the phone sends it again).
+ */
+export class SessionMoved extends Error {
+  readonly code = 'unavailable';
+  constructor() {
+    super('The server that runs this session is changing: wait a moment and try again.');
+    this.name = 'SessionMoved';
+  }
 }
 
 export interface ClusterHealth {
@@ -57,6 +84,8 @@ interface Waiter {
 interface Live {
   session: StoredSession;
   state: EngineState;
+  /** the session's lease epoch this copy was read under: every write claims it (Fenced when it moved on) */
+  epoch: number;
   /** events waiting for the batch in flight to commit */
   waiting: Waiter[];
   writing: boolean;
@@ -78,6 +107,8 @@ const WAITER_BOUND_MS = numberFromEnv('PARLEY_WAITER_BOUND_MS', 20_000);
 const STAFF_VIEW_MS = numberFromEnv('PARLEY_STAFF_VIEW_MS', 250);
 /** a batch larger than this is split: one transaction stays a few thousand rows at most */
 const MAX_BATCH = 2000;
+/** how often a batch is stepped again on a rebuilt state when another writer moved the session on */
+const STALE_RETRIES = 3;
 
 const finished = (status: string) => status === 'complete' || status === 'archived' || status === 'cancelled';
 
@@ -160,8 +191,15 @@ export class SessionRunner {
    */
   async takeOver(sessionId: number) {
     await this.release(sessionId);
-    // No such session (a forged id): nothing to take over; the event itself answers not-found.
-    if (!(await getSession(sessionId))) return;
+    // A load that started before the lease was taken would read an older epoch: let it land, drop it.
+    await this.loading.get(sessionId)?.catch(() => undefined);
+    await this.release(sessionId);
+    // Taking the lease fences off every other process that still holds the session: its next
+    // write fails (Fenced) instead of storing a row this copy does not know of. No such session
+    // (a forged id): nothing to take over; the event itself answers not-found.
+    const epoch = await claimLease(sessionId);
+    if (epoch === null) return;
+    await this.load(sessionId, epoch);
     await this.graceOne(sessionId);
   }
 
@@ -195,7 +233,7 @@ export class SessionRunner {
    * the session, else by its owner. Says only whether the engine refused it.
    */
   async submit(sessionId: number, event: EngineEvent, opts: { userId?: number | null } = {}): Promise<{ error: EngineError | null }> {
-    if (this.ownership && !this.ownership.owns(sessionId)) return this.ownership.dispatchRemote(sessionId, event, opts.userId ?? null);
+    if (this.ownership) return this.ownership.dispatchAtOwner(sessionId, event, opts.userId ?? null);
     const res = await this.dispatch(sessionId, event, opts);
     return { error: res.error ?? null };
   }
@@ -213,7 +251,7 @@ export class SessionRunner {
       // Storage lost again: the next recovery tries again. Meanwhile arm what the state has.
       const live = this.live.get(sessionId);
       if (live) this.applyTimers(sessionId, resumeEffects(live.state));
-      if (!(error instanceof StorageUnavailable)) console.error('[parley] grace', error);
+      if (!(error instanceof StorageUnavailable || error instanceof SessionMoved)) console.error('[parley] grace', error);
     }
   }
 
@@ -343,19 +381,33 @@ export class SessionRunner {
           const watchdog = setTimeout(() => this.health.trouble(), STORAGE_WAIT_MS);
           watchdog.unref();
           try {
-            await db().transaction((tx) => writeEffects(tx, live.session.id, persists, null, { claim: { from: from.seq, to: state.seq } }));
+            await db().transaction((tx) =>
+              writeEffects(tx, live.session.id, persists, null, { claim: { from: from.seq, to: state.seq, epoch: live.epoch } }),
+            );
             this.health.answered();
           } catch (error) {
-            // Another process (or a commit whose answer was lost) moved the session on: rebuild
-            // from the stored rows and step the batch again, once. A stored choice then comes back
-            // as 'already-chosen' with its row, which the hub acknowledges as a success.
-            if (error instanceof StaleState && attempt === 0) {
+            // Another writer under the same lease (a commit whose answer was lost, a process
+            // outside the cluster) moved the session on: rebuild from the stored rows and step
+            // the batch again. A stored choice then comes back as 'already-chosen' with its row,
+            // which the hub acknowledges as a success.
+            if (error instanceof StaleState && attempt < STALE_RETRIES) {
               live.state = await rebuildSession(live.session);
               continue;
             }
             throw error;
           } finally {
             clearTimeout(watchdog);
+          }
+        } else if (this.ownership) {
+          // Nothing to store, so nothing checked the copy against the database: in a cluster
+          // another process may have taken the session over, and a refusal ("not this round")
+          // or a view from this copy would be out of date. One read of the row says.
+          const now = await leaseOf(db(), live.session.id);
+          if (now && now.epoch !== live.epoch) throw new Fenced(live.session.id, live.epoch);
+          if (now && now.seq !== from.seq) {
+            if (attempt >= STALE_RETRIES) throw new StaleState(live.session.id, from.seq);
+            live.state = await rebuildSession(live.session);
+            continue;
           }
         }
         live.state = state;
@@ -369,10 +421,34 @@ export class SessionRunner {
         return;
       }
     } catch (error) {
+      if (error instanceof Fenced || error instanceof StaleState) {
+        // Taken over by another process (or moved on faster than this copy could follow): this
+        // copy is dropped, nothing of the batch was stored, and each event is answered
+        // 'unavailable' — the phone sends it again, and it reaches the current owner.
+        this.drop(live, batch);
+        if (error instanceof Fenced) this.ownership?.fenced(live.session.id);
+        else console.warn(`[parley] ${error.message}: copy dropped, events answered 'unavailable'`);
+        return;
+      }
       const failure = this.storageFailure(error);
       if (!(failure instanceof StorageUnavailable)) console.error('[parley] batch failed', error);
       for (const w of batch) w.settle(failure);
     }
+  }
+
+  /** Forgets a copy at once (from inside its own batch): timers, staff view, every waiting event. */
+  private drop(live: Live, batch: readonly Waiter[]) {
+    const id = live.session.id;
+    if (this.live.get(id) === live) {
+      this.live.delete(id);
+      for (const t of this.timers.get(id)?.values() ?? []) clearTimeout(t);
+      this.timers.delete(id);
+    }
+    if (live.staff.timer) clearTimeout(live.staff.timer);
+    live.staff.timer = null;
+    const waiting = [...batch, ...live.waiting];
+    live.waiting = [];
+    for (const w of waiting) w.settle(new SessionMoved());
   }
 
   /** After a commit: timers, participants' own views, staff views later, eviction when finished. */
@@ -448,7 +524,7 @@ export class SessionRunner {
             // Another process owns the session now: its owner armed this timer again when it took over.
             if (!this.owns(sessionId)) return;
             this.dispatch(sessionId, event).catch((err) => {
-              if (!(err instanceof StorageUnavailable)) console.error('[parley] timer', err);
+              if (!(err instanceof StorageUnavailable || err instanceof SessionMoved)) console.error('[parley] timer', err);
             });
           },
           Math.max(0, e.at - Date.now()),
@@ -459,16 +535,23 @@ export class SessionRunner {
     }
   }
 
-  private async load(sessionId: number): Promise<Live | null> {
+  /**
+   * The copy of a session, read from MariaDB when this process holds none. `epoch`: the lease just
+   * taken (a takeover); otherwise the copy adopts the stored one. Read before the rows, so rows
+   * stored under a later lease can never hide behind an older epoch.
+   */
+  private async load(sessionId: number, epoch?: number): Promise<Live | null> {
     const have = this.live.get(sessionId);
     if (have) return have;
     let pending = this.loading.get(sessionId);
     if (!pending) {
       pending = (async () => {
+        const lease = epoch === undefined ? await leaseOf(db(), sessionId) : null;
         const session = await getSession(sessionId);
         if (!session) return null;
         const live: Live = {
           session,
+          epoch: epoch ?? lease?.epoch ?? 0,
           state: await rebuildSession(session),
           waiting: [],
           writing: false,

@@ -36,6 +36,40 @@ export class StaleState extends Error {
   }
 }
 
+/**
+ * Another process took the session over (cluster mode: it raised the session's lease epoch, the
+ * fencing token) since this process last read it: this process must not write it any more.
+ */
+export class Fenced extends Error {
+  constructor(sessionId: number, epoch: number) {
+    super(`session ${sessionId} was taken over by another process (lease ${epoch} is no longer current)`);
+    this.name = 'Fenced';
+  }
+}
+
+/**
+ * Takes a session's lease: raises its epoch and returns the new one (null: no such session). The
+ * UPDATE waits for the row lock of a write in flight, so every row stored under the old lease is
+ * committed before this returns, and every later write under it fails (Fenced).
+ */
+export async function claimLease(sessionId: number): Promise<number | null> {
+  return db().transaction(async (tx) => {
+    const [res] = await tx
+      .update(sessions)
+      .set({ leaseEpoch: sql`${sessions.leaseEpoch} + 1` })
+      .where(eq(sessions.id, sessionId));
+    if (res.affectedRows !== 1) return null;
+    const [row] = await tx.select({ epoch: sessions.leaseEpoch }).from(sessions).where(eq(sessions.id, sessionId));
+    return row?.epoch ?? null;
+  });
+}
+
+/** A session's stored sequence number and lease epoch: what an in-memory copy is checked against. */
+export async function leaseOf(w: Writer, sessionId: number): Promise<{ seq: number; epoch: number } | null> {
+  const [row] = await w.select({ seq: sessions.seq, epoch: sessions.leaseEpoch }).from(sessions).where(eq(sessions.id, sessionId));
+  return row ?? null;
+}
+
 /** the highest sequence number among the rows a batch of effects stores */
 function lastSeqOf(effects: readonly Effect[]): number {
   let seq = 0;
@@ -48,9 +82,10 @@ function lastSeqOf(effects: readonly Effect[]): number {
 /**
  * Writes persist-* effects (one step's, or a batch of steps'), in the caller's transaction.
  *
- * With `claim` (the live runner): first `UPDATE sessions SET seq = to WHERE id AND seq = from` —
- * one statement that both checks that nobody wrote since `from` and locks the session row until
- * the transaction ends; no row matched → StaleState. Without it (seeds, tests writing a whole
+ * With `claim` (the live runner): first `UPDATE sessions SET seq = to WHERE id AND seq = from`
+ * (and, with `epoch`, `AND lease_epoch = epoch`) — one statement that both checks that nobody
+ * wrote since `from` and locks the session row until the transaction ends; no row matched →
+ * Fenced when the lease moved on, else StaleState. Without it (seeds, tests writing a whole
  * simulated run), the session's seq is moved up to the last row written.
  * A duplicate (session, seq) key still throws: the unique keys stay the last safety net.
  * `userId` is who caused the log rows (a persist-log effect's own `by` wins, for batches).
@@ -60,14 +95,19 @@ export async function writeEffects(
   sessionId: number,
   effects: readonly Effect[],
   userId: number | null = null,
-  opts: { claim?: { from: number; to: number } } = {},
+  opts: { claim?: { from: number; to: number; epoch?: number } } = {},
 ) {
   if (opts.claim) {
+    const { from, to, epoch } = opts.claim;
     const [res] = await w
       .update(sessions)
-      .set({ seq: opts.claim.to })
-      .where(and(eq(sessions.id, sessionId), eq(sessions.seq, opts.claim.from)));
-    if (res.affectedRows !== 1) throw new StaleState(sessionId, opts.claim.from);
+      .set({ seq: to })
+      .where(and(eq(sessions.id, sessionId), eq(sessions.seq, from), epoch === undefined ? undefined : eq(sessions.leaseEpoch, epoch)));
+    if (res.affectedRows !== 1) {
+      const now = await leaseOf(w, sessionId);
+      if (epoch !== undefined && now && now.epoch !== epoch) throw new Fenced(sessionId, epoch);
+      throw new StaleState(sessionId, from);
+    }
   } else {
     const last = lastSeqOf(effects);
     if (last > 0)

@@ -265,6 +265,12 @@ export interface ParticipantView {
   /** the tag every view carries: `session:watch` answers any of the three */
   kind: 'participant';
   sessionId: string;
+  /**
+   * the state's sequence number when the view was built: a view never goes back in time, so a
+   * client drops one older than the view it shows (in a cluster, views of a session that just
+   * changed owner may arrive out of order)
+   */
+  seq: number;
   participantId: string;
   pseudonym: string;
   status: 'lobby' | 'choosing' | 'waiting-partner' | 'between-supergames' | 'finished';
@@ -320,6 +326,12 @@ export interface FloorSeatView {
 export interface FloorView {
   kind: 'floor';
   sessionId: string;
+  /**
+   * the state's sequence number when the view was built: a view never goes back in time, so a
+   * client drops one older than the view it shows (in a cluster, views of a session that just
+   * changed owner may arrive out of order)
+   */
+  seq: number;
   status: SessionStatus;
   supergame: number;
   supergames: number;
@@ -352,6 +364,12 @@ export interface FloorView {
 export interface BigScreenView {
   kind: 'big-screen';
   sessionId: string;
+  /**
+   * the state's sequence number when the view was built: a view never goes back in time, so a
+   * client drops one older than the view it shows (in a cluster, views of a session that just
+   * changed owner may arrive out of order)
+   */
+  seq: number;
   status: SessionStatus;
   joined: number;
   supergame: number;

@@ -90,6 +90,7 @@ export function participantView(s: EngineState, participantId: string): Particip
   return {
     kind: 'participant',
     sessionId: s.sessionId,
+    seq: s.seq,
     participantId,
     pseudonym: p.pseudonym,
     status,
@@ -192,6 +193,7 @@ export function floorView(s: EngineState, now: number): FloorView {
   return {
     kind: 'floor',
     sessionId: s.sessionId,
+    seq: s.seq,
     status: s.status,
     supergame: sgNumber,
     supergames: s.design.supergames,
@@ -287,6 +289,7 @@ export function bigScreenView(s: EngineState): BigScreenView {
   return {
     kind: 'big-screen',
     sessionId: s.sessionId,
+    seq: s.seq,
     status: s.status,
     joined: s.joinOrder.length,
     supergame: s.supergame?.number ?? 0,

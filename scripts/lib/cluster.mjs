@@ -111,7 +111,9 @@ defaults
   mode http
   # The client's address for Parley's rate limits (the processes run with TRUST_PROXY=1).
   option forwardfor
-  option redispatch
+  # Every retry of a connection that found a dead process goes to another one (by default only
+  # the last of the retries does, after a second of waiting between them).
+  option redispatch 1
   retries 3
   # A request (a websocket upgrade included) that found a dead process goes to another one.
   retry-on conn-failure empty-response response-timeout 502 503 504

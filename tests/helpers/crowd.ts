@@ -3,6 +3,7 @@
 // benchmark (scripts/bench-live.ts: the same play, timed), so both measure one behaviour.
 import { io } from 'socket.io-client';
 import type { ParticipantView } from '#realtime/engine/types';
+import { supersedes } from '#realtime/protocol';
 import { ClientFrom, requestCode } from '#tests/security/helpers';
 import type { Client } from './http';
 import type { TestSocket } from './live';
@@ -56,6 +57,8 @@ export interface CrowdResult {
   /** per phone and supergame boundary: the supergame's last choice → this phone's next choosing view */
   boundaryMs: number[];
   reconnects: number;
+  /** for a failure's message: each unfinished phone's last view, and the choices never answered */
+  stuck: { phone: number; last: string | null; unanswered: string[] }[];
 }
 
 /**
@@ -111,6 +114,8 @@ export async function playCrowd(
   const firstChoosing = new Map<string, Map<number, number>>();
   const waitingResult = phones.map(() => [] as Emitted[]);
   const finishedAt: (number | null)[] = phones.map(() => null);
+  const lastView: (string | null)[] = phones.map(() => null);
+  const shownView: (ParticipantView | null)[] = phones.map(() => null);
   let reconnects = 0;
   let answered = 0;
   /** refusals the phone retries (a restarting server, a database that does not answer) */
@@ -155,8 +160,13 @@ export async function playCrowd(
   };
 
   const onView = (i: number, v: ParticipantView) => {
+    // As the phone page does (use-session.ts): a view older than the one shown is dropped.
+    if (!supersedes(v, shownView[i])) return;
+    shownView[i] = v;
     const t = now();
     const { sessionId } = phones[i];
+    lastView[i] =
+      `${v.status} sg${v.supergame} r${v.round} own=${v.ownChoice ?? '-'} last=${v.lastResult ? `${v.lastResult.supergame}/${v.lastResult.round}` : '-'}`;
     if (v.status === 'finished') {
       finishedAt[i] ??= t;
       check();
@@ -265,6 +275,19 @@ export async function playCrowd(
     slowerPartnerMs,
     boundaryMs,
     reconnects,
+    stuck: phones.flatMap((_, i) =>
+      finishedAt[i] === null || emits.some((e) => e.phone === i && e.ackedAt === null && e.refused === null)
+        ? [
+            {
+              phone: i,
+              last: lastView[i],
+              unanswered: emits
+                .filter((e) => e.phone === i && e.ackedAt === null && e.refused === null)
+                .map((e) => `sg${e.supergame} r${e.round}`),
+            },
+          ]
+        : [],
+    ),
   };
 }
 

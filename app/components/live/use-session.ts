@@ -1,6 +1,6 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { io, type Socket } from 'socket.io-client';
-import type { AckFailure, ClientToServerEvents, ServerToClientEvents, WatchedView } from '#realtime/protocol';
+import { type AckFailure, type ClientToServerEvents, type ServerToClientEvents, supersedes, type WatchedView } from '#realtime/protocol';
 
 export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
 /** The view of one kind: `kind` tags every view, so a page watching as floor or big screen narrows by it. */
@@ -44,6 +44,8 @@ export function useSessionView<K extends WatchedView['kind']>(sessionId: number,
     const socket: LiveSocket = io({ transports: ['websocket'], reconnectionDelayMax: 4000 });
     socketRef.current = socket;
     let retry: ReturnType<typeof setTimeout> | undefined;
+    // Never back in time: an older view of the session than the one shown is dropped.
+    const show = (v: ViewOf<K>) => setView((shown) => (supersedes(v, shown) ? v : shown));
     const watch = () => {
       clearTimeout(retry);
       socket.emit('session:watch', { sessionId, as }, (res) => {
@@ -53,7 +55,7 @@ export function useSessionView<K extends WatchedView['kind']>(sessionId: number,
           if (RETRY_WATCH.has(res.code)) retry = setTimeout(() => socket.connected && watch(), WATCH_RETRY_MS);
           return setError(res.message);
         }
-        if (isKind(res.data, as)) setView(res.data);
+        if (isKind(res.data, as)) show(res.data);
         setError(null);
         setReady(socket.connected);
       });
@@ -71,7 +73,7 @@ export function useSessionView<K extends WatchedView['kind']>(sessionId: number,
     socket.on('storage:status', ({ ok }) => setStorageOk(ok));
     // The hub puts this socket in one kind's room only; the tag keeps the type honest.
     const onView = (v: WatchedView) => {
-      if (isKind(v, as)) setView(v);
+      if (isKind(v, as)) show(v);
     };
     socket.on('view:participant', onView);
     socket.on('view:floor', onView);

@@ -1,0 +1,1 @@
+ALTER TABLE `sessions` ADD `lease_epoch` int DEFAULT 0 NOT NULL;
