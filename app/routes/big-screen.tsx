@@ -10,7 +10,7 @@ import { env } from '#app/utils/env.server';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
-import { STATUS_WORDS } from '#app/utils/session-words';
+import { SessionStatusWord } from '#app/components/session-status';
 import { bigScreenView } from '#realtime/engine/views';
 
 // The projector page, for the back row of a lecture hall: the join code and QR code while people
@@ -69,8 +69,7 @@ export default function BigScreen({ loaderData }: Route.ComponentProps) {
           Parley{session.simulated ? <span className="font-normal text-slate-300"> · simulated demo session</span> : null}
         </p>
         <p data-testid="big-status">
-          <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
-          {STATUS_WORDS[status].word}
+          <SessionStatusWord status={status} />
           {connected ? '' : ' · reconnecting…'}
         </p>
       </header>

@@ -8,7 +8,7 @@ import { participantCounts } from '#app/models/debrief.server';
 import { listCourseSessions } from '#app/models/panel.server';
 import { formatDate } from '#app/utils/format';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
-import { STATUS_WORDS } from '#app/utils/session-words';
+import { SessionStatusWord } from '#app/components/session-status';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { course } = await requireCourseRole(request, params.courseId, STAFF_ROLES);
@@ -67,8 +67,7 @@ function columnsFor(courseId: number) {
       header: 'Status',
       cell: (i) => (
         <>
-          <span aria-hidden="true">{STATUS_WORDS[i.getValue()].icon} </span>
-          {STATUS_WORDS[i.getValue()].word}
+          <SessionStatusWord status={i.getValue()} />
         </>
       ),
     }),

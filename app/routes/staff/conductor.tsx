@@ -10,7 +10,7 @@ import { getSession } from '#app/models/live.server';
 import { env } from '#app/utils/env.server';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
-import { STATUS_WORDS } from '#app/utils/session-words';
+import { SessionStatusWord } from '#app/components/session-status';
 import type { SessionStatus } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -117,8 +117,7 @@ export default function Conductor({ loaderData }: Route.ComponentProps) {
             </p>
           </div>
           <p ref={statusLine} tabIndex={-1} className="text-2xl font-semibold" data-testid="session-status" role="status">
-            <span aria-hidden="true">{STATUS_WORDS[status].icon} </span>
-            {STATUS_WORDS[status].word}
+            <SessionStatusWord status={status} />
           </p>
           {error ? <Notice tone="error">{error}</Notice> : null}
           <div className="flex flex-wrap gap-2">

@@ -10,7 +10,7 @@ import { computerStrategyOf } from '#app/lib/design';
 import { getSession } from '#app/models/live.server';
 import { parseId, respondUnless } from '#app/utils/http.server';
 import { requireCourseRole } from '#app/utils/permissions.server';
-import { STATUS_WORDS } from '#app/utils/session-words';
+import { SessionStatusWord } from '#app/components/session-status';
 import type { FloorSeatView } from '#realtime/engine/types';
 
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -83,8 +83,7 @@ export default function Floor({ loaderData }: Route.ComponentProps) {
         {floor ? (
           <>
             <span>
-              <span aria-hidden="true">{STATUS_WORDS[floor.status].icon} </span>
-              {STATUS_WORDS[floor.status].word}
+              <SessionStatusWord status={floor.status} />
             </span>
             <span className="num">
               Supergame {floor.supergame || '—'} of {floor.supergames} · {floor.counts.pairsDone}/{floor.counts.pairs} pairs done ·{' '}

@@ -10,7 +10,7 @@ import { fieldErrors } from '#app/utils/forms';
 import { formatDate } from '#app/utils/format';
 import { requireCourseRole, STAFF_ROLES } from '#app/utils/permissions.server';
 import { runner } from '#app/utils/runner.server';
-import { STATUS_WORDS } from '#app/utils/session-words';
+import { SessionStatusWord } from '#app/components/session-status';
 
 const MAX_SEED = 2 ** 32 - 1;
 const SEED_HINT = `A seed is a whole number from 0 to ${MAX_SEED}, as shown under “Frozen design” on another session’s page. Leave it empty for new draws.`;
@@ -88,8 +88,7 @@ export default function Sessions({ loaderData, actionData }: Route.ComponentProp
       header: 'Status',
       cell: (i) => (
         <span>
-          <span aria-hidden="true">{STATUS_WORDS[i.getValue()].icon} </span>
-          {STATUS_WORDS[i.getValue()].word}
+          <SessionStatusWord status={i.getValue()} />
         </span>
       ),
     }),
