@@ -17,7 +17,7 @@
 // What participants see (a decision): every league of a course they are a participant of, in any
 // state, so an entrant knows their entry is in and entries have closed; results only once the
 // league is published. Staff pages reach leagues through requireCourseRole first.
-import { and, asc, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { defineJob, enqueue, kickJobs } from '#app/jobs/queue.server';
 import { type Automaton, libraryStrategy } from '#app/lib/automata';
@@ -118,13 +118,21 @@ export interface LeagueSummary extends Omit<League, 'results'> {
   houseEntries: number;
 }
 
-export async function listLeagues(courseId: number): Promise<LeagueSummary[]> {
+/**
+ * A course's leagues with their entry counts: all of them newest first (the staff list), or with
+ * `page` a page in id order after `afterId` (the API's cursor pages).
+ */
+export async function listLeagues(courseId: number, page?: { afterId: number; limit: number }): Promise<LeagueSummary[]> {
   const { results: _results, ...columns } = leagueColumns;
-  const rows = await db()
+  const query = db()
     .select({ ...columns, hasResults: sql<number>`${leagues.results} IS NOT NULL`.mapWith(Number) })
-    .from(leagues)
-    .where(eq(leagues.courseId, courseId))
-    .orderBy(desc(leagues.id));
+    .from(leagues);
+  const rows = page
+    ? await query
+        .where(and(eq(leagues.courseId, courseId), gt(leagues.id, page.afterId)))
+        .orderBy(asc(leagues.id))
+        .limit(page.limit)
+    : await query.where(eq(leagues.courseId, courseId)).orderBy(desc(leagues.id));
   if (rows.length === 0) return [];
   const counts = await db()
     .select({ leagueId: leagueEntries.leagueId, house: leagueEntries.house, n: count() })

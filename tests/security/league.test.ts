@@ -248,4 +248,34 @@ describe('the API', () => {
       expect(((await res.json()) as { error: { code: string } }).error.code, path).toBe(code);
     }
   });
+
+  it('pages a course’s leagues by id with a cursor, like every list of the API; a forged cursor or a huge limit is a 400', async () => {
+    const token = await tokenFor(instructor, courseA);
+    const more = [];
+    for (const title of ['Paged league 2', 'Paged league 3'])
+      more.push((await createLeague(courseA, instructorId, { title, design, deadline: null })).id);
+    const seen: number[] = [];
+    let cursor: string | null = null;
+    for (let page = 0; page < 10; page++) {
+      const res = await api(`/leagues?course=${courseA}&limit=1${cursor ? `&cursor=${cursor}` : ''}`, token);
+      expect(res.status).toBe(200);
+      const body = (await res.json()) as { data: { id: number; course_id: number }[]; next_cursor: string | null };
+      expect(body.data.length).toBeLessThanOrEqual(1);
+      seen.push(...body.data.map((l) => l.id));
+      expect(body.data.every((l) => l.course_id === courseA)).toBe(true);
+      cursor = body.next_cursor;
+      if (!cursor) break;
+    }
+    expect(seen).toEqual([...seen].sort((a, b) => a - b));
+    expect(new Set(seen).size).toBe(seen.length);
+    expect(seen).toEqual(expect.arrayContaining([leagueA, ...more]));
+    for (const [query, message] of [
+      ['&limit=101', 'limit must be at most 100'],
+      ['&cursor=bm90LW91cnM', 'cursor is not one this API gave out'],
+    ]) {
+      const res = await api(`/leagues?course=${courseA}${query}`, token);
+      expect(res.status, query).toBe(400);
+      expect(((await res.json()) as { error: { message: string } }).error.message).toContain(message);
+    }
+  });
 });
