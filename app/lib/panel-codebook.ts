@@ -74,7 +74,8 @@ export const PANEL_CODEBOOK = [
   {
     column: 'decision_ms',
     type: 'integer',
-    meaning: 'milliseconds from the round opening to this choice, paused time excluded',
+    meaning:
+      'milliseconds from the round opening to this choice, paused time excluded; time in which the server could not be reached (a restart or a database outage, after which the round got its full time again) is included',
     values: '≥ 0',
   },
   {
