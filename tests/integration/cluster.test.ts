@@ -110,8 +110,7 @@ describe('two processes behind HAProxy', () => {
       const sessionIds: number[] = [];
       const phones: Phone[] = [];
       for (let k = 0; k < S; k++) {
-        // Seed 16 draws supergames of 4 and 5 rounds at δ = 0.5 (a random seed may draw 1-round
-        // supergames, which the coalesced staff views can skip).
+        // Seed 16 draws supergames of 4 and 5 rounds at δ = 0.5: the same play in every run.
         const { sessionId, code } = await openSession(instructor, courseId, designId, { seed: '16' });
         sessionIds.push(sessionId);
         const mine = players.slice(k * N, (k + 1) * N);
@@ -161,10 +160,10 @@ describe('two processes behind HAProxy', () => {
         expect(f.some((v) => v.status === 'running')).toBe(true);
         expect(f.at(-1)?.status).toBe('complete');
         expect(screens.get(id)!.at(-1)?.status).toBe('complete');
-        // views of both supergames (they are coalesced to one per 250 ms per session; the seed
-        // gives supergames of 4 and 5 rounds, so neither can pass between two views)
-        expect(f.some((v) => v.supergame === 1 && v.status === 'running')).toBe(true);
-        expect(f.some((v) => v.supergame === 2 && v.status === 'running')).toBe(true);
+        // The last view is of the second supergame. (Staff views are coalesced to one per 250 ms
+        // per session, and phones here answer at once: a 5-round supergame can pass between two
+        // views, so "a running view of each supergame" is not something to ask for.)
+        expect(f.at(-1)?.supergame).toBe(2);
       }
       expect(rows.filter((r) => r.source === 'player').length).toBe(result.acked.size);
     },
