@@ -247,7 +247,10 @@ export class Cluster {
     const taken: number[] = [];
     for (const id of ids) {
       if (!this.membership.owns(id) || (this.runner.holds(id) && !this.stale.has(id))) continue;
-      if (await this.ensureHeld(id)) taken.push(id);
+      // Counted by the call that starts the takeover (a restarted process rebalances at start-up and
+      // again at its first membership change: one takeover, one log line).
+      const joining = this.taking.has(id);
+      if ((await this.ensureHeld(id)) && !joining) taken.push(id);
     }
     if (taken.length) console.log(`[parley] took over session(s) ${taken.join(', ')}: rebuilt from the database, grace applied`);
     return taken.length;

@@ -6,9 +6,11 @@
 // nothing acknowledged is lost or stored twice, nobody is timed out), a phone asking for its view
 // at the moment of the kill, and Redis restarted mid-session.
 import { and, eq, inArray, sql } from 'drizzle-orm';
+import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { choices, sessionLog, sessions } from '#drizzle/schema';
 import type { BigScreenView, FloorView } from '#realtime/engine/types';
+import { contextAs, launch, PHONE } from '#tests/helpers/browser';
 import { TestCluster } from '#tests/helpers/cluster';
 import { connectPhone, type CrowdResult, type Phone, playCrowd, signInFromHall } from '#tests/helpers/crowd';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
@@ -252,6 +254,73 @@ describe('two processes behind HAProxy', () => {
         .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
       expect(graces.length).toBeGreaterThanOrEqual(1);
       expect(graces.length).toBeLessThanOrEqual(6);
+    },
+  );
+
+  it(
+    'phones in Chromium through HAProxy: the owner is SIGKILLed between two rounds; the pages reconnect by themselves and play on',
+    { timeout: 180_000 },
+    async () => {
+      const { courseId, instructorId, instructor, players } = await course(2, 'cl-browser', '127.0.9.15');
+      const designId = await createDesign(courseId, instructorId, { supergames: 2, delta: 0.5, roundSeconds: 600 });
+      // Seed 16: a first supergame of 4 rounds, so rounds 1–3 are all in it.
+      const { sessionId, code } = await openSession(instructor, courseId, designId, { seed: '16' });
+      const where: string[] = [];
+      for (const p of players) where.push(await join(p, code));
+      const browser = await launch();
+      try {
+        const pages = await Promise.all(
+          players.map(async (p, i) => {
+            const page = await (await contextAs(browser, p, PHONE)).newPage();
+            await page.goto(where[i]);
+            return page;
+          }),
+        );
+        expect(await control(instructor, sessionId, 'start')).toEqual({ ok: true, data: { status: 'running' } });
+        const title = (page: Page) =>
+          page
+            .getByTestId('round-title')
+            .textContent({ timeout: 500 })
+            .catch(() => null);
+        /** Both phones tap `label` as soon as they may; then both pages show the next round. */
+        const playRound = async (label: 'X' | 'Y', round: number) => {
+          for (const page of pages) {
+            await page
+              .locator('button:enabled', { hasText: /^[◆●](X|Y)$/ })
+              .first()
+              .waitFor({ timeout: 30_000 });
+            expect(await title(page)).toContain(`Round ${round}`);
+            await page.getByRole('button', { name: label, exact: true }).click();
+          }
+          for (const page of pages) await expect.poll(() => title(page), { timeout: 30_000 }).toContain(`Round ${round + 1}`);
+        };
+        await playRound('X', 1);
+        const victim = await cluster.ownerIndex(sessionId);
+        await cluster.servers[victim].kill('SIGKILL');
+        // Half the phones were on the killed process: they reconnect through HAProxy and ask for
+        // their view again; the other process has taken the session over.
+        await playRound('Y', 2);
+        await playRound('X', 3);
+        const rows = await testDb().select().from(choices).where(eq(choices.sessionId, sessionId));
+        expect(rows.map((r) => `${r.round}${r.action}${r.source}`).sort()).toEqual([
+          '1Cplayer',
+          '1Cplayer',
+          '2Dplayer',
+          '2Dplayer',
+          '3Cplayer',
+          '3Cplayer',
+        ]);
+        // The other process took the session over (its grace is logged: round 2 got its full time).
+        const graces = await testDb()
+          .select()
+          .from(sessionLog)
+          .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
+        expect(graces.length).toBeGreaterThanOrEqual(1);
+        await cluster.servers[victim].start();
+        await cluster.untilMembers(2);
+      } finally {
+        await browser.close();
+      }
     },
   );
 
