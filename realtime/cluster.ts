@@ -10,6 +10,7 @@ import os from 'node:os';
 import { createAdapter } from '@socket.io/redis-adapter';
 import { Redis } from 'ioredis';
 import type { Server } from 'socket.io';
+import { roomOf } from './engine/engine';
 import type { EngineError, EngineEvent } from './engine/types';
 import { Membership, memberConnectionName } from './ownership';
 import type { Ack, AckData, ClientToServerEvents, InputOf, ServerToClientEvents, SocketData } from './protocol';
@@ -57,6 +58,8 @@ export type ForwardAnswer = { owned: false } | { owned: true; reply: Ack<OwnerOp
 
 export interface InterServerEvents {
   'session:forward': (req: ForwardRequest, ack: (answer: ForwardAnswer) => void) => void;
+  /** which participants of a session have a socket watching it on the answering process */
+  'session:present': (sessionId: number, ack: (participantIds: string[]) => void) => void;
 }
 
 export type HubServer = Server<ClientToServerEvents, ServerToClientEvents, InterServerEvents, SocketData>;
@@ -119,6 +122,7 @@ export class Cluster {
     }
     io.adapter(createAdapter(pub, sub, { key: 'parley', requestsTimeout: FORWARD_TIMEOUT_MS }));
     const cluster = new Cluster(io, runner, pub, sub, member, id);
+    io.on('session:present', (sessionId, ack) => ack(cluster.localPlayers(sessionId)));
     io.on('session:forward', (req, ack) => {
       cluster.answer(req).then(ack, (error) => {
         console.error('[parley] forwarded event failed', error);
@@ -276,6 +280,10 @@ export class Cluster {
       this.stale.delete(sessionId);
       pending = this.runner
         .takeOver(sessionId)
+        .then(() => {
+          // Not awaited: the event that caused the takeover need not wait for the other processes.
+          void this.markPresent(sessionId);
+        })
         .catch((error) => console.error(`[parley] taking over session ${sessionId} failed`, error))
         .finally(() => this.taking.delete(sessionId));
       this.taking.set(sessionId, pending);
@@ -297,6 +305,31 @@ export class Cluster {
       this.rebalance().catch((error) => console.error('[parley] rebalance after a fence failed', error));
     }, FENCE_BACKOFF_MS + 50);
     t.unref();
+  }
+
+  /** Participants with a socket on this process watching `sessionId` (their own rooms). */
+  localPlayers(sessionId: number): string[] {
+    const prefix = roomOf('participant', String(sessionId), '');
+    const ids: string[] = [];
+    for (const [room, members] of this.io.of('/').adapter.rooms)
+      if (members.size > 0 && room.startsWith(prefix)) ids.push(room.slice(prefix.length));
+    return ids;
+  }
+
+  /**
+   * After a takeover: a copy rebuilt from MariaDB knows nobody's connection (connection states
+   * are not stored), and phones on the surviving processes do not ask again, so the Floor would
+   * count them as gone. Every process says which participants of the session it has sockets
+   * for, and each is marked connected (a `reconnect`, which also sends each its current view).
+   */
+  private async markPresent(sessionId: number) {
+    const remote = await new Promise<string[][]>((resolve) => {
+      this.io.serverSideEmit('session:present', sessionId, (error: Error | null, answers: string[][]) => resolve(answers ?? []));
+    });
+    const ids = new Set([...this.localPlayers(sessionId), ...remote.flat().filter((id) => typeof id === 'string')]);
+    await Promise.all(
+      [...ids].map((participantId) => this.runner.dispatch(sessionId, { type: 'reconnect', participantId }).catch(() => undefined)),
+    );
   }
 
   /** For /healthz: Redis answers, the adapter is subscribed, who the members are. */

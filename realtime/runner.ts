@@ -391,7 +391,7 @@ export class SessionRunner {
             // the batch again. A stored choice then comes back as 'already-chosen' with its row,
             // which the hub acknowledges as a success.
             if (error instanceof StaleState && attempt < STALE_RETRIES) {
-              live.state = await rebuildSession(live.session);
+              live.state = await this.rebuilt(live);
               continue;
             }
             throw error;
@@ -406,7 +406,7 @@ export class SessionRunner {
           if (now && now.epoch !== live.epoch) throw new Fenced(live.session.id, live.epoch);
           if (now && now.seq !== from.seq) {
             if (attempt >= STALE_RETRIES) throw new StaleState(live.session.id, from.seq);
-            live.state = await rebuildSession(live.session);
+            live.state = await this.rebuilt(live);
             continue;
           }
         }
@@ -434,6 +434,14 @@ export class SessionRunner {
       if (!(failure instanceof StorageUnavailable)) console.error('[parley] batch failed', error);
       for (const w of batch) w.settle(failure);
     }
+  }
+
+  /**
+   * The copy rebuilt from the stored rows, keeping what this process knows of the phones'
+   * connections (they are not stored: a rebuild alone would count every phone as gone).
+   */
+  private async rebuilt(live: Live): Promise<EngineState> {
+    return { ...(await rebuildSession(live.session)), connections: live.state.connections };
   }
 
   /** Forgets a copy at once (from inside its own batch): timers, staff view, every waiting event. */

@@ -301,6 +301,12 @@ describe('two processes behind HAProxy', () => {
         // their view again; the other process has taken the session over.
         await playRound('Y', 2);
         await playRound('X', 3);
+        // The Floor counts both phones as connected: the new owner's copy was rebuilt from MariaDB
+        // (which keeps no connection states), and the phone on the surviving process never asked
+        // again; the takeover asks every process which phones it has.
+        const staff = track(await connectPhone(cluster.url, instructor.cookieHeader()));
+        const floor = await staff.emitWithAck('session:watch', { sessionId, as: 'floor' });
+        expect(floor.ok && floor.data.kind === 'floor' && floor.data.counts).toMatchObject({ joined: 2, connected: 2 });
         const rows = await testDb().select().from(choices).where(eq(choices.sessionId, sessionId));
         expect(rows.map((r) => `${r.round}${r.action}${r.source}`).sort()).toEqual([
           '1Cplayer',
