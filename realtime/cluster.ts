@@ -14,7 +14,7 @@ import { roomOf } from './engine/engine';
 import type { EngineError, EngineEvent } from './engine/types';
 import { Membership, memberConnectionName } from './ownership';
 import type { Ack, AckData, ClientToServerEvents, InputOf, ServerToClientEvents, SocketData } from './protocol';
-import type { ClusterHealth, SessionRunner } from './runner';
+import { type ClusterHealth, SessionMoved, type SessionRunner } from './runner';
 
 /** How long an event that reached no owner (the owner just died) waits for the next one. */
 export const OWNER_WAIT_MS = 5000;
@@ -66,11 +66,7 @@ export type HubServer = Server<ClientToServerEvents, ServerToClientEvents, Inter
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-const unavailable = <T>(): Ack<T> => ({
-  ok: false,
-  code: 'unavailable',
-  message: 'The server that runs this session is changing: wait a moment and try again.',
-});
+const unavailable = <T>(): Ack<T> => ({ ok: false, code: 'unavailable', message: SessionMoved.message });
 
 export class Cluster {
   readonly id: string;

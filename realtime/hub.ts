@@ -358,14 +358,5 @@ async function handle<E extends ClientEvent>(event: E, args: unknown[], run: (in
     });
     return;
   }
-  try {
-    reply({ ok: true, data: await run(parsed.data) });
-  } catch (error) {
-    if (error instanceof Refusal || error instanceof StorageUnavailable || error instanceof SessionMoved) {
-      reply({ ok: false, code: error.code, message: error.message });
-      return;
-    }
-    console.error('[parley] socket handler failed', error);
-    reply({ ok: false, code: 'server-error', message: 'Something went wrong on the server.' });
-  }
+  reply(await answered(() => run(parsed.data)));
 }

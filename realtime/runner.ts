@@ -57,9 +57,10 @@ export interface Ownership {
  * 'unavailable': nothing of the event was stored, and the phone sends it again).
  */
 export class SessionMoved extends Error {
+  static readonly message = 'The server that runs this session is changing: wait a moment and try again.';
   readonly code = 'unavailable';
   constructor() {
-    super('The server that runs this session is changing: wait a moment and try again.');
+    super(SessionMoved.message);
     this.name = 'SessionMoved';
   }
 }
@@ -219,13 +220,7 @@ export class SessionRunner {
     if (!live) return;
     for (let i = 0; i < 100 && live.writing; i++) await new Promise((r) => setTimeout(r, 50));
     if (this.live.get(sessionId) !== live) return;
-    this.live.delete(sessionId);
-    for (const t of this.timers.get(sessionId)?.values() ?? []) clearTimeout(t);
-    this.timers.delete(sessionId);
-    if (live.staff.timer) clearTimeout(live.staff.timer);
-    const queued = live.waiting;
-    live.waiting = [];
-    for (const w of queued) w.settle(new StorageUnavailable());
+    this.forget(live, [], () => new StorageUnavailable());
   }
 
   /**
@@ -425,7 +420,7 @@ export class SessionRunner {
         // Taken over by another process (or moved on faster than this copy could follow): this
         // copy is dropped, nothing of the batch was stored, and each event is answered
         // 'unavailable' — the phone sends it again, and it reaches the current owner.
-        this.drop(live, batch);
+        this.forget(live, batch, () => new SessionMoved());
         if (error instanceof Fenced) this.ownership?.fenced(live.session.id);
         else console.warn(`[parley] ${error.message}: copy dropped, events answered 'unavailable'`);
         return;
@@ -444,8 +439,11 @@ export class SessionRunner {
     return { ...(await rebuildSession(live.session)), connections: live.state.connections };
   }
 
-  /** Forgets a copy at once (from inside its own batch): timers, staff view, every waiting event. */
-  private drop(live: Live, batch: readonly Waiter[]) {
+  /**
+   * Forgets a copy at once: its timers, its pending staff view, and every event waiting on it
+   * (`batch`: those of the batch being written, when called from inside it) answered with `error`.
+   */
+  private forget(live: Live, batch: readonly Waiter[], error: () => Error) {
     const id = live.session.id;
     if (this.live.get(id) === live) {
       this.live.delete(id);
@@ -456,7 +454,7 @@ export class SessionRunner {
     live.staff.timer = null;
     const waiting = [...batch, ...live.waiting];
     live.waiting = [];
-    for (const w of waiting) w.settle(new SessionMoved());
+    for (const w of waiting) w.settle(error());
   }
 
   /** After a commit: timers, participants' own views, staff views later, eviction when finished. */

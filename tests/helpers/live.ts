@@ -2,7 +2,8 @@
 // joining through the real join page, and socket.io clients with the real sign-in cookie.
 import { io, type Socket } from 'socket.io-client';
 import { designSchema, type DesignInput } from '#app/lib/design';
-import { designs } from '#drizzle/schema';
+import { and, eq, sql } from 'drizzle-orm';
+import { designs, sessionLog } from '#drizzle/schema';
 import type { ClientToServerEvents, ServerToClientEvents } from '#realtime/protocol';
 import type { ParticipantView } from '#realtime/engine/types';
 import { createCourse, createUser, testDb } from './db';
@@ -146,4 +147,12 @@ export async function classOf(n: number, o: ClassSetUp = {}) {
   const { sessionId, code } = await openSession(course.instructor, course.courseId, course.designId, o.open);
   if (o.join !== false) for (const p of course.players) await join(p, code);
   return { ...course, sessionId, code };
+}
+
+/** The `grace` rows of a session's log: one per restart, outage or takeover that found rounds waiting. */
+export async function gracesOf(sessionId: number) {
+  return testDb()
+    .select()
+    .from(sessionLog)
+    .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
 }

@@ -5,7 +5,7 @@
 // Then faults: the owner SIGKILLed mid-round, three times (the other takes over within seconds,
 // nothing acknowledged is lost or stored twice, nobody is timed out), a phone asking for its view
 // at the moment of the kill, and Redis restarted mid-session.
-import { and, eq, inArray, sql } from 'drizzle-orm';
+import { eq, inArray, sql } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { choices, sessionLog, sessions } from '#drizzle/schema';
@@ -15,7 +15,7 @@ import { TestCluster } from '#tests/helpers/cluster';
 import { connectPhone, type CrowdResult, type Phone, playCrowd, signInFromHall } from '#tests/helpers/crowd';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { createDesign, join, openSession, type TestSocket } from '#tests/helpers/live';
+import { createDesign, gracesOf, join, openSession, type TestSocket } from '#tests/helpers/live';
 
 // The cluster has a database of its own (scripts/test.mjs makes it): a cluster takes over every
 // live session of its database, and must not take the test server's. Users, courses and
@@ -55,6 +55,21 @@ async function course(n: number, tag: string, hall: string) {
   const players: Client[] = [];
   for (let i = 0; i < n; i += 10) players.push(...(await Promise.all(emails.slice(i, i + 10).map((e) => signInFromHall(e, hall)))));
   return { courseId, instructorId, instructor, players: players.map((p) => p.at(cluster.url)) };
+}
+
+/**
+ * n phones joined to one open session and connected through HAProxy. Long supergames and
+ * 10-minute rounds: the session outlives the faults a test brings, and a timeout row would be a bug.
+ */
+async function longSession(n: number, tag: string, hall: string) {
+  const { courseId, instructorId, instructor, players } = await course(n, tag, hall);
+  const designId = await createDesign(courseId, instructorId, { supergames: 30, delta: 0.95, roundSeconds: 600 });
+  const { sessionId, code } = await openSession(instructor, courseId, designId);
+  for (const p of players) await join(p, code);
+  const phones: Phone[] = await Promise.all(
+    players.map(async (p) => ({ socket: track(await connectPhone(cluster.url, p.cookieHeader())), sessionId })),
+  );
+  return { instructor, sessionId, phones };
 }
 
 /**
@@ -176,14 +191,7 @@ describe('two processes behind HAProxy', () => {
     { timeout: 240_000 },
     async () => {
       const N = 16;
-      const { courseId, instructorId, instructor, players } = await course(N, 'cl-kill', '127.0.9.12');
-      // Long supergames and 10-minute rounds: the session outlives the kills; a timeout row would be a bug.
-      const designId = await createDesign(courseId, instructorId, { supergames: 30, delta: 0.95, roundSeconds: 600 });
-      const { sessionId, code } = await openSession(instructor, courseId, designId);
-      for (const p of players) await join(p, code);
-      const phones = await Promise.all(
-        players.map(async (p) => ({ socket: track(await connectPhone(cluster.url, p.cookieHeader())), sessionId })),
-      );
+      const { instructor, sessionId, phones } = await longSession(N, 'cl-kill', '127.0.9.12');
       const stored = async () =>
         Number(
           (
@@ -248,10 +256,7 @@ describe('two processes behind HAProxy', () => {
       await expectStoredOnce([sessionId], result);
       // At most one grace per takeover: the kill (the survivor takes the session) and the restart
       // (the session goes back if the restarted process has the higher weight for it).
-      const graces = await testDb()
-        .select()
-        .from(sessionLog)
-        .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
+      const graces = await gracesOf(sessionId);
       expect(graces.length).toBeGreaterThanOrEqual(1);
       expect(graces.length).toBeLessThanOrEqual(6);
     },
@@ -317,10 +322,7 @@ describe('two processes behind HAProxy', () => {
           '3Cplayer',
         ]);
         // The other process took the session over (its grace is logged: round 2 got its full time).
-        const graces = await testDb()
-          .select()
-          .from(sessionLog)
-          .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
+        const graces = await gracesOf(sessionId);
         expect(graces.length).toBeGreaterThanOrEqual(1);
         await cluster.servers[victim].start();
         await cluster.untilMembers(2);
@@ -358,13 +360,7 @@ describe('two processes behind HAProxy', () => {
     { timeout: 180_000 },
     async () => {
       const N = 10;
-      const { courseId, instructorId, instructor, players } = await course(N, 'cl-redis', '127.0.9.14');
-      const designId = await createDesign(courseId, instructorId, { supergames: 30, delta: 0.95, roundSeconds: 600 });
-      const { sessionId, code } = await openSession(instructor, courseId, designId);
-      for (const p of players) await join(p, code);
-      const phones = await Promise.all(
-        players.map(async (p) => ({ socket: track(await connectPhone(cluster.url, p.cookieHeader())), sessionId })),
-      );
+      const { instructor, sessionId, phones } = await longSession(N, 'cl-redis', '127.0.9.14');
       const owner = await cluster.ownerIndex(sessionId);
       const staff = track(await connectPhone(cluster.servers[1 - owner].base, instructor.cookieHeader()));
       const floorAt: number[] = [];

@@ -4,13 +4,13 @@
 // restart: every acknowledged choice is stored once, no round is filled in by a timeout (rounds are
 // long, and a restart gives every waiting round its full time again), and the session completes.
 // `npm test` runs PARLEY_FAULT_TRIALS=3 kills; `npm run faults` runs 20 (or --trials N).
-import { and, eq, sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
-import { choices, sessionLog, sessions } from '#drizzle/schema';
+import { choices, sessions } from '#drizzle/schema';
 import { connectPhone, playCrowd, signInFromHall } from '#tests/helpers/crowd';
 import { closeTestDb, createCourse, createUser, testDb } from '#tests/helpers/db';
 import { type Client, signIn, uniqueEmail } from '#tests/helpers/http';
-import { closeSockets, connect, createDesign, join, openSession } from '#tests/helpers/live';
+import { closeSockets, connect, createDesign, gracesOf, join, openSession } from '#tests/helpers/live';
 import { SecondServer } from '#tests/helpers/second-server';
 
 const TRIALS = Math.max(1, Number(process.env.PARLEY_FAULT_TRIALS ?? 3));
@@ -118,10 +118,7 @@ describe(`the server killed ${TRIALS} times during play`, () => {
         .where(eq(sessions.id, sessionId));
       expect(s.seq).toBe(Number(top));
       // at most one grace per restart
-      const graces = await testDb()
-        .select()
-        .from(sessionLog)
-        .where(and(eq(sessionLog.sessionId, sessionId), sql`JSON_EXTRACT(${sessionLog.event}, '$.type') = 'grace'`));
+      const graces = await gracesOf(sessionId);
       expect(graces.length).toBeLessThanOrEqual(TRIALS);
       // a last rebuild of the whole stored session (a fresh process loads it for the Floor) succeeds
       await server.kill('SIGKILL');
